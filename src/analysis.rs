@@ -1,0 +1,803 @@
+//! The DC operating point of a plan, in every mode and at every battery state.
+//!
+//! For each mode (`typical`, `worst`, the user's) × battery state (full,
+//! nominal, empty) × regulator tolerance corner (outputs at their lowest and at
+//! their highest), currents are summed up the power tree and voltages worked
+//! down it: battery sag through its internal resistance, wire drops on supply
+//! and return nets, linear and switching regulator input currents, regulators
+//! falling out of regulation, motor currents through driver bridges. Currents
+//! and voltages depend on each other, so the two passes are repeated until
+//! nothing moves; a point that does not settle is reported as such, never
+//! looped on forever. Nothing here judges the numbers: that is `rules`.
+
+use crate::graph::{Circuit, MotorFeed};
+use crate::model::{
+    BridgeDrop, Chemistry, Class, LoadState, MotorState, NetId, PartId, PartState, PinRole, Plan,
+    PortKind, Topology,
+};
+use crate::units::WireSize;
+use crate::wire;
+use uom::si::electric_current::ampere;
+use uom::si::electric_potential::volt;
+use uom::si::f64::{ElectricCurrent, ElectricPotential, ElectricalResistance, Power};
+use uom::si::ratio::ratio;
+
+/// Battery state of charge at which a point is solved.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum BatteryState {
+    Full,
+    Nominal,
+    Empty,
+}
+
+impl BatteryState {
+    pub const ALL: [BatteryState; 3] = [
+        BatteryState::Full,
+        BatteryState::Nominal,
+        BatteryState::Empty,
+    ];
+
+    pub fn name(self) -> &'static str {
+        match self {
+            BatteryState::Full => "full",
+            BatteryState::Nominal => "nominal",
+            BatteryState::Empty => "empty",
+        }
+    }
+}
+
+/// Where regulator outputs sit inside their tolerance.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Corner {
+    Low,
+    High,
+}
+
+/// A mode: 0 is `typical`, 1 is `worst`, 2.. are the user's modes in file order.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct ModeId(pub usize);
+
+impl ModeId {
+    pub const TYPICAL: ModeId = ModeId(0);
+    pub const WORST: ModeId = ModeId(1);
+
+    pub fn name(self, plan: &Plan) -> &str {
+        match self.0 {
+            0 => "typical",
+            1 => "worst",
+            n => &plan.modes[n - 2].name,
+        }
+    }
+
+    /// Continuous modes meet continuous ratings; `worst` only meets maximum
+    /// ratings (contract §6).
+    pub fn is_continuous(self) -> bool {
+        self != ModeId::WORST
+    }
+
+    pub fn all(plan: &Plan) -> impl Iterator<Item = ModeId> {
+        (0..plan.modes.len() + 2).map(ModeId)
+    }
+}
+
+/// Per-cell voltage window (full, nominal, empty) from the handbook values in
+/// the reference sheet §6, as fixed by the format contract §3.
+pub fn cell_window(chemistry: Chemistry) -> [ElectricPotential; 3] {
+    let (full, nominal, empty) = match chemistry {
+        Chemistry::Lipo | Chemistry::LiIon => (4.20, 3.70, 3.00),
+        Chemistry::LiFePo4 => (3.65, 3.20, 2.50),
+        Chemistry::NiMh => (1.45, 1.20, 1.00),
+        Chemistry::LeadAcid => (2.30, 2.00, 1.75),
+    };
+    [full, nominal, empty].map(ElectricPotential::new::<volt>)
+}
+
+/// A battery's open-circuit voltage at a state of charge.
+pub fn battery_voltage(
+    plan: &Plan,
+    part: PartId,
+    state: BatteryState,
+) -> Option<ElectricPotential> {
+    let Class::Battery(battery) = &plan.parts[part].class else {
+        return None;
+    };
+    if let Some(band) = battery.voltage {
+        return Some(match state {
+            BatteryState::Full => band.max,
+            BatteryState::Nominal => band.nominal,
+            BatteryState::Empty => band.min,
+        });
+    }
+    let [full, nominal, empty] = cell_window(battery.chemistry);
+    let cell = match state {
+        BatteryState::Full => full,
+        BatteryState::Nominal => nominal,
+        BatteryState::Empty => empty,
+    };
+    Some(cell * battery.cells as f64)
+}
+
+/// Why a point did not settle.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Unsettled {
+    pub part: Option<PartId>,
+    pub reason: String,
+    pub iterations: usize,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct RegulatorPoint {
+    /// Across the regulator: its input pin minus its ground.
+    pub input_voltage: ElectricPotential,
+    pub output_voltage: ElectricPotential,
+    pub input_current: ElectricCurrent,
+    pub output_current: ElectricCurrent,
+    /// The output could not be held (linear/buck below output + dropout,
+    /// boost above its output).
+    pub out_of_regulation: bool,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct MotorPoint {
+    pub state: MotorState,
+    /// Across the winding.
+    pub voltage: ElectricPotential,
+    pub current: ElectricCurrent,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct BatteryPoint {
+    pub open_circuit: ElectricPotential,
+    pub terminal: ElectricPotential,
+    pub current: ElectricCurrent,
+}
+
+/// One solved point: a mode, a battery state and a tolerance corner.
+#[derive(Clone, Debug)]
+pub struct OperatingPoint {
+    pub mode: ModeId,
+    pub battery: BatteryState,
+    pub corner: Corner,
+    pub unsettled: Option<Unsettled>,
+    /// Per net: current carried by its conductor.
+    pub net_current: Vec<ElectricCurrent>,
+    /// Per net: potential above the battery negative at the load end; `None`
+    /// for a net with no source.
+    pub net_potential: Vec<Option<ElectricPotential>>,
+    /// Per part and pin: for supply-in pins, the voltage across the part
+    /// (pin minus the part's ground); for supply-out pins, the voltage it gives.
+    pub pin_voltage: Vec<Vec<Option<ElectricPotential>>>,
+    /// Per part and pin: current into a supply-in pin or out of a supply-out pin.
+    pub pin_current: Vec<Vec<ElectricCurrent>>,
+    pub regulators: Vec<Option<RegulatorPoint>>,
+    pub motors: Vec<Option<MotorPoint>>,
+    /// Per driver part: (channel number, current).
+    pub channels: Vec<Vec<(u32, ElectricCurrent)>>,
+    pub batteries: Vec<Option<BatteryPoint>>,
+    /// Per USB link: current over its VBUS conductor.
+    pub link_current: Vec<ElectricCurrent>,
+}
+
+/// Every operating point of a plan.
+#[derive(Clone, Debug)]
+pub struct Analysis {
+    pub points: Vec<OperatingPoint>,
+}
+
+impl Analysis {
+    pub fn solve(plan: &Plan, circuit: &Circuit) -> Analysis {
+        let mut points = Vec::new();
+        for mode in ModeId::all(plan) {
+            for battery in BatteryState::ALL {
+                for corner in [Corner::Low, Corner::High] {
+                    points.push(solve_point(plan, circuit, mode, battery, corner));
+                }
+            }
+        }
+        Analysis { points }
+    }
+
+    pub fn settled(&self) -> impl Iterator<Item = &OperatingPoint> {
+        self.points.iter().filter(|p| p.unsettled.is_none())
+    }
+}
+
+/// What state a mode puts a part in.
+pub fn part_state(plan: &Plan, mode: ModeId, part: PartId) -> PartState {
+    let is_motor = matches!(plan.parts[part].class, Class::Motor(_));
+    let default = match (mode, is_motor) {
+        (ModeId::WORST, true) => PartState::Motor(MotorState::Stall),
+        (ModeId::WORST, false) => PartState::Load(LoadState::Peak),
+        (_, true) => PartState::Motor(MotorState::Running),
+        (_, false) => PartState::Load(LoadState::Typical),
+    };
+    if mode.0 < 2 {
+        return default;
+    }
+    plan.modes[mode.0 - 2]
+        .states
+        .iter()
+        .find(|(p, _)| *p == part)
+        .map_or(default, |(_, s)| *s)
+}
+
+fn load_state(plan: &Plan, mode: ModeId, part: PartId) -> LoadState {
+    match part_state(plan, mode, part) {
+        PartState::Load(s) => s,
+        PartState::Motor(_) => LoadState::Typical,
+    }
+}
+
+const MAX_ITERATIONS: usize = 500;
+/// Settled when no potential moves by more than this between passes.
+const VOLTAGE_TOLERANCE: f64 = 1e-9;
+const CURRENT_TOLERANCE: f64 = 1e-9;
+
+fn zero_current() -> ElectricCurrent {
+    ElectricCurrent::new::<ampere>(0.0)
+}
+
+fn zero_voltage() -> ElectricPotential {
+    ElectricPotential::new::<volt>(0.0)
+}
+
+/// Resistance of a net's conductor, if it has a wire and a length.
+pub fn net_resistance(plan: &Plan, net: NetId) -> Option<ElectricalResistance> {
+    let n = &plan.nets[net];
+    let (wire, length) = (n.wire?, n.length?);
+    Some(wire::resistance(wire.value, length.value))
+}
+
+fn link_resistance(
+    wire: Option<WireSize>,
+    length: Option<uom::si::f64::Length>,
+) -> Option<ElectricalResistance> {
+    Some(wire::resistance(wire?, length?))
+}
+
+struct Solver<'a> {
+    plan: &'a Plan,
+    circuit: &'a Circuit,
+    mode: ModeId,
+    battery: BatteryState,
+    corner: Corner,
+    resistance: Vec<Option<ElectricalResistance>>,
+}
+
+fn solve_point(
+    plan: &Plan,
+    circuit: &Circuit,
+    mode: ModeId,
+    battery: BatteryState,
+    corner: Corner,
+) -> OperatingPoint {
+    let solver = Solver {
+        plan,
+        circuit,
+        mode,
+        battery,
+        corner,
+        resistance: (0..plan.nets.len())
+            .map(|n| net_resistance(plan, n))
+            .collect(),
+    };
+    solver.run()
+}
+
+impl Solver<'_> {
+    fn blank(&self) -> OperatingPoint {
+        let plan = self.plan;
+        OperatingPoint {
+            mode: self.mode,
+            battery: self.battery,
+            corner: self.corner,
+            unsettled: None,
+            net_current: vec![zero_current(); plan.nets.len()],
+            net_potential: vec![None; plan.nets.len()],
+            pin_voltage: plan
+                .parts
+                .iter()
+                .map(|p| vec![None; p.pins.len()])
+                .collect(),
+            pin_current: plan
+                .parts
+                .iter()
+                .map(|p| vec![zero_current(); p.pins.len()])
+                .collect(),
+            regulators: vec![None; plan.parts.len()],
+            motors: vec![None; plan.parts.len()],
+            channels: vec![Vec::new(); plan.parts.len()],
+            batteries: vec![None; plan.parts.len()],
+            link_current: vec![zero_current(); plan.links.len()],
+        }
+    }
+
+    fn run(&self) -> OperatingPoint {
+        let mut point = self.blank();
+        for iteration in 1..=MAX_ITERATIONS {
+            let before_potential = point.net_potential.clone();
+            let before_current = point.net_current.clone();
+            self.voltages(&mut point);
+            if let Some(mut failure) = self.collapsed(&point) {
+                failure.iterations = iteration;
+                point.unsettled = Some(failure);
+                return point;
+            }
+            self.currents(&mut point);
+            let moved_v = before_potential
+                .iter()
+                .zip(&point.net_potential)
+                .map(|(a, b)| match (a, b) {
+                    (Some(a), Some(b)) => (*a - *b).get::<volt>().abs(),
+                    (None, None) => 0.0,
+                    _ => f64::INFINITY,
+                })
+                .fold(0.0, f64::max);
+            let moved_i = before_current
+                .iter()
+                .zip(&point.net_current)
+                .map(|(a, b)| (*a - *b).get::<ampere>().abs())
+                .fold(0.0, f64::max);
+            if iteration > 1 && moved_v < VOLTAGE_TOLERANCE && moved_i < CURRENT_TOLERANCE {
+                self.voltages(&mut point);
+                return point;
+            }
+        }
+        point.unsettled = Some(Unsettled {
+            part: None,
+            reason: format!("voltages and currents still moving after {MAX_ITERATIONS} passes"),
+            iterations: MAX_ITERATIONS,
+        });
+        point
+    }
+
+    /// A point that has no physical solution: a source pulled to or below zero.
+    fn collapsed(&self, point: &OperatingPoint) -> Option<Unsettled> {
+        for (part, battery) in point.batteries.iter().enumerate() {
+            if let Some(b) = battery
+                && b.terminal.get::<volt>() <= 0.0
+            {
+                return Some(Unsettled {
+                    part: Some(part),
+                    reason: "the battery terminal voltage collapses to zero under this load".into(),
+                    iterations: 0,
+                });
+            }
+        }
+        for (part, regulator) in point.regulators.iter().enumerate() {
+            let Some(r) = regulator else { continue };
+            let Class::Regulator(spec) = &self.plan.parts[part].class else {
+                continue;
+            };
+            if spec.topology.is_switching()
+                && r.output_current.get::<ampere>() > 0.0
+                && r.input_voltage.get::<volt>() <= 0.0
+            {
+                return Some(Unsettled {
+                    part: Some(part),
+                    reason: "the converter draws constant power, and its input voltage collapses: the source cannot deliver that power through its resistance".into(),
+                    iterations: 0,
+                });
+            }
+        }
+        None
+    }
+
+    // ----- voltages, top down ---------------------------------------------
+
+    fn voltages(&self, point: &mut OperatingPoint) {
+        let plan = self.plan;
+        let circuit = self.circuit;
+        // Ground nets: the battery negative's net is 0 V at its root; return
+        // current raises the far end.
+        let mut potential: Vec<Option<ElectricPotential>> = vec![None; plan.nets.len()];
+        for &net in &circuit.net_order {
+            let node = &circuit.nodes[circuit.node_of_net[net]];
+            if !node.is_ground() {
+                continue;
+            }
+            let upstream = match circuit.parent[net] {
+                Some(parent) => potential[parent.net],
+                None => Some(zero_voltage()),
+            };
+            potential[net] = upstream.map(|u| u + self.drop(net, point.net_current[net]));
+        }
+        let ground_of = |part: PartId, potential: &[Option<ElectricPotential>]| {
+            circuit.ground_net[part]
+                .and_then(|n| potential[n])
+                .unwrap_or_else(zero_voltage)
+        };
+
+        // Source potentials, from the previous pass's inputs.
+        let mut source: Vec<Option<ElectricPotential>> = vec![None; circuit.nodes.len()];
+        for (node_id, node) in circuit.nodes.iter().enumerate() {
+            if node.is_ground() {
+                continue;
+            }
+            let Some(root) = circuit.root[node_id] else {
+                continue;
+            };
+            let Some(pin) = node
+                .supply_outs
+                .iter()
+                .find(|p| plan.parts[p.part].pins[p.pin].net == Some(root))
+            else {
+                continue;
+            };
+            let ground = ground_of(pin.part, &potential);
+            let across = self.source_voltage(point, pin.part, pin.pin);
+            source[node_id] = across.map(|v| ground + v);
+            point.pin_voltage[pin.part][pin.pin] = across;
+        }
+        for &net in &circuit.net_order {
+            let node_id = circuit.node_of_net[net];
+            if circuit.nodes[node_id].is_ground() {
+                continue;
+            }
+            let upstream = match circuit.parent[net] {
+                Some(parent) => potential[parent.net],
+                None => source[node_id],
+            };
+            potential[net] = upstream.map(|u| u - self.drop(net, point.net_current[net]));
+        }
+        point.net_potential = potential;
+
+        // Voltage across each supply-in pin.
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            let ground = ground_of(part_id, &point.net_potential);
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role != PinRole::SupplyIn {
+                    continue;
+                }
+                point.pin_voltage[part_id][pin_id] = pin
+                    .net
+                    .and_then(|n| point.net_potential[n])
+                    .map(|v| v - ground);
+            }
+        }
+    }
+
+    fn drop(&self, net: NetId, current: ElectricCurrent) -> ElectricPotential {
+        match self.resistance[net] {
+            Some(r) => current * r,
+            None => zero_voltage(),
+        }
+    }
+
+    /// Voltage a supply-out pin gives above its part's ground.
+    fn source_voltage(
+        &self,
+        point: &mut OperatingPoint,
+        part_id: PartId,
+        pin: usize,
+    ) -> Option<ElectricPotential> {
+        let part = &self.plan.parts[part_id];
+        match &part.class {
+            Class::Battery(battery) => {
+                let open_circuit = battery_voltage(self.plan, part_id, self.battery)?;
+                let current = point.pin_current[part_id][pin];
+                let terminal = open_circuit - current * battery.internal_resistance;
+                point.batteries[part_id] = Some(BatteryPoint {
+                    open_circuit,
+                    terminal,
+                    current,
+                });
+                Some(terminal)
+            }
+            Class::Regulator(regulator) => {
+                let vin_pin = part.pin("vin")?;
+                let input = point.pin_voltage[part_id][vin_pin].unwrap_or_else(zero_voltage);
+                let target = match self.corner {
+                    Corner::Low => regulator.output.min,
+                    Corner::High => regulator.output.max,
+                };
+                let (output, out_of_regulation) = match regulator.topology {
+                    Topology::Linear | Topology::Buck => {
+                        let ceiling = input - regulator.dropout;
+                        if ceiling < target {
+                            (ceiling.max(zero_voltage()), true)
+                        } else {
+                            (target, false)
+                        }
+                    }
+                    Topology::Boost if input > target => (input, true),
+                    Topology::Boost | Topology::BuckBoost => (target, false),
+                };
+                let entry = point.regulators[part_id].get_or_insert(RegulatorPoint {
+                    input_voltage: input,
+                    output_voltage: output,
+                    input_current: zero_current(),
+                    output_current: zero_current(),
+                    out_of_regulation,
+                });
+                entry.input_voltage = input;
+                entry.output_voltage = output;
+                entry.out_of_regulation = out_of_regulation;
+                Some(output)
+            }
+            _ => {
+                let band = part.pins[pin].voltage?;
+                Some(match self.corner {
+                    Corner::Low => band.min,
+                    Corner::High => band.max,
+                })
+            }
+        }
+    }
+
+    // ----- currents, bottom up --------------------------------------------
+
+    fn currents(&self, point: &mut OperatingPoint) {
+        let plan = self.plan;
+        let circuit = self.circuit;
+
+        // What each supply-out pin delivers: its node's total, from the last pass.
+        let mut delivered = vec![zero_current(); circuit.nodes.len()];
+        for (node_id, node) in circuit.nodes.iter().enumerate() {
+            if let Some(root) = circuit.root[node_id]
+                && !node.is_ground()
+            {
+                delivered[node_id] = point.net_current[root];
+            }
+        }
+        let mut pin_current: Vec<Vec<ElectricCurrent>> = plan
+            .parts
+            .iter()
+            .map(|p| vec![zero_current(); p.pins.len()])
+            .collect();
+        for node in circuit.nodes.iter().filter(|n| !n.is_ground()) {
+            let root = node
+                .supply_outs
+                .iter()
+                .find(|p| plan.parts[p.part].pins[p.pin].net.is_some());
+            if let Some(pin) = root {
+                let node_id =
+                    circuit.node_of_net[plan.parts[pin.part].pins[pin.pin].net.unwrap_or(0)];
+                pin_current[pin.part][pin.pin] = delivered[node_id];
+            }
+        }
+
+        // Motors first: drivers add them up.
+        for (part_id, feed) in circuit.motor_feed.iter().enumerate() {
+            let Class::Motor(motor) = &plan.parts[part_id].class else {
+                continue;
+            };
+            let state = match part_state(plan, self.mode, part_id) {
+                PartState::Motor(s) => s,
+                PartState::Load(_) => MotorState::Running,
+            };
+            let (supply_voltage, drop) = match feed {
+                Some(MotorFeed::Driver { driver, .. }) => {
+                    let Class::Driver(spec) = &plan.parts[*driver].class else {
+                        continue;
+                    };
+                    let vm = plan.parts[*driver].pin("vm");
+                    let v = vm.and_then(|p| point.pin_voltage[*driver][p]);
+                    (v, Some(spec.drop))
+                }
+                Some(MotorFeed::Direct { supply, ground }) => {
+                    let v = match (point.net_potential[*supply], point.net_potential[*ground]) {
+                        (Some(s), Some(g)) => Some(s - g),
+                        (Some(s), None) => Some(s),
+                        _ => None,
+                    };
+                    (v, None)
+                }
+                None => (None, None),
+            };
+            let supply_voltage = supply_voltage
+                .unwrap_or_else(zero_voltage)
+                .max(zero_voltage());
+            let winding = motor.rated_voltage / motor.stall_current;
+            let (voltage, current) = match (state, drop) {
+                (MotorState::Idle, _) => (zero_voltage(), zero_current()),
+                (MotorState::Running, Some(BridgeDrop::Fixed(d))) => (
+                    (supply_voltage - d).max(zero_voltage()),
+                    motor.rated_current,
+                ),
+                (MotorState::Running, Some(BridgeDrop::PerSwitch(r))) => (
+                    supply_voltage - motor.rated_current * r * 2.0,
+                    motor.rated_current,
+                ),
+                (MotorState::Running, None) => (supply_voltage, motor.rated_current),
+                // Stall: the winding resistance alone limits the current
+                // (I = V / R, reference sheet §8).
+                (MotorState::Stall, Some(BridgeDrop::Fixed(d))) => {
+                    let v = (supply_voltage - d).max(zero_voltage());
+                    (v, v / winding)
+                }
+                (MotorState::Stall, Some(BridgeDrop::PerSwitch(r))) => {
+                    let i = supply_voltage / (winding + r * 2.0);
+                    (i * winding, i)
+                }
+                (MotorState::Stall, None) => (supply_voltage, supply_voltage / winding),
+            };
+            point.motors[part_id] = feed.map(|_| MotorPoint {
+                state,
+                voltage,
+                current,
+            });
+        }
+
+        let mut channels: Vec<Vec<(u32, ElectricCurrent)>> = vec![Vec::new(); plan.parts.len()];
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            if let Class::Driver(driver) = &part.class {
+                channels[part_id] = driver
+                    .channels
+                    .iter()
+                    .map(|c| (c.number, zero_current()))
+                    .collect();
+            }
+        }
+        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
+            if let (Some(MotorFeed::Driver { driver, channel }), Some(m)) =
+                (feed, point.motors[motor])
+                && let Some(slot) = channels[*driver].iter_mut().find(|(n, _)| n == channel)
+            {
+                slot.1 += m.current;
+            }
+        }
+
+        // USB cables: what each host port sends to its device.
+        let mut link_current = vec![zero_current(); plan.links.len()];
+        for (link_id, link) in plan.links.iter().enumerate() {
+            let (device, port) = link.device;
+            let state = load_state(plan, self.mode, device);
+            let mut current = match &plan.parts[device].ports[port].kind {
+                PortKind::UsbDevice { draw: Some(d), .. } => d.in_state(state),
+                _ => zero_current(),
+            };
+            // A device powered only by the cable also passes on what its own
+            // outputs deliver.
+            let fed_otherwise = self.fed_supply_in(point, device).is_some();
+            if !fed_otherwise {
+                for (pin_id, pin) in plan.parts[device].pins.iter().enumerate() {
+                    if pin.role == PinRole::SupplyOut {
+                        current += pin_current[device][pin_id];
+                    }
+                }
+            }
+            link_current[link_id] = current;
+        }
+
+        // Each part's supply-in pins.
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            let state = load_state(plan, self.mode, part_id);
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role == PinRole::SupplyIn {
+                    pin_current[part_id][pin_id] =
+                        pin.draw.map_or(zero_current(), |d| d.in_state(state));
+                }
+            }
+            match &part.class {
+                Class::Regulator(regulator) => {
+                    let (Some(vin), Some(vout)) = (part.pin("vin"), part.pin("vout")) else {
+                        continue;
+                    };
+                    let output_current = pin_current[part_id][vout];
+                    let input_voltage =
+                        point.pin_voltage[part_id][vin].unwrap_or_else(zero_voltage);
+                    let output_voltage = point.regulators[part_id]
+                        .map_or(regulator.output.nominal, |r| r.output_voltage);
+                    let input_current = if regulator.topology == Topology::Linear {
+                        output_current + regulator.quiescent
+                    } else if input_voltage.get::<volt>() > 0.0 {
+                        // Energy balance: Iin = Vout·Iout / (η·Vin) (reference sheet §7).
+                        let output_power: Power = output_voltage * output_current;
+                        output_power / (input_voltage * regulator.efficiency.get::<ratio>())
+                            + regulator.quiescent
+                    } else {
+                        regulator.quiescent
+                    };
+                    pin_current[part_id][vin] = input_current;
+                    let entry = point.regulators[part_id].get_or_insert(RegulatorPoint {
+                        input_voltage,
+                        output_voltage,
+                        input_current,
+                        output_current,
+                        out_of_regulation: false,
+                    });
+                    entry.input_current = input_current;
+                    entry.output_current = output_current;
+                }
+                Class::Driver(driver) => {
+                    if let Some(vm) = part.pin("vm") {
+                        let motors = channels[part_id]
+                            .iter()
+                            .fold(zero_current(), |sum, (_, i)| sum + *i);
+                        pin_current[part_id][vm] += motors + driver.quiescent;
+                    }
+                }
+                _ => {}
+            }
+        }
+        // Onboard outputs and USB host ports are paid for by the part's own supply.
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
+                continue;
+            }
+            let mut passed_on = zero_current();
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role == PinRole::SupplyOut {
+                    passed_on += pin_current[part_id][pin_id];
+                }
+            }
+            for (link_id, link) in plan.links.iter().enumerate() {
+                if link.host.0 == part_id {
+                    passed_on += link_current[link_id];
+                }
+            }
+            if passed_on.get::<ampere>() == 0.0 {
+                continue;
+            }
+            if let Some(pin) = self.fed_supply_in(point, part_id) {
+                pin_current[part_id][pin] += passed_on;
+            }
+        }
+
+        // Net currents: each net carries what hangs on it and below it.
+        let mut net_current = vec![zero_current(); plan.nets.len()];
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role == PinRole::SupplyIn
+                    && let Some(net) = pin.net
+                {
+                    net_current[net] += pin_current[part_id][pin_id];
+                }
+            }
+            // Return current: what a part takes in minus what it gives out.
+            if matches!(part.class, Class::Battery(_)) {
+                continue;
+            }
+            if let Some(ground) = circuit.ground_net[part_id] {
+                let mut returned = zero_current();
+                for (pin_id, pin) in part.pins.iter().enumerate() {
+                    match pin.role {
+                        PinRole::SupplyIn => returned += pin_current[part_id][pin_id],
+                        PinRole::SupplyOut => returned -= pin_current[part_id][pin_id],
+                        _ => {}
+                    }
+                }
+                net_current[ground] += returned;
+            }
+        }
+        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
+            if let (Some(MotorFeed::Direct { supply, ground }), Some(m)) =
+                (feed, point.motors[motor])
+            {
+                net_current[*supply] += m.current;
+                net_current[*ground] += m.current;
+            }
+        }
+        for &net in circuit.net_order.iter().rev() {
+            if let Some(parent) = circuit.parent[net] {
+                let below = net_current[net];
+                net_current[parent.net] += below;
+            }
+        }
+
+        point.pin_current = pin_current;
+        point.net_current = net_current;
+        point.channels = channels;
+        point.link_current = link_current;
+    }
+
+    /// The first supply-in pin of a part that sits on a fed rail.
+    fn fed_supply_in(&self, point: &OperatingPoint, part: PartId) -> Option<usize> {
+        self.plan.parts[part]
+            .pins
+            .iter()
+            .enumerate()
+            .find(|(_, pin)| {
+                pin.role == PinRole::SupplyIn
+                    && pin.net.is_some_and(|n| point.net_potential[n].is_some())
+            })
+            .map(|(i, _)| i)
+    }
+}
+
+/// Link resistance of a USB cable's VBUS conductor, for the wire rules.
+pub fn usb_link_resistance(plan: &Plan, link: usize) -> Option<ElectricalResistance> {
+    let l = &plan.links[link];
+    link_resistance(l.wire.map(|w| w.value), l.length.map(|l| l.value))
+}

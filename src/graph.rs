@@ -1,0 +1,392 @@
+//! The plan as a graph: which nets conduct into one electrical node, which way
+//! power flows from batteries through converters to loads, and where grounds go.
+//!
+//! Built once from the model with `petgraph`; the topology rules (`power/short`,
+//! `power/loop`, `ground/floating`, …) and the operating-point solver both read
+//! it. It computes no voltages or currents.
+
+use crate::model::{Class, NetId, PartId, PinIndex, PinRef, PinRole, Plan, PortKind};
+use petgraph::stable_graph::{NodeIndex, StableDiGraph};
+use petgraph::unionfind::UnionFind;
+use std::collections::VecDeque;
+
+/// Nets joined by `through` pins (fuses, switches, connector contacts).
+#[derive(Clone, Debug, Default)]
+pub struct ElectricalNode {
+    pub nets: Vec<NetId>,
+    pub supply_outs: Vec<PinRef>,
+    pub supply_ins: Vec<PinRef>,
+    pub grounds: Vec<PinRef>,
+}
+
+impl ElectricalNode {
+    pub fn is_ground(&self) -> bool {
+        !self.grounds.is_empty()
+    }
+}
+
+/// How a net hangs below the source-side net of its electrical node.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub struct Parent {
+    pub net: NetId,
+    /// The conducting part and its two pins (source side, load side).
+    pub part: PartId,
+    pub upstream_pin: PinIndex,
+    pub downstream_pin: PinIndex,
+}
+
+/// How a motor is powered.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum MotorFeed {
+    /// Across two bridge outputs of a driver channel.
+    Driver { driver: PartId, channel: u32 },
+    /// Straight across a rail and a ground.
+    Direct { supply: NetId, ground: NetId },
+}
+
+/// A stage of power conversion in the flow graph.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Stage {
+    /// An electrical node that carries supply (no ground pins).
+    Rail(usize),
+    /// A part that takes power from rails and may give power to others.
+    Converter(PartId),
+}
+
+#[derive(Clone, Debug)]
+pub struct Circuit {
+    pub nodes: Vec<ElectricalNode>,
+    pub node_of_net: Vec<usize>,
+    /// Per net: where it hangs in its node's tree, `None` for the root.
+    pub parent: Vec<Option<Parent>>,
+    /// Per net: the nets directly below it.
+    pub children: Vec<Vec<NetId>>,
+    /// Per electrical node: the net holding its source (or battery negative).
+    pub root: Vec<Option<NetId>>,
+    /// Nets in an order where each net's parent comes before it.
+    pub net_order: Vec<NetId>,
+    /// Per part: the net of its first connected ground pin.
+    pub ground_net: Vec<Option<NetId>>,
+    /// Per part: the ground group it belongs to (electrical nodes joined by
+    /// USB cables); `None` when it has no ground at all.
+    pub ground_group: Vec<Option<usize>>,
+    /// Ground groups that contain a battery negative.
+    pub grounded_groups: Vec<bool>,
+    pub motor_feed: Vec<Option<MotorFeed>>,
+    pub flow: StableDiGraph<Stage, ()>,
+    pub rail_stage: Vec<Option<NodeIndex>>,
+    pub converter_stage: Vec<Option<NodeIndex>>,
+}
+
+impl Circuit {
+    pub fn build(plan: &Plan) -> Circuit {
+        let net_count = plan.nets.len();
+        let mut joined = UnionFind::<usize>::new(net_count);
+        let mut through_edges = Vec::new();
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            for (a, b) in through_pairs(plan, part_id) {
+                if let (Some(na), Some(nb)) = (part.pins[a].net, part.pins[b].net) {
+                    joined.union(na, nb);
+                    through_edges.push((part_id, a, na, b, nb));
+                }
+            }
+        }
+        let labels = joined.into_labeling();
+        let mut node_ids = vec![usize::MAX; net_count];
+        let mut nodes: Vec<ElectricalNode> = Vec::new();
+        let mut node_of_net = vec![0; net_count];
+        for net in 0..net_count {
+            let label = labels[net];
+            if node_ids[label] == usize::MAX {
+                node_ids[label] = nodes.len();
+                nodes.push(ElectricalNode::default());
+            }
+            node_of_net[net] = node_ids[label];
+            nodes[node_ids[label]].nets.push(net);
+        }
+        for (net_id, net) in plan.nets.iter().enumerate() {
+            let node = &mut nodes[node_of_net[net_id]];
+            for &pin_ref in &net.pins {
+                match plan.parts[pin_ref.part].pins[pin_ref.pin].role {
+                    PinRole::SupplyOut => node.supply_outs.push(pin_ref),
+                    PinRole::SupplyIn => node.supply_ins.push(pin_ref),
+                    PinRole::Ground => node.grounds.push(pin_ref),
+                    _ => {}
+                }
+            }
+        }
+
+        let root: Vec<Option<NetId>> = nodes.iter().map(|node| root_net(plan, node)).collect();
+        let (parent, children, net_order) = trees(net_count, &nodes, &root, &through_edges);
+
+        let ground_net: Vec<Option<NetId>> = plan
+            .parts
+            .iter()
+            .map(|part| {
+                part.pins_with_role(PinRole::Ground)
+                    .find_map(|(_, pin)| pin.net)
+            })
+            .collect();
+        let (ground_group, grounded_groups) =
+            ground_groups(plan, &nodes, &node_of_net, &ground_net);
+        let motor_feed = motor_feeds(plan, &nodes, &node_of_net);
+        let (flow, rail_stage, converter_stage) = flow_graph(plan, &nodes, &node_of_net);
+
+        Circuit {
+            nodes,
+            node_of_net,
+            parent,
+            children,
+            root,
+            net_order,
+            ground_net,
+            ground_group,
+            grounded_groups,
+            motor_feed,
+            flow,
+            rail_stage,
+            converter_stage,
+        }
+    }
+
+    /// The electrical node a pin sits on, if it is in a net.
+    pub fn node_of_pin(&self, plan: &Plan, pin: PinRef) -> Option<usize> {
+        plan.parts[pin.part].pins[pin.pin]
+            .net
+            .map(|n| self.node_of_net[n])
+    }
+
+    /// Whether a part's ground reaches a battery negative.
+    pub fn is_grounded(&self, part: PartId) -> bool {
+        self.ground_group[part].is_some_and(|g| self.grounded_groups[g])
+    }
+}
+
+/// The conducting pin pairs of a part: fuse and switch `a`/`b`, connector
+/// `aN`/`bN`.
+pub fn through_pairs(plan: &Plan, part_id: PartId) -> Vec<(PinIndex, PinIndex)> {
+    let part = &plan.parts[part_id];
+    let mut pairs = Vec::new();
+    match part.class {
+        Class::Fuse(_) | Class::Switch(_) => {
+            if let (Some(a), Some(b)) = (part.pin("a"), part.pin("b")) {
+                pairs.push((a, b));
+            }
+        }
+        Class::Connector(_) => {
+            for (a, pin) in part.pins.iter().enumerate() {
+                if pin.role != PinRole::Through || !pin.name.starts_with('a') {
+                    continue;
+                }
+                let partner = format!("b{}", &pin.name[1..]);
+                if let Some(b) = part.pin(&partner) {
+                    pairs.push((a, b));
+                }
+            }
+        }
+        _ => {}
+    }
+    pairs
+}
+
+/// The net a node's current is measured from: the net holding its first
+/// source for a supply node, or a battery negative for a ground node.
+fn root_net(plan: &Plan, node: &ElectricalNode) -> Option<NetId> {
+    let pin_net = |p: &PinRef| plan.parts[p.part].pins[p.pin].net;
+    if node.is_ground() {
+        let battery_neg = node
+            .grounds
+            .iter()
+            .find(|p| matches!(plan.parts[p.part].class, Class::Battery(_)));
+        return battery_neg.or(node.grounds.first()).and_then(pin_net);
+    }
+    node.supply_outs.first().and_then(pin_net)
+}
+
+type Trees = (Vec<Option<Parent>>, Vec<Vec<NetId>>, Vec<NetId>);
+
+fn trees(
+    net_count: usize,
+    nodes: &[ElectricalNode],
+    root: &[Option<NetId>],
+    through_edges: &[(PartId, PinIndex, NetId, PinIndex, NetId)],
+) -> Trees {
+    let mut adjacency: Vec<Vec<(NetId, PartId, PinIndex, PinIndex)>> = vec![Vec::new(); net_count];
+    for &(part, a, na, b, nb) in through_edges {
+        if na != nb {
+            adjacency[na].push((nb, part, a, b));
+            adjacency[nb].push((na, part, b, a));
+        }
+    }
+    let mut parent = vec![None; net_count];
+    let mut children = vec![Vec::new(); net_count];
+    let mut seen = vec![false; net_count];
+    let mut order = Vec::with_capacity(net_count);
+    for (node_id, node) in nodes.iter().enumerate() {
+        let start = root[node_id].or(node.nets.first().copied());
+        let Some(start) = start else { continue };
+        let mut queue = VecDeque::from([start]);
+        seen[start] = true;
+        while let Some(net) = queue.pop_front() {
+            order.push(net);
+            for &(next, part, up, down) in &adjacency[net] {
+                if seen[next] {
+                    continue;
+                }
+                seen[next] = true;
+                parent[next] = Some(Parent {
+                    net,
+                    part,
+                    upstream_pin: up,
+                    downstream_pin: down,
+                });
+                children[net].push(next);
+                queue.push_back(next);
+            }
+        }
+    }
+    // Nets a through loop left unvisited still need a place in the order.
+    order.extend((0..net_count).filter(|&n| !seen[n]));
+    (parent, children, order)
+}
+
+fn ground_groups(
+    plan: &Plan,
+    nodes: &[ElectricalNode],
+    node_of_net: &[usize],
+    ground_net: &[Option<NetId>],
+) -> (Vec<Option<usize>>, Vec<bool>) {
+    // Electrical nodes are groups 0..n; a part with no ground pin of its own
+    // gets a group of its own so a USB cable can ground it.
+    let part_base = nodes.len();
+    let mut groups = UnionFind::<usize>::new(part_base + plan.parts.len());
+    let own = |part: PartId| match ground_net[part] {
+        Some(net) => node_of_net[net],
+        None => part_base + part,
+    };
+    for link in &plan.links {
+        groups.union(own(link.host.0), own(link.device.0));
+    }
+    let labels = groups.into_labeling();
+    let mut grounded = vec![false; labels.len()];
+    for (node_id, node) in nodes.iter().enumerate() {
+        if node
+            .grounds
+            .iter()
+            .any(|p| matches!(plan.parts[p.part].class, Class::Battery(_)))
+        {
+            grounded[labels[node_id]] = true;
+        }
+    }
+    let linked = |part: PartId| {
+        plan.links
+            .iter()
+            .any(|l| l.host.0 == part || l.device.0 == part)
+    };
+    let group = (0..plan.parts.len())
+        .map(|part| {
+            let has_ground = ground_net[part].is_some() || linked(part);
+            has_ground.then(|| labels[own(part)])
+        })
+        .collect();
+    (group, grounded)
+}
+
+fn motor_feeds(
+    plan: &Plan,
+    nodes: &[ElectricalNode],
+    node_of_net: &[usize],
+) -> Vec<Option<MotorFeed>> {
+    plan.parts
+        .iter()
+        .map(|part| {
+            if !matches!(part.class, Class::Motor(_)) {
+                return None;
+            }
+            let (a, b) = (part.pin("a")?, part.pin("b")?);
+            let (na, nb) = (part.pins[a].net?, part.pins[b].net?);
+            for (driver_id, driver_part) in plan.parts.iter().enumerate() {
+                let Class::Driver(driver) = &driver_part.class else {
+                    continue;
+                };
+                for channel in &driver.channels {
+                    let nets = channel.outputs.map(|p| driver_part.pins[p].net);
+                    if nets == [Some(na), Some(nb)] || nets == [Some(nb), Some(na)] {
+                        return Some(MotorFeed::Driver {
+                            driver: driver_id,
+                            channel: channel.number,
+                        });
+                    }
+                }
+            }
+            let (node_a, node_b) = (&nodes[node_of_net[na]], &nodes[node_of_net[nb]]);
+            match (node_a.is_ground(), node_b.is_ground()) {
+                (false, true) => Some(MotorFeed::Direct {
+                    supply: na,
+                    ground: nb,
+                }),
+                (true, false) => Some(MotorFeed::Direct {
+                    supply: nb,
+                    ground: na,
+                }),
+                _ => None,
+            }
+        })
+        .collect()
+}
+
+type Flow = (
+    StableDiGraph<Stage, ()>,
+    Vec<Option<NodeIndex>>,
+    Vec<Option<NodeIndex>>,
+);
+
+/// Rails and converters, with edges in the direction power flows: rail →
+/// converter input, converter → the rail its output feeds. A USB cable is an
+/// edge from the host part to the device part.
+fn flow_graph(plan: &Plan, nodes: &[ElectricalNode], node_of_net: &[usize]) -> Flow {
+    let mut flow = StableDiGraph::new();
+    let rail_stage: Vec<Option<NodeIndex>> = nodes
+        .iter()
+        .enumerate()
+        .map(|(i, node)| (!node.is_ground()).then(|| flow.add_node(Stage::Rail(i))))
+        .collect();
+    let mut converter_stage = vec![None; plan.parts.len()];
+    for (part_id, part) in plan.parts.iter().enumerate() {
+        let is_converter = matches!(part.class, Class::Regulator(_) | Class::Driver(_))
+            || part.pins.iter().any(|p| p.role == PinRole::SupplyOut)
+                && !matches!(part.class, Class::Battery(_))
+            || part
+                .ports
+                .iter()
+                .any(|p| matches!(p.kind, PortKind::UsbHost { .. }));
+        if !is_converter {
+            continue;
+        }
+        let stage = flow.add_node(Stage::Converter(part_id));
+        converter_stage[part_id] = Some(stage);
+        for pin in &part.pins {
+            let Some(net) = pin.net else { continue };
+            let Some(rail) = rail_stage[node_of_net[net]] else {
+                continue;
+            };
+            match pin.role {
+                PinRole::SupplyIn => {
+                    flow.add_edge(rail, stage, ());
+                }
+                PinRole::SupplyOut => {
+                    flow.add_edge(stage, rail, ());
+                }
+                _ => {}
+            }
+        }
+    }
+    for link in &plan.links {
+        if let (Some(host), Some(device)) =
+            (converter_stage[link.host.0], converter_stage[link.device.0])
+        {
+            flow.add_edge(host, device, ());
+        }
+    }
+    (flow, rail_stage, converter_stage)
+}

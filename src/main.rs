@@ -1,0 +1,163 @@
+//! The `railcheck` command: parses arguments, reads files, prints reports and
+//! sets the exit code. Everything else lives in the library.
+
+use clap::{Parser, Subcommand, ValueEnum};
+use railcheck::model::Library;
+use railcheck::report::{self, HumanStyle};
+use railcheck::rules::Severity;
+use std::io::{IsTerminal, Write};
+use std::path::{Path, PathBuf};
+use std::process::ExitCode;
+
+#[derive(Parser)]
+#[command(
+    name = "railcheck",
+    version,
+    about = "Checks a robot's wiring plan before first power-on"
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand)]
+enum Command {
+    /// Check a plan: rails, currents, grounds, ratings.
+    Check {
+        /// The plan (YAML netlist).
+        file: PathBuf,
+        /// Output format.
+        #[arg(long, value_enum, default_value_t = Format::Human)]
+        format: Format,
+        /// Fail on warnings too.
+        #[arg(long)]
+        strict: bool,
+        /// A folder of extra part files; its ids shadow built-in ones.
+        #[arg(long, value_name = "DIR")]
+        parts: Option<PathBuf>,
+    },
+}
+
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum Format {
+    Human,
+    Json,
+}
+
+const EXIT_FINDINGS: u8 = 1;
+const EXIT_INPUT: u8 = 2;
+
+fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match cli.command {
+        Command::Check {
+            file,
+            format,
+            strict,
+            parts,
+        } => check(&file, format, strict, parts.as_deref()),
+    }
+}
+
+fn fail(message: &str) -> ExitCode {
+    eprintln!("railcheck: {message}");
+    ExitCode::from(EXIT_INPUT)
+}
+
+fn emit(text: &str) {
+    let mut stdout = std::io::stdout().lock();
+    // A closed pipe (`railcheck check x | head`) is not an error worth a panic.
+    let _ = stdout.write_all(text.as_bytes());
+    let _ = stdout.flush();
+}
+
+fn check(file: &Path, format: Format, strict: bool, parts: Option<&Path>) -> ExitCode {
+    let text = match std::fs::read_to_string(file) {
+        Ok(t) => t,
+        Err(e) => return fail(&format!("cannot read {}: {e}", file.display())),
+    };
+    let mut library = Library::builtin();
+    if let Some(dir) = parts
+        && let Err(message) = add_user_parts(&mut library, dir)
+    {
+        return fail(&message);
+    }
+    let style = HumanStyle {
+        color: std::io::stdout().is_terminal() && std::env::var_os("NO_COLOR").is_none(),
+        width: 100,
+    };
+    let name = file.display().to_string();
+    match railcheck::check(&name, &text, &library) {
+        Err(failure) => {
+            let out = match format {
+                Format::Json => report::input_errors_json(
+                    &failure.sources,
+                    failure.plan_source,
+                    &failure.errors,
+                ),
+                Format::Human => {
+                    report::render_input_errors(&failure.sources, &failure.errors, style)
+                }
+            };
+            emit(&out);
+            ExitCode::from(EXIT_INPUT)
+        }
+        Ok(checked) => {
+            let out = match format {
+                Format::Json => {
+                    report::findings_json(&checked.sources, checked.plan_source, &checked.findings)
+                }
+                Format::Human => report::render_findings(
+                    &checked.sources,
+                    checked.plan_source,
+                    &checked.findings,
+                    &railcheck::safety::cautions(&checked.plan),
+                    style,
+                ),
+            };
+            emit(&out);
+            let failing = checked.findings.iter().any(|f| {
+                f.severity == Severity::Error || (strict && f.severity == Severity::Warning)
+            });
+            if failing {
+                ExitCode::from(EXIT_FINDINGS)
+            } else {
+                ExitCode::SUCCESS
+            }
+        }
+    }
+}
+
+/// Reads every `.yaml` file below `dir` into the library, id = relative path
+/// without `.yaml`.
+fn add_user_parts(library: &mut Library, dir: &Path) -> Result<(), String> {
+    let mut stack = vec![dir.to_path_buf()];
+    let mut files = Vec::new();
+    while let Some(folder) = stack.pop() {
+        let entries = std::fs::read_dir(&folder)
+            .map_err(|e| format!("cannot read parts folder {}: {e}", folder.display()))?;
+        for entry in entries {
+            let path = entry
+                .map_err(|e| format!("cannot read {}: {e}", folder.display()))?
+                .path();
+            if path.is_dir() {
+                stack.push(path);
+            } else if path.extension().and_then(|e| e.to_str()) == Some("yaml") {
+                files.push(path);
+            }
+        }
+    }
+    files.sort();
+    for path in files {
+        let text = std::fs::read_to_string(&path)
+            .map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+        let relative = path.strip_prefix(dir).unwrap_or(&path).with_extension("");
+        let id = relative
+            .components()
+            .map(|c| c.as_os_str().to_string_lossy().into_owned())
+            .collect::<Vec<_>>()
+            .join("/");
+        library.insert(id, path.display().to_string(), text);
+    }
+    Ok(())
+}

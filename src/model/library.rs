@@ -1,0 +1,88 @@
+//! The parts library: generic parts that plans name with `use:`.
+//!
+//! Built-in parts are the YAML files under `parts/`, compiled into the binary so
+//! nothing is needed at run time. A user folder (`--parts DIR`) is read by the
+//! binary and handed in as texts; its ids shadow built-in ones. Files are parsed
+//! only when a plan uses them.
+
+use crate::syntax::{self, Node, Sources, Span};
+use include_dir::{Dir, include_dir};
+use std::collections::BTreeMap;
+
+static BUILTIN: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/parts");
+
+#[derive(Clone, Debug)]
+struct Entry {
+    /// Shown in diagnostics: `parts/battery/lipo-3s.yaml` or the user's path.
+    file_name: String,
+    text: String,
+}
+
+/// All known part ids and their YAML texts.
+#[derive(Clone, Debug, Default)]
+pub struct Library {
+    entries: BTreeMap<String, Entry>,
+}
+
+/// A library part file that is not valid YAML.
+#[derive(Clone, Debug, PartialEq)]
+pub struct LibraryError {
+    pub message: String,
+    pub span: Span,
+}
+
+impl Library {
+    /// The parts shipped with railcheck.
+    pub fn builtin() -> Library {
+        let mut library = Library::default();
+        collect_builtin(&BUILTIN, &mut library);
+        library
+    }
+
+    /// Adds (or shadows) a part. `id` is the path below the parts folder
+    /// without `.yaml`, with `/` separators.
+    pub fn insert(&mut self, id: String, file_name: String, text: String) {
+        self.entries.insert(id, Entry { file_name, text });
+    }
+
+    pub fn ids(&self) -> impl Iterator<Item = &str> {
+        self.entries.keys().map(String::as_str)
+    }
+
+    pub fn contains(&self, id: &str) -> bool {
+        self.entries.contains_key(id)
+    }
+
+    /// Parses a part's file into `sources`.
+    pub fn load(&self, id: &str, sources: &mut Sources) -> Option<Result<Node, LibraryError>> {
+        let entry = self.entries.get(id)?;
+        let source = sources.add(entry.file_name.clone(), entry.text.as_str());
+        Some(
+            syntax::parse(source, &entry.text).map_err(|e| LibraryError {
+                message: e.message,
+                span: e.span,
+            }),
+        )
+    }
+}
+
+fn collect_builtin(dir: &Dir<'static>, library: &mut Library) {
+    for file in dir.files() {
+        let path = file.path();
+        if path.extension().and_then(|e| e.to_str()) != Some("yaml") {
+            continue;
+        }
+        let Some(text) = file.contents_utf8() else {
+            continue;
+        };
+        let id = path.with_extension("").to_string_lossy().replace('\\', "/");
+        library.insert(
+            id,
+            format!("parts/{}", path.to_string_lossy()),
+            text.to_string(),
+        );
+    }
+    for sub in dir.dirs() {
+        collect_builtin(sub, library);
+    }
+}

@@ -1,0 +1,491 @@
+//! The typed wiring plan: parts, pins, nets, links, modes, with `uom` quantities
+//! and a source span on everything a finding may point at.
+//!
+//! `read` turns the YAML tree into this model, collecting every input problem;
+//! `library` supplies the generic parts that plans `use`. Nothing here computes
+//! currents or voltages: that is `analysis`.
+
+mod library;
+mod read;
+
+pub use library::{Library, LibraryError};
+pub use read::read_plan;
+
+use crate::syntax::Span;
+use crate::units::{Band, DischargeRate, WireSize};
+use uom::si::f64::{
+    ElectricCharge, ElectricCurrent, ElectricPotential, ElectricalResistance, Length, Power, Ratio,
+    ThermalResistance, ThermodynamicTemperature,
+};
+
+/// An input problem: the plan cannot be read as written.
+#[derive(Clone, Debug, PartialEq)]
+pub struct InputError {
+    pub message: String,
+    pub span: Span,
+    /// How to fix it, e.g. "write `5 Ah`".
+    pub hint: Option<String>,
+}
+
+pub type PartId = usize;
+pub type NetId = usize;
+pub type PinIndex = usize;
+
+/// A pin of a part, by index.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct PinRef {
+    pub part: PartId,
+    pub pin: PinIndex,
+}
+
+#[derive(Clone, Debug)]
+pub struct Plan {
+    pub name: Option<String>,
+    pub ambient: ThermodynamicTemperature,
+    pub limits: Limits,
+    pub parts: Vec<Part>,
+    pub nets: Vec<Net>,
+    pub links: Vec<Link>,
+    /// User modes, in file order (`typical` and `worst` are built in, not listed).
+    pub modes: Vec<Mode>,
+    pub profile: Vec<ProfileShare>,
+    /// The whole document, for findings about the plan as a whole.
+    pub span: Span,
+}
+
+#[derive(Clone, Copy, Debug)]
+pub struct Limits {
+    pub wire_drop: Ratio,
+    pub derate: Ratio,
+}
+
+#[derive(Clone, Debug)]
+pub struct Part {
+    pub name: String,
+    /// The part's name in `parts:`.
+    pub span: Span,
+    /// The library id it was made from (`battery/lipo-3s`), if any.
+    pub library_id: Option<String>,
+    pub class: Class,
+    pub pins: Vec<Pin>,
+    pub ports: Vec<Port>,
+}
+
+impl Part {
+    pub fn pin(&self, name: &str) -> Option<PinIndex> {
+        self.pins.iter().position(|p| p.name == name)
+    }
+
+    pub fn pins_with_role(&self, role: PinRole) -> impl Iterator<Item = (PinIndex, &Pin)> {
+        self.pins
+            .iter()
+            .enumerate()
+            .filter(move |(_, p)| p.role == role)
+    }
+
+    pub fn kind_name(&self) -> &'static str {
+        self.class.name()
+    }
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum PinRole {
+    SupplyOut,
+    SupplyIn,
+    Ground,
+    Through,
+    BridgeOut,
+    Winding,
+    LogicOut,
+    OpenDrain,
+    LogicIn,
+    LogicIo,
+    /// A resistor terminal: conducts through the resistance, never a rail.
+    Passive,
+}
+
+impl PinRole {
+    pub const WRITTEN: [(&'static str, PinRole); 10] = [
+        ("supply-out", PinRole::SupplyOut),
+        ("supply-in", PinRole::SupplyIn),
+        ("ground", PinRole::Ground),
+        ("through", PinRole::Through),
+        ("bridge-out", PinRole::BridgeOut),
+        ("winding", PinRole::Winding),
+        ("logic-out", PinRole::LogicOut),
+        ("open-drain", PinRole::OpenDrain),
+        ("logic-in", PinRole::LogicIn),
+        ("logic-io", PinRole::LogicIo),
+    ];
+
+    pub fn name(self) -> &'static str {
+        match self {
+            PinRole::Passive => "passive",
+            other => PinRole::WRITTEN
+                .iter()
+                .find(|(_, r)| *r == other)
+                .map_or("passive", |(n, _)| n),
+        }
+    }
+
+    pub fn is_logic(self) -> bool {
+        matches!(
+            self,
+            PinRole::LogicOut | PinRole::OpenDrain | PinRole::LogicIn | PinRole::LogicIo
+        )
+    }
+}
+
+#[derive(Clone, Debug)]
+pub struct Pin {
+    pub name: String,
+    pub role: PinRole,
+    /// Where the pin is written in the plan, or the part's span when it comes
+    /// from the library or the class.
+    pub span: Span,
+    /// Operating range of a supply-in pin.
+    pub range: Option<Band<ElectricPotential>>,
+    /// Absolute maximum of a supply-in or logic input pin.
+    pub max: Option<ElectricPotential>,
+    pub draw: Option<Draw>,
+    /// Voltage of a board's supply-out pin.
+    pub voltage: Option<Band<ElectricPotential>>,
+    /// Current limit of a supply-out pin.
+    pub current: Option<ElectricCurrent>,
+    /// `or: diode`: the source cannot be back-fed.
+    pub diode_or: bool,
+    pub logic: Option<LogicSpec>,
+    /// Its net, once nets are read.
+    pub net: Option<NetId>,
+    /// Where it is named in `nets:`.
+    pub net_span: Option<Span>,
+}
+
+/// Current drawn by a supply-in pin in each load state.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Draw {
+    pub idle: ElectricCurrent,
+    pub typical: ElectricCurrent,
+    pub peak: ElectricCurrent,
+}
+
+impl Draw {
+    pub fn in_state(&self, state: LoadState) -> ElectricCurrent {
+        match state {
+            LoadState::Idle => self.idle,
+            LoadState::Typical => self.typical,
+            LoadState::Peak => self.peak,
+        }
+    }
+}
+
+/// Logic levels as written; the thresholds are worked out by the logic rules.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct LogicSpec {
+    pub reference: Option<PinIndex>,
+    pub family: Option<LogicFamily>,
+    pub voh: Option<ElectricPotential>,
+    pub vol: Option<ElectricPotential>,
+    pub vih: Option<ElectricPotential>,
+    pub vil: Option<ElectricPotential>,
+    pub tolerant: Option<ElectricPotential>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum LogicFamily {
+    Ttl5,
+    Cmos5,
+    Lvttl33,
+    Lvcmos33,
+    Lvcmos25,
+    Lvcmos18,
+}
+
+impl LogicFamily {
+    pub const ALL: [(&'static str, LogicFamily); 6] = [
+        ("ttl5", LogicFamily::Ttl5),
+        ("cmos5", LogicFamily::Cmos5),
+        ("lvttl33", LogicFamily::Lvttl33),
+        ("lvcmos33", LogicFamily::Lvcmos33),
+        ("lvcmos25", LogicFamily::Lvcmos25),
+        ("lvcmos18", LogicFamily::Lvcmos18),
+    ];
+}
+
+#[derive(Clone, Debug)]
+pub struct Port {
+    pub name: String,
+    pub span: Span,
+    pub kind: PortKind,
+}
+
+#[derive(Clone, Debug)]
+pub enum PortKind {
+    UsbHost {
+        current: Option<ElectricCurrent>,
+        shared: bool,
+    },
+    UsbDevice {
+        draw: Option<Draw>,
+        /// A pin of the same part that VBUS joins.
+        feeds: Option<PinIndex>,
+    },
+}
+
+#[derive(Clone, Debug)]
+pub enum Class {
+    Battery(Battery),
+    Fuse(Fuse),
+    Switch(Switch),
+    Connector(Connector),
+    Regulator(Regulator),
+    Driver(Driver),
+    Motor(Motor),
+    Resistor(Resistor),
+    Board,
+    Sensor,
+    Load,
+    Shifter,
+}
+
+impl Class {
+    pub const NAMES: [&'static str; 12] = [
+        "battery",
+        "fuse",
+        "switch",
+        "connector",
+        "regulator",
+        "driver",
+        "motor",
+        "resistor",
+        "board",
+        "sensor",
+        "load",
+        "shifter",
+    ];
+
+    pub fn name(&self) -> &'static str {
+        match self {
+            Class::Battery(_) => "battery",
+            Class::Fuse(_) => "fuse",
+            Class::Switch(_) => "switch",
+            Class::Connector(_) => "connector",
+            Class::Regulator(_) => "regulator",
+            Class::Driver(_) => "driver",
+            Class::Motor(_) => "motor",
+            Class::Resistor(_) => "resistor",
+            Class::Board => "board",
+            Class::Sensor => "sensor",
+            Class::Load => "load",
+            Class::Shifter => "shifter",
+        }
+    }
+}
+
+/// A value read from the plan with the span a finding about it points at.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Rated<Q> {
+    pub value: Q,
+    pub span: Span,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Chemistry {
+    Lipo,
+    LiIon,
+    LiFePo4,
+    NiMh,
+    LeadAcid,
+}
+
+impl Chemistry {
+    pub const ALL: [(&'static str, Chemistry); 5] = [
+        ("lipo", Chemistry::Lipo),
+        ("li-ion", Chemistry::LiIon),
+        ("lifepo4", Chemistry::LiFePo4),
+        ("nimh", Chemistry::NiMh),
+        ("lead-acid", Chemistry::LeadAcid),
+    ];
+
+    pub fn name(self) -> &'static str {
+        Chemistry::ALL
+            .iter()
+            .find(|(_, c)| *c == self)
+            .map_or("", |(n, _)| n)
+    }
+
+    pub fn is_lithium(self) -> bool {
+        matches!(
+            self,
+            Chemistry::Lipo | Chemistry::LiIon | Chemistry::LiFePo4
+        )
+    }
+}
+
+#[derive(Clone, Debug)]
+pub struct Battery {
+    pub chemistry: Chemistry,
+    pub cells: u32,
+    pub capacity: Option<Rated<ElectricCharge>>,
+    pub max_discharge: Option<Rated<DischargeRate>>,
+    pub internal_resistance: ElectricalResistance,
+    pub cutoff: bool,
+    /// Explicit terminal window (`voltage: 10 V..12.6 V`) instead of cells × chemistry.
+    pub voltage: Option<Band<ElectricPotential>>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum FuseSpeed {
+    Fast,
+    Slow,
+}
+
+#[derive(Clone, Debug)]
+pub struct Fuse {
+    pub rating: Option<Rated<ElectricCurrent>>,
+    pub voltage: Option<Rated<ElectricPotential>>,
+    pub speed: FuseSpeed,
+}
+
+#[derive(Clone, Debug)]
+pub struct Switch {
+    pub rating: Option<Rated<ElectricCurrent>>,
+    pub voltage: Option<Rated<ElectricPotential>>,
+    pub stop: bool,
+}
+
+#[derive(Clone, Debug)]
+pub struct Connector {
+    /// Per contact.
+    pub rating: Option<Rated<ElectricCurrent>>,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Topology {
+    Linear,
+    Buck,
+    Boost,
+    BuckBoost,
+}
+
+impl Topology {
+    pub fn name(self) -> &'static str {
+        match self {
+            Topology::Linear => "linear",
+            Topology::Buck => "buck",
+            Topology::Boost => "boost",
+            Topology::BuckBoost => "buck-boost",
+        }
+    }
+
+    pub fn is_switching(self) -> bool {
+        self != Topology::Linear
+    }
+}
+
+#[derive(Clone, Debug)]
+pub struct Regulator {
+    pub topology: Topology,
+    pub output: Band<ElectricPotential>,
+    pub current: Option<Rated<ElectricCurrent>>,
+    pub dropout: ElectricPotential,
+    pub efficiency: Ratio,
+    /// True when the efficiency is the assumed default, not written.
+    pub efficiency_assumed: bool,
+    pub quiescent: ElectricCurrent,
+    pub theta_ja: Option<ThermalResistance>,
+    pub tj_max: ThermodynamicTemperature,
+}
+
+#[derive(Clone, Copy, Debug)]
+pub enum BridgeDrop {
+    /// Total drop across the bridge (two switches in series).
+    Fixed(ElectricPotential),
+    /// Resistance of each switch; two conduct at a time.
+    PerSwitch(ElectricalResistance),
+}
+
+#[derive(Clone, Debug)]
+pub struct Channel {
+    pub number: u32,
+    pub outputs: [PinIndex; 2],
+    pub span: Span,
+}
+
+#[derive(Clone, Debug)]
+pub struct Driver {
+    pub channel_current: Option<Rated<ElectricCurrent>>,
+    pub channel_peak: Option<Rated<ElectricCurrent>>,
+    pub drop: BridgeDrop,
+    pub quiescent: ElectricCurrent,
+    pub channels: Vec<Channel>,
+}
+
+#[derive(Clone, Debug)]
+pub struct Motor {
+    pub rated_voltage: ElectricPotential,
+    pub rated_current: ElectricCurrent,
+    pub no_load_current: Option<ElectricCurrent>,
+    pub stall_current: ElectricCurrent,
+}
+
+#[derive(Clone, Debug)]
+pub struct Resistor {
+    pub value: ElectricalResistance,
+    pub power: Option<Power>,
+}
+
+#[derive(Clone, Debug)]
+pub struct Net {
+    pub name: String,
+    pub span: Span,
+    pub pins: Vec<PinRef>,
+    pub wire: Option<Rated<WireSize>>,
+    pub length: Option<Rated<Length>>,
+    pub insulation: Option<ThermodynamicTemperature>,
+}
+
+#[derive(Clone, Debug)]
+pub struct Link {
+    pub span: Span,
+    /// Host port end, then device port end: (part, port index).
+    pub host: (PartId, usize),
+    pub device: (PartId, usize),
+    pub wire: Option<Rated<WireSize>>,
+    pub length: Option<Rated<Length>>,
+}
+
+/// The state a mode sets a load to.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum LoadState {
+    Idle,
+    Typical,
+    Peak,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum MotorState {
+    Idle,
+    Running,
+    Stall,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum PartState {
+    Load(LoadState),
+    Motor(MotorState),
+}
+
+#[derive(Clone, Debug)]
+pub struct Mode {
+    pub name: String,
+    pub span: Span,
+    pub states: Vec<(PartId, PartState)>,
+}
+
+#[derive(Clone, Debug)]
+pub struct ProfileShare {
+    pub mode: String,
+    pub share: Ratio,
+    pub span: Span,
+}

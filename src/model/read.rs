@@ -1,0 +1,1657 @@
+//! Reads the YAML tree into the typed plan, collecting every input problem.
+//!
+//! serde stops at its first error, so the tree is read loosely first (`syntax`)
+//! and validated here in one pass: unknown keys, unknown parts and pins, values
+//! without units, bad ranges. Every error carries the span of the offending
+//! text and, where there is an obvious fix, a hint.
+
+use super::*;
+use crate::syntax::{Node, NodeKind, SourceId, Sources, Span};
+use crate::units::{self, UnitError};
+use std::collections::{BTreeMap, HashMap};
+use uom::si::electric_current::ampere;
+use uom::si::electric_potential::volt;
+use uom::si::electrical_resistance::ohm;
+use uom::si::ratio::ratio;
+use uom::si::thermodynamic_temperature::degree_celsius;
+
+/// The assumed converter efficiency when a switching regulator gives none
+/// (published-values §7: "use 0.85 when none is given", common practice).
+const DEFAULT_EFFICIENCY: f64 = 0.85;
+/// Many linear regulators and LDOs (published-values §7, common practice).
+const DEFAULT_TJ_MAX_DEGC: f64 = 125.0;
+const DEFAULT_AMBIENT_DEGC: f64 = 25.0;
+const DEFAULT_WIRE_DROP: f64 = 0.05;
+const DEFAULT_DERATE: f64 = 0.80;
+
+const TOP_KEYS: &[&str] = &[
+    "railcheck",
+    "name",
+    "ambient",
+    "limits",
+    "parts",
+    "nets",
+    "links",
+    "modes",
+    "profile",
+];
+
+/// Reads a whole plan. `root` is the parsed plan; library parts it uses are
+/// parsed into `sources` as they are met.
+pub fn read_plan(
+    root: &Node,
+    library: &Library,
+    sources: &mut Sources,
+) -> Result<Plan, Vec<InputError>> {
+    let mut reader = Reader {
+        errors: Vec::new(),
+        library,
+        sources,
+        plan_source: root.span.source,
+    };
+    let plan = reader.plan(root);
+    if reader.errors.is_empty() {
+        plan.ok_or_default_error(root.span)
+    } else {
+        let mut errors = reader.errors;
+        errors.sort_by_key(|e| {
+            (
+                e.span.source != root.span.source,
+                e.span.source,
+                e.span.start,
+            )
+        });
+        errors.dedup();
+        Err(errors)
+    }
+}
+
+trait OkOrDefault {
+    fn ok_or_default_error(self, span: Span) -> Result<Plan, Vec<InputError>>;
+}
+
+impl OkOrDefault for Option<Plan> {
+    fn ok_or_default_error(self, span: Span) -> Result<Plan, Vec<InputError>> {
+        self.ok_or_else(|| {
+            vec![InputError {
+                message: "the plan could not be read".into(),
+                span,
+                hint: None,
+            }]
+        })
+    }
+}
+
+struct Reader<'a> {
+    errors: Vec<InputError>,
+    library: &'a Library,
+    sources: &'a mut Sources,
+    plan_source: SourceId,
+}
+
+/// A logic pin's `ref`, resolved once all pins of the part are known.
+struct PendingRef {
+    pin: PinIndex,
+    name: String,
+    span: Span,
+}
+
+impl Reader<'_> {
+    fn error(&mut self, span: Span, message: impl Into<String>, hint: Option<String>) {
+        self.errors.push(InputError {
+            message: message.into(),
+            span,
+            hint,
+        });
+    }
+
+    /// The span a finding about this value should point at: the value itself
+    /// when it is written in the plan, else the part that brought it in.
+    fn in_plan(&self, span: Span, fallback: Span) -> Span {
+        if span.source == self.plan_source {
+            span
+        } else {
+            fallback
+        }
+    }
+
+    fn plan(&mut self, root: &Node) -> Option<Plan> {
+        if root.as_map().is_none() {
+            self.error(
+                root.span,
+                format!("a plan is a mapping, found {}", root.describe()),
+                Some("start with `railcheck: 1`, then `parts:` and `nets:`".into()),
+            );
+            return None;
+        }
+        self.check_keys(root, TOP_KEYS, "the plan");
+        match root.get("railcheck") {
+            None => self.error(
+                first_key_span(root),
+                "the format version `railcheck:` is missing",
+                Some("add `railcheck: 1` as the first line".into()),
+            ),
+            Some(v) if v.as_scalar() == Some("1") => {}
+            Some(v) => self.error(
+                v.span,
+                format!(
+                    "unsupported format version `{}`",
+                    v.as_scalar().unwrap_or("?")
+                ),
+                Some("this railcheck reads `railcheck: 1`".into()),
+            ),
+        }
+        let name = root
+            .get("name")
+            .and_then(|n| self.text(n, "the plan's name"));
+        let ambient = match root.get("ambient") {
+            Some(n) => self.scalar_quantity(n, units::temperature).unwrap_or(
+                ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_AMBIENT_DEGC),
+            ),
+            None => ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_AMBIENT_DEGC),
+        };
+        let limits = self.limits(root.get("limits"));
+
+        let mut parts = Vec::new();
+        let mut part_index: HashMap<String, PartId> = HashMap::new();
+        match root.get("parts") {
+            None => self.error(
+                first_key_span(root),
+                "the plan has no `parts:`",
+                Some("list the parts: `parts: { pack: { use: battery/lipo-3s } }`".into()),
+            ),
+            Some(node) => {
+                if let Some(entries) = self.mapping(node, "`parts:`") {
+                    for (key, body) in entries {
+                        let Some(name) = self.name(key, "part") else {
+                            continue;
+                        };
+                        if let Some(part) = self.part(name.clone(), key.span, body) {
+                            part_index.insert(name, parts.len());
+                            parts.push(part);
+                        }
+                    }
+                }
+            }
+        }
+
+        let nets = match root.get("nets") {
+            None => {
+                self.error(
+                    first_key_span(root),
+                    "the plan has no `nets:`",
+                    Some("join pins into nets: `nets: { BATT+: [pack.pos, fuse.a] }`".into()),
+                );
+                Vec::new()
+            }
+            Some(node) => self.nets(node, &mut parts, &part_index),
+        };
+        let links = root
+            .get("links")
+            .map(|n| self.links(n, &parts, &part_index))
+            .unwrap_or_default();
+        let modes = root
+            .get("modes")
+            .map(|n| self.modes(n, &parts, &part_index))
+            .unwrap_or_default();
+        let profile = root
+            .get("profile")
+            .map(|n| self.profile(n, &modes))
+            .unwrap_or_default();
+
+        Some(Plan {
+            name,
+            ambient,
+            limits,
+            parts,
+            nets,
+            links,
+            modes,
+            profile,
+            span: root.span,
+        })
+    }
+
+    // ----- generic readers -------------------------------------------------
+
+    fn check_keys(&mut self, node: &Node, allowed: &[&str], context: &str) {
+        let Some(entries) = node.as_map() else {
+            return;
+        };
+        for (key, _) in entries {
+            let Some(k) = key.as_scalar() else {
+                self.error(key.span, format!("a key in {context} must be a name"), None);
+                continue;
+            };
+            if k == "notes" || allowed.contains(&k) {
+                continue;
+            }
+            let hint = match closest(k, allowed.iter().copied()) {
+                Some(s) => format!("did you mean `{s}`?"),
+                None => format!("{context} takes: {}", list(allowed)),
+            };
+            self.error(
+                key.span,
+                format!("unknown key `{k}` in {context}"),
+                Some(hint),
+            );
+        }
+    }
+
+    fn mapping<'n>(&mut self, node: &'n Node, what: &str) -> Option<&'n [(Node, Node)]> {
+        match &node.kind {
+            NodeKind::Map(entries) => Some(entries),
+            NodeKind::Null => Some(&[]),
+            _ => {
+                self.error(
+                    node.span,
+                    format!("{what} must be a mapping, found {}", node.describe()),
+                    Some("write `key: value` entries, one per line or inside `{ }`".into()),
+                );
+                None
+            }
+        }
+    }
+
+    fn text(&mut self, node: &Node, what: &str) -> Option<String> {
+        match node.as_scalar() {
+            Some(s) => Some(s.to_string()),
+            None => {
+                self.error(
+                    node.span,
+                    format!("{what} must be text, found {}", node.describe()),
+                    None,
+                );
+                None
+            }
+        }
+    }
+
+    fn name(&mut self, node: &Node, what: &str) -> Option<String> {
+        let text = self.text(node, &format!("a {what} name"))?;
+        let valid = !text.is_empty()
+            && text
+                .chars()
+                .all(|c| c.is_alphanumeric() || matches!(c, '_' | '-' | '+'));
+        if valid {
+            Some(text)
+        } else {
+            self.error(
+                node.span,
+                format!("`{text}` is not a valid {what} name"),
+                Some("names use letters, digits, `_`, `-` and `+`".into()),
+            );
+            None
+        }
+    }
+
+    fn boolean(&mut self, node: &Node) -> Option<bool> {
+        match node.as_scalar() {
+            Some("true") => Some(true),
+            Some("false") => Some(false),
+            _ => {
+                self.error(
+                    node.span,
+                    "expected `true` or `false`",
+                    Some("write `true` or `false`".into()),
+                );
+                None
+            }
+        }
+    }
+
+    fn choice<T: Copy>(&mut self, node: &Node, choices: &[(&str, T)], what: &str) -> Option<T> {
+        let text = node.as_scalar().unwrap_or("");
+        if let Some((_, value)) = choices.iter().find(|(n, _)| *n == text) {
+            return Some(*value);
+        }
+        let names: Vec<&str> = choices.iter().map(|(n, _)| *n).collect();
+        let hint = match closest(text, names.iter().copied()) {
+            Some(s) => format!("did you mean `{s}`?"),
+            None => format!("write one of {}", list(&names)),
+        };
+        self.error(node.span, format!("unknown {what} `{text}`"), Some(hint));
+        None
+    }
+
+    /// Byte offset of a scalar's text inside its span (1 for quoted scalars).
+    fn scalar_offset(&self, node: &Node) -> usize {
+        let text = self.sources.text(node.span.source);
+        match text.get(node.span.start..) {
+            Some(rest) if rest.starts_with(['\'', '"']) => 1,
+            _ => 0,
+        }
+    }
+
+    fn scalar_quantity<T>(
+        &mut self,
+        node: &Node,
+        parse: fn(&str) -> Result<T, UnitError>,
+    ) -> Option<T> {
+        let Some(text) = node.as_scalar() else {
+            self.error(
+                node.span,
+                format!("expected a value with a unit, found {}", node.describe()),
+                Some("write it as text such as `5 V` or `2 A`".into()),
+            );
+            return None;
+        };
+        match parse(text) {
+            Ok(v) => Some(v),
+            Err(e) => {
+                let offset = self.scalar_offset(node);
+                let span = if e.span.is_empty() {
+                    node.span
+                } else {
+                    node.span.within(e.span.start + offset..e.span.end + offset)
+                };
+                self.error(span, e.message, Some(e.hint).filter(|h| !h.is_empty()));
+                None
+            }
+        }
+    }
+
+    fn rated<T>(
+        &mut self,
+        body: &Node,
+        key: &str,
+        parse: fn(&str) -> Result<T, UnitError>,
+        fallback: Span,
+    ) -> Option<Rated<T>> {
+        let node = body.get(key)?;
+        let value = self.scalar_quantity(node, parse)?;
+        Some(Rated {
+            value,
+            span: self.in_plan(node.span, fallback),
+        })
+    }
+
+    fn quantity<T>(
+        &mut self,
+        body: &Node,
+        key: &str,
+        parse: fn(&str) -> Result<T, UnitError>,
+    ) -> Option<T> {
+        let node = body.get(key)?;
+        self.scalar_quantity(node, parse)
+    }
+
+    fn required<T>(
+        &mut self,
+        body: &Node,
+        key: &str,
+        parse: fn(&str) -> Result<T, UnitError>,
+        what: &str,
+        example: &str,
+        at: Span,
+    ) -> Option<T> {
+        if body.get(key).is_none() {
+            self.error(
+                at,
+                format!("{what} needs `{key}`"),
+                Some(format!("add `{key}: {example}`")),
+            );
+            return None;
+        }
+        self.quantity(body, key, parse)
+    }
+
+    fn limits(&mut self, node: Option<&Node>) -> Limits {
+        let mut limits = Limits {
+            wire_drop: Ratio::new::<ratio>(DEFAULT_WIRE_DROP),
+            derate: Ratio::new::<ratio>(DEFAULT_DERATE),
+        };
+        let Some(node) = node else {
+            return limits;
+        };
+        if self.mapping(node, "`limits:`").is_none() {
+            return limits;
+        }
+        self.check_keys(node, &["wire_drop", "derate"], "`limits:`");
+        if let Some(v) = self.quantity(node, "wire_drop", units::share) {
+            limits.wire_drop = v;
+        }
+        if let Some(v) = self.quantity(node, "derate", units::share) {
+            limits.derate = v;
+        }
+        limits
+    }
+
+    // ----- parts -----------------------------------------------------------
+
+    fn part(&mut self, name: String, name_span: Span, body: &Node) -> Option<Part> {
+        self.mapping(body, &format!("part `{name}`"))?;
+        if let Some(use_node) = body.get("use") {
+            self.check_keys(
+                body,
+                &["use", "with", "pins", "ports"],
+                &format!("part `{name}` (a library part)"),
+            );
+            let id = self.text(use_node, "a library part id")?;
+            let Some(loaded) = self.library.load(&id, self.sources) else {
+                let hint = match closest(&id, self.library.ids()) {
+                    Some(s) => format!("did you mean `{s}`?"),
+                    None => "write the part inline with `class:` and `pins:`, or add it with `--parts DIR`".into(),
+                };
+                self.error(
+                    use_node.span,
+                    format!("unknown library part `{id}`"),
+                    Some(hint),
+                );
+                return None;
+            };
+            let library_root = match loaded {
+                Ok(root) => root,
+                Err(e) => {
+                    self.error(e.span, e.message, None);
+                    return None;
+                }
+            };
+            if library_root.as_map().is_none() {
+                self.error(
+                    library_root.span,
+                    format!("library part `{id}` must be a mapping"),
+                    None,
+                );
+                return None;
+            }
+            let mut merged = library_root;
+            if let Some(with) = body.get("with")
+                && self.mapping(with, "`with:`").is_some()
+            {
+                merge_part(&mut merged, with);
+            }
+            let mut overrides = Vec::new();
+            for key in ["pins", "ports"] {
+                if let Some(v) = body.get(key) {
+                    overrides.push((key_node(key, v.span), v.clone()));
+                }
+            }
+            if !overrides.is_empty() {
+                merge_part(
+                    &mut merged,
+                    &Node {
+                        kind: NodeKind::Map(overrides),
+                        span: body.span,
+                    },
+                );
+            }
+            self.inline_part(name, name_span, &merged, Some(id))
+        } else {
+            self.inline_part(name, name_span, body, None)
+        }
+    }
+
+    fn inline_part(
+        &mut self,
+        name: String,
+        name_span: Span,
+        body: &Node,
+        library_id: Option<String>,
+    ) -> Option<Part> {
+        let context = format!("part `{name}`");
+        let Some(class_node) = body.get("class") else {
+            self.error(
+                name_span,
+                format!("{context} has neither `use:` nor `class:`"),
+                Some("name a library part (`use: regulator/buck-5v-3a`) or give `class:` and `pins:`".into()),
+            );
+            return None;
+        };
+        let class_name = self.text(class_node, "a class")?;
+        if !Class::NAMES.contains(&class_name.as_str()) {
+            let hint = match closest(&class_name, Class::NAMES.iter().copied()) {
+                Some(s) => format!("did you mean `{s}`?"),
+                None => format!("classes: {}", list(&Class::NAMES)),
+            };
+            self.error(
+                class_node.span,
+                format!("unknown class `{class_name}`"),
+                Some(hint),
+            );
+            return None;
+        }
+        let mut allowed: Vec<&str> = vec!["class", "pins", "ports"];
+        allowed.extend(class_fields(&class_name));
+        self.check_keys(body, &allowed, &context);
+
+        let fixed = fixed_pins(&class_name);
+        let mut pins: Vec<Pin> = fixed
+            .iter()
+            .map(|(pin_name, role)| blank_pin(pin_name, *role, name_span))
+            .collect();
+        let mut pending = Vec::new();
+        if let Some(pins_node) = body.get("pins")
+            && let Some(entries) = self.mapping(pins_node, &format!("the pins of `{name}`"))
+        {
+            for (key, pin_body) in entries {
+                let Some(pin_name) = self.name(key, "pin") else {
+                    continue;
+                };
+                let existing = pins.iter().position(|p| p.name == pin_name);
+                let default_role = existing.map(|i| pins[i].role);
+                let span = self.in_plan(key.span, name_span);
+                let index = existing.unwrap_or(pins.len());
+                if let Some(pin) = self.pin(
+                    &name,
+                    pin_name,
+                    span,
+                    pin_body,
+                    default_role,
+                    index,
+                    &mut pending,
+                ) {
+                    match existing {
+                        Some(i) => pins[i] = pin,
+                        None => pins.push(pin),
+                    }
+                }
+            }
+        }
+        for r in pending {
+            match pins.iter().position(|p| p.name == r.name) {
+                Some(i) if matches!(pins[i].role, PinRole::SupplyIn | PinRole::SupplyOut) => {
+                    if let Some(logic) = pins[r.pin].logic.as_mut() {
+                        logic.reference = Some(i);
+                    }
+                }
+                Some(_) => self.error(
+                    r.span,
+                    format!("`ref: {}` must name a supply pin of `{name}`", r.name),
+                    Some(
+                        "point `ref` at the supply-in or supply-out pin that sets the logic levels"
+                            .into(),
+                    ),
+                ),
+                None => self.error(
+                    r.span,
+                    format!("`{name}` has no pin `{}`", r.name),
+                    Some(format!("pins of `{name}`: {}", pin_names(&pins))),
+                ),
+            }
+        }
+        let ports = body
+            .get("ports")
+            .map(|n| self.ports(&name, n, &pins, name_span))
+            .unwrap_or_default();
+        let class = self.class(&class_name, &name, name_span, body, &mut pins)?;
+        Some(Part {
+            name,
+            span: name_span,
+            library_id,
+            class,
+            pins,
+            ports,
+        })
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn pin(
+        &mut self,
+        part: &str,
+        name: String,
+        span: Span,
+        body: &Node,
+        default_role: Option<PinRole>,
+        index: PinIndex,
+        pending: &mut Vec<PendingRef>,
+    ) -> Option<Pin> {
+        let context = format!("pin `{part}.{name}`");
+        self.mapping(body, &context)?;
+        let role = match body.get("role") {
+            Some(n) => {
+                let roles: Vec<(&str, PinRole)> = PinRole::WRITTEN.to_vec();
+                self.choice(n, &roles, "pin role")?
+            }
+            None => match default_role {
+                Some(r) => r,
+                None => {
+                    self.error(
+                        span,
+                        format!("{context} has no `role`"),
+                        Some(format!(
+                            "add `role:` with one of {}",
+                            list(&PinRole::WRITTEN.map(|(n, _)| n))
+                        )),
+                    );
+                    return None;
+                }
+            },
+        };
+        let allowed: &[&str] = match role {
+            PinRole::SupplyOut => &["role", "voltage", "current", "or"],
+            PinRole::SupplyIn => &["role", "range", "max", "draw"],
+            PinRole::LogicOut => &["role", "ref", "family", "voh", "vol"],
+            PinRole::OpenDrain => &["role", "ref", "family", "vol"],
+            PinRole::LogicIn => &["role", "ref", "family", "vih", "vil", "max", "tolerant"],
+            PinRole::LogicIo => &[
+                "role", "ref", "family", "voh", "vol", "vih", "vil", "max", "tolerant",
+            ],
+            _ => &["role"],
+        };
+        self.check_keys(body, allowed, &format!("{context} ({})", role.name()));
+        let mut pin = blank_pin(&name, role, span);
+        pin.range = self.quantity(body, "range", units::voltage_band);
+        pin.max = self.quantity(body, "max", units::voltage);
+        pin.voltage = self.quantity(body, "voltage", units::voltage_band);
+        pin.current = self.quantity(body, "current", units::current);
+        if let Some(d) = body.get("draw") {
+            pin.draw = self.draw(d);
+        }
+        if let Some(or) = body.get("or") {
+            pin.diode_or = self
+                .choice(or, &[("diode", true)], "`or:` value")
+                .unwrap_or(false);
+        }
+        if role.is_logic() {
+            let mut logic = LogicSpec {
+                voh: self.quantity(body, "voh", units::voltage),
+                vol: self.quantity(body, "vol", units::voltage),
+                vih: self.quantity(body, "vih", units::voltage),
+                vil: self.quantity(body, "vil", units::voltage),
+                tolerant: self.quantity(body, "tolerant", units::voltage),
+                ..LogicSpec::default()
+            };
+            if let Some(f) = body.get("family") {
+                logic.family = self.choice(f, &LogicFamily::ALL, "logic family");
+            }
+            if let Some(r) = body.get("ref")
+                && let Some(ref_name) = self.text(r, "`ref`")
+            {
+                pending.push(PendingRef {
+                    pin: index,
+                    name: ref_name,
+                    span: r.span,
+                });
+            }
+            pin.logic = Some(logic);
+        }
+        Some(pin)
+    }
+
+    fn draw(&mut self, node: &Node) -> Option<Draw> {
+        if node.as_scalar().is_some() {
+            let i = self.scalar_quantity(node, units::current)?;
+            return Some(Draw {
+                idle: i,
+                typical: i,
+                peak: i,
+            });
+        }
+        self.mapping(node, "`draw:`")?;
+        self.check_keys(node, &["idle", "typical", "peak"], "`draw:`");
+        let idle = self.quantity(node, "idle", units::current);
+        let typical = self.quantity(node, "typical", units::current);
+        let peak = self.quantity(node, "peak", units::current);
+        // States left out take the next one given (contract §3).
+        let typical = typical.or(peak);
+        let Some(typical) = typical else {
+            self.error(
+                node.span,
+                "`draw:` needs at least `typical` or `peak`",
+                Some("write `draw: { typical: 120 mA, peak: 300 mA }`".into()),
+            );
+            return None;
+        };
+        Some(Draw {
+            idle: idle.unwrap_or(typical),
+            typical,
+            peak: peak.unwrap_or(typical),
+        })
+    }
+
+    fn ports(&mut self, part: &str, node: &Node, pins: &[Pin], fallback: Span) -> Vec<Port> {
+        let mut ports = Vec::new();
+        let Some(entries) = self.mapping(node, &format!("the ports of `{part}`")) else {
+            return ports;
+        };
+        for (key, body) in entries {
+            let Some(name) = self.name(key, "port") else {
+                continue;
+            };
+            let context = format!("port `{part}.{name}`");
+            if self.mapping(body, &context).is_none() {
+                continue;
+            }
+            let Some(kind_node) = body.get("kind") else {
+                self.error(
+                    key.span,
+                    format!("{context} has no `kind`"),
+                    Some("add `kind: usb-host` or `kind: usb-device`".into()),
+                );
+                continue;
+            };
+            let Some(is_host) = self.choice(
+                kind_node,
+                &[("usb-host", true), ("usb-device", false)],
+                "port kind",
+            ) else {
+                continue;
+            };
+            let kind = if is_host {
+                self.check_keys(body, &["kind", "current", "shared"], &context);
+                PortKind::UsbHost {
+                    current: self.quantity(body, "current", units::current),
+                    shared: body
+                        .get("shared")
+                        .and_then(|n| self.boolean(n))
+                        .unwrap_or(false),
+                }
+            } else {
+                self.check_keys(body, &["kind", "draw", "feeds"], &context);
+                let draw = body.get("draw").and_then(|d| self.draw(d));
+                let feeds = body.get("feeds").and_then(|f| {
+                    let pin_name = self.text(f, "`feeds`")?;
+                    let found = pins.iter().position(|p| p.name == pin_name);
+                    if found.is_none() {
+                        self.error(
+                            f.span,
+                            format!("`{part}` has no pin `{pin_name}`"),
+                            Some(format!("pins of `{part}`: {}", pin_names(pins))),
+                        );
+                    }
+                    found
+                });
+                PortKind::UsbDevice { draw, feeds }
+            };
+            ports.push(Port {
+                name,
+                span: self.in_plan(key.span, fallback),
+                kind,
+            });
+        }
+        ports
+    }
+
+    fn class(
+        &mut self,
+        class: &str,
+        part: &str,
+        at: Span,
+        body: &Node,
+        pins: &mut [Pin],
+    ) -> Option<Class> {
+        let what = format!("{class} `{part}`");
+        Some(match class {
+            "battery" => {
+                let chemistry = match body.get("chemistry") {
+                    Some(n) => self.choice(n, &Chemistry::ALL, "chemistry")?,
+                    None => {
+                        self.error(
+                            at,
+                            format!("{what} needs `chemistry`"),
+                            Some(
+                                "add `chemistry: lipo` (or li-ion, lifepo4, nimh, lead-acid)"
+                                    .into(),
+                            ),
+                        );
+                        return None;
+                    }
+                };
+                let cells = match body.get("cells") {
+                    Some(n) => self.count(n)?,
+                    None if body.get("voltage").is_some() => 1,
+                    None => {
+                        self.error(
+                            at,
+                            format!("{what} needs `cells`"),
+                            Some("add `cells: 3` (the number of cells in series)".into()),
+                        );
+                        return None;
+                    }
+                };
+                Class::Battery(Battery {
+                    chemistry,
+                    cells,
+                    capacity: self.rated(body, "capacity", units::charge, at),
+                    max_discharge: self.rated(body, "max_discharge", units::discharge_rate, at),
+                    internal_resistance: self
+                        .quantity(body, "internal_resistance", units::resistance)
+                        .unwrap_or(ElectricalResistance::new::<ohm>(0.0)),
+                    cutoff: body
+                        .get("cutoff")
+                        .and_then(|n| self.boolean(n))
+                        .unwrap_or(false),
+                    voltage: self.quantity(body, "voltage", units::voltage_band),
+                })
+            }
+            "fuse" => Class::Fuse(Fuse {
+                rating: self.rated(body, "rating", units::current, at),
+                voltage: self.rated(body, "voltage", units::voltage, at),
+                speed: match body.get("speed") {
+                    Some(n) => self.choice(
+                        n,
+                        &[("fast", FuseSpeed::Fast), ("slow", FuseSpeed::Slow)],
+                        "fuse speed",
+                    )?,
+                    None => FuseSpeed::Fast,
+                },
+            }),
+            "switch" => Class::Switch(Switch {
+                rating: self.rated(body, "rating", units::current, at),
+                voltage: self.rated(body, "voltage", units::voltage, at),
+                stop: body
+                    .get("stop")
+                    .and_then(|n| self.boolean(n))
+                    .unwrap_or(false),
+            }),
+            "connector" => {
+                for pin in pins.iter() {
+                    if pin.role == PinRole::Through && connector_partner(&pin.name).is_none() {
+                        self.error(
+                            pin.span,
+                            format!(
+                                "connector contact `{part}.{}` is not named in pairs",
+                                pin.name
+                            ),
+                            Some("name contacts `a1`/`b1`, `a2`/`b2`, …".into()),
+                        );
+                    }
+                }
+                Class::Connector(Connector {
+                    rating: self.rated(body, "rating", units::current, at),
+                })
+            }
+            "regulator" => self.regulator(&what, at, body, pins)?,
+            "driver" => self.driver(&what, part, at, body, pins)?,
+            "motor" => {
+                let rated_voltage =
+                    self.required(body, "rated_voltage", units::voltage, &what, "12 V", at);
+                let rated_current =
+                    self.required(body, "rated_current", units::current, &what, "0.5 A", at);
+                let stall_current =
+                    self.required(body, "stall_current", units::current, &what, "5 A", at);
+                let no_load_current = self.quantity(body, "no_load_current", units::current);
+                Class::Motor(Motor {
+                    rated_voltage: rated_voltage?,
+                    rated_current: rated_current?,
+                    no_load_current,
+                    stall_current: stall_current?,
+                })
+            }
+            "resistor" => Class::Resistor(Resistor {
+                value: self.required(body, "value", units::resistance, &what, "10 kohm", at)?,
+                power: self.quantity(body, "power", units::power),
+            }),
+            "board" => Class::Board,
+            "sensor" => Class::Sensor,
+            "load" => Class::Load,
+            _ => Class::Shifter,
+        })
+    }
+
+    fn count(&mut self, node: &Node) -> Option<u32> {
+        match node.as_scalar().and_then(|s| s.parse::<u32>().ok()) {
+            Some(n) if n >= 1 => Some(n),
+            _ => {
+                self.error(
+                    node.span,
+                    "expected a whole number of cells, at least 1",
+                    Some("write `cells: 3`".into()),
+                );
+                None
+            }
+        }
+    }
+
+    fn regulator(&mut self, what: &str, at: Span, body: &Node, pins: &mut [Pin]) -> Option<Class> {
+        let topology = match body.get("topology") {
+            Some(n) => self.choice(
+                n,
+                &[
+                    ("linear", Topology::Linear),
+                    ("buck", Topology::Buck),
+                    ("switching", Topology::Buck),
+                    ("boost", Topology::Boost),
+                    ("buck-boost", Topology::BuckBoost),
+                ],
+                "regulator topology",
+            )?,
+            None => {
+                self.error(
+                    at,
+                    format!("{what} needs `topology`"),
+                    Some("add `topology: buck` (or linear, boost, buck-boost)".into()),
+                );
+                return None;
+            }
+        };
+        let output = self.required(body, "output", units::voltage_band, what, "5 V ±2%", at)?;
+        let input = self.quantity(body, "input", units::voltage_band);
+        let current = self.rated(body, "current", units::current, at);
+        let efficiency_written = self.quantity(body, "efficiency", units::share);
+        if let Some(e) = efficiency_written
+            && e.get::<ratio>() <= 0.0
+            && let Some(n) = body.get("efficiency")
+        {
+            self.error(
+                n.span,
+                "efficiency must be above 0 %",
+                Some("write e.g. `efficiency: 90 %`".into()),
+            );
+        }
+        let efficiency = match (topology, efficiency_written) {
+            (_, Some(e)) if e.get::<ratio>() > 0.0 => e,
+            (Topology::Linear, _) => Ratio::new::<ratio>(1.0),
+            _ => Ratio::new::<ratio>(DEFAULT_EFFICIENCY),
+        };
+        let regulator = Regulator {
+            topology,
+            output,
+            current,
+            dropout: self
+                .quantity(body, "dropout", units::voltage)
+                .unwrap_or(ElectricPotential::new::<volt>(0.0)),
+            efficiency,
+            efficiency_assumed: topology.is_switching() && efficiency_written.is_none(),
+            quiescent: self
+                .quantity(body, "quiescent", units::current)
+                .unwrap_or(ElectricCurrent::new::<ampere>(0.0)),
+            theta_ja: self.quantity(body, "theta_ja", units::thermal_resistance),
+            tj_max: self.quantity(body, "tj_max", units::temperature).unwrap_or(
+                ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_TJ_MAX_DEGC),
+            ),
+        };
+        for pin in pins.iter_mut() {
+            match pin.name.as_str() {
+                "vin" => {
+                    if pin.range.is_none() {
+                        pin.range = input;
+                    }
+                    if pin.max.is_none() {
+                        pin.max = input.map(|b| b.max);
+                    }
+                }
+                "vout" => {
+                    pin.voltage = Some(output);
+                    pin.current = current.map(|c| c.value);
+                }
+                _ => {}
+            }
+        }
+        Some(Class::Regulator(regulator))
+    }
+
+    fn driver(
+        &mut self,
+        what: &str,
+        part: &str,
+        at: Span,
+        body: &Node,
+        pins: &mut [Pin],
+    ) -> Option<Class> {
+        let supply = self.quantity(body, "supply", units::voltage_band);
+        match pins.iter_mut().find(|p| p.name == "vm") {
+            Some(vm) if vm.role == PinRole::SupplyIn => {
+                if vm.range.is_none() {
+                    vm.range = supply;
+                }
+                if vm.max.is_none() {
+                    vm.max = supply.map(|b| b.max);
+                }
+            }
+            _ => self.error(
+                at,
+                format!("{what} needs a `vm` supply-in pin for the motor supply"),
+                Some("add `vm: { role: supply-in, range: 6 V..30 V }` under `pins:`".into()),
+            ),
+        }
+        let drop = match (
+            self.quantity(body, "drop", units::voltage),
+            self.quantity(body, "rds_on", units::resistance),
+        ) {
+            (Some(v), None) => BridgeDrop::Fixed(v),
+            (None, Some(r)) => BridgeDrop::PerSwitch(r),
+            (Some(v), Some(_)) => {
+                if let Some(n) = body.get("rds_on") {
+                    self.error(
+                        n.span,
+                        format!("{what} gives both `drop` and `rds_on`"),
+                        Some(
+                            "keep one: `drop` for a bipolar bridge, `rds_on` for a MOSFET bridge"
+                                .into(),
+                        ),
+                    );
+                }
+                BridgeDrop::Fixed(v)
+            }
+            (None, None) => BridgeDrop::Fixed(ElectricPotential::new::<volt>(0.0)),
+        };
+        let mut channels = Vec::new();
+        if let Some(node) = body.get("channels")
+            && let Some(entries) = self.mapping(node, "`channels:`")
+        {
+            for (key, value) in entries {
+                let number = match key.as_scalar().and_then(|s| s.parse::<u32>().ok()) {
+                    Some(n) if n >= 1 => n,
+                    _ => {
+                        self.error(
+                            key.span,
+                            "a channel is numbered 1, 2, …",
+                            Some("write `channels: { 1: [out1, out2] }`".into()),
+                        );
+                        continue;
+                    }
+                };
+                let names: Vec<&Node> = value
+                    .as_seq()
+                    .map(|s| s.iter().collect())
+                    .unwrap_or_default();
+                if names.len() != 2 {
+                    self.error(
+                        value.span,
+                        format!("channel {number} must name two bridge outputs"),
+                        Some("write `[out1a, out1b]`".into()),
+                    );
+                    continue;
+                }
+                let mut outputs = [0; 2];
+                let mut ok = true;
+                for (slot, n) in names.iter().enumerate() {
+                    let name = n.as_scalar().unwrap_or("");
+                    match pins.iter().position(|p| p.name == name) {
+                        Some(i) if pins[i].role == PinRole::BridgeOut => outputs[slot] = i,
+                        Some(_) => {
+                            ok = false;
+                            self.error(
+                                n.span,
+                                format!("`{part}.{name}` is not a `bridge-out` pin"),
+                                Some("give the pin `role: bridge-out`".into()),
+                            );
+                        }
+                        None => {
+                            ok = false;
+                            self.error(
+                                n.span,
+                                format!("`{part}` has no pin `{name}`"),
+                                Some(format!("pins of `{part}`: {}", pin_names(pins))),
+                            );
+                        }
+                    }
+                }
+                if ok {
+                    channels.push(Channel {
+                        number,
+                        outputs,
+                        span: self.in_plan(key.span, at),
+                    });
+                }
+            }
+        }
+        Some(Class::Driver(Driver {
+            channel_current: self.rated(body, "channel_current", units::current, at),
+            channel_peak: self.rated(body, "channel_peak", units::current, at),
+            drop,
+            quiescent: self
+                .quantity(body, "quiescent", units::current)
+                .unwrap_or(ElectricCurrent::new::<ampere>(0.0)),
+            channels,
+        }))
+    }
+
+    // ----- nets, links, modes ----------------------------------------------
+
+    fn pin_ref(
+        &mut self,
+        node: &Node,
+        parts: &[Part],
+        index: &HashMap<String, PartId>,
+    ) -> Option<PinRef> {
+        let text = self.text(node, "a pin")?;
+        let Some((part_name, pin_name)) = text.split_once('.') else {
+            self.error(
+                node.span,
+                format!("`{text}` is not a pin"),
+                Some("write pins as `part.pin`, e.g. `pack.pos`".into()),
+            );
+            return None;
+        };
+        let Some(&part) = index.get(part_name) else {
+            let hint = match closest(part_name, index.keys().map(String::as_str)) {
+                Some(s) => format!("did you mean `{s}`?"),
+                None => "declare it under `parts:`".into(),
+            };
+            self.error(
+                node.span.within(0..part_name.len()),
+                format!("unknown part `{part_name}`"),
+                Some(hint),
+            );
+            return None;
+        };
+        let Some(pin) = parts[part].pin(pin_name) else {
+            let names: Vec<&str> = parts[part].pins.iter().map(|p| p.name.as_str()).collect();
+            let hint = match closest(pin_name, names.iter().copied()) {
+                Some(s) => format!("did you mean `{part_name}.{s}`?"),
+                None => format!("pins of `{part_name}`: {}", list(&names)),
+            };
+            let offset = self.scalar_offset(node);
+            self.error(
+                node.span
+                    .within(offset + part_name.len() + 1..offset + text.len()),
+                format!("part `{part_name}` has no pin `{pin_name}`"),
+                Some(hint),
+            );
+            return None;
+        };
+        Some(PinRef { part, pin })
+    }
+
+    fn nets(
+        &mut self,
+        node: &Node,
+        parts: &mut [Part],
+        index: &HashMap<String, PartId>,
+    ) -> Vec<Net> {
+        let mut nets = Vec::new();
+        let Some(entries) = self.mapping(node, "`nets:`") else {
+            return nets;
+        };
+        for (key, body) in entries {
+            let Some(name) = self.name(key, "net") else {
+                continue;
+            };
+            let net_id = nets.len();
+            let (pin_nodes, wire, length, insulation) = match &body.kind {
+                NodeKind::Seq(items) => (items.as_slice(), None, None, None),
+                NodeKind::Map(_) => {
+                    let context = format!("net `{name}`");
+                    self.check_keys(body, &["pins", "wire", "length", "insulation"], &context);
+                    let items = match body.get("pins") {
+                        Some(p) => match p.as_seq() {
+                            Some(items) => items,
+                            None => {
+                                self.error(
+                                    p.span,
+                                    format!("the pins of {context} must be a list"),
+                                    Some("write `pins: [pack.pos, fuse.a]`".into()),
+                                );
+                                &[]
+                            }
+                        },
+                        None => {
+                            self.error(
+                                key.span,
+                                format!("{context} has no `pins`"),
+                                Some("add `pins: [part.pin, …]`".into()),
+                            );
+                            &[]
+                        }
+                    };
+                    (
+                        items,
+                        self.rated(body, "wire", units::wire_size, key.span),
+                        self.rated(body, "length", units::length, key.span),
+                        self.quantity(body, "insulation", units::temperature),
+                    )
+                }
+                _ => {
+                    self.error(
+                        body.span,
+                        format!("net `{name}` must be a list of pins"),
+                        Some("write `[pack.pos, fuse.a]` or `{ pins: [...], wire: 18 AWG, length: 0.5 m }`".into()),
+                    );
+                    continue;
+                }
+            };
+            if wire.is_some() != length.is_some() {
+                let missing = if wire.is_some() { "length" } else { "wire" };
+                self.error(
+                    key.span,
+                    format!("net `{name}` gives a wire size or a length but not both"),
+                    Some(format!(
+                        "add `{missing}:` so its resistance can be computed"
+                    )),
+                );
+            }
+            let mut pins = Vec::new();
+            for pin_node in pin_nodes {
+                let Some(pin_ref) = self.pin_ref(pin_node, parts, index) else {
+                    continue;
+                };
+                let pin = &parts[pin_ref.part].pins[pin_ref.pin];
+                if let Some(other) = pin.net {
+                    let other_name = nets
+                        .get(other)
+                        .map_or(name.as_str(), |n: &Net| n.name.as_str());
+                    let message = if other == net_id {
+                        format!(
+                            "pin `{}` is listed twice in net `{name}`",
+                            pin_node.as_scalar().unwrap_or("")
+                        )
+                    } else {
+                        format!(
+                            "pin `{}` is already in net `{other_name}`",
+                            pin_node.as_scalar().unwrap_or("")
+                        )
+                    };
+                    self.error(
+                        pin_node.span,
+                        message,
+                        Some(
+                            "a pin belongs to one net: merge the two nets or use another pin"
+                                .into(),
+                        ),
+                    );
+                    continue;
+                }
+                let pin = &mut parts[pin_ref.part].pins[pin_ref.pin];
+                pin.net = Some(net_id);
+                pin.net_span = Some(pin_node.span);
+                pins.push(pin_ref);
+            }
+            nets.push(Net {
+                name,
+                span: key.span,
+                pins,
+                wire,
+                length,
+                insulation,
+            });
+        }
+        nets
+    }
+
+    fn links(&mut self, node: &Node, parts: &[Part], index: &HashMap<String, PartId>) -> Vec<Link> {
+        let mut links = Vec::new();
+        let Some(items) = node.as_seq() else {
+            self.error(
+                node.span,
+                format!("`links:` must be a list, found {}", node.describe()),
+                Some("write `links: [ { usb: [sbc.usb1, mcu.usb] } ]`".into()),
+            );
+            return links;
+        };
+        let mut used: BTreeMap<(PartId, usize), Span> = BTreeMap::new();
+        for item in items {
+            if self.mapping(item, "a link").is_none() {
+                continue;
+            }
+            self.check_keys(item, &["usb", "wire", "length"], "a link");
+            let Some(ends) = item.get("usb") else {
+                self.error(
+                    item.span,
+                    "a link needs `usb: [host.port, device.port]`",
+                    None,
+                );
+                continue;
+            };
+            let ends: Vec<&Node> = ends
+                .as_seq()
+                .map(|s| s.iter().collect())
+                .unwrap_or_default();
+            if ends.len() != 2 {
+                self.error(
+                    item.span,
+                    "a USB link joins exactly two ports",
+                    Some("write `usb: [sbc.usb1, mcu.usb]`".into()),
+                );
+                continue;
+            }
+            let mut resolved = Vec::new();
+            for end in &ends {
+                let text = end.as_scalar().unwrap_or("");
+                let Some((part_name, port_name)) = text.split_once('.') else {
+                    self.error(
+                        end.span,
+                        format!("`{text}` is not a port"),
+                        Some("write `part.port`".into()),
+                    );
+                    continue;
+                };
+                let Some(&part) = index.get(part_name) else {
+                    self.error(end.span, format!("unknown part `{part_name}`"), None);
+                    continue;
+                };
+                let Some(port) = parts[part].ports.iter().position(|p| p.name == port_name) else {
+                    let names: Vec<&str> =
+                        parts[part].ports.iter().map(|p| p.name.as_str()).collect();
+                    self.error(
+                        end.span,
+                        format!("part `{part_name}` has no port `{port_name}`"),
+                        Some(if names.is_empty() {
+                            format!("declare it under `ports:` of `{part_name}`")
+                        } else {
+                            format!("ports of `{part_name}`: {}", list(&names))
+                        }),
+                    );
+                    continue;
+                };
+                if let Some(previous) = used.insert((part, port), end.span) {
+                    let (line, _) = self.sources.line_column(previous);
+                    self.error(
+                        end.span,
+                        format!("port `{text}` is already linked (line {line})"),
+                        Some("a port takes one cable".into()),
+                    );
+                    continue;
+                }
+                let is_host = matches!(parts[part].ports[port].kind, PortKind::UsbHost { .. });
+                resolved.push(((part, port), is_host, end.span));
+            }
+            if resolved.len() != 2 {
+                continue;
+            }
+            let host = resolved.iter().find(|r| r.1);
+            let device = resolved.iter().find(|r| !r.1);
+            match (host, device) {
+                (Some(h), Some(d)) => links.push(Link {
+                    span: item.span,
+                    host: h.0,
+                    device: d.0,
+                    wire: self.rated(item, "wire", units::wire_size, item.span),
+                    length: self.rated(item, "length", units::length, item.span),
+                }),
+                _ => self.error(
+                    item.span,
+                    "a USB link joins a `usb-host` port to a `usb-device` port",
+                    None,
+                ),
+            }
+        }
+        links
+    }
+
+    fn modes(&mut self, node: &Node, parts: &[Part], index: &HashMap<String, PartId>) -> Vec<Mode> {
+        let mut modes = Vec::new();
+        let Some(entries) = self.mapping(node, "`modes:`") else {
+            return modes;
+        };
+        for (key, body) in entries {
+            let Some(name) = self.name(key, "mode") else {
+                continue;
+            };
+            if name == "typical" || name == "worst" {
+                self.error(
+                    key.span,
+                    format!("`{name}` is a built-in mode"),
+                    Some("choose another name; `typical` and `worst` always exist".into()),
+                );
+                continue;
+            }
+            let Some(states) = self.mapping(body, &format!("mode `{name}`")) else {
+                continue;
+            };
+            let mut mode = Mode {
+                name,
+                span: key.span,
+                states: Vec::new(),
+            };
+            for (part_node, state_node) in states {
+                let part_name = part_node.as_scalar().unwrap_or("");
+                let Some(&part) = index.get(part_name) else {
+                    let hint = closest(part_name, index.keys().map(String::as_str))
+                        .map(|s| format!("did you mean `{s}`?"));
+                    self.error(part_node.span, format!("unknown part `{part_name}`"), hint);
+                    continue;
+                };
+                let state = if matches!(parts[part].class, Class::Motor(_)) {
+                    self.choice(
+                        state_node,
+                        &[
+                            ("idle", PartState::Motor(MotorState::Idle)),
+                            ("running", PartState::Motor(MotorState::Running)),
+                            ("stall", PartState::Motor(MotorState::Stall)),
+                        ],
+                        "motor state",
+                    )
+                } else {
+                    self.choice(
+                        state_node,
+                        &[
+                            ("idle", PartState::Load(LoadState::Idle)),
+                            ("typical", PartState::Load(LoadState::Typical)),
+                            ("peak", PartState::Load(LoadState::Peak)),
+                        ],
+                        "load state",
+                    )
+                };
+                if let Some(state) = state {
+                    mode.states.push((part, state));
+                }
+            }
+            modes.push(mode);
+        }
+        modes
+    }
+
+    fn profile(&mut self, node: &Node, modes: &[Mode]) -> Vec<ProfileShare> {
+        let mut shares = Vec::new();
+        let Some(entries) = self.mapping(node, "`profile:`") else {
+            return shares;
+        };
+        for (key, value) in entries {
+            let name = key.as_scalar().unwrap_or("").to_string();
+            if name != "typical" && name != "worst" && !modes.iter().any(|m| m.name == name) {
+                let mut names: Vec<&str> = vec!["typical", "worst"];
+                names.extend(modes.iter().map(|m| m.name.as_str()));
+                let hint = closest(&name, names.iter().copied())
+                    .map(|s| format!("did you mean `{s}`?"))
+                    .unwrap_or_else(|| format!("modes: {}", list(&names)));
+                self.error(key.span, format!("unknown mode `{name}`"), Some(hint));
+                continue;
+            }
+            if let Some(share) = self.scalar_quantity(value, units::share) {
+                shares.push(ProfileShare {
+                    mode: name,
+                    share,
+                    span: key.span,
+                });
+            }
+        }
+        let total: f64 = shares.iter().map(|s| s.share.get::<ratio>()).sum();
+        if !shares.is_empty() && (total - 1.0).abs() > 0.001 {
+            self.error(
+                node.span,
+                format!("the profile adds up to {:.1} %, not 100 %", total * 100.0),
+                Some("make the shares of time add up to 100 %".into()),
+            );
+        }
+        shares
+    }
+}
+
+// ----- helpers -------------------------------------------------------------
+
+fn first_key_span(root: &Node) -> Span {
+    root.as_map()
+        .and_then(|e| e.first())
+        .map_or(root.span, |(k, _)| k.span)
+}
+
+fn key_node(key: &str, span: Span) -> Node {
+    Node {
+        kind: NodeKind::Scalar(key.to_string()),
+        span,
+    }
+}
+
+/// Overlays `overrides` on a library part: fields are replaced, and `pins` and
+/// `ports` are merged entry by entry, field by field.
+fn merge_part(base: &mut Node, overrides: &Node) {
+    let (NodeKind::Map(base_entries), Some(over_entries)) = (&mut base.kind, overrides.as_map())
+    else {
+        return;
+    };
+    for (key, value) in over_entries {
+        let name = key.as_scalar();
+        let existing = base_entries
+            .iter_mut()
+            .find(|(k, _)| k.as_scalar().is_some() && k.as_scalar() == name);
+        match existing {
+            Some((_, base_value)) if matches!(name, Some("pins" | "ports")) => {
+                merge_entries(base_value, value, 1);
+            }
+            Some(slot) => *slot = (key.clone(), value.clone()),
+            None => base_entries.push((key.clone(), value.clone())),
+        }
+    }
+}
+
+/// Merges mappings `depth` levels deep, replacing values below that.
+fn merge_entries(base: &mut Node, overrides: &Node, depth: usize) {
+    let (NodeKind::Map(base_entries), Some(over_entries)) = (&mut base.kind, overrides.as_map())
+    else {
+        *base = overrides.clone();
+        return;
+    };
+    for (key, value) in over_entries {
+        let existing = base_entries
+            .iter_mut()
+            .find(|(k, _)| k.as_scalar().is_some() && k.as_scalar() == key.as_scalar());
+        match existing {
+            Some((_, base_value)) if depth > 0 => merge_entries(base_value, value, depth - 1),
+            Some(slot) => *slot = (key.clone(), value.clone()),
+            None => base_entries.push((key.clone(), value.clone())),
+        }
+    }
+}
+
+fn blank_pin(name: &str, role: PinRole, span: Span) -> Pin {
+    Pin {
+        name: name.to_string(),
+        role,
+        span,
+        range: None,
+        max: None,
+        draw: None,
+        voltage: None,
+        current: None,
+        diode_or: false,
+        logic: None,
+        net: None,
+        net_span: None,
+    }
+}
+
+fn fixed_pins(class: &str) -> &'static [(&'static str, PinRole)] {
+    match class {
+        "battery" => &[("pos", PinRole::SupplyOut), ("neg", PinRole::Ground)],
+        "fuse" | "switch" => &[("a", PinRole::Through), ("b", PinRole::Through)],
+        "regulator" => &[
+            ("vin", PinRole::SupplyIn),
+            ("vout", PinRole::SupplyOut),
+            ("gnd", PinRole::Ground),
+        ],
+        "motor" => &[("a", PinRole::Winding), ("b", PinRole::Winding)],
+        "resistor" => &[("a", PinRole::Passive), ("b", PinRole::Passive)],
+        _ => &[],
+    }
+}
+
+fn class_fields(class: &str) -> &'static [&'static str] {
+    match class {
+        "battery" => &[
+            "chemistry",
+            "cells",
+            "capacity",
+            "max_discharge",
+            "internal_resistance",
+            "cutoff",
+            "voltage",
+        ],
+        "fuse" => &["rating", "voltage", "speed"],
+        "switch" => &["rating", "voltage", "stop"],
+        "connector" => &["rating"],
+        "regulator" => &[
+            "topology",
+            "output",
+            "input",
+            "current",
+            "dropout",
+            "efficiency",
+            "quiescent",
+            "theta_ja",
+            "tj_max",
+        ],
+        "driver" => &[
+            "supply",
+            "channel_current",
+            "channel_peak",
+            "drop",
+            "rds_on",
+            "quiescent",
+            "channels",
+        ],
+        "motor" => &[
+            "rated_voltage",
+            "rated_current",
+            "no_load_current",
+            "stall_current",
+        ],
+        "resistor" => &["value", "power"],
+        _ => &[],
+    }
+}
+
+/// `a3` ↔ `b3`: a connector's contact pairs.
+pub(crate) fn connector_partner(name: &str) -> Option<String> {
+    let (side, number) = name.split_at_checked(1)?;
+    if number.is_empty() || !number.chars().all(|c| c.is_ascii_digit()) {
+        return None;
+    }
+    match side {
+        "a" => Some(format!("b{number}")),
+        "b" => Some(format!("a{number}")),
+        _ => None,
+    }
+}
+
+fn pin_names(pins: &[Pin]) -> String {
+    let names: Vec<&str> = pins.iter().map(|p| p.name.as_str()).collect();
+    list(&names)
+}
+
+fn list(names: &[&str]) -> String {
+    names
+        .iter()
+        .map(|n| format!("`{n}`"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// The closest spelling among `candidates`, if it is close enough to be a typo.
+fn closest<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> Option<&'c str> {
+    let limit = (word.chars().count() / 3).max(1);
+    candidates
+        .map(|c| (edit_distance(word, c), c))
+        .filter(|(d, _)| *d <= limit)
+        .min()
+        .map(|(_, c)| c)
+}
+
+fn edit_distance(a: &str, b: &str) -> usize {
+    let a: Vec<char> = a.chars().collect();
+    let b: Vec<char> = b.chars().collect();
+    let mut previous: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.iter().enumerate() {
+        let mut current = vec![i + 1];
+        for (j, cb) in b.iter().enumerate() {
+            let substitution = previous[j] + usize::from(ca != cb);
+            current.push(substitution.min(previous[j + 1] + 1).min(current[j] + 1));
+        }
+        previous = current;
+    }
+    previous[b.len()]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn typos_find_their_intended_word() {
+        assert_eq!(
+            closest("capacty", ["capacity", "cells"].into_iter()),
+            Some("capacity")
+        );
+        assert_eq!(closest("zzz", ["capacity", "cells"].into_iter()), None);
+    }
+
+    #[test]
+    fn connector_contacts_pair_by_number() {
+        assert_eq!(connector_partner("a12").as_deref(), Some("b12"));
+        assert_eq!(connector_partner("b1").as_deref(), Some("a1"));
+        assert_eq!(connector_partner("c1"), None);
+        assert_eq!(connector_partner("a"), None);
+    }
+}

@@ -1,0 +1,46 @@
+//! Output formats: the terminal report (via `miette`) and JSON (contract §8).
+//!
+//! The only module that knows how findings and input errors look on the
+//! outside. It returns strings; the binary decides where they go.
+
+mod human;
+mod json;
+
+pub use human::{HumanStyle, render_findings, render_input_errors};
+pub use json::{findings_json, input_errors_json};
+
+use crate::rules::{Finding, Severity};
+
+/// Counts by severity.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+pub struct Summary {
+    pub errors: usize,
+    pub warnings: usize,
+    pub notes: usize,
+}
+
+impl Summary {
+    pub fn of(findings: &[Finding]) -> Summary {
+        let mut s = Summary::default();
+        for f in findings {
+            match f.severity {
+                Severity::Error => s.errors += 1,
+                Severity::Warning => s.warnings += 1,
+                Severity::Note => s.notes += 1,
+            }
+        }
+        s
+    }
+
+    pub fn line(&self) -> String {
+        fn count(n: usize, word: &str) -> String {
+            format!("{n} {word}{}", if n == 1 { "" } else { "s" })
+        }
+        format!(
+            "{}, {}, {}",
+            count(self.errors, "error"),
+            count(self.warnings, "warning"),
+            count(self.notes, "note")
+        )
+    }
+}

@@ -1,0 +1,316 @@
+//! Currents against the ratings of what carries them: regulator and onboard
+//! outputs, switches, connector contacts, driver channels, USB host ports.
+//! Peak current meets maximum ratings; continuous current meets continuous
+//! ratings and the derating limit (contract §6).
+
+use super::{
+    Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
+};
+use crate::analysis::OperatingPoint;
+use crate::graph::through_pairs;
+use crate::model::{Class, PartId, PinRole, PortKind, Rated};
+use crate::syntax::Span;
+use crate::units::{show_current, show_share};
+use uom::si::electric_current::ampere;
+use uom::si::f64::ElectricCurrent;
+use uom::si::ratio::ratio;
+
+pub const OVER_RATING: Rule = Rule {
+    id: "current/over-rating",
+    severity: Severity::Error,
+    summary: "a current exceeds a rating",
+    doc: RuleDoc {
+        what: "The highest current over all modes (`worst` included) through each regulator output, onboard supply output, switch, connector contact and USB host port against its rating; and the continuous current of each driver channel (motors running) against `channel_current`.",
+        why: "A regulator past its rating folds back or overheats, a switch or contact past its rating burns its contacts, a driver past its continuous rating shuts down or fails — and the robot stops or smokes.",
+        example: "parts:\n  buck: { use: regulator/buck-5v-3a }\n  brain: { use: board/sbc-5v }     # 1.8 A peak plus 1.2 A of USB devices\n  cam:  { class: load, pins: { vin: { role: supply-in, range: 4.75 V..5.25 V, draw: { peak: 0.8 A } }, gnd: { role: ground } } }",
+        fix: "parts:\n  buck: { use: regulator/buck-5v-5a }",
+        references: "Rating comparison with the 0.1 % tolerance of the format contract §6; driver continuous vs running current, reference sheet §8 (common practice).",
+    },
+    needs_operating_point: true,
+    check: check_ratings,
+};
+
+pub const DERATING: Rule = Rule {
+    id: "current/derating",
+    severity: Severity::Warning,
+    summary: "continuous current above the derating share of a rating",
+    doc: RuleDoc {
+        what: "The continuous current (over `typical` and the user's modes, never `worst`) through each rated output, switch, contact and driver channel against `limits.derate` (default 80 %) of its rating.",
+        why: "Parts run at their full rating run hot and age fast; 80 % continuous is the usual margin for regulators, drivers and switches.",
+        example: "parts:\n  buck: { use: regulator/buck-5v-3a }   # 2.7 A continuous: 90 % of 3 A",
+        fix: "parts:\n  buck: { use: regulator/buck-5v-5a }   # 54 %",
+        references: "Continuous load ≤ 80 % of rating: NEC 210.20(A) for overcurrent devices; the same margin for regulators and drivers is common practice (reference sheet §10).",
+    },
+    needs_operating_point: true,
+    // Decided together with over-rating in `check_ratings`.
+    check: |_, _| {},
+};
+
+/// Reads one current out of an operating point.
+type CurrentAt<'a> = Box<dyn Fn(&OperatingPoint) -> Option<ElectricCurrent> + 'a>;
+
+/// Something with a current rating, and how to read its current at a point.
+struct RatedPath<'a> {
+    subject: String,
+    span: Span,
+    part: PartId,
+    net: Option<String>,
+    rating: ElectricCurrent,
+    /// Driver channel continuous ratings meet continuous current only.
+    continuous_rating: bool,
+    current: CurrentAt<'a>,
+}
+
+fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
+    let plan = cx.plan;
+    let mut paths: Vec<RatedPath<'a>> = Vec::new();
+    let at = |r: &Rated<ElectricCurrent>, fallback: Span| {
+        if r.span.source == fallback.source {
+            r.span
+        } else {
+            fallback
+        }
+    };
+    for (part_id, part) in plan.parts.iter().enumerate() {
+        match &part.class {
+            Class::Regulator(regulator) => {
+                if let Some(rating) = regulator.current {
+                    let vout = part.pin("vout");
+                    paths.push(RatedPath {
+                        subject: format!("`{}` output", part.name),
+                        span: at(&rating, part.span),
+                        part: part_id,
+                        net: vout
+                            .and_then(|p| part.pins[p].net)
+                            .map(|n| cx.net_name(n).to_string()),
+                        rating: rating.value,
+                        continuous_rating: false,
+                        current: Box::new(move |p| p.regulators[part_id].map(|r| r.output_current)),
+                    });
+                }
+            }
+            Class::Switch(switch) => {
+                if let Some(rating) = switch.rating {
+                    for (a, b) in through_pairs(plan, part_id) {
+                        paths.push(through_path(
+                            cx,
+                            part_id,
+                            a,
+                            b,
+                            rating,
+                            format!("switch `{}`", part.name),
+                        ));
+                    }
+                }
+            }
+            Class::Connector(connector) => {
+                if let Some(rating) = connector.rating {
+                    for (a, b) in through_pairs(plan, part_id) {
+                        let subject = format!(
+                            "contact `{}.{}`/`{}`",
+                            part.name, part.pins[a].name, part.pins[b].name
+                        );
+                        paths.push(through_path(cx, part_id, a, b, rating, subject));
+                    }
+                }
+            }
+            Class::Driver(driver) => {
+                if let Some(rating) = driver.channel_current {
+                    for channel in &driver.channels {
+                        let number = channel.number;
+                        paths.push(RatedPath {
+                            subject: format!("`{}` channel {number}", part.name),
+                            span: channel.span,
+                            part: part_id,
+                            net: part.pins[channel.outputs[0]]
+                                .net
+                                .map(|n| cx.net_name(n).to_string()),
+                            rating: rating.value,
+                            continuous_rating: true,
+                            current: Box::new(move |p| {
+                                p.channels[part_id]
+                                    .iter()
+                                    .find(|(n, _)| *n == number)
+                                    .map(|(_, i)| *i)
+                            }),
+                        });
+                    }
+                }
+            }
+            Class::Battery(_) => {}
+            _ => {
+                for (pin_id, pin) in part.pins_with_role(PinRole::SupplyOut) {
+                    if let Some(limit) = pin.current {
+                        paths.push(RatedPath {
+                            subject: format!("`{}.{}` output", part.name, pin.name),
+                            span: pin.net_span.unwrap_or(pin.span),
+                            part: part_id,
+                            net: pin.net.map(|n| cx.net_name(n).to_string()),
+                            rating: limit,
+                            continuous_rating: false,
+                            current: Box::new(move |p| Some(p.pin_current[part_id][pin_id])),
+                        });
+                    }
+                }
+            }
+        }
+        // USB host ports: separate limits, or one limit shared by the ports so marked.
+        let mut shared_limit: Option<ElectricCurrent> = None;
+        let mut shared_links = Vec::new();
+        for (port_id, port) in part.ports.iter().enumerate() {
+            let PortKind::UsbHost {
+                current: Some(limit),
+                shared,
+            } = port.kind
+            else {
+                continue;
+            };
+            let links: Vec<usize> = plan
+                .links
+                .iter()
+                .enumerate()
+                .filter(|(_, l)| l.host == (part_id, port_id))
+                .map(|(i, _)| i)
+                .collect();
+            if shared {
+                shared_limit = Some(shared_limit.map_or(limit, |s: ElectricCurrent| s.min(limit)));
+                shared_links.extend(links);
+            } else if let Some(&link) = links.first() {
+                paths.push(RatedPath {
+                    subject: format!("USB port `{}.{}`", part.name, port.name),
+                    span: plan.links[link].span,
+                    part: part_id,
+                    net: None,
+                    rating: limit,
+                    continuous_rating: false,
+                    current: Box::new(move |p| Some(p.link_current[link])),
+                });
+            }
+        }
+        if let (Some(limit), Some(&first)) = (shared_limit, shared_links.first()) {
+            paths.push(RatedPath {
+                subject: format!("the shared USB ports of `{}`", part.name),
+                span: plan.links[first].span,
+                part: part_id,
+                net: None,
+                rating: limit,
+                continuous_rating: false,
+                current: Box::new(move |p| {
+                    Some(
+                        shared_links
+                            .iter()
+                            .fold(ElectricCurrent::new::<ampere>(0.0), |s, &l| {
+                                s + p.link_current[l]
+                            }),
+                    )
+                }),
+            });
+        }
+    }
+    paths
+}
+
+fn through_path<'a>(
+    cx: &'a Context,
+    part: PartId,
+    a: usize,
+    b: usize,
+    rating: Rated<ElectricCurrent>,
+    subject: String,
+) -> RatedPath<'a> {
+    let plan = cx.plan;
+    let circuit = cx.circuit;
+    let pins = &plan.parts[part].pins;
+    // The net on the far side of this part, seen from the source.
+    let downstream = [pins[a].net, pins[b].net].into_iter().flatten().find(|&n| {
+        circuit.parent[n]
+            .is_some_and(|p| p.part == part && (p.downstream_pin == a || p.downstream_pin == b))
+    });
+    let span = if rating.span.source == plan.parts[part].span.source {
+        rating.span
+    } else {
+        plan.parts[part].span
+    };
+    RatedPath {
+        subject,
+        span,
+        part,
+        net: downstream.map(|n| cx.net_name(n).to_string()),
+        rating: rating.value,
+        continuous_rating: false,
+        current: Box::new(move |p| downstream.map(|n| p.net_current[n].abs())),
+    }
+}
+
+fn amps(i: ElectricCurrent) -> f64 {
+    i.get::<ampere>()
+}
+
+fn check_ratings(cx: &Context, out: &mut Vec<Finding>) {
+    let derate = cx.plan.limits.derate.get::<ratio>();
+    for path in rated_paths(cx) {
+        let rating = amps(path.rating);
+        let peak = worst_point(cx.points(), |p| (path.current)(p).map(amps));
+        let steady = worst_point(cx.points().filter(continuous), |p| {
+            (path.current)(p).map(amps)
+        });
+        let over = if path.continuous_rating { steady } else { peak };
+        let base = |rule: &Rule, point: &OperatingPoint, message: String| {
+            let mut f = Finding::new(rule, path.span, message)
+                .at_point(cx.plan, point)
+                .part(cx.part_name(path.part))
+                .value("rating", rating);
+            if let Some(net) = &path.net {
+                f = f.net(net);
+            }
+            f
+        };
+        if let Some((point, current)) = over
+            && exceeds(current, rating)
+        {
+            let kind = if path.continuous_rating {
+                "continuous"
+            } else {
+                "peak"
+            };
+            out.push(
+                base(
+                    &OVER_RATING,
+                    point,
+                    format!(
+                        "{} carries {} {kind} {}; its rating is {}",
+                        path.subject,
+                        show_current(ElectricCurrent::new::<ampere>(current)),
+                        mode_label(cx.plan, point.mode, point.battery),
+                        show_current(path.rating)
+                    ),
+                )
+                .help("choose a part with a higher rating, or split the load")
+                .value("current", current),
+            );
+            continue;
+        }
+        if let Some((point, current)) = steady
+            && exceeds(current, rating * derate)
+        {
+            out.push(
+                base(
+                    &DERATING,
+                    point,
+                    format!(
+                        "{} carries {} continuous {}: {} of its {} rating, above the {} derating limit",
+                        path.subject,
+                        show_current(ElectricCurrent::new::<ampere>(current)),
+                        mode_label(cx.plan, point.mode, point.battery),
+                        show_share(uom::si::f64::Ratio::new::<ratio>(current / rating)),
+                        show_current(path.rating),
+                        show_share(cx.plan.limits.derate)
+                    ),
+                )
+                .help("leave margin: choose a part rated for the continuous current divided by the derating share")
+                .value("current", current)
+                .value("limit", rating * derate),
+            );
+        }
+    }
+}

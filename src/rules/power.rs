@@ -1,0 +1,257 @@
+//! Power topology rules, decided on the graph before any current is solved:
+//! shorts, sources fighting on one rail, loads with no source, converters
+//! feeding themselves.
+
+use super::{Context, Finding, Rule, RuleDoc, Severity};
+use crate::graph::Stage;
+use crate::model::{PinRole, PortKind};
+use petgraph::algo::tarjan_scc;
+
+pub const SHORT: Rule = Rule {
+    id: "power/short",
+    severity: Severity::Error,
+    summary: "a supply output and a ground on the same node",
+    doc: RuleDoc {
+        what: "Whether any electrical node (nets joined through fuses, switches and connector contacts count as one) holds both a `supply-out` pin and a `ground` pin.",
+        why: "A source wired straight to ground is a dead short: a battery delivers hundreds of amperes, melts wire insulation and can start a fire before any fuse clears.",
+        example: "nets:\n  BATT+: [pack.pos, main_fuse.a]\n  OOPS:  [main_fuse.b, pack.neg]",
+        fix: "nets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT:  [main_fuse.b, buck.vin]\n  GND:   [pack.neg, buck.gnd]",
+        references: "Kirchhoff's laws; reference sheet W15 (short-circuit current of a 3S pack through 14 AWG: 474 A).",
+    },
+    needs_operating_point: false,
+    check: check_short,
+};
+
+fn check_short(cx: &Context, out: &mut Vec<Finding>) {
+    for node in &cx.circuit.nodes {
+        let (Some(&source), Some(&ground)) = (node.supply_outs.first(), node.grounds.first())
+        else {
+            continue;
+        };
+        let mut finding = Finding::new(
+            &SHORT,
+            cx.pin_span(source),
+            format!(
+                "`{}` (a supply output) and `{}` (a ground) are on the same node: a short circuit",
+                cx.pin_name(source),
+                cx.pin_name(ground)
+            ),
+        )
+        .label(cx.pin_span(ground), "ground joined here")
+        .help("separate the supply and the ground into different nets; check which pin each wire lands on")
+        .part(cx.part_name(source.part))
+        .part(cx.part_name(ground.part));
+        for &net in &node.nets {
+            finding = finding.net(cx.net_name(net));
+        }
+        out.push(finding);
+    }
+}
+
+pub const CONFLICT: Rule = Rule {
+    id: "power/conflict",
+    severity: Severity::Error,
+    summary: "two supply outputs feed one rail",
+    doc: RuleDoc {
+        what: "Whether two `supply-out` pins, neither marked `or: diode`, drive the same rail.",
+        why: "Two regulated outputs tied together fight: the higher one back-feeds the lower, which can destroy a regulator or a USB port and makes the rail voltage undefined.",
+        example: "nets:\n  5V: [buck.vout, mcu.5v, sensor.vcc]",
+        fix: "nets:\n  5V:     [buck.vout, sensor.vcc]\n  MCU5V:  [mcu.5v]   # or mark one output `or: diode`",
+        references: "Kirchhoff's voltage law (two ideal sources in parallel are undefined); diode-OR power sharing, common practice.",
+    },
+    needs_operating_point: false,
+    check: check_conflict,
+};
+
+fn check_conflict(cx: &Context, out: &mut Vec<Finding>) {
+    for node in cx.circuit.nodes.iter().filter(|n| !n.is_ground()) {
+        let undiode: Vec<_> = node
+            .supply_outs
+            .iter()
+            .filter(|p| !cx.plan.parts[p.part].pins[p.pin].diode_or)
+            .collect();
+        if undiode.len() < 2 {
+            continue;
+        }
+        let names: Vec<String> = undiode
+            .iter()
+            .map(|p| format!("`{}`", cx.pin_name(**p)))
+            .collect();
+        let mut finding = Finding::new(
+            &CONFLICT,
+            cx.pin_span(*undiode[1]),
+            format!("{} all drive one rail", names.join(" and ")),
+        )
+        .label(cx.pin_span(*undiode[0]), "first source")
+        .help("keep one source per rail, or mark sources that cannot back-feed with `or: diode`");
+        for p in &undiode {
+            finding = finding.part(cx.part_name(p.part));
+        }
+        for &net in &node.nets {
+            finding = finding.net(cx.net_name(net));
+        }
+        out.push(finding);
+    }
+}
+
+pub const UNFED: Rule = Rule {
+    id: "power/unfed",
+    severity: Severity::Error,
+    summary: "a supply input on a rail with no source",
+    doc: RuleDoc {
+        what: "Whether every `supply-in` pin that is wired sits on a rail that some `supply-out` feeds, and whether every part that needs power has at least one fed supply input (or a USB cable that powers it).",
+        why: "A load on a rail with no source never powers up; often a net name was mistyped or a wire forgotten.",
+        example: "nets:\n  5V: [sensor.vcc]",
+        fix: "nets:\n  5V: [buck.vout, sensor.vcc]",
+        references: "Kirchhoff's current law: a node with loads and no source carries no current.",
+    },
+    needs_operating_point: false,
+    check: check_unfed,
+};
+
+fn check_unfed(cx: &Context, out: &mut Vec<Finding>) {
+    let plan = cx.plan;
+    for (part_id, part) in plan.parts.iter().enumerate() {
+        let supply_ins: Vec<usize> = part
+            .pins_with_role(PinRole::SupplyIn)
+            .map(|(i, _)| i)
+            .collect();
+        if supply_ins.is_empty() {
+            continue;
+        }
+        let powered_by_cable = plan.links.iter().any(|l| {
+            l.device.0 == part_id
+                && matches!(part.ports[l.device.1].kind, PortKind::UsbDevice { .. })
+        });
+        let mut any_fed = false;
+        for &pin in &supply_ins {
+            let pin_ref = crate::model::PinRef { part: part_id, pin };
+            let Some(node_id) = cx.circuit.node_of_pin(plan, pin_ref) else {
+                continue;
+            };
+            let node = &cx.circuit.nodes[node_id];
+            if !node.supply_outs.is_empty() && !node.is_ground() {
+                any_fed = true;
+                continue;
+            }
+            if node.is_ground() {
+                // A supply input wired to ground: its own kind of mistake.
+                out.push(
+                    Finding::new(
+                        &UNFED,
+                        cx.pin_span(pin_ref),
+                        format!(
+                            "supply input `{}` is wired to ground, not to a rail",
+                            cx.pin_name(pin_ref)
+                        ),
+                    )
+                    .help("connect it to the rail that should power it")
+                    .part(&part.name)
+                    .net(cx.net_name(part.pins[pin].net.unwrap_or(0))),
+                );
+                continue;
+            }
+            let mut finding = Finding::new(
+                &UNFED,
+                cx.pin_span(pin_ref),
+                format!(
+                    "`{}` is on rail `{}`, which no source feeds",
+                    cx.pin_name(pin_ref),
+                    cx.net_name(part.pins[pin].net.unwrap_or(0))
+                ),
+            )
+            .help("add the regulator or battery output that should feed this rail to its net")
+            .part(&part.name);
+            for &net in &node.nets {
+                finding = finding.net(cx.net_name(net));
+            }
+            out.push(finding);
+        }
+        let all_open = supply_ins.iter().all(|&p| part.pins[p].net.is_none());
+        if !any_fed && all_open && !powered_by_cable {
+            let names: Vec<String> = supply_ins
+                .iter()
+                .map(|&p| format!("`{}`", part.pins[p].name))
+                .collect();
+            out.push(
+                Finding::new(
+                    &UNFED,
+                    part.span,
+                    format!(
+                        "`{}` is not powered: its supply input {} is in no net",
+                        part.name,
+                        names.join(", ")
+                    ),
+                )
+                .help(format!(
+                    "add `{}.{}` to the rail that should power it",
+                    part.name, part.pins[supply_ins[0]].name
+                ))
+                .part(&part.name),
+            );
+        }
+    }
+}
+
+pub const LOOP: Rule = Rule {
+    id: "power/loop",
+    severity: Severity::Error,
+    summary: "a converter's output feeds its own input",
+    doc: RuleDoc {
+        what: "Whether power can flow from a converter's output back to its own input (directly or through other converters).",
+        why: "A regulator that powers itself has no real source: the rail either collapses or latches in an undefined state, and the plan cannot be solved.",
+        example: "nets:\n  VIN: [boost.vout, buck.vin]\n  5V:  [buck.vout, boost.vin]",
+        fix: "nets:\n  VIN: [pack.pos, buck.vin]\n  5V:  [buck.vout, boost.vin]\n  12V: [boost.vout, lamp.vin]",
+        references: "Conservation of energy: a converter chain cannot supply its own input.",
+    },
+    needs_operating_point: false,
+    check: check_loop,
+};
+
+fn check_loop(cx: &Context, out: &mut Vec<Finding>) {
+    let flow = &cx.circuit.flow;
+    for component in tarjan_scc(flow) {
+        let self_loop = component.len() == 1 && flow.contains_edge(component[0], component[0]);
+        if component.len() < 2 && !self_loop {
+            continue;
+        }
+        let mut converters: Vec<usize> = component
+            .iter()
+            .filter_map(|&n| match flow[n] {
+                Stage::Converter(part) => Some(part),
+                Stage::Rail(_) => None,
+            })
+            .collect();
+        converters.sort_unstable();
+        let mut rails: Vec<usize> = component
+            .iter()
+            .filter_map(|&n| match flow[n] {
+                Stage::Rail(node) => Some(node),
+                Stage::Converter(_) => None,
+            })
+            .collect();
+        rails.sort_unstable();
+        let Some(&first) = converters.first() else {
+            continue;
+        };
+        let names: Vec<String> = converters
+            .iter()
+            .map(|&p| format!("`{}`", cx.part_name(p)))
+            .collect();
+        let mut finding = Finding::new(
+            &LOOP,
+            cx.plan.parts[first].span,
+            format!("power loops back: {} feed their own input", names.join(", ")),
+        )
+        .help("every converter's input must trace back to a battery without passing through its own output");
+        for &p in &converters {
+            finding = finding.part(cx.part_name(p));
+        }
+        for &rail in &rails {
+            for &net in &cx.circuit.nodes[rail].nets {
+                finding = finding.net(cx.net_name(net));
+            }
+        }
+        out.push(finding);
+    }
+}

@@ -1,0 +1,82 @@
+//! Regulators that cannot hold their output: input below output + dropout
+//! (linear, buck), or above the output of a boost.
+
+use super::{Context, Finding, Rule, RuleDoc, Severity, mode_label, worst_point};
+use crate::model::{Class, Topology};
+use crate::units::show_voltage;
+use uom::si::electric_potential::volt;
+
+pub const DROPOUT: Rule = Rule {
+    id: "regulator/dropout",
+    severity: Severity::Warning,
+    summary: "a regulator's input falls below output + dropout",
+    doc: RuleDoc {
+        what: "In every mode and battery state, whether a linear or buck regulator's input stays at or above its output plus its `dropout`, and whether a boost's input stays below its output.",
+        why: "Below output + dropout the regulator passes its input through less the dropout: the rail it feeds sags with the battery, and the loads on it may brown out.",
+        example: "parts:\n  pack: { use: battery/lipo-2s }            # 6.0 V when empty\n  reg:  { use: regulator/linear-5v-1a }    # dropout 2 V: needs 7 V",
+        fix: "parts:\n  pack: { use: battery/lipo-2s }\n  reg:  { use: regulator/buck-5v-3a }",
+        references: "Dropout requirement Vin ≥ Vout + Vdropout; typical dropout ≈ 2 V for an NPN linear regulator, 0.1–0.6 V for an LDO (reference sheet §7, common practice).",
+    },
+    needs_operating_point: true,
+    check: check_dropout,
+};
+
+fn check_dropout(cx: &Context, out: &mut Vec<Finding>) {
+    for (part_id, part) in cx.plan.parts.iter().enumerate() {
+        let Class::Regulator(regulator) = &part.class else {
+            continue;
+        };
+        // The worst point: the largest shortfall below what regulation needs.
+        let Some((point, _)) = worst_point(cx.points(), |p| {
+            let r = p.regulators[part_id]?;
+            if !r.out_of_regulation {
+                return None;
+            }
+            Some(match regulator.topology {
+                Topology::Boost => (r.input_voltage - regulator.output.max).get::<volt>(),
+                _ => (regulator.output.min + regulator.dropout - r.input_voltage).get::<volt>(),
+            })
+        }) else {
+            continue;
+        };
+        let Some(r) = point.regulators[part_id] else {
+            continue;
+        };
+        let at = mode_label(cx.plan, point.mode, point.battery);
+        let message = match regulator.topology {
+            Topology::Boost => format!(
+                "boost `{}` gets {} at its input {at}, above its {} output: it cannot regulate down, and the output follows the input",
+                part.name,
+                show_voltage(r.input_voltage),
+                show_voltage(regulator.output.nominal)
+            ),
+            _ => format!(
+                "`{}` needs {} at its input to hold {} (dropout {}) but gets {} {at}; its output falls to {}",
+                part.name,
+                show_voltage(regulator.output.nominal + regulator.dropout),
+                show_voltage(regulator.output.nominal),
+                show_voltage(regulator.dropout),
+                show_voltage(r.input_voltage),
+                show_voltage(r.output_voltage)
+            ),
+        };
+        let span = part
+            .pin("vin")
+            .and_then(|p| part.pins[p].net_span)
+            .unwrap_or(part.span);
+        let mut finding = Finding::new(&DROPOUT, span, message)
+            .at_point(cx.plan, point)
+            .help(match regulator.topology {
+                Topology::Boost => "use a buck-boost, or a boost whose output is above the highest input",
+                _ => "use a regulator with less dropout (an LDO or a buck), or a battery with more cells",
+            })
+            .part(&part.name)
+            .value("input_voltage", r.input_voltage.get::<volt>())
+            .value("output_voltage", r.output_voltage.get::<volt>())
+            .value("dropout", regulator.dropout.get::<volt>());
+        if let Some(net) = part.pin("vin").and_then(|p| part.pins[p].net) {
+            finding = finding.net(cx.net_name(net));
+        }
+        out.push(finding);
+    }
+}

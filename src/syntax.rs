@@ -1,0 +1,398 @@
+//! YAML text to a tree of nodes, each carrying the byte span it came from.
+//!
+//! This is the only place that knows about YAML. It does not know what a part or
+//! a net is: the `model` stage reads the tree, so that every input problem can be
+//! collected in one pass instead of stopping at serde's first error. Scalars keep
+//! the text as written (a plain `y` stays `y`, not a YAML 1.1 boolean), so names
+//! and quantities reach the model exactly as the user typed them.
+
+use serde::de::{self, Deserialize, Deserializer, MapAccess, SeqAccess, Visitor};
+use serde_saphyr::Spanned;
+use std::fmt;
+use std::sync::Arc;
+
+/// Which loaded text a span points into (the plan, or a library part file).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct SourceId(pub u32);
+
+/// A byte range in one source text.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub struct Span {
+    pub source: SourceId,
+    pub start: usize,
+    pub end: usize,
+}
+
+impl Span {
+    pub fn new(source: SourceId, start: usize, end: usize) -> Self {
+        Span {
+            source,
+            start,
+            end: end.max(start),
+        }
+    }
+
+    /// A span inside this one, from byte offsets relative to its start.
+    pub fn within(self, range: std::ops::Range<usize>) -> Span {
+        let start = (self.start + range.start).min(self.end);
+        let end = (self.start + range.end).clamp(start, self.end.max(start));
+        Span::new(self.source, start, end)
+    }
+}
+
+/// Every text the run has read, so spans can be turned into lines and snippets.
+#[derive(Clone, Debug, Default)]
+pub struct Sources {
+    entries: Vec<(String, Arc<str>)>,
+}
+
+impl Sources {
+    pub fn add(&mut self, name: impl Into<String>, text: impl Into<Arc<str>>) -> SourceId {
+        self.entries.push((name.into(), text.into()));
+        SourceId(self.entries.len() as u32 - 1)
+    }
+
+    pub fn name(&self, id: SourceId) -> &str {
+        &self.entries[id.0 as usize].0
+    }
+
+    pub fn text(&self, id: SourceId) -> &Arc<str> {
+        &self.entries[id.0 as usize].1
+    }
+
+    /// 1-based line and column (in characters) of a byte offset.
+    pub fn line_column(&self, span: Span) -> (usize, usize) {
+        line_column(self.text(span.source), span.start)
+    }
+}
+
+/// 1-based line and column (in characters) of a byte offset, clamped into the text.
+pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
+    let offset = floor_char_boundary(text, offset.min(text.len()));
+    let before = &text[..offset];
+    let line = before.matches('\n').count() + 1;
+    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
+    let column = text[line_start..offset].chars().count() + 1;
+    (line, column)
+}
+
+pub fn floor_char_boundary(text: &str, mut offset: usize) -> usize {
+    offset = offset.min(text.len());
+    while !text.is_char_boundary(offset) {
+        offset -= 1;
+    }
+    offset
+}
+
+/// A YAML node with its span.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Node {
+    pub kind: NodeKind,
+    pub span: Span,
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub enum NodeKind {
+    Null,
+    /// The scalar as written (quotes removed for quoted scalars).
+    Scalar(String),
+    Seq(Vec<Node>),
+    Map(Vec<(Node, Node)>),
+}
+
+impl Node {
+    pub fn as_scalar(&self) -> Option<&str> {
+        match &self.kind {
+            NodeKind::Scalar(s) => Some(s),
+            _ => None,
+        }
+    }
+
+    pub fn as_map(&self) -> Option<&[(Node, Node)]> {
+        match &self.kind {
+            NodeKind::Map(entries) => Some(entries),
+            _ => None,
+        }
+    }
+
+    pub fn as_seq(&self) -> Option<&[Node]> {
+        match &self.kind {
+            NodeKind::Seq(items) => Some(items),
+            _ => None,
+        }
+    }
+
+    /// The value under a scalar key of a mapping.
+    pub fn get(&self, key: &str) -> Option<&Node> {
+        self.as_map()?
+            .iter()
+            .find(|(k, _)| k.as_scalar() == Some(key))
+            .map(|(_, v)| v)
+    }
+
+    /// What kind of YAML value this is, for messages ("a list", "a mapping").
+    pub fn describe(&self) -> &'static str {
+        match self.kind {
+            NodeKind::Null => "an empty value",
+            NodeKind::Scalar(_) => "a single value",
+            NodeKind::Seq(_) => "a list",
+            NodeKind::Map(_) => "a mapping",
+        }
+    }
+}
+
+/// A YAML syntax error: the text is not YAML, so nothing further can be read.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SyntaxError {
+    pub message: String,
+    pub span: Span,
+}
+
+/// Node budget for the YAML reader. Generated plans with thousands of parts stay
+/// well inside it; hostile input is refused quickly instead of exhausting memory.
+const MAX_NODES: usize = 2_000_000;
+
+/// Parses one YAML document into a spanned tree.
+pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
+    let mut budget = serde_saphyr::Budget::default();
+    budget.max_nodes = MAX_NODES;
+    budget.max_events = 4 * MAX_NODES;
+    let mut options = serde_saphyr::Options::default();
+    options.budget = Some(budget);
+    options.with_snippet = false;
+    match serde_saphyr::from_str_with_options::<Spanned<RawNode>>(text, options) {
+        Ok(raw) => Ok(convert(source, text, raw)),
+        Err(error) => {
+            let offset = error
+                .location()
+                .map(|loc| offset_of(text, &loc))
+                .unwrap_or(0);
+            let message = first_line_without_location(&error.to_string());
+            let end = next_char_end(text, offset);
+            Err(SyntaxError {
+                message,
+                span: Span::new(source, offset, end),
+            })
+        }
+    }
+}
+
+fn next_char_end(text: &str, offset: usize) -> usize {
+    text[offset..]
+        .chars()
+        .next()
+        .map_or(offset, |c| offset + c.len_utf8())
+}
+
+/// serde-saphyr prefixes its messages with "error: line L column C:"; the
+/// report shows the position itself.
+fn first_line_without_location(message: &str) -> String {
+    let line = message.lines().next().unwrap_or(message).trim();
+    let line = line.strip_prefix("error:").unwrap_or(line).trim();
+    let line = match line.find(": ") {
+        Some(i) if line[..i].starts_with("line ") => &line[i + 2..],
+        _ => line,
+    };
+    if line.is_empty() {
+        "the file is not valid YAML".to_string()
+    } else {
+        line.to_string()
+    }
+}
+
+fn offset_of(text: &str, location: &serde_saphyr::Location) -> usize {
+    let span = location.span();
+    if let Some(byte) = span.byte_offset()
+        && (byte as usize) <= text.len()
+        && text.is_char_boundary(byte as usize)
+    {
+        return byte as usize;
+    }
+    offset_of_line_column(text, location.line() as usize, location.column() as usize)
+}
+
+fn offset_of_line_column(text: &str, line: usize, column: usize) -> usize {
+    let mut offset = 0;
+    for _ in 1..line.max(1) {
+        match text[offset..].find('\n') {
+            Some(i) => offset += i + 1,
+            None => return text.len(),
+        }
+    }
+    let rest = &text[offset..];
+    let within = rest
+        .char_indices()
+        .nth(column.saturating_sub(1))
+        .map_or(rest.len(), |(i, _)| i);
+    offset + within
+}
+
+fn convert(source: SourceId, text: &str, raw: Spanned<RawNode>) -> Node {
+    let start = offset_of(text, &raw.referenced);
+    let declared_len = raw
+        .referenced
+        .span()
+        .byte_len()
+        .filter(|len| raw.referenced.span().byte_offset().is_some() && *len < u32::MAX as u64)
+        .map_or(0, |len| len as usize);
+    let end = floor_char_boundary(text, (start + declared_len).min(text.len()));
+    let span = Span::new(source, start, end);
+    let kind = match raw.value {
+        RawNode::Null => NodeKind::Null,
+        RawNode::Scalar(value) => NodeKind::Scalar(scalar_as_written(&text[start..end], value)),
+        RawNode::Seq(items) => NodeKind::Seq(
+            items
+                .into_iter()
+                .map(|i| convert(source, text, i))
+                .collect(),
+        ),
+        RawNode::Map(entries) => NodeKind::Map(
+            entries
+                .into_iter()
+                .map(|(k, v)| (convert(source, text, k), convert(source, text, v)))
+                .collect(),
+        ),
+    };
+    Node { kind, span }
+}
+
+/// Plain scalars are taken from the source text so that YAML's type guessing
+/// (`y` as a boolean, `1.10` as 1.1) never changes what the user wrote.
+fn scalar_as_written(raw: &str, interpreted: String) -> String {
+    let raw = raw.trim();
+    let quoted_or_block = raw.starts_with(['\'', '"', '|', '>', '*', '&', '!']);
+    if raw.is_empty() || quoted_or_block {
+        interpreted
+    } else {
+        raw.to_string()
+    }
+}
+
+/// What serde-saphyr hands over before spans are turned into byte ranges.
+enum RawNode {
+    Null,
+    Scalar(String),
+    Seq(Vec<Spanned<RawNode>>),
+    Map(Vec<(Spanned<RawNode>, Spanned<RawNode>)>),
+}
+
+struct RawVisitor;
+
+impl<'de> Visitor<'de> for RawVisitor {
+    type Value = RawNode;
+
+    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+        f.write_str("any YAML value")
+    }
+    fn visit_str<E: de::Error>(self, v: &str) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v.to_string()))
+    }
+    fn visit_string<E: de::Error>(self, v: String) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v))
+    }
+    fn visit_i64<E: de::Error>(self, v: i64) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v.to_string()))
+    }
+    fn visit_u64<E: de::Error>(self, v: u64) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v.to_string()))
+    }
+    fn visit_i128<E: de::Error>(self, v: i128) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v.to_string()))
+    }
+    fn visit_u128<E: de::Error>(self, v: u128) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v.to_string()))
+    }
+    fn visit_f64<E: de::Error>(self, v: f64) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v.to_string()))
+    }
+    fn visit_bool<E: de::Error>(self, v: bool) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v.to_string()))
+    }
+    fn visit_char<E: de::Error>(self, v: char) -> Result<RawNode, E> {
+        Ok(RawNode::Scalar(v.to_string()))
+    }
+    fn visit_unit<E: de::Error>(self) -> Result<RawNode, E> {
+        Ok(RawNode::Null)
+    }
+    fn visit_none<E: de::Error>(self) -> Result<RawNode, E> {
+        Ok(RawNode::Null)
+    }
+    fn visit_some<D: Deserializer<'de>>(self, d: D) -> Result<RawNode, D::Error> {
+        d.deserialize_any(RawVisitor)
+    }
+    fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<RawNode, A::Error> {
+        let mut items = Vec::new();
+        while let Some(item) = seq.next_element()? {
+            items.push(item);
+        }
+        Ok(RawNode::Seq(items))
+    }
+    fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<RawNode, A::Error> {
+        let mut entries = Vec::new();
+        while let Some(entry) = map.next_entry()? {
+            entries.push(entry);
+        }
+        Ok(RawNode::Map(entries))
+    }
+}
+
+impl<'de> Deserialize<'de> for RawNode {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<RawNode, D::Error> {
+        d.deserialize_any(RawVisitor)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const SRC: SourceId = SourceId(0);
+
+    fn text_at(text: &str, node: &Node) -> String {
+        text[node.span.start..node.span.end].to_string()
+    }
+
+    #[test]
+    fn scalars_keep_their_written_text_and_span() {
+        let text = "parts:\n  y: { use: battery/lipo-3s }\n  x: 1.10\n";
+        let root = parse(SRC, text).unwrap();
+        let parts = root.get("parts").unwrap().as_map().unwrap();
+        assert_eq!(parts[0].0.as_scalar(), Some("y"));
+        assert_eq!(line_column(text, parts[0].0.span.start), (2, 3));
+        assert_eq!(parts[1].1.as_scalar(), Some("1.10"));
+        let used = parts[0].1.get("use").unwrap();
+        assert_eq!(text_at(text, used), "battery/lipo-3s");
+        assert_eq!(line_column(text, used.span.start), (2, 13));
+    }
+
+    #[test]
+    fn quoted_scalars_lose_their_quotes() {
+        let text = "name: 'Orchard \"scout\"'\n";
+        let root = parse(SRC, text).unwrap();
+        assert_eq!(
+            root.get("name").unwrap().as_scalar(),
+            Some("Orchard \"scout\"")
+        );
+    }
+
+    #[test]
+    fn syntax_errors_point_at_their_line() {
+        let text = "name: x\nparts: [a, b\n";
+        let error = parse(SRC, text).unwrap_err();
+        assert_eq!(line_column(text, error.span.start).0, 2);
+        assert!(!error.message.starts_with("error"), "{}", error.message);
+    }
+
+    #[test]
+    fn duplicate_keys_are_refused() {
+        let text = "a: 1\na: 2\n";
+        let error = parse(SRC, text).unwrap_err();
+        assert_eq!(line_column(text, error.span.start), (2, 1));
+    }
+
+    #[test]
+    fn columns_count_characters_not_bytes() {
+        assert_eq!(line_column("a: µA\nb", 5), (1, 5));
+        assert_eq!(line_column("a: µA\nb", 7), (2, 1));
+    }
+}

@@ -15,11 +15,12 @@ use crate::model::{
     BridgeDrop, Chemistry, Class, LoadState, MotorState, NetId, PartId, PartState, PinRole, Plan,
     PortKind, Topology,
 };
-use crate::units::WireSize;
+use crate::units::{WireSize, show_power};
 use crate::wire;
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
 use uom::si::f64::{ElectricCurrent, ElectricPotential, ElectricalResistance, Power};
+use uom::si::power::watt;
 use uom::si::ratio::ratio;
 
 /// Battery state of charge at which a point is solved.
@@ -352,35 +353,66 @@ impl Solver<'_> {
     }
 
     /// A point that has no physical solution: a source pulled to or below zero.
+    /// The blame goes to the constant-power converter that pulls hardest, if
+    /// any: with constant-current loads alone a collapse is the source's.
     fn collapsed(&self, point: &OperatingPoint) -> Option<Unsettled> {
-        for (part, battery) in point.batteries.iter().enumerate() {
-            if let Some(b) = battery
-                && b.terminal.get::<volt>() <= 0.0
-            {
-                return Some(Unsettled {
-                    part: Some(part),
-                    reason: "the battery terminal voltage collapses to zero under this load".into(),
-                    iterations: 0,
-                });
-            }
-        }
-        for (part, regulator) in point.regulators.iter().enumerate() {
-            let Some(r) = regulator else { continue };
+        let hungriest_converter = point
+            .regulators
+            .iter()
+            .enumerate()
+            .filter_map(|(part, r)| {
+                let r = r.as_ref()?;
+                let Class::Regulator(spec) = &self.plan.parts[part].class else {
+                    return None;
+                };
+                let loaded = r.output_current.get::<ampere>() > 0.0;
+                (spec.topology.is_switching() && loaded)
+                    .then(|| (part, (spec.output.nominal * r.output_current).get::<watt>()))
+            })
+            .max_by(|a, b| a.1.total_cmp(&b.1));
+        let collapsed_battery = point
+            .batteries
+            .iter()
+            .enumerate()
+            .find_map(|(part, b)| b.filter(|b| b.terminal.get::<volt>() <= 0.0).map(|_| part));
+        let collapsed_converter = point.regulators.iter().enumerate().find_map(|(part, r)| {
+            let r = r.as_ref()?;
             let Class::Regulator(spec) = &self.plan.parts[part].class else {
-                continue;
+                return None;
             };
-            if spec.topology.is_switching()
+            (spec.topology.is_switching()
                 && r.output_current.get::<ampere>() > 0.0
-                && r.input_voltage.get::<volt>() <= 0.0
-            {
-                return Some(Unsettled {
-                    part: Some(part),
-                    reason: "the converter draws constant power, and its input voltage collapses: the source cannot deliver that power through its resistance".into(),
-                    iterations: 0,
-                });
-            }
+                && r.input_voltage.get::<volt>() <= 0.0)
+                .then_some(part)
+        });
+        if collapsed_battery.is_none() && collapsed_converter.is_none() {
+            return None;
         }
-        None
+        let (part, reason) = match hungriest_converter {
+            Some((part, watts)) => (
+                part,
+                format!(
+                    "it draws constant power ({}), and as its input sags it draws more current, until the source collapses: the source cannot deliver that power through its resistance",
+                    show_power(Power::new::<watt>(watts / self.efficiency(part)))
+                ),
+            ),
+            None => (
+                collapsed_battery.or(collapsed_converter).unwrap_or(0),
+                "the source's terminal voltage collapses to zero under this load".to_string(),
+            ),
+        };
+        Some(Unsettled {
+            part: Some(part),
+            reason,
+            iterations: 0,
+        })
+    }
+
+    fn efficiency(&self, part: PartId) -> f64 {
+        match &self.plan.parts[part].class {
+            Class::Regulator(r) => r.efficiency.get::<ratio>(),
+            _ => 1.0,
+        }
     }
 
     // ----- voltages, top down ---------------------------------------------
@@ -402,7 +434,12 @@ impl Solver<'_> {
             };
             potential[net] = upstream.map(|u| u + self.drop(net, point.net_current[net]));
         }
+        // A battery's negative terminal is the reference every potential is
+        // measured from; other parts sit at the load end of their ground net.
         let ground_of = |part: PartId, potential: &[Option<ElectricPotential>]| {
+            if matches!(plan.parts[part].class, Class::Battery(_)) {
+                return zero_voltage();
+            }
             circuit.ground_net[part]
                 .and_then(|n| potential[n])
                 .unwrap_or_else(zero_voltage)
@@ -531,29 +568,14 @@ impl Solver<'_> {
         let plan = self.plan;
         let circuit = self.circuit;
 
-        // What each supply-out pin delivers: its node's total, from the last pass.
-        let mut delivered = vec![zero_current(); circuit.nodes.len()];
-        for (node_id, node) in circuit.nodes.iter().enumerate() {
-            if let Some(root) = circuit.root[node_id]
-                && !node.is_ground()
-            {
-                delivered[node_id] = point.net_current[root];
-            }
-        }
-        let mut pin_current: Vec<Vec<ElectricCurrent>> = plan
-            .parts
-            .iter()
-            .map(|p| vec![zero_current(); p.pins.len()])
-            .collect();
-        for node in circuit.nodes.iter().filter(|n| !n.is_ground()) {
-            let root = node
-                .supply_outs
-                .iter()
-                .find(|p| plan.parts[p.part].pins[p.pin].net.is_some());
-            if let Some(pin) = root {
-                let node_id =
-                    circuit.node_of_net[plan.parts[pin.part].pins[pin.pin].net.unwrap_or(0)];
-                pin_current[pin.part][pin.pin] = delivered[node_id];
+        // Supply-out pins keep what they delivered in the last pass until the
+        // net currents of this pass are known.
+        let mut pin_current: Vec<Vec<ElectricCurrent>> = point.pin_current.clone();
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role != PinRole::SupplyOut {
+                    pin_current[part_id][pin_id] = zero_current();
+                }
             }
         }
 
@@ -773,6 +795,24 @@ impl Solver<'_> {
             if let Some(parent) = circuit.parent[net] {
                 let below = net_current[net];
                 net_current[parent.net] += below;
+            }
+        }
+
+        // What each source delivers: everything its node carries.
+        for (node_id, node) in circuit.nodes.iter().enumerate() {
+            if node.is_ground() {
+                continue;
+            }
+            let Some(root) = circuit.root[node_id] else {
+                continue;
+            };
+            for pin in &node.supply_outs {
+                let on_root = plan.parts[pin.part].pins[pin.pin].net == Some(root);
+                pin_current[pin.part][pin.pin] = if on_root {
+                    net_current[root]
+                } else {
+                    zero_current()
+                };
             }
         }
 

@@ -8,6 +8,7 @@
 //! output.
 
 pub mod analysis;
+pub mod budget;
 pub mod graph;
 pub mod model;
 pub mod report;

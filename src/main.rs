@@ -20,21 +20,38 @@ struct Cli {
     command: Command,
 }
 
+/// Where a plan comes from and how to read it.
+#[derive(clap::Args)]
+struct PlanArgs {
+    /// The plan (YAML netlist).
+    file: PathBuf,
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Human)]
+    format: Format,
+    /// A folder of extra part files; its ids shadow built-in ones.
+    #[arg(long, value_name = "DIR")]
+    parts: Option<PathBuf>,
+}
+
 #[derive(Subcommand)]
 enum Command {
     /// Check a plan: rails, currents, grounds, ratings.
     Check {
-        /// The plan (YAML netlist).
-        file: PathBuf,
-        /// Output format.
-        #[arg(long, value_enum, default_value_t = Format::Human)]
-        format: Format,
+        #[command(flatten)]
+        plan: PlanArgs,
         /// Fail on warnings too.
         #[arg(long)]
         strict: bool,
-        /// A folder of extra part files; its ids shadow built-in ones.
-        #[arg(long, value_name = "DIR")]
-        parts: Option<PathBuf>,
+    },
+    /// Show the power budget: per rail and per battery.
+    Budget {
+        #[command(flatten)]
+        plan: PlanArgs,
+    },
+    /// List the rules, or explain one (`railcheck rules fuse/undersized`).
+    Rules {
+        /// A rule id.
+        id: Option<String>,
     },
 }
 
@@ -50,12 +67,9 @@ const EXIT_INPUT: u8 = 2;
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
-        Command::Check {
-            file,
-            format,
-            strict,
-            parts,
-        } => check(&file, format, strict, parts.as_deref()),
+        Command::Check { plan, strict } => check(&plan, strict),
+        Command::Budget { plan } => budget(&plan),
+        Command::Rules { id } => rules(id.as_deref()),
     }
 }
 
@@ -71,60 +85,106 @@ fn emit(text: &str) {
     let _ = stdout.flush();
 }
 
-fn check(file: &Path, format: Format, strict: bool, parts: Option<&Path>) -> ExitCode {
-    let text = match std::fs::read_to_string(file) {
-        Ok(t) => t,
-        Err(e) => return fail(&format!("cannot read {}: {e}", file.display())),
-    };
-    let mut library = Library::builtin();
-    if let Some(dir) = parts
-        && let Err(message) = add_user_parts(&mut library, dir)
-    {
-        return fail(&message);
-    }
-    let style = HumanStyle {
+fn style() -> HumanStyle {
+    HumanStyle {
         color: std::io::stdout().is_terminal() && std::env::var_os("NO_COLOR").is_none(),
         width: 100,
+    }
+}
+
+/// Reads and checks the plan; on input errors prints them and returns the
+/// exit code to end with.
+fn load(args: &PlanArgs) -> Result<railcheck::Checked, ExitCode> {
+    let text = match std::fs::read(&args.file) {
+        Ok(bytes) => match String::from_utf8(bytes) {
+            Ok(t) => t,
+            Err(e) => {
+                return Err(fail(&format!(
+                    "{} is not UTF-8 text (invalid byte at offset {})",
+                    args.file.display(),
+                    e.utf8_error().valid_up_to()
+                )));
+            }
+        },
+        Err(e) => return Err(fail(&format!("cannot read {}: {e}", args.file.display()))),
     };
-    let name = file.display().to_string();
-    match railcheck::check(&name, &text, &library) {
-        Err(failure) => {
-            let out = match format {
-                Format::Json => report::input_errors_json(
-                    &failure.sources,
-                    failure.plan_source,
-                    &failure.errors,
-                ),
-                Format::Human => {
-                    report::render_input_errors(&failure.sources, &failure.errors, style)
-                }
-            };
-            emit(&out);
-            ExitCode::from(EXIT_INPUT)
+    let mut library = Library::builtin();
+    if let Some(dir) = &args.parts
+        && let Err(message) = add_user_parts(&mut library, dir)
+    {
+        return Err(fail(&message));
+    }
+    let name = args.file.display().to_string();
+    railcheck::check(&name, &text, &library).map_err(|failure| {
+        let out = match args.format {
+            Format::Json => {
+                report::input_errors_json(&failure.sources, failure.plan_source, &failure.errors)
+            }
+            Format::Human => {
+                report::render_input_errors(&failure.sources, &failure.errors, style())
+            }
+        };
+        emit(&out);
+        ExitCode::from(EXIT_INPUT)
+    })
+}
+
+fn check(args: &PlanArgs, strict: bool) -> ExitCode {
+    let checked = match load(args) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    let out = match args.format {
+        Format::Json => {
+            report::findings_json(&checked.sources, checked.plan_source, &checked.findings)
         }
-        Ok(checked) => {
-            let out = match format {
-                Format::Json => {
-                    report::findings_json(&checked.sources, checked.plan_source, &checked.findings)
-                }
-                Format::Human => report::render_findings(
-                    &checked.sources,
-                    checked.plan_source,
-                    &checked.findings,
-                    &railcheck::safety::cautions(&checked.plan),
-                    style,
-                ),
-            };
-            emit(&out);
-            let failing = checked.findings.iter().any(|f| {
-                f.severity == Severity::Error || (strict && f.severity == Severity::Warning)
-            });
-            if failing {
-                ExitCode::from(EXIT_FINDINGS)
-            } else {
+        Format::Human => report::render_findings(
+            &checked.sources,
+            checked.plan_source,
+            &checked.findings,
+            &railcheck::safety::cautions(&checked.plan),
+            style(),
+        ),
+    };
+    emit(&out);
+    let failing = checked
+        .findings
+        .iter()
+        .any(|f| f.severity == Severity::Error || (strict && f.severity == Severity::Warning));
+    if failing {
+        ExitCode::from(EXIT_FINDINGS)
+    } else {
+        ExitCode::SUCCESS
+    }
+}
+
+fn budget(args: &PlanArgs) -> ExitCode {
+    let checked = match load(args) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    let budget = railcheck::budget::budget(&checked);
+    let name = checked.sources.name(checked.plan_source);
+    emit(&match args.format {
+        Format::Json => report::budget_json(name, &budget),
+        Format::Human => report::budget_table(name, &budget),
+    });
+    ExitCode::SUCCESS
+}
+
+fn rules(id: Option<&str>) -> ExitCode {
+    match id {
+        None => {
+            emit(&report::rule_list(railcheck::rules::RULES));
+            ExitCode::SUCCESS
+        }
+        Some(id) => match railcheck::rules::rule(id) {
+            Some(rule) => {
+                emit(&report::rule_explanation(rule));
                 ExitCode::SUCCESS
             }
-        }
+            None => fail(&format!("no rule `{id}`; `railcheck rules` lists them all")),
+        },
     }
 }
 

@@ -332,6 +332,9 @@ pub struct Battery {
     pub cutoff: bool,
     /// Explicit terminal window (`voltage: 10 V..12.6 V`) instead of cells × chemistry.
     pub voltage: Option<Band<ElectricPotential>>,
+    /// Share of the rated capacity the runtime estimate may use (default 100 %:
+    /// capacity is rated down to the cut-off voltage).
+    pub usable: Ratio,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

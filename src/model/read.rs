@@ -813,6 +813,9 @@ impl Reader<'_> {
                         .and_then(|n| self.boolean(n))
                         .unwrap_or(false),
                     voltage: self.quantity(body, "voltage", units::voltage_band),
+                    usable: self
+                        .quantity(body, "usable", units::share)
+                        .unwrap_or(Ratio::new::<ratio>(1.0)),
                 })
             }
             "fuse" => Class::Fuse(Fuse {
@@ -1548,6 +1551,7 @@ fn class_fields(class: &str) -> &'static [&'static str] {
             "internal_resistance",
             "cutoff",
             "voltage",
+            "usable",
         ],
         "fuse" => &["rating", "voltage", "speed"],
         "switch" => &["rating", "voltage", "stop"],

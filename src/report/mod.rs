@@ -3,9 +3,13 @@
 //! The only module that knows how findings and input errors look on the
 //! outside. It returns strings; the binary decides where they go.
 
+mod budget;
+mod catalogue;
 mod human;
 mod json;
 
+pub use budget::{budget_json, budget_table};
+pub use catalogue::{rule_explanation, rule_list};
 pub use human::{HumanStyle, render_findings, render_input_errors};
 pub use json::{findings_json, input_errors_json};
 

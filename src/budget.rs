@@ -1,0 +1,335 @@
+//! The power budget: per rail and per battery, what the operating points
+//! add up to — voltage windows, typical and peak currents against ratings,
+//! power, conversion losses, energy and the runtime estimate.
+//!
+//! It reads a checked plan and computes numbers; `report` lays them out.
+
+use crate::Checked;
+use crate::analysis::{BatteryState, ModeId, OperatingPoint, battery_voltage};
+use crate::model::{Chemistry, Class, PartId, PinRef};
+use crate::units::DischargeRate;
+use uom::si::electric_charge::ampere_hour;
+use uom::si::electric_current::ampere;
+use uom::si::electric_potential::volt;
+use uom::si::f64::{
+    ElectricCharge, ElectricCurrent, ElectricPotential, Energy, Power, Ratio, Time,
+};
+use uom::si::ratio::ratio;
+use uom::si::time::hour;
+
+/// Peukert's exponent for lead-acid batteries (reference sheet §6: flooded
+/// 1.2–1.3, AGM 1.05–1.15; 1.2 as in worked example W12).
+pub const PEUKERT_LEAD_ACID: f64 = 1.2;
+/// Hours of the rate at which lead-acid capacity is rated (the 20 h rate).
+pub const LEAD_ACID_RATED_HOURS: f64 = 20.0;
+
+#[derive(Clone, Debug)]
+pub struct Budget {
+    pub rails: Vec<RailBudget>,
+    pub batteries: Vec<BatteryBudget>,
+}
+
+#[derive(Clone, Debug)]
+pub struct RailBudget {
+    /// The rail's net names, source side first.
+    pub nets: Vec<String>,
+    /// The pin that feeds it (`buck.vout`).
+    pub source: String,
+    /// At the source, typical mode: lowest at empty battery, nominal, highest at full.
+    pub voltage_empty: ElectricPotential,
+    pub voltage_nominal: ElectricPotential,
+    pub voltage_full: ElectricPotential,
+    /// Typical mode at nominal battery.
+    pub typical_current: ElectricCurrent,
+    /// The highest over every mode and battery state, `worst` included.
+    pub peak_current: ElectricCurrent,
+    pub peak_mode: String,
+    /// The source's current rating, if it has one.
+    pub rating: Option<ElectricCurrent>,
+    /// Typical mode at nominal battery.
+    pub power: Power,
+    /// Heat in the converter feeding the rail (typical, nominal battery).
+    pub conversion_loss: Option<Power>,
+}
+
+#[derive(Clone, Debug)]
+pub struct BatteryBudget {
+    pub name: String,
+    pub chemistry: Chemistry,
+    pub cells: u32,
+    pub capacity: Option<ElectricCharge>,
+    pub voltage_full: ElectricPotential,
+    pub voltage_nominal: ElectricPotential,
+    pub voltage_empty: ElectricPotential,
+    pub energy: Option<Energy>,
+    pub typical_current: ElectricCurrent,
+    pub peak_current: ElectricCurrent,
+    pub max_discharge: Option<ElectricCurrent>,
+    /// Profile-weighted mean current at nominal battery.
+    pub average_current: ElectricCurrent,
+    pub usable: Ratio,
+    pub runtime: Option<Runtime>,
+}
+
+#[derive(Clone, Debug)]
+pub struct Runtime {
+    pub time: Time,
+    /// How it was estimated, for the reader (e.g. Peukert's law and its exponent).
+    pub method: String,
+}
+
+/// Where a battery's `max_discharge` lands in amperes.
+pub fn max_discharge_current(checked: &Checked, part: PartId) -> Option<ElectricCurrent> {
+    let Class::Battery(b) = &checked.plan.parts[part].class else {
+        return None;
+    };
+    match b.max_discharge?.value {
+        DischargeRate::Current(i) => Some(i),
+        // C-rate: I = C-rate × capacity per hour (IEC "It" = Cn / 1 h).
+        DischargeRate::CRate(c) => b
+            .capacity
+            .map(|cap| ElectricCurrent::new::<ampere>(c * cap.value.get::<ampere_hour>())),
+    }
+}
+
+fn amps(i: ElectricCurrent) -> f64 {
+    i.get::<ampere>()
+}
+
+fn points(checked: &Checked) -> Vec<&OperatingPoint> {
+    checked.analysis.iter().flat_map(|a| a.settled()).collect()
+}
+
+/// The largest value over the points that match.
+fn highest<T: Copy + PartialOrd>(
+    points: &[&OperatingPoint],
+    keep: impl Fn(&OperatingPoint) -> bool,
+    measure: impl Fn(&OperatingPoint) -> Option<T>,
+) -> Option<(T, ModeId)> {
+    let mut best: Option<(T, ModeId)> = None;
+    for p in points.iter().filter(|p| keep(p)) {
+        if let Some(v) = measure(p)
+            && best.is_none_or(|(b, _)| v > b)
+        {
+            best = Some((v, p.mode));
+        }
+    }
+    best
+}
+
+fn lowest<T: Copy + PartialOrd>(
+    points: &[&OperatingPoint],
+    keep: impl Fn(&OperatingPoint) -> bool,
+    measure: impl Fn(&OperatingPoint) -> Option<T>,
+) -> Option<T> {
+    points
+        .iter()
+        .filter(|p| keep(p))
+        .filter_map(|p| measure(p))
+        .fold(None, |acc: Option<T>, v| {
+            Some(acc.map_or(v, |a| if v < a { v } else { a }))
+        })
+}
+
+pub fn budget(checked: &Checked) -> Budget {
+    let plan = &checked.plan;
+    let circuit = &checked.circuit;
+    let points = points(checked);
+    let zero_i = ElectricCurrent::new::<ampere>(0.0);
+    let zero_v = ElectricPotential::new::<volt>(0.0);
+
+    let mut rails = Vec::new();
+    for (node_id, node) in circuit.nodes.iter().enumerate() {
+        if node.is_ground() {
+            continue;
+        }
+        let Some(root) = circuit.root[node_id] else {
+            continue;
+        };
+        let Some(&source) = node
+            .supply_outs
+            .iter()
+            .find(|p| plan.parts[p.part].pins[p.pin].net == Some(root))
+        else {
+            continue;
+        };
+        let PinRef { part, pin } = source;
+        let typical =
+            |s: BatteryState| move |p: &OperatingPoint| p.mode == ModeId::TYPICAL && p.battery == s;
+        let at_source = |p: &OperatingPoint| p.pin_voltage[part][pin];
+        let current = |p: &OperatingPoint| Some(p.net_current[root]);
+        let (peak_current, peak_mode) =
+            highest(&points, |_| true, current).unwrap_or((zero_i, ModeId::TYPICAL));
+        let typical_current =
+            highest(&points, typical(BatteryState::Nominal), current).map_or(zero_i, |v| v.0);
+        // Nominal: midway between the regulators' tolerance corners.
+        let voltage_nominal = {
+            let hi =
+                highest(&points, typical(BatteryState::Nominal), at_source).map_or(zero_v, |v| v.0);
+            let lo = lowest(&points, typical(BatteryState::Nominal), at_source).unwrap_or(zero_v);
+            (hi + lo) / 2.0
+        };
+        let rating = match &plan.parts[part].class {
+            Class::Regulator(r) => r.current.map(|c| c.value),
+            Class::Battery(_) => max_discharge_current(checked, part),
+            _ => plan.parts[part].pins[pin].current,
+        };
+        let conversion_loss = highest(&points, typical(BatteryState::Nominal), |p| {
+            let r = p.regulators[part]?;
+            Some(r.input_voltage * r.input_current - r.output_voltage * r.output_current)
+        })
+        .map(|v| v.0);
+        let mut nets = vec![plan.nets[root].name.clone()];
+        nets.extend(
+            node.nets
+                .iter()
+                .filter(|&&n| n != root)
+                .map(|&n| plan.nets[n].name.clone()),
+        );
+        rails.push(RailBudget {
+            nets,
+            source: format!(
+                "{}.{}",
+                plan.parts[part].name, plan.parts[part].pins[pin].name
+            ),
+            voltage_empty: lowest(&points, typical(BatteryState::Empty), at_source)
+                .unwrap_or(zero_v),
+            voltage_nominal,
+            voltage_full: highest(&points, typical(BatteryState::Full), at_source)
+                .map_or(zero_v, |v| v.0),
+            typical_current,
+            peak_current,
+            peak_mode: peak_mode.name(plan).to_string(),
+            rating,
+            power: voltage_nominal * typical_current,
+            conversion_loss,
+        });
+    }
+
+    let mut batteries = Vec::new();
+    for (part_id, part) in plan.parts.iter().enumerate() {
+        let Class::Battery(battery) = &part.class else {
+            continue;
+        };
+        let window = BatteryState::ALL.map(|s| battery_voltage(plan, part_id, s).unwrap_or(zero_v));
+        let battery_current = |p: &OperatingPoint| p.batteries[part_id].map(|b| b.current);
+        let in_mode = |mode: ModeId| {
+            highest(
+                &points,
+                |p| p.mode == mode && p.battery == BatteryState::Nominal,
+                battery_current,
+            )
+            .map_or(zero_i, |v| v.0)
+        };
+        let typical_current = in_mode(ModeId::TYPICAL);
+        let peak_current = highest(&points, |_| true, battery_current).map_or(zero_i, |v| v.0);
+        // The profile weights each mode's current by its share of the time
+        // (default: all of it in `typical`, contract §6).
+        let average_current = if plan.profile.is_empty() {
+            typical_current
+        } else {
+            plan.profile.iter().fold(zero_i, |sum, share| {
+                let mode = ModeId::all(plan)
+                    .find(|m| m.name(plan) == share.mode)
+                    .unwrap_or(ModeId::TYPICAL);
+                sum + in_mode(mode) * share.share.get::<ratio>()
+            })
+        };
+        let capacity = battery.capacity.map(|c| c.value);
+        let runtime = capacity.and_then(|c| {
+            runtime(
+                battery.chemistry,
+                c * battery.usable.get::<ratio>(),
+                average_current,
+            )
+        });
+        batteries.push(BatteryBudget {
+            name: part.name.clone(),
+            chemistry: battery.chemistry,
+            cells: battery.cells,
+            capacity,
+            voltage_full: window[0],
+            voltage_nominal: window[1],
+            voltage_empty: window[2],
+            // Wh = V_nominal × Ah (reference sheet §6).
+            energy: capacity.map(|c| window[1] * c),
+            typical_current,
+            peak_current,
+            max_discharge: max_discharge_current(checked, part_id),
+            average_current,
+            usable: battery.usable,
+            runtime,
+        });
+    }
+    Budget { rails, batteries }
+}
+
+/// Runtime from usable capacity at a mean current. Lead-acid follows
+/// Peukert's law t = H·(C / (I·H))^k (reference sheet §6, W12); the other
+/// chemistries deliver close to their rated capacity, t = C / I.
+pub fn runtime(
+    chemistry: Chemistry,
+    usable: ElectricCharge,
+    current: ElectricCurrent,
+) -> Option<Runtime> {
+    let amps = amps(current);
+    if amps <= 0.0 {
+        return None;
+    }
+    let ah = usable.get::<ampere_hour>();
+    Some(if chemistry == Chemistry::LeadAcid {
+        let h = LEAD_ACID_RATED_HOURS;
+        Runtime {
+            time: Time::new::<hour>(h * (ah / (amps * h)).powf(PEUKERT_LEAD_ACID)),
+            method: format!(
+                "Peukert's law, k = {PEUKERT_LEAD_ACID} (lead-acid), capacity rated at the {h} h rate"
+            ),
+        }
+    } else {
+        Runtime {
+            time: Time::new::<hour>(ah / amps),
+            method: "usable capacity ÷ mean current".to_string(),
+        }
+    })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn peukert_matches_worked_example_w12() {
+        // Reference sheet W12: SLA 7 Ah at 20 h, k = 1.2, 2.0 A:
+        // t = 20 × (7 / (2 × 20))^1.2 = 2.47 h (against a naive 3.50 h).
+        let t = runtime(
+            Chemistry::LeadAcid,
+            ElectricCharge::new::<ampere_hour>(7.0),
+            ElectricCurrent::new::<ampere>(2.0),
+        )
+        .unwrap();
+        assert!((t.time.get::<hour>() - 2.47).abs() / 2.47 < 0.01);
+        assert!(t.method.contains("1.2"));
+    }
+
+    #[test]
+    fn lithium_runtime_is_usable_capacity_over_current_w13() {
+        // Reference sheet W13: 5.0 Ah at 1.5 A average, 80 % usable: 2.67 h.
+        let t = runtime(
+            Chemistry::Lipo,
+            ElectricCharge::new::<ampere_hour>(5.0 * 0.8),
+            ElectricCurrent::new::<ampere>(1.5),
+        )
+        .unwrap();
+        assert!((t.time.get::<hour>() - 2.6667).abs() < 0.001);
+    }
+
+    #[test]
+    fn no_runtime_without_current() {
+        let none = runtime(
+            Chemistry::Lipo,
+            ElectricCharge::new::<ampere_hour>(5.0),
+            ElectricCurrent::new::<ampere>(0.0),
+        );
+        assert!(none.is_none());
+    }
+}

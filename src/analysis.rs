@@ -459,6 +459,12 @@ impl Solver<'_> {
                 .iter()
                 .find(|p| plan.parts[p.part].pins[p.pin].net == Some(root))
             else {
+                if let Some(&link) = circuit.vbus[node_id].first() {
+                    let device = plan.links[link].device.0;
+                    source[node_id] = self
+                        .vbus_voltage(point, link)
+                        .map(|v| ground_of(device, &potential) + v);
+                }
                 continue;
             };
             let ground = ground_of(pin.part, &potential);
@@ -492,6 +498,19 @@ impl Solver<'_> {
                     .map(|v| v - ground);
             }
         }
+    }
+
+    /// VBUS at the device end of a cable: the host's own supply less the drop
+    /// over the cable's VBUS and ground conductors (contract §5: the wire
+    /// spec applies to both).
+    fn vbus_voltage(&self, point: &OperatingPoint, link: usize) -> Option<ElectricPotential> {
+        let host = self.plan.links[link].host.0;
+        let at_host = self
+            .fed_supply_in(point, host)
+            .and_then(|pin| point.pin_voltage[host][pin])?;
+        let drop = usb_link_resistance(self.plan, link)
+            .map_or(zero_voltage(), |r| point.link_current[link] * r * 2.0);
+        Some(at_host - drop)
     }
 
     fn drop(&self, net: NetId, current: ElectricCurrent) -> ElectricPotential {
@@ -680,6 +699,20 @@ impl Solver<'_> {
                 }
             }
             link_current[link_id] = current;
+        }
+
+        // A cable that feeds a rail with no other source carries that rail.
+        for (node_id, links) in circuit.vbus.iter().enumerate() {
+            let (Some(&link), Some(root)) = (links.first(), circuit.root[node_id]) else {
+                continue;
+            };
+            let has_source = circuit.nodes[node_id]
+                .supply_outs
+                .iter()
+                .any(|p| plan.parts[p.part].pins[p.pin].net == Some(root));
+            if !has_source {
+                link_current[link] += point.net_current[root];
+            }
         }
 
         // Each part's supply-in pins.

@@ -63,6 +63,9 @@ pub struct Circuit {
     pub children: Vec<Vec<NetId>>,
     /// Per electrical node: the net holding its source (or battery negative).
     pub root: Vec<Option<NetId>>,
+    /// Per electrical node: the USB links whose device port `feeds` a pin on it
+    /// (VBUS joins that rail).
+    pub vbus: Vec<Vec<usize>>,
     /// Nets in an order where each net's parent comes before it.
     pub net_order: Vec<NetId>,
     /// Per part: the net of its first connected ground pin.
@@ -116,7 +119,28 @@ impl Circuit {
             }
         }
 
-        let root: Vec<Option<NetId>> = nodes.iter().map(|node| root_net(plan, node)).collect();
+        let mut vbus: Vec<Vec<usize>> = vec![Vec::new(); nodes.len()];
+        let mut vbus_net: Vec<Option<NetId>> = vec![None; nodes.len()];
+        for (link_id, link) in plan.links.iter().enumerate() {
+            let (device, port) = link.device;
+            let part = &plan.parts[device];
+            if let PortKind::UsbDevice {
+                feeds: Some(pin), ..
+            } = part.ports[port].kind
+                && let Some(net) = part.pins[pin].net
+            {
+                let node = node_of_net[net];
+                vbus[node].push(link_id);
+                vbus_net[node].get_or_insert(net);
+            }
+        }
+        // A rail fed only through a USB cable is measured from the pin the
+        // cable feeds.
+        let root: Vec<Option<NetId>> = nodes
+            .iter()
+            .enumerate()
+            .map(|(i, node)| root_net(plan, node).or(vbus_net[i]))
+            .collect();
         let (parent, children, net_order) = trees(net_count, &nodes, &root, &through_edges);
 
         let ground_net: Vec<Option<NetId>> = plan
@@ -138,6 +162,7 @@ impl Circuit {
             parent,
             children,
             root,
+            vbus,
             net_order,
             ground_net,
             ground_group,

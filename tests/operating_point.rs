@@ -290,3 +290,26 @@ fn through_parts_carry_the_current_of_everything_below_them() {
     close(p.net_current[net("LOAD")].get::<ampere>(), 3.0, 1e-9);
     close(p.net_current[net("GND")].get::<ampere>(), 3.0, 1e-9);
 }
+
+#[test]
+fn usb_cable_feeding_a_rail_carries_it_and_drops_over_both_conductors() {
+    // Contract §5: a device port that `feeds` a pin joins VBUS to that pin's
+    // net; the cable's wire spec applies to VBUS and ground. 28 AWG is
+    // 213 mΩ/m (ASTM B258, reference sheet §1.2): 1 m of cable carrying
+    // 0.1 A (hub) + 0.4 A (fan) = 0.5 A drops 2 × 0.5 × 0.213 = 0.213 V, so
+    // the hub sees 5.000 − 0.213 = 4.787 V; the host's 5 V input carries its
+    // own 1 A plus the cable's 0.5 A.
+    let text = "railcheck: 1\nparts:\n  supply: { class: battery, chemistry: lipo, voltage: 5 V }\n  host:\n    class: board\n    pins: { vin: { role: supply-in, draw: 1 A }, gnd: { role: ground } }\n    ports: { usb1: { kind: usb-host, current: 900 mA } }\n  hub:\n    class: board\n    pins: { vin: { role: supply-in, draw: 100 mA }, gnd: { role: ground } }\n    ports: { up: { kind: usb-device, feeds: vin } }\n  fan: { class: load, pins: { vin: { role: supply-in, draw: 400 mA }, gnd: { role: ground } } }\nnets:\n  V5: [supply.pos, host.vin]\n  GND: [supply.neg, host.gnd]\n  HUB5V: [hub.vin, fan.vin]\n  HUBGND: [hub.gnd, fan.gnd]\nlinks:\n  - { usb: [host.usb1, hub.up], wire: 28 AWG, length: 1 m }\n";
+    let c = checked(text);
+    let p = point(&c, ModeId::TYPICAL, BatteryState::Nominal, Corner::Low);
+    close(p.link_current[0].get::<ampere>(), 0.5, 1e-9);
+    close(amps_in(p, pin(&c, "host", "vin")), 1.5, 1e-9);
+    close(volts_in(p, pin(&c, "hub", "vin")), 5.0 - 0.213, 0.001);
+    assert!(
+        !c.findings
+            .iter()
+            .any(|f| f.rule == "power/unfed" || f.rule == "ground/floating"),
+        "{:?}",
+        c.findings
+    );
+}

@@ -229,6 +229,9 @@ pub enum PortKind {
         draw: Option<Draw>,
         /// A pin of the same part that VBUS joins.
         feeds: Option<PinIndex>,
+        /// `or: diode`: VBUS joins that rail through a diode and cannot
+        /// back-feed the other source.
+        diode_or: bool,
     },
 }
 

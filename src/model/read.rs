@@ -738,7 +738,7 @@ impl Reader<'_> {
                         .unwrap_or(false),
                 }
             } else {
-                self.check_keys(body, &["kind", "draw", "feeds"], &context);
+                self.check_keys(body, &["kind", "draw", "feeds", "or"], &context);
                 let draw = body.get("draw").and_then(|d| self.draw(d));
                 let feeds = body.get("feeds").and_then(|f| {
                     let pin_name = self.text(f, "`feeds`")?;
@@ -752,7 +752,17 @@ impl Reader<'_> {
                     }
                     found
                 });
-                PortKind::UsbDevice { draw, feeds }
+                let diode_or = match body.get("or") {
+                    Some(or) => self
+                        .choice(or, &[("diode", true)], "`or:` value")
+                        .unwrap_or(false),
+                    None => false,
+                };
+                PortKind::UsbDevice {
+                    draw,
+                    feeds,
+                    diode_or,
+                }
             };
             ports.push(Port {
                 name,

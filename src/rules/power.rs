@@ -53,7 +53,7 @@ pub const CONFLICT: Rule = Rule {
     severity: Severity::Error,
     summary: "two supply outputs feed one rail",
     doc: RuleDoc {
-        what: "Whether two `supply-out` pins, neither marked `or: diode`, drive the same rail.",
+        what: "Whether two sources, neither marked `or: diode`, drive the same rail: two `supply-out` pins, or a supply-out and the VBUS of a USB cable whose device port `feeds` that rail.",
         why: "Two regulated outputs tied together fight: the higher one back-feeds the lower, which can destroy a regulator or a USB port and makes the rail voltage undefined.",
         example: "nets:\n  5V: [buck.vout, mcu.5v, sensor.vcc]",
         fix: "nets:\n  5V:     [buck.vout, sensor.vcc]\n  MCU5V:  [mcu.5v]   # or mark one output `or: diode`",
@@ -64,28 +64,46 @@ pub const CONFLICT: Rule = Rule {
 };
 
 fn check_conflict(cx: &Context, out: &mut Vec<Finding>) {
-    for node in cx.circuit.nodes.iter().filter(|n| !n.is_ground()) {
-        let undiode: Vec<_> = node
-            .supply_outs
-            .iter()
-            .filter(|p| !cx.plan.parts[p.part].pins[p.pin].diode_or)
-            .collect();
-        if undiode.len() < 2 {
+    let plan = cx.plan;
+    for (node_id, node) in cx.circuit.nodes.iter().enumerate() {
+        if node.is_ground() {
             continue;
         }
-        let names: Vec<String> = undiode
+        // Each source that can back-feed: a supply-out not marked `or: diode`,
+        // or a USB cable's VBUS fed into the rail without a diode.
+        let mut sources: Vec<(String, crate::syntax::Span, usize)> = node
+            .supply_outs
             .iter()
-            .map(|p| format!("`{}`", cx.pin_name(**p)))
+            .filter(|p| !plan.parts[p.part].pins[p.pin].diode_or)
+            .map(|p| (format!("`{}`", cx.pin_name(*p)), cx.pin_span(*p), p.part))
             .collect();
+        for &link in &cx.circuit.vbus[node_id] {
+            let (device, port) = plan.links[link].device;
+            if let PortKind::UsbDevice {
+                diode_or: false, ..
+            } = plan.parts[device].ports[port].kind
+            {
+                let (host, _) = plan.links[link].host;
+                sources.push((
+                    format!("USB VBUS from `{}`", cx.part_name(host)),
+                    plan.links[link].span,
+                    device,
+                ));
+            }
+        }
+        if sources.len() < 2 {
+            continue;
+        }
+        let names: Vec<&str> = sources.iter().map(|s| s.0.as_str()).collect();
         let mut finding = Finding::new(
             &CONFLICT,
-            cx.pin_span(*undiode[1]),
+            sources[1].1,
             format!("{} all drive one rail", names.join(" and ")),
         )
-        .label(cx.pin_span(*undiode[0]), "first source")
+        .label(sources[0].1, "first source")
         .help("keep one source per rail, or mark sources that cannot back-feed with `or: diode`");
-        for p in &undiode {
-            finding = finding.part(cx.part_name(p.part));
+        for s in &sources {
+            finding = finding.part(cx.part_name(s.2));
         }
         for &net in &node.nets {
             finding = finding.net(cx.net_name(net));
@@ -130,7 +148,8 @@ fn check_unfed(cx: &Context, out: &mut Vec<Finding>) {
                 continue;
             };
             let node = &cx.circuit.nodes[node_id];
-            if !node.supply_outs.is_empty() && !node.is_ground() {
+            let fed = !node.supply_outs.is_empty() || !cx.circuit.vbus[node_id].is_empty();
+            if fed && !node.is_ground() {
                 any_fed = true;
                 continue;
             }

@@ -6,6 +6,7 @@ use crate::graph::MotorFeed;
 use crate::model::{Class, MotorState};
 use crate::units::{show_current, show_voltage};
 use uom::si::electric_current::ampere;
+use uom::si::f64::ElectricCurrent;
 
 pub const STALL: Rule = Rule {
     id: "driver/stall",
@@ -23,57 +24,87 @@ pub const STALL: Rule = Rule {
 };
 
 fn check_stall(cx: &Context, out: &mut Vec<Finding>) {
-    for (motor_id, feed) in cx.circuit.motor_feed.iter().enumerate() {
-        let Some(MotorFeed::Driver { driver, channel }) = *feed else {
-            continue;
-        };
-        let Class::Driver(spec) = &cx.plan.parts[driver].class else {
+    let plan = cx.plan;
+    for (driver_id, driver_part) in plan.parts.iter().enumerate() {
+        let Class::Driver(spec) = &driver_part.class else {
             continue;
         };
         let Some(peak) = spec.channel_peak else {
             continue;
         };
-        let Some((point, stall)) = worst_point(cx.points(), |p| {
-            p.motors[motor_id]
-                .filter(|m| m.state == MotorState::Stall)
-                .map(|m| m.current.get::<ampere>())
-        }) else {
-            continue;
-        };
-        if !exceeds(stall, peak.value.get::<ampere>()) {
-            continue;
-        }
-        let Some(motor) = point.motors[motor_id] else {
-            continue;
-        };
-        let motor_part = &cx.plan.parts[motor_id];
-        let driver_part = &cx.plan.parts[driver];
-        let span = motor_part
-            .pin("a")
-            .and_then(|p| motor_part.pins[p].net_span)
-            .unwrap_or(motor_part.span);
-        out.push(
-            Finding::new(
+        for channel in &spec.channels {
+            let number = channel.number;
+            // Motors in parallel on one channel add up (Kirchhoff's current law).
+            let motors: Vec<usize> = cx
+                .circuit
+                .motor_feed
+                .iter()
+                .enumerate()
+                .filter(|(_, f)| {
+                    **f == Some(MotorFeed::Driver {
+                        driver: driver_id,
+                        channel: number,
+                    })
+                })
+                .map(|(m, _)| m)
+                .collect();
+            let Some(&first) = motors.first() else {
+                continue;
+            };
+            let stalled = |p: &crate::analysis::OperatingPoint| {
+                let any_stalled = motors
+                    .iter()
+                    .any(|&m| p.motors[m].is_some_and(|m| m.state == MotorState::Stall));
+                any_stalled
+                    .then(|| p.channels[driver_id].iter().find(|(n, _)| *n == number))
+                    .flatten()
+                    .map(|(_, i)| i.get::<ampere>())
+            };
+            let Some((point, stall)) = worst_point(cx.points(), stalled) else {
+                continue;
+            };
+            if !exceeds(stall, peak.value.get::<ampere>()) {
+                continue;
+            }
+            let Some(motor) = point.motors[first] else {
+                continue;
+            };
+            let motor_part = &plan.parts[first];
+            let span = motor_part
+                .pin("a")
+                .and_then(|p| motor_part.pins[p].net_span)
+                .unwrap_or(motor_part.span);
+            let who = if motors.len() == 1 {
+                format!("`{}` stalls at", motor_part.name)
+            } else {
+                let names: Vec<String> = motors
+                    .iter()
+                    .map(|&m| format!("`{}`", plan.parts[m].name))
+                    .collect();
+                format!("{} in parallel stall at", names.join(" and "))
+            };
+            let mut finding = Finding::new(
                 &STALL,
                 span,
                 format!(
-                    "`{}` stalls at {} ({} across the winding {}); `{}` channel {channel} peak rating is {}",
-                    motor_part.name,
-                    show_current(motor.current),
+                    "{who} {} ({} across the winding {}); `{}` channel {number} peak rating is {}",
+                    show_current(ElectricCurrent::new::<ampere>(stall)),
                     show_voltage(motor.voltage),
-                    mode_label(cx.plan, point.mode, point.battery),
+                    mode_label(plan, point.mode, point.battery),
                     driver_part.name,
                     show_current(peak.value)
                 ),
             )
             .label(peak.span, "peak rating")
-            .at_point(cx.plan, point)
+            .at_point(plan, point)
             .help("use a driver whose channel peak covers the stall current, or one with current limiting set below its peak")
-            .part(&motor_part.name)
-            .part(&driver_part.name)
             .value("stall_current", stall)
             .value("voltage", motor.voltage.get::<uom::si::electric_potential::volt>())
-            .value("channel_peak", peak.value.get::<ampere>()),
-        );
+            .value("channel_peak", peak.value.get::<ampere>());
+            for &m in &motors {
+                finding = finding.part(&plan.parts[m].name);
+            }
+            out.push(finding.part(&driver_part.name));
+        }
     }
 }

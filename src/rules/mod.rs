@@ -257,3 +257,25 @@ pub fn mode_label(plan: &Plan, mode: ModeId, battery: BatteryState) -> String {
         battery.name()
     )
 }
+
+/// Two voltages for one message, with enough digits that a value just past
+/// its limit never reads as equal to it.
+pub fn show_voltages_apart(
+    value: uom::si::f64::ElectricPotential,
+    limit: uom::si::f64::ElectricPotential,
+) -> (String, String) {
+    use crate::units::show_voltage;
+    use uom::si::electric_potential::volt;
+    let (a, b) = (show_voltage(value), show_voltage(limit));
+    if a != b {
+        return (a, b);
+    }
+    let (va, vb) = (value.get::<volt>(), limit.get::<volt>());
+    for decimals in 2..=6 {
+        let (a, b) = (format!("{va:.decimals$} V"), format!("{vb:.decimals$} V"));
+        if a != b {
+            return (a, b);
+        }
+    }
+    (a, b)
+}

@@ -1,7 +1,9 @@
 //! Regulators that cannot hold their output: input below output + dropout
 //! (linear, buck), or above the output of a boost.
 
-use super::{Context, Finding, Rule, RuleDoc, Severity, mode_label, worst_point};
+use super::{
+    Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label, worst_point,
+};
 use crate::model::{Class, Topology};
 use crate::units::show_voltage;
 use uom::si::electric_potential::volt;
@@ -11,7 +13,7 @@ pub const DROPOUT: Rule = Rule {
     severity: Severity::Warning,
     summary: "a regulator's input falls below output + dropout",
     doc: RuleDoc {
-        what: "In every mode and battery state, whether a linear or buck regulator's input stays at or above its output plus its `dropout`, and whether a boost's input stays below its output.",
+        what: "In every mode and battery state, whether a linear or buck regulator's input stays at or above its nominal output plus its `dropout`, and whether a boost's input stays below its nominal output.",
         why: "Below output + dropout the regulator passes its input through less the dropout: the rail it feeds sags with the battery, and the loads on it may brown out.",
         example: "parts:\n  pack: { use: battery/lipo-2s }            # 6.0 V when empty\n  reg:  { use: regulator/linear-5v-1a }    # dropout 2 V: needs 7 V",
         fix: "parts:\n  pack: { use: battery/lipo-2s }\n  reg:  { use: regulator/buck-5v-3a }",
@@ -26,16 +28,21 @@ fn check_dropout(cx: &Context, out: &mut Vec<Finding>) {
         let Class::Regulator(regulator) = &part.class else {
             continue;
         };
-        // The worst point: the largest shortfall below what regulation needs.
+        // The regulator needs its input at or above its nominal output plus
+        // its dropout (a boost: below its nominal output); the worst point is
+        // the largest shortfall.
+        let needed = regulator.output.nominal + regulator.dropout;
         let Some((point, _)) = worst_point(cx.points(), |p| {
-            let r = p.regulators[part_id]?;
-            if !r.out_of_regulation {
-                return None;
+            let input = p.regulators[part_id]?.input_voltage;
+            match regulator.topology {
+                Topology::Boost => {
+                    exceeds(input.get::<volt>(), regulator.output.nominal.get::<volt>())
+                        .then(|| (input - regulator.output.nominal).get::<volt>())
+                }
+                Topology::BuckBoost => None,
+                _ => falls_below(input.get::<volt>(), needed.get::<volt>())
+                    .then(|| (needed - input).get::<volt>()),
             }
-            Some(match regulator.topology {
-                Topology::Boost => (r.input_voltage - regulator.output.max).get::<volt>(),
-                _ => (regulator.output.min + regulator.dropout - r.input_voltage).get::<volt>(),
-            })
         }) else {
             continue;
         };
@@ -53,7 +60,7 @@ fn check_dropout(cx: &Context, out: &mut Vec<Finding>) {
             _ => format!(
                 "`{}` needs {} at its input to hold {} (dropout {}) but gets {} {at}; its output falls to {}",
                 part.name,
-                show_voltage(regulator.output.nominal + regulator.dropout),
+                show_voltage(needed),
                 show_voltage(regulator.output.nominal),
                 show_voltage(regulator.dropout),
                 show_voltage(r.input_voltage),

@@ -2,7 +2,8 @@
 //! range, over every mode, battery state and regulator tolerance.
 
 use super::{
-    Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label, worst_point,
+    Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label,
+    show_voltages_apart, worst_point,
 };
 use crate::analysis::BatteryState;
 use crate::model::{PinRef, PinRole};
@@ -83,15 +84,14 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
         if let Some(max) = pin.max
             && exceeds(highest, volts(max))
         {
+            let (shown, limit) = show_voltages_apart(highest_v, max);
             out.push(
                 Finding::new(
                     &OVER_MAX,
                     cx.pin_span(pin_ref),
                     format!(
-                        "rail `{rail}` reaches {} {at}; `{}` absolute maximum is {}",
-                        show_voltage(highest_v),
+                        "rail `{rail}` reaches {shown} {at}; `{}` absolute maximum is {limit}",
                         cx.pin_name(pin_ref),
-                        show_voltage(max)
                     ),
                 )
                 .at_point(cx.plan, point)
@@ -106,15 +106,14 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
         if let Some(range) = pin.range
             && exceeds(highest, volts(range.max))
         {
+            let (shown, top) = show_voltages_apart(highest_v, range.max);
             out.push(
                 Finding::new(
                     &OVER_RANGE,
                     cx.pin_span(pin_ref),
                     format!(
-                        "rail `{rail}` reaches {} {at}, above the {}–{} operating range of `{}`",
-                        show_voltage(highest_v),
+                        "rail `{rail}` reaches {shown} {at}, above the {}–{top} operating range of `{}`",
                         show_voltage(range.min),
-                        show_voltage(range.max),
                         cx.pin_name(pin_ref)
                     ),
                 )
@@ -153,14 +152,14 @@ fn check_under(cx: &Context, out: &mut Vec<Finding>) {
         };
         let lowest = -negated;
         let rail = cx.net_name(pin.net.unwrap_or(0)).to_string();
+        let (shown, bottom) =
+            show_voltages_apart(ElectricPotential::new::<volt>(lowest), range.min);
         let mut finding = Finding::new(
             &UNDER_RANGE,
             cx.pin_span(pin_ref),
             format!(
-                "rail `{rail}` falls to {} {}, below the {} minimum of `{}`",
-                show_voltage(ElectricPotential::new::<volt>(lowest)),
+                "rail `{rail}` falls to {shown} {}, below the {bottom} minimum of `{}`",
                 mode_label(cx.plan, point.mode, point.battery),
-                show_voltage(range.min),
                 cx.pin_name(pin_ref)
             ),
         )

@@ -719,9 +719,14 @@ impl Solver<'_> {
         for (part_id, part) in plan.parts.iter().enumerate() {
             let state = load_state(plan, self.mode, part_id);
             for (pin_id, pin) in part.pins.iter().enumerate() {
+                // Only a pin on a fed rail draws: an open or unfed input
+                // carries nothing (its part may be powered another way).
+                let fed = pin.net.is_some_and(|n| point.net_potential[n].is_some());
                 if pin.role == PinRole::SupplyIn {
-                    pin_current[part_id][pin_id] =
-                        pin.draw.map_or(zero_current(), |d| d.in_state(state));
+                    pin_current[part_id][pin_id] = match pin.draw {
+                        Some(d) if fed => d.in_state(state),
+                        _ => zero_current(),
+                    };
                 }
             }
             match &part.class {
@@ -839,9 +844,14 @@ impl Solver<'_> {
             let Some(root) = circuit.root[node_id] else {
                 continue;
             };
+            // The first source on the root net is the one the voltages are
+            // taken from; it carries the node. Others (a conflict, or
+            // diode-joined spares) are charged nothing rather than twice.
+            let mut charged = false;
             for pin in &node.supply_outs {
                 let on_root = plan.parts[pin.part].pins[pin.pin].net == Some(root);
-                pin_current[pin.part][pin.pin] = if on_root {
+                pin_current[pin.part][pin.pin] = if on_root && !charged {
+                    charged = true;
                     net_current[root]
                 } else {
                     zero_current()

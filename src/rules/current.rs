@@ -219,13 +219,8 @@ fn through_path<'a>(
     subject: String,
 ) -> RatedPath<'a> {
     let plan = cx.plan;
-    let circuit = cx.circuit;
-    let pins = &plan.parts[part].pins;
     // The net on the far side of this part, seen from the source.
-    let downstream = [pins[a].net, pins[b].net].into_iter().flatten().find(|&n| {
-        circuit.parent[n]
-            .is_some_and(|p| p.part == part && (p.downstream_pin == a || p.downstream_pin == b))
-    });
+    let downstream = cx.downstream_net(part, a, b);
     let span = if rating.span.source == plan.parts[part].span.source {
         rating.span
     } else {

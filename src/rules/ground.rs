@@ -132,3 +132,19 @@ fn check_not_shared(cx: &Context, out: &mut Vec<Finding>) {
         out.push(finding);
     }
 }
+
+/// STUB: to be written with the wire rules.
+pub const OFFSET: Rule = Rule {
+    id: "ground/offset",
+    severity: Severity::Warning,
+    summary: "return current through a shared ground wire shifts a logic receiver's ground by more than half the link's noise margin",
+    doc: RuleDoc {
+        what: "",
+        why: "",
+        example: "",
+        fix: "",
+        references: "",
+    },
+    needs_operating_point: true,
+    check: |_, _| {},
+};

@@ -7,12 +7,18 @@
 //! catalogue test walks it.
 
 mod analysis;
+mod battery;
 mod current;
 mod driver;
+mod fuse;
 mod ground;
+mod logic;
 mod power;
 mod regulator;
+mod safety;
+mod thermal;
 mod voltage;
+mod wire;
 
 use crate::analysis::{Analysis, BatteryState, ModeId, OperatingPoint};
 use crate::graph::Circuit;
@@ -80,8 +86,26 @@ pub static RULES: &[Rule] = &[
     current::OVER_RATING,
     current::DERATING,
     driver::STALL,
+    thermal::OVERHEAT,
+    thermal::UNRATED,
+    battery::DISCHARGE,
+    battery::NO_CUTOFF,
     ground::FLOATING,
     ground::NOT_SHARED,
+    logic::OVERVOLTAGE,
+    logic::HIGH_MARGIN,
+    logic::LOW_MARGIN,
+    logic::CONTENTION,
+    logic::UNDRIVEN,
+    fuse::MISSING,
+    fuse::UNDERSIZED,
+    fuse::OVERSIZED,
+    fuse::VOLTAGE,
+    fuse::NUISANCE,
+    wire::AMPACITY,
+    wire::DROP,
+    safety::NO_STOP,
+    ground::OFFSET,
     analysis::NO_CONVERGENCE,
 ];
 
@@ -121,6 +145,18 @@ impl Context<'_> {
 
     pub fn part_name(&self, part: PartId) -> &str {
         &self.plan.parts[part].name
+    }
+
+    /// The net on the far side (seen from the source) of a conducting pin
+    /// pair `a`/`b` of a fuse, switch or connector: its current is the
+    /// current through that pair. `None` when the pair carries no current
+    /// in the tree (an open end, or a parallel path).
+    pub fn downstream_net(&self, part: PartId, a: usize, b: usize) -> Option<NetId> {
+        let pins = &self.plan.parts[part].pins;
+        [pins[a].net, pins[b].net].into_iter().flatten().find(|&n| {
+            self.circuit.parent[n]
+                .is_some_and(|p| p.part == part && (p.downstream_pin == a || p.downstream_pin == b))
+        })
     }
 }
 

@@ -44,6 +44,28 @@ pub struct InputFailure {
     pub errors: Vec<InputError>,
 }
 
+/// Turns a file's bytes into text; a file that is not UTF-8 is an input
+/// problem at the first bad byte.
+pub fn decode(file_name: &str, bytes: Vec<u8>) -> Result<String, InputFailure> {
+    String::from_utf8(bytes).map_err(|e| {
+        let at = e.utf8_error().valid_up_to();
+        let mut sources = Sources::default();
+        let text = String::from_utf8_lossy(e.as_bytes()).into_owned();
+        let plan_source = sources.add(file_name, text);
+        InputFailure {
+            sources,
+            plan_source,
+            errors: vec![InputError {
+                message: "the file is not UTF-8 text".into(),
+                span: syntax::Span::new(plan_source, at, at + '\u{FFFD}'.len_utf8()),
+                hint: Some(
+                    "save the plan as UTF-8 (most editors offer it under \"encoding\")".into(),
+                ),
+            }],
+        }
+    })
+}
+
 /// Reads a plan from text, without checking it.
 pub fn read(
     file_name: &str,

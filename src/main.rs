@@ -95,38 +95,31 @@ fn style() -> HumanStyle {
 /// Reads and checks the plan; on input errors prints them and returns the
 /// exit code to end with.
 fn load(args: &PlanArgs) -> Result<railcheck::Checked, ExitCode> {
-    let text = match std::fs::read(&args.file) {
-        Ok(bytes) => match String::from_utf8(bytes) {
-            Ok(t) => t,
-            Err(e) => {
-                return Err(fail(&format!(
-                    "{} is not UTF-8 text (invalid byte at offset {})",
-                    args.file.display(),
-                    e.utf8_error().valid_up_to()
-                )));
-            }
-        },
+    let bytes = match std::fs::read(&args.file) {
+        Ok(bytes) => bytes,
         Err(e) => return Err(fail(&format!("cannot read {}: {e}", args.file.display()))),
     };
+    let name = args.file.display().to_string();
+    let text = railcheck::decode(&name, bytes).map_err(|failure| report_input(args, &failure))?;
     let mut library = Library::builtin();
     if let Some(dir) = &args.parts
         && let Err(message) = add_user_parts(&mut library, dir)
     {
         return Err(fail(&message));
     }
-    let name = args.file.display().to_string();
-    railcheck::check(&name, &text, &library).map_err(|failure| {
-        let out = match args.format {
-            Format::Json => {
-                report::input_errors_json(&failure.sources, failure.plan_source, &failure.errors)
-            }
-            Format::Human => {
-                report::render_input_errors(&failure.sources, &failure.errors, style())
-            }
-        };
-        emit(&out);
-        ExitCode::from(EXIT_INPUT)
-    })
+    railcheck::check(&name, &text, &library).map_err(|failure| report_input(args, &failure))
+}
+
+/// Prints input problems in the chosen format; the run ends with exit code 2.
+fn report_input(args: &PlanArgs, failure: &railcheck::InputFailure) -> ExitCode {
+    let out = match args.format {
+        Format::Json => {
+            report::input_errors_json(&failure.sources, failure.plan_source, &failure.errors)
+        }
+        Format::Human => report::render_input_errors(&failure.sources, &failure.errors, style()),
+    };
+    emit(&out);
+    ExitCode::from(EXIT_INPUT)
 }
 
 fn check(args: &PlanArgs, strict: bool) -> ExitCode {

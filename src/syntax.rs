@@ -151,15 +151,23 @@ pub struct SyntaxError {
 /// Node budget for the YAML reader. Generated plans with thousands of parts stay
 /// well inside it; hostile input is refused quickly instead of exhausting memory.
 const MAX_NODES: usize = 2_000_000;
+/// Nesting depth. A plan needs about eight levels (parts → part → pins →
+/// pin → draw); the reader recurses once per level, so the limit keeps deep
+/// hostile nesting far from any thread's stack limit.
+const MAX_DEPTH: usize = 24;
 
 /// Parses one YAML document into a spanned tree.
 pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
     let mut budget = serde_saphyr::Budget::default();
     budget.max_nodes = MAX_NODES;
     budget.max_events = 4 * MAX_NODES;
+    budget.max_depth = MAX_DEPTH;
     let mut options = serde_saphyr::Options::default();
     options.budget = Some(budget);
     options.with_snippet = false;
+    // Numbers too large for a float, `.inf` and `.nan` stay text: the model
+    // then reports them as values, with the rest of the plan still read.
+    options.non_finite_float_policy = serde_saphyr::NonFiniteFloatPolicy::AsString;
     match serde_saphyr::from_str_with_options::<Spanned<RawNode>>(text, options) {
         Ok(raw) => Ok(convert(source, text, raw)),
         Err(error) => {
@@ -167,7 +175,7 @@ pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
                 .location()
                 .map(|loc| offset_of(text, &loc))
                 .unwrap_or(0);
-            let message = first_line_without_location(&error.to_string());
+            let message = plain_message(&error.to_string());
             let end = next_char_end(text, offset);
             Err(SyntaxError {
                 message,
@@ -184,19 +192,40 @@ fn next_char_end(text: &str, offset: usize) -> usize {
         .map_or(offset, |c| offset + c.len_utf8())
 }
 
-/// serde-saphyr prefixes its messages with "error: line L column C:"; the
-/// report shows the position itself.
-fn first_line_without_location(message: &str) -> String {
+/// The reader's message in the plan's terms: no position (the report shows
+/// it), no names of the reader's own settings, at most one short line.
+fn plain_message(message: &str) -> String {
     let line = message.lines().next().unwrap_or(message).trim();
     let line = line.strip_prefix("error:").unwrap_or(line).trim();
     let line = match line.find(": ") {
         Some(i) if line[..i].starts_with("line ") => &line[i + 2..],
         _ => line,
     };
-    if line.is_empty() {
+    let line = match line.rfind(" at line ") {
+        Some(i) => &line[..i],
+        None => line,
+    };
+    let known = if let Some(rest) = line.strip_prefix("duplicate mapping key: ") {
+        let key = rest.split(',').next().unwrap_or(rest).trim();
+        format!("`{key}` is given twice in the same mapping; keep one of them")
+    } else if line.contains("multiple YAML documents") || line.contains("from_str_multiple") {
+        "the file holds more than one YAML document (`---`); keep one plan per file".to_string()
+    } else if line.contains("budget breached") || line.contains("Depth") {
+        "the file is nested too deeply or is too large to be a wiring plan".to_string()
+    } else if line.contains("recursive") || line.contains("alias") {
+        "an alias (`*name`) is used in a way a plan cannot hold".to_string()
+    } else if line.is_empty() {
         "the file is not valid YAML".to_string()
     } else {
         line.to_string()
+    };
+    // A pathological scalar must not turn into a megabyte-long message.
+    const LIMIT: usize = 200;
+    if known.chars().count() > LIMIT {
+        let cut: String = known.chars().take(LIMIT).collect();
+        format!("{cut}…")
+    } else {
+        known
     }
 }
 

@@ -1192,7 +1192,11 @@ fn tolerance_band(
     tolerance_expect.accepted.push("%");
     tolerance_expect.wanted = "a tolerance";
     tolerance_expect.summary = "`%`, or a unit of the value itself";
-    let tolerance_term = lex_term(text, tolerance.clone(), &tolerance_expect)?;
+    let tolerance_term =
+        lex_term(text, tolerance.clone(), &tolerance_expect).map_err(|mut error| {
+            error.hint = format!("write a tolerance, like `{nominal_text} ±2%`");
+            error
+        })?;
     let Some(unit_span) = tolerance_term.unit.clone() else {
         let n = excerpt(tolerance_term.number_text);
         return Err(problem(

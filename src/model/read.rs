@@ -8,7 +8,7 @@
 use super::*;
 use crate::syntax::{Node, NodeKind, SourceId, Sources, Span};
 use crate::units::{self, UnitError};
-use std::collections::{BTreeMap, HashMap};
+use std::collections::{BTreeMap, HashMap, HashSet};
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
 use uom::si::electrical_resistance::ohm;
@@ -48,6 +48,8 @@ pub fn read_plan(
         library,
         sources,
         plan_source: root.span.source,
+        refused_parts: HashSet::new(),
+        refused_pins: HashSet::new(),
     };
     let plan = reader.plan(root);
     if reader.errors.is_empty() {
@@ -87,6 +89,11 @@ struct Reader<'a> {
     library: &'a Library,
     sources: &'a mut Sources,
     plan_source: SourceId,
+    /// Parts declared but refused for an error already reported: later uses
+    /// of their names are not reported again.
+    refused_parts: HashSet<String>,
+    /// Pins refused the same way, as (part, pin).
+    refused_pins: HashSet<(String, String)>,
 }
 
 /// A logic pin's `ref`, resolved once all pins of the part are known.
@@ -166,9 +173,14 @@ impl Reader<'_> {
                         let Some(name) = self.name(key, "part") else {
                             continue;
                         };
-                        if let Some(part) = self.part(name.clone(), key.span, body) {
-                            part_index.insert(name, parts.len());
-                            parts.push(part);
+                        match self.part(name.clone(), key.span, body) {
+                            Some(part) => {
+                                part_index.insert(name, parts.len());
+                                parts.push(part);
+                            }
+                            None => {
+                                self.refused_parts.insert(name);
+                            }
                         }
                     }
                 }
@@ -220,7 +232,11 @@ impl Reader<'_> {
         };
         for (key, _) in entries {
             let Some(k) = key.as_scalar() else {
-                self.error(key.span, format!("a key in {context} must be a name"), None);
+                self.error(
+                    key.span,
+                    format!("a key in {context} must be a name"),
+                    Some("write keys as plain names, e.g. `parts:`".into()),
+                );
                 continue;
             };
             if k == "notes" || allowed.contains(&k) {
@@ -457,9 +473,29 @@ impl Reader<'_> {
             }
             let mut merged = library_root;
             if let Some(with) = body.get("with")
-                && self.mapping(with, "`with:`").is_some()
+                && let Some(entries) = self.mapping(with, "`with:`")
             {
-                merge_part(&mut merged, with);
+                let (class_keys, fields): (Vec<_>, Vec<_>) = entries
+                    .iter()
+                    .cloned()
+                    .partition(|(k, _)| k.as_scalar() == Some("class"));
+                for (key, _) in &class_keys {
+                    self.error(
+                        key.span,
+                        format!("`with:` cannot change the class of library part `{id}`"),
+                        Some(
+                            "write the part inline with `class:` and `pins:` instead of `use:`"
+                                .into(),
+                        ),
+                    );
+                }
+                merge_part(
+                    &mut merged,
+                    &Node {
+                        kind: NodeKind::Map(fields),
+                        span: with.span,
+                    },
+                );
             }
             let mut overrides = Vec::new();
             for key in ["pins", "ports"] {
@@ -532,18 +568,21 @@ impl Reader<'_> {
                 let default_role = existing.map(|i| pins[i].role);
                 let span = self.in_plan(key.span, name_span);
                 let index = existing.unwrap_or(pins.len());
-                if let Some(pin) = self.pin(
+                match self.pin(
                     &name,
-                    pin_name,
+                    pin_name.clone(),
                     span,
                     pin_body,
                     default_role,
                     index,
                     &mut pending,
                 ) {
-                    match existing {
+                    Some(pin) => match existing {
                         Some(i) => pins[i] = pin,
                         None => pins.push(pin),
+                    },
+                    None => {
+                        self.refused_pins.insert((name.clone(), pin_name));
                     }
                 }
             }
@@ -601,7 +640,14 @@ impl Reader<'_> {
         let role = match body.get("role") {
             Some(n) => {
                 let roles: Vec<(&str, PinRole)> = PinRole::WRITTEN.to_vec();
-                self.choice(n, &roles, "pin role")?
+                match self.choice(n, &roles, "pin role") {
+                    Some(role) => role,
+                    None => {
+                        // Still read the values, so their own mistakes show.
+                        self.pin_values(body);
+                        return None;
+                    }
+                }
             }
             None => match default_role {
                 Some(r) => r,
@@ -669,6 +715,20 @@ impl Reader<'_> {
         Some(pin)
     }
 
+    /// Reads whatever values a pin gives, for their own errors only.
+    fn pin_values(&mut self, body: &Node) {
+        for key in ["range", "voltage"] {
+            let _ = self.quantity(body, key, units::voltage_band);
+        }
+        for key in ["max", "voh", "vol", "vih", "vil", "tolerant"] {
+            let _ = self.quantity(body, key, units::voltage);
+        }
+        let _ = self.quantity(body, "current", units::current);
+        if let Some(d) = body.get("draw") {
+            let _ = self.draw(d);
+        }
+    }
+
     fn draw(&mut self, node: &Node) -> Option<Draw> {
         if node.as_scalar().is_some() {
             let i = self.scalar_quantity(node, units::current)?;
@@ -686,6 +746,10 @@ impl Reader<'_> {
         // States left out take the next one given (contract §3).
         let typical = typical.or(peak);
         let Some(typical) = typical else {
+            if node.get("typical").is_some() || node.get("peak").is_some() {
+                // Already reported as a bad value.
+                return None;
+            }
             self.error(
                 node.span,
                 "`draw:` needs at least `typical` or `peak`",
@@ -784,8 +848,10 @@ impl Reader<'_> {
         let what = format!("{class} `{part}`");
         Some(match class {
             "battery" => {
+                // Every field is read before giving up, so one mistake does
+                // not hide the next.
                 let chemistry = match body.get("chemistry") {
-                    Some(n) => self.choice(n, &Chemistry::ALL, "chemistry")?,
+                    Some(n) => self.choice(n, &Chemistry::ALL, "chemistry"),
                     None => {
                         self.error(
                             at,
@@ -795,37 +861,43 @@ impl Reader<'_> {
                                     .into(),
                             ),
                         );
-                        return None;
+                        None
                     }
                 };
                 let cells = match body.get("cells") {
-                    Some(n) => self.count(n)?,
-                    None if body.get("voltage").is_some() => 1,
+                    Some(n) => self.count(n),
+                    None if body.get("voltage").is_some() => Some(1),
                     None => {
                         self.error(
                             at,
                             format!("{what} needs `cells`"),
                             Some("add `cells: 3` (the number of cells in series)".into()),
                         );
-                        return None;
+                        None
                     }
                 };
+                let capacity = self.rated(body, "capacity", units::charge, at);
+                let max_discharge = self.rated(body, "max_discharge", units::discharge_rate, at);
+                let internal_resistance = self
+                    .quantity(body, "internal_resistance", units::resistance)
+                    .unwrap_or(ElectricalResistance::new::<ohm>(0.0));
+                let cutoff = body
+                    .get("cutoff")
+                    .and_then(|n| self.boolean(n))
+                    .unwrap_or(false);
+                let voltage = self.quantity(body, "voltage", units::voltage_band);
+                let usable = self
+                    .quantity(body, "usable", units::share)
+                    .unwrap_or(Ratio::new::<ratio>(1.0));
                 Class::Battery(Battery {
-                    chemistry,
-                    cells,
-                    capacity: self.rated(body, "capacity", units::charge, at),
-                    max_discharge: self.rated(body, "max_discharge", units::discharge_rate, at),
-                    internal_resistance: self
-                        .quantity(body, "internal_resistance", units::resistance)
-                        .unwrap_or(ElectricalResistance::new::<ohm>(0.0)),
-                    cutoff: body
-                        .get("cutoff")
-                        .and_then(|n| self.boolean(n))
-                        .unwrap_or(false),
-                    voltage: self.quantity(body, "voltage", units::voltage_band),
-                    usable: self
-                        .quantity(body, "usable", units::share)
-                        .unwrap_or(Ratio::new::<ratio>(1.0)),
+                    chemistry: chemistry?,
+                    cells: cells?,
+                    capacity,
+                    max_discharge,
+                    internal_resistance,
+                    cutoff,
+                    voltage,
+                    usable,
                 })
             }
             "fuse" => Class::Fuse(Fuse {
@@ -908,6 +980,8 @@ impl Reader<'_> {
     }
 
     fn regulator(&mut self, what: &str, at: Span, body: &Node, pins: &mut [Pin]) -> Option<Class> {
+        // Every field is read before giving up, so one mistake does not hide
+        // the next.
         let topology = match body.get("topology") {
             Some(n) => self.choice(
                 n,
@@ -919,17 +993,17 @@ impl Reader<'_> {
                     ("buck-boost", Topology::BuckBoost),
                 ],
                 "regulator topology",
-            )?,
+            ),
             None => {
                 self.error(
                     at,
                     format!("{what} needs `topology`"),
                     Some("add `topology: buck` (or linear, boost, buck-boost)".into()),
                 );
-                return None;
+                None
             }
         };
-        let output = self.required(body, "output", units::voltage_band, what, "5 V ±2%", at)?;
+        let output = self.required(body, "output", units::voltage_band, what, "5 V ±2%", at);
         let input = self.quantity(body, "input", units::voltage_band);
         let current = self.rated(body, "current", units::current, at);
         let efficiency_written = self.quantity(body, "efficiency", units::share);
@@ -943,6 +1017,17 @@ impl Reader<'_> {
                 Some("write e.g. `efficiency: 90 %`".into()),
             );
         }
+        let dropout = self
+            .quantity(body, "dropout", units::voltage)
+            .unwrap_or(ElectricPotential::new::<volt>(0.0));
+        let quiescent = self
+            .quantity(body, "quiescent", units::current)
+            .unwrap_or(ElectricCurrent::new::<ampere>(0.0));
+        let theta_ja = self.quantity(body, "theta_ja", units::thermal_resistance);
+        let tj_max = self.quantity(body, "tj_max", units::temperature).unwrap_or(
+            ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_TJ_MAX_DEGC),
+        );
+        let (topology, output) = (topology?, output?);
         let efficiency = match (topology, efficiency_written) {
             (_, Some(e)) if e.get::<ratio>() > 0.0 => e,
             (Topology::Linear, _) => Ratio::new::<ratio>(1.0),
@@ -952,18 +1037,12 @@ impl Reader<'_> {
             topology,
             output,
             current,
-            dropout: self
-                .quantity(body, "dropout", units::voltage)
-                .unwrap_or(ElectricPotential::new::<volt>(0.0)),
+            dropout,
             efficiency,
             efficiency_assumed: topology.is_switching() && efficiency_written.is_none(),
-            quiescent: self
-                .quantity(body, "quiescent", units::current)
-                .unwrap_or(ElectricCurrent::new::<ampere>(0.0)),
-            theta_ja: self.quantity(body, "theta_ja", units::thermal_resistance),
-            tj_max: self.quantity(body, "tj_max", units::temperature).unwrap_or(
-                ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_TJ_MAX_DEGC),
-            ),
+            quiescent,
+            theta_ja,
+            tj_max,
         };
         for pin in pins.iter_mut() {
             match pin.name.as_str() {
@@ -1119,13 +1198,22 @@ impl Reader<'_> {
             );
             return None;
         };
+        let offset = self.scalar_offset(node);
+        if self.refused_parts.contains(part_name)
+            || self
+                .refused_pins
+                .contains(&(part_name.to_string(), pin_name.to_string()))
+        {
+            // Its own error is already reported.
+            return None;
+        }
         let Some(&part) = index.get(part_name) else {
             let hint = match closest(part_name, index.keys().map(String::as_str)) {
                 Some(s) => format!("did you mean `{s}`?"),
                 None => "declare it under `parts:`".into(),
             };
             self.error(
-                node.span.within(0..part_name.len()),
+                node.span.within(offset..offset + part_name.len()),
                 format!("unknown part `{part_name}`"),
                 Some(hint),
             );
@@ -1137,7 +1225,6 @@ impl Reader<'_> {
                 Some(s) => format!("did you mean `{part_name}.{s}`?"),
                 None => format!("pins of `{part_name}`: {}", list(&names)),
             };
-            let offset = self.scalar_offset(node);
             self.error(
                 node.span
                     .within(offset + part_name.len() + 1..offset + text.len()),
@@ -1284,7 +1371,7 @@ impl Reader<'_> {
                 self.error(
                     item.span,
                     "a link needs `usb: [host.port, device.port]`",
-                    None,
+                    Some("write `{ usb: [sbc.usb1, mcu.usb] }`".into()),
                 );
                 continue;
             };
@@ -1311,8 +1398,15 @@ impl Reader<'_> {
                     );
                     continue;
                 };
+                if self.refused_parts.contains(part_name) {
+                    continue;
+                }
                 let Some(&part) = index.get(part_name) else {
-                    self.error(end.span, format!("unknown part `{part_name}`"), None);
+                    let hint = match closest(part_name, index.keys().map(String::as_str)) {
+                        Some(s) => format!("did you mean `{s}`?"),
+                        None => "declare it under `parts:`".into(),
+                    };
+                    self.error(end.span, format!("unknown part `{part_name}`"), Some(hint));
                     continue;
                 };
                 let Some(port) = parts[part].ports.iter().position(|p| p.name == port_name) else {
@@ -1357,7 +1451,10 @@ impl Reader<'_> {
                 _ => self.error(
                     item.span,
                     "a USB link joins a `usb-host` port to a `usb-device` port",
-                    None,
+                    Some(
+                        "link a host port (`kind: usb-host`) to a device port (`kind: usb-device`), e.g. `usb: [sbc.usb1, mcu.usb]`"
+                            .into(),
+                    ),
                 ),
             }
         }
@@ -1391,10 +1488,18 @@ impl Reader<'_> {
             };
             for (part_node, state_node) in states {
                 let part_name = part_node.as_scalar().unwrap_or("");
+                if self.refused_parts.contains(part_name) {
+                    continue;
+                }
                 let Some(&part) = index.get(part_name) else {
                     let hint = closest(part_name, index.keys().map(String::as_str))
-                        .map(|s| format!("did you mean `{s}`?"));
-                    self.error(part_node.span, format!("unknown part `{part_name}`"), hint);
+                        .map(|s| format!("did you mean `{s}`?"))
+                        .unwrap_or_else(|| "name a part declared under `parts:`".into());
+                    self.error(
+                        part_node.span,
+                        format!("unknown part `{part_name}`"),
+                        Some(hint),
+                    );
                     continue;
                 };
                 let state = if matches!(parts[part].class, Class::Motor(_)) {
@@ -1432,6 +1537,7 @@ impl Reader<'_> {
         let Some(entries) = self.mapping(node, "`profile:`") else {
             return shares;
         };
+        let mut complete = true;
         for (key, value) in entries {
             let name = key.as_scalar().unwrap_or("").to_string();
             if name != "typical" && name != "worst" && !modes.iter().any(|m| m.name == name) {
@@ -1441,18 +1547,22 @@ impl Reader<'_> {
                     .map(|s| format!("did you mean `{s}`?"))
                     .unwrap_or_else(|| format!("modes: {}", list(&names)));
                 self.error(key.span, format!("unknown mode `{name}`"), Some(hint));
+                complete = false;
                 continue;
             }
-            if let Some(share) = self.scalar_quantity(value, units::share) {
-                shares.push(ProfileShare {
+            match self.scalar_quantity(value, units::share) {
+                Some(share) => shares.push(ProfileShare {
                     mode: name,
                     share,
                     span: key.span,
-                });
+                }),
+                None => complete = false,
             }
         }
+        // A share already refused would make the sum look wrong: check the
+        // sum only when every share was read.
         let total: f64 = shares.iter().map(|s| s.share.get::<ratio>()).sum();
-        if !shares.is_empty() && (total - 1.0).abs() > 0.001 {
+        if complete && !shares.is_empty() && (total - 1.0).abs() > 0.001 {
             self.error(
                 node.span,
                 format!("the profile adds up to {:.1} %, not 100 %", total * 100.0),
@@ -1633,19 +1743,31 @@ fn closest<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> Option<
         .map(|(_, c)| c)
 }
 
+/// Edit distance where swapping two neighbouring letters counts as one edit
+/// (optimal string alignment), so `nest` is one step from `nets`.
 fn edit_distance(a: &str, b: &str) -> usize {
     let a: Vec<char> = a.chars().collect();
     let b: Vec<char> = b.chars().collect();
-    let mut previous: Vec<usize> = (0..=b.len()).collect();
-    for (i, ca) in a.iter().enumerate() {
-        let mut current = vec![i + 1];
-        for (j, cb) in b.iter().enumerate() {
-            let substitution = previous[j] + usize::from(ca != cb);
-            current.push(substitution.min(previous[j + 1] + 1).min(current[j] + 1));
-        }
-        previous = current;
+    let mut d = vec![vec![0usize; b.len() + 1]; a.len() + 1];
+    for (i, row) in d.iter_mut().enumerate() {
+        row[0] = i;
     }
-    previous[b.len()]
+    for (j, cell) in d[0].iter_mut().enumerate() {
+        *cell = j;
+    }
+    for i in 1..=a.len() {
+        for j in 1..=b.len() {
+            let cost = usize::from(a[i - 1] != b[j - 1]);
+            let mut best = (d[i - 1][j] + 1)
+                .min(d[i][j - 1] + 1)
+                .min(d[i - 1][j - 1] + cost);
+            if i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] {
+                best = best.min(d[i - 2][j - 2] + 1);
+            }
+            d[i][j] = best;
+        }
+    }
+    d[a.len()][b.len()]
 }
 
 #[cfg(test)]

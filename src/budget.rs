@@ -6,8 +6,7 @@
 
 use crate::Checked;
 use crate::analysis::{BatteryState, ModeId, OperatingPoint, battery_voltage};
-use crate::model::{Chemistry, Class, PartId, PinRef};
-use crate::units::DischargeRate;
+use crate::model::{Chemistry, Class, PinRef};
 use uom::si::electric_charge::ampere_hour;
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
@@ -76,20 +75,6 @@ pub struct Runtime {
     pub time: Time,
     /// How it was estimated, for the reader (e.g. Peukert's law and its exponent).
     pub method: String,
-}
-
-/// Where a battery's `max_discharge` lands in amperes.
-pub fn max_discharge_current(checked: &Checked, part: PartId) -> Option<ElectricCurrent> {
-    let Class::Battery(b) = &checked.plan.parts[part].class else {
-        return None;
-    };
-    match b.max_discharge?.value {
-        DischargeRate::Current(i) => Some(i),
-        // C-rate: I = C-rate × capacity per hour (IEC "It" = Cn / 1 h).
-        DischargeRate::CRate(c) => b
-            .capacity
-            .map(|cap| ElectricCurrent::new::<ampere>(c * cap.value.get::<ampere_hour>())),
-    }
 }
 
 fn amps(i: ElectricCurrent) -> f64 {
@@ -171,7 +156,7 @@ pub fn budget(checked: &Checked) -> Budget {
         };
         let rating = match &plan.parts[part].class {
             Class::Regulator(r) => r.current.map(|c| c.value),
-            Class::Battery(_) => max_discharge_current(checked, part),
+            Class::Battery(b) => b.max_discharge_current(),
             _ => plan.parts[part].pins[pin].current,
         };
         let conversion_loss = highest(&points, typical(BatteryState::Nominal), |p| {
@@ -255,7 +240,7 @@ pub fn budget(checked: &Checked) -> Budget {
             energy: capacity.map(|c| window[1] * c),
             typical_current,
             peak_current,
-            max_discharge: max_discharge_current(checked, part_id),
+            max_discharge: battery.max_discharge_current(),
             average_current,
             usable: battery.usable,
             runtime,

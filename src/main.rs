@@ -128,9 +128,12 @@ fn check(args: &PlanArgs, strict: bool) -> ExitCode {
         Err(code) => return code,
     };
     let out = match args.format {
-        Format::Json => {
-            report::findings_json(&checked.sources, checked.plan_source, &checked.findings)
-        }
+        Format::Json => report::findings_json(
+            &checked.sources,
+            checked.plan_source,
+            &checked.findings,
+            &railcheck::safety::cautions(&checked.plan),
+        ),
         Format::Human => report::render_findings(
             &checked.sources,
             checked.plan_source,

@@ -174,8 +174,19 @@ fn assert_findings_document(document: &Value, file: &str, user_modes: &[&str]) {
         .keys()
         .map(String::as_str)
         .collect();
-    assert_eq!(top, BTreeSet::from(["file", "summary", "findings"]));
+    // Contract §8's three keys, plus the safety cautions railcheck adds.
+    assert_eq!(
+        top,
+        BTreeSet::from(["file", "summary", "findings", "cautions"])
+    );
     assert_eq!(document["file"], file);
+    let cautions = document["cautions"].as_array().expect("`cautions` list");
+    assert!(
+        cautions
+            .iter()
+            .any(|c| c.as_str().is_some_and(|c| c.contains("qualified practice"))),
+        "{cautions:?}"
+    );
 
     let summary = document["summary"].as_object().expect("`summary` object");
     let summary_keys: BTreeSet<&str> = summary.keys().map(String::as_str).collect();

@@ -340,6 +340,21 @@ pub struct Battery {
     pub usable: Ratio,
 }
 
+impl Battery {
+    /// `max_discharge` in amperes: as written, or C-rate × capacity per hour
+    /// (the IEC "It" reference current, reference sheet §6).
+    pub fn max_discharge_current(&self) -> Option<ElectricCurrent> {
+        match self.max_discharge?.value {
+            DischargeRate::Current(i) => Some(i),
+            DischargeRate::CRate(c) => self.capacity.map(|cap| {
+                ElectricCurrent::new::<uom::si::electric_current::ampere>(
+                    c * cap.value.get::<uom::si::electric_charge::ampere_hour>(),
+                )
+            }),
+        }
+    }
+}
+
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum FuseSpeed {
     Fast,

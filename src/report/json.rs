@@ -24,7 +24,14 @@ fn rounded(value: f64) -> Value {
     serde_json::Number::from_f64(r).map_or(Value::Null, Value::Number)
 }
 
-pub fn findings_json(sources: &Sources, plan_source: SourceId, findings: &[Finding]) -> String {
+/// The findings document of contract §8, plus the safety `cautions` that
+/// apply to the plan (an added key).
+pub fn findings_json(
+    sources: &Sources,
+    plan_source: SourceId,
+    findings: &[Finding],
+    cautions: &[&str],
+) -> String {
     let summary = Summary::of(findings);
     let items: Vec<Value> = findings
         .iter()
@@ -64,6 +71,7 @@ pub fn findings_json(sources: &Sources, plan_source: SourceId, findings: &[Findi
             "notes": summary.notes,
         },
         "findings": items,
+        "cautions": cautions,
     });
     pretty(&document)
 }

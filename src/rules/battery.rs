@@ -1,33 +1,122 @@
-//! Batteries: discharge current against rating, lithium packs without cut-off.
+//! Batteries: the peak current drawn from each pack against its maximum
+//! discharge rating, and lithium packs with no low-voltage cut-off.
 //!
-//! STUB: rules registered, checks and documentation to be written.
+//! Not for the pack's voltage window (that is `analysis`) nor for runtime
+//! (that is `budget`).
 
-use super::{Context, Finding, Rule, RuleDoc, Severity};
-
-const TODO_DOC: RuleDoc = RuleDoc {
-    what: "",
-    why: "",
-    example: "",
-    fix: "",
-    references: "",
-};
-
-fn not_yet(_: &Context, _: &mut Vec<Finding>) {}
+use super::{Context, Finding, Rule, RuleDoc, Severity, exceeds, mode_label, worst_point};
+use crate::model::Class;
+use crate::units::{DischargeRate, show_charge, show_current};
+use uom::si::electric_charge::ampere_hour;
+use uom::si::electric_current::ampere;
+use uom::si::f64::ElectricCurrent;
 
 pub const DISCHARGE: Rule = Rule {
     id: "battery/discharge",
     severity: Severity::Error,
     summary: "total peak current above the battery's maximum discharge",
-    doc: TODO_DOC,
+    doc: RuleDoc {
+        what: "The total current out of each battery at its highest over every mode and battery state, `worst` included (every load at peak, every motor stalled), against its `max_discharge`: a current, or a C-rate times `capacity`.",
+        why: "A pack driven past its discharge rating sags hard, heats, and ages fast; a lithium pack can swell or vent. The sag can also brown out the electronics just as the motors start.",
+        example: "parts:\n  pack: { use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 25C } }   # 55 A; the robot's stall peak is 60 A",
+        fix: "parts:\n  pack: { use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 35C } }   # 77 A",
+        references: "C-rate: I = C-rate × rated capacity (IEC 61434 'It'; reference sheet §6 and worked example W13: 2.2 Ah at 25C gives 55.0 A); discharge within the labelled rating, common practice (reference sheet §10); peak current per the format contract §6.",
+    },
     needs_operating_point: true,
-    check: not_yet,
+    check: check_discharge,
 };
 
 pub const NO_CUTOFF: Rule = Rule {
     id: "battery/no-cutoff",
     severity: Severity::Warning,
     summary: "lithium battery with no low-voltage cutoff",
-    doc: TODO_DOC,
-    needs_operating_point: true,
-    check: not_yet,
+    doc: RuleDoc {
+        what: "Whether each lithium battery (`lipo`, `li-ion`, `lifepo4`) declares `cutoff: true`: a low-voltage cut-off or protection board that disconnects it before its cells are over-discharged.",
+        why: "A robot left running drains its pack below the cells' discharge floor; an over-discharged lithium cell is damaged, and recharging it risks internal shorts, swelling and fire. The loads keep drawing long after the robot has stopped moving.",
+        example: "parts:\n  pack: { use: battery/lipo-3s }   # cutoff: false",
+        fix: "parts:\n  pack: { use: battery/lipo-3s, with: { cutoff: true } }   # with a cut-off board fitted",
+        references: "Recommended discharge cut-off 3.0 V per Li-ion/LiPo cell and 2.5 V per LiFePO4 cell, with the cells' absolute floor below that (Linden & Reddy, Handbook of Batteries; reference sheet §6).",
+    },
+    needs_operating_point: false,
+    check: check_no_cutoff,
 };
+
+fn check_discharge(cx: &Context, out: &mut Vec<Finding>) {
+    let plan = cx.plan;
+    for (part_id, part) in plan.parts.iter().enumerate() {
+        let Class::Battery(battery) = &part.class else {
+            continue;
+        };
+        let (Some(rate), Some(limit)) = (battery.max_discharge, battery.max_discharge_current()) else {
+            continue;
+        };
+        let Some((point, peak)) = worst_point(cx.points(), |p| {
+            p.batteries[part_id].map(|b| b.current.get::<ampere>())
+        }) else {
+            continue;
+        };
+        if !exceeds(peak, limit.get::<ampere>()) {
+            continue;
+        }
+        let how = match (rate.value, battery.capacity) {
+            (DischargeRate::CRate(c), Some(capacity)) => {
+                format!(" ({c}C × {})", show_charge(capacity.value))
+            }
+            _ => String::new(),
+        };
+        // Point at `max_discharge` where the plan writes it, else the part.
+        let span = if rate.span.source == part.span.source {
+            rate.span
+        } else {
+            part.span
+        };
+        let mut finding = Finding::new(
+            &DISCHARGE,
+            span,
+            format!(
+                "`{}` delivers {} peak {}; its maximum discharge is {}{how}",
+                part.name,
+                show_current(ElectricCurrent::new::<ampere>(peak)),
+                mode_label(plan, point.mode, point.battery),
+                show_current(limit)
+            ),
+        )
+        .at_point(plan, point)
+        .help("use a pack with a higher discharge rating (C-rate or capacity), or keep the motors from stalling together (current limiting in the drivers)")
+        .part(&part.name)
+        .value("current", peak)
+        .value("max_discharge", limit.get::<ampere>());
+        if let Some(capacity) = battery.capacity {
+            finding = finding.value("capacity", capacity.value.get::<ampere_hour>());
+        }
+        if let Some(net) = part.pin("pos").and_then(|p| part.pins[p].net) {
+            finding = finding.net(cx.net_name(net));
+        }
+        out.push(finding);
+    }
+}
+
+fn check_no_cutoff(cx: &Context, out: &mut Vec<Finding>) {
+    for part in &cx.plan.parts {
+        let Class::Battery(battery) = &part.class else {
+            continue;
+        };
+        if !battery.chemistry.is_lithium() || battery.cutoff {
+            continue;
+        }
+        out.push(
+            Finding::new(
+                &NO_CUTOFF,
+                part.span,
+                format!(
+                    "`{}` is a {}S {} pack with no low-voltage cut-off: left running, the loads drain its cells below their discharge floor",
+                    part.name,
+                    battery.cells,
+                    battery.chemistry.name()
+                ),
+            )
+            .help("fit a low-voltage cut-off or a protection board (or a battery monitor that switches the load off) and write `cutoff: true`")
+            .part(&part.name),
+        );
+    }
+}

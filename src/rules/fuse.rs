@@ -1,60 +1,800 @@
-//! Fuses: presence at the battery, size against load and wire, voltage rating, nuisance blowing.
+//! Fuses: one at the head of every battery positive, sized between the load
+//! it carries and the wire it protects, rated for the voltage it must break,
+//! and slow enough not to blow at every motor start.
 //!
-//! STUB: rules registered, checks and documentation to be written.
+//! Sizing follows the order of the reference sheet §3: I_min = 1.25 × the
+//! continuous current (NEC 210.20(A)); the smallest standard blade rating at
+//! or above it; that rating no higher than the ampacity of any wire it
+//! protects (NEC 240.4, ampacity per the format contract §4 — the 33 CFR
+//! 183.455(c) 150 % allowance for boats is not applied). Every finding ends
+//! with that suggestion. Not for the wires themselves: `wire/ampacity` checks
+//! a wire against the current it carries.
+//!
+//! What a fuse protects: the supply-side nets below it in its electrical node
+//! (its load-side net and everything hanging under it through switches and
+//! connector contacts), stopping at the next fuse down, which protects what
+//! lies beyond it. Nets past a converter (regulator, driver, board output) are
+//! not counted: their current is set by that converter, not by this fuse.
+//! Return (ground) conductors are not counted either; `wire/ampacity` checks
+//! them against the current they carry.
 
-use super::{Context, Finding, Rule, RuleDoc, Severity};
-
-const TODO_DOC: RuleDoc = RuleDoc {
-    what: "",
-    why: "",
-    example: "",
-    fix: "",
-    references: "",
+use super::{
+    Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
 };
-
-fn not_yet(_: &Context, _: &mut Vec<Finding>) {}
+use crate::analysis::{BatteryState, OperatingPoint, battery_voltage};
+use crate::graph::through_pairs;
+use crate::model::{Class, Fuse, FuseSpeed, NetId, PartId, PinRef, PinRole, Rated};
+use crate::syntax::Span;
+use crate::units::{WireSize, show_current, show_voltage};
+use crate::wire::{AmpacityTable, ampacity};
+use uom::si::electric_current::ampere;
+use uom::si::electric_potential::volt;
+use uom::si::f64::{ElectricCurrent, ElectricPotential, ThermodynamicTemperature};
 
 pub const MISSING: Rule = Rule {
     id: "fuse/missing",
     severity: Severity::Error,
     summary: "no fuse between the battery positive and the first load or branch",
-    doc: TODO_DOC,
-    needs_operating_point: true,
-    check: not_yet,
+    doc: RuleDoc {
+        what: "Follows each battery's positive terminal along its wiring: the first thing it meets must be a fuse. A pack connector or a master switch in series ahead of the fuse is accepted as long as nothing loads or branches off before the fuse, and a fuse block (several fuses side by side on the battery lead) counts as fused; a load, or a net where the wiring splits to anything but fuses, reached before any fuse is reported.",
+        why: "A lithium or lead-acid pack can deliver hundreds of amperes into a short (reference sheet W15: 474 A from a 3S pack through 2 m of 14 AWG). Without a fuse at the source, a chafed wire or a slipped probe heats the wiring until its insulation melts or burns.",
+        example: "nets:\n  VBAT: [pack.pos, buck.vin, estop.a]\n  GND:  [pack.neg, buck.gnd]",
+        fix: "nets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT:  [main_fuse.b, buck.vin, estop.a]\n  GND:   [pack.neg, buck.gnd]",
+        references: "33 CFR 183.455(b): overcurrent protection at the source of power, or within 7 in (175 mm) along the conductor; ABYC E-11 §11.10, 7 in from the battery (reference sheet §3). Sizing: NEC 210.20(A) (125 % of continuous), NEC 240.4 (not above the wire's ampacity).",
+    },
+    needs_operating_point: false,
+    check: check_missing,
 };
 
 pub const UNDERSIZED: Rule = Rule {
     id: "fuse/undersized",
     severity: Severity::Warning,
     summary: "rating below 125 % of the continuous current through it",
-    doc: TODO_DOC,
+    doc: RuleDoc {
+        what: "The continuous current through each fuse (the highest over `typical` and the user's modes, never `worst`) against its rating: the rating must be at least 125 % of it (continuous load at most 80 % of the rating).",
+        why: "A fuse carrying close to its rating for hours runs hot and ages; it blows on an ordinary day's work, stopping the robot in the field, and a fuse that blows for no fault tempts its owner to fit a bigger one than the wire allows.",
+        example: "parts:\n  main_fuse: { use: fuse/blade-5a }   # 4.5 A continuous: needs 5.63 A",
+        fix: "parts:\n  main_fuse: { use: fuse/blade-7a5 }  # if the wire it protects carries 7.5 A",
+        references: "NEC 210.20(A): overcurrent device rating ≥ 125 % of the continuous load (reference sheet §3 and §10); continuous current per the format contract §6.",
+    },
     needs_operating_point: true,
-    check: not_yet,
+    check: check_undersized,
 };
 
 pub const OVERSIZED: Rule = Rule {
     id: "fuse/oversized",
     severity: Severity::Error,
     summary: "rating above the ampacity of a wire it protects",
-    doc: TODO_DOC,
-    needs_operating_point: true,
-    check: not_yet,
+    doc: RuleDoc {
+        what: "Each fuse's rating against the ampacity of every wire it protects: the supply nets with a `wire:` below it in its electrical node (its load-side net and what hangs under it through switches and connectors, up to the next fuse). Ampacity per the format contract §4 (Handbook chassis column; 33 CFR 183.425 Table 5 when `insulation:` is given for 8–18 AWG); the 150 % allowance of 33 CFR 183.455(c) is not applied.",
+        why: "A fuse protects the wire, not the load. Rated above what its thinnest wire can carry, it lets a fault heat that wire past its insulation rating without ever blowing.",
+        example: "parts:\n  main_fuse: { use: fuse/blade-15a }\nnets:\n  LAMP: { pins: [main_fuse.b, lamp.vin], wire: 22 AWG, length: 1 m }   # 7 A",
+        fix: "parts:\n  main_fuse: { use: fuse/blade-5a }\n# or keep the fuse and run LAMP in 16 AWG (22 A)",
+        references: "NEC 240.4: conductors protected at their ampacity (reference sheet §3); ampacity from the Handbook of Electronic Tables and Formulas chassis column and 33 CFR 183.425 Table 5 (reference sheet §2.1, §2.2); worked example W6.",
+    },
+    needs_operating_point: false,
+    check: check_oversized,
 };
 
 pub const VOLTAGE: Rule = Rule {
     id: "fuse/voltage",
     severity: Severity::Error,
     summary: "fuse voltage rating below the battery's full voltage",
-    doc: TODO_DOC,
-    needs_operating_point: true,
-    check: not_yet,
+    doc: RuleDoc {
+        what: "Each fuse's `voltage` rating against the highest voltage it may have to break: the full-charge open-circuit voltage of the battery whose wiring it sits in (cells × the chemistry's full voltage, or the top of an explicit `voltage:` window), or the highest output of the regulator or board that feeds its rail.",
+        why: "A fuse rated below the circuit voltage may not quench the arc when it opens: the fault current keeps flowing through the arc, and the holder can melt or burn.",
+        example: "parts:\n  pack: { use: battery/lipo-3s }            # 12.6 V full\n  main_fuse: { class: fuse, rating: 10 A, voltage: 12 V }",
+        fix: "parts:\n  main_fuse: { use: fuse/blade-10a }          # 32 V",
+        references: "33 CFR 183.455(d) and NEC 240.60: fuse voltage rating ≥ circuit voltage; take the full-charge pack voltage (reference sheet §3, step 4; W13: 3S LiPo full 12.6 V); blade fuses are rated 32 V or 58 V (ISO 8820-3).",
+    },
+    needs_operating_point: false,
+    check: check_voltage,
 };
 
 pub const NUISANCE: Rule = Rule {
     id: "fuse/nuisance",
     severity: Severity::Warning,
     summary: "a fast fuse rated below the peak (stall) current it carries",
-    doc: TODO_DOC,
+    doc: RuleDoc {
+        what: "Each `speed: fast` fuse's rating against the highest current through it over every mode, `worst` included (every motor stalled, every load at its peak).",
+        why: "Every motor start is a stall for tens of milliseconds; a fast fuse rated below that current blows at start-up or the first time a wheel jams, though nothing is wrong with the wiring.",
+        example: "parts:\n  main_fuse: { use: fuse/blade-10a }   # fast; two motors stall at 10.3 A together",
+        fix: "parts:\n  main_fuse: { use: fuse/blade-10a, with: { speed: slow } }   # a time-delay fuse of the same rating",
+        references: "Motor circuits take time-delay fuses that ride through the start-up inrush, equal to the stall current for 10–100 ms (IEC 60127 'T' characteristic, NEC Art. 430; reference sheet §3 and §8, common practice).",
+    },
     needs_operating_point: true,
-    check: not_yet,
+    check: check_nuisance,
 };
+
+/// Standard blade-fuse ratings in amperes (SAE J1284 / ISO 8820-3 series).
+pub const BLADE_SERIES: [f64; 13] = [
+    1.0, 2.0, 3.0, 4.0, 5.0, 7.5, 10.0, 15.0, 20.0, 25.0, 30.0, 35.0, 40.0,
+];
+
+/// NEC 210.20(A): the device carries 125 % of the continuous load.
+pub const CONTINUOUS_FACTOR: f64 = 1.25;
+
+/// Blade fuses come rated 32 V or 58 V (ISO 8820-3 scope).
+const BLADE_VOLTAGES: [f64; 2] = [32.0, 58.0];
+
+/// The smallest standard blade rating that carries `minimum` and stays
+/// within `ceiling` (the protected wire's ampacity), both with the contract's
+/// 0.1 % tolerance. `None` when no blade rating fits.
+pub fn blade_rating_for(
+    minimum: ElectricCurrent,
+    ceiling: Option<ElectricCurrent>,
+) -> Option<ElectricCurrent> {
+    let minimum = amps(minimum);
+    BLADE_SERIES
+        .iter()
+        .copied()
+        .find(|&r| !exceeds(minimum, r) && ceiling.is_none_or(|c| !exceeds(r, amps(c))))
+        .map(ElectricCurrent::new::<ampere>)
+}
+
+/// The rating a continuous current needs: I_min = 1.25 × I_continuous.
+pub fn minimum_rating(continuous: ElectricCurrent) -> ElectricCurrent {
+    continuous * CONTINUOUS_FACTOR
+}
+
+fn amps(i: ElectricCurrent) -> f64 {
+    i.get::<ampere>()
+}
+
+/// A wire a fuse protects, with its ampacity.
+#[derive(Clone, Copy, Debug)]
+struct WireLimit {
+    net: NetId,
+    size: WireSize,
+    ampacity: ElectricCurrent,
+    table: AmpacityTable,
+    insulation: Option<ThermodynamicTemperature>,
+}
+
+/// The supply nets below `start` in its node's tree (itself included), not
+/// crossing another fuse; those with a wire whose ampacity a table gives.
+fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
+    let mut wires = Vec::new();
+    let mut stack = vec![start];
+    let mut seen = vec![false; cx.plan.nets.len()];
+    while let Some(net) = stack.pop() {
+        if std::mem::replace(&mut seen[net], true) {
+            continue;
+        }
+        let n = &cx.plan.nets[net];
+        if let Some(wire) = n.wire
+            && let Some((limit, table)) = ampacity(wire.value, n.insulation)
+        {
+            wires.push(WireLimit {
+                net,
+                size: wire.value,
+                ampacity: limit,
+                table,
+                insulation: n.insulation,
+            });
+        }
+        for &child in &cx.circuit.children[net] {
+            let behind_fuse = cx.circuit.parent[child]
+                .is_some_and(|p| matches!(cx.plan.parts[p.part].class, Class::Fuse(_)));
+            if !behind_fuse {
+                stack.push(child);
+            }
+        }
+    }
+    wires
+}
+
+fn weakest(wires: &[WireLimit]) -> Option<WireLimit> {
+    wires
+        .iter()
+        .copied()
+        .min_by(|a, b| amps(a.ampacity).total_cmp(&amps(b.ampacity)))
+}
+
+/// The thinnest even AWG size (the sizes hook-up and automotive wire is sold
+/// in, common practice) whose ampacity, with the same insulation rating,
+/// reaches `current`.
+fn thinnest_wire_for(
+    current: ElectricCurrent,
+    insulation: Option<ThermodynamicTemperature>,
+) -> Option<(WireSize, ElectricCurrent)> {
+    (8..=30)
+        .rev()
+        .step_by(2)
+        .map(WireSize::Awg)
+        .filter_map(|size| ampacity(size, insulation).map(|(i, _)| (size, i)))
+        .find(|(_, i)| !exceeds(amps(current), amps(*i)))
+}
+
+/// What a fuse at one place should be rated: from the continuous current it
+/// carries (when the operating point is known) and the wires it protects.
+struct Sizing {
+    continuous: Option<ElectricCurrent>,
+    wire: Option<WireLimit>,
+}
+
+impl Sizing {
+    fn minimum(&self) -> Option<ElectricCurrent> {
+        self.continuous.map(minimum_rating)
+    }
+
+    /// The standard rating that fits both the load and the wire.
+    fn suggested(&self) -> Option<ElectricCurrent> {
+        match self.minimum() {
+            Some(minimum) => blade_rating_for(minimum, self.wire.map(|w| w.ampacity)),
+            // Load unknown: the largest rating the wire allows.
+            None => {
+                let ceiling = self.wire?.ampacity;
+                BLADE_SERIES
+                    .iter()
+                    .rev()
+                    .copied()
+                    .find(|&r| !exceeds(r, amps(ceiling)))
+                    .map(ElectricCurrent::new::<ampere>)
+            }
+        }
+    }
+
+    fn describe_wire(&self, cx: &Context, wire: &WireLimit) -> String {
+        format!(
+            "the {} ampacity of `{}` ({}, {})",
+            show_current(wire.ampacity),
+            cx.net_name(wire.net),
+            wire.size,
+            wire.table.describe()
+        )
+    }
+
+    /// The sentence every fuse finding ends with.
+    fn advice(&self, cx: &Context) -> String {
+        let Some(continuous) = self.continuous else {
+            return self.advice_without_load(cx);
+        };
+        let minimum = minimum_rating(continuous);
+        let load = format!(
+            "125 % of the {} continuous current ({})",
+            show_current(continuous),
+            show_current(minimum)
+        );
+        match (self.wire, self.suggested()) {
+            (Some(wire), Some(s)) => format!(
+                "the smallest standard blade rating that carries {load} and stays within {} is {}",
+                self.describe_wire(cx, &wire),
+                show_current(s)
+            ),
+            (None, Some(s)) => format!(
+                "the smallest standard blade rating that carries {load} is {}",
+                show_current(s)
+            ),
+            (wire, None) => match (wire, blade_rating_for(minimum, None)) {
+                (Some(wire), Some(load_fuse)) => {
+                    let heavier = thinnest_wire_for(load_fuse, wire.insulation)
+                        .map_or(String::new(), |(size, i)| {
+                            format!(" ({size} carries {})", show_current(i))
+                        });
+                    format!(
+                        "no standard blade rating both carries {load} and stays within {}: a heavier wire is needed{heavier}, protected by a {} fuse",
+                        self.describe_wire(cx, &wire),
+                        show_current(load_fuse)
+                    )
+                }
+                _ => format!(
+                    "{load} is above the largest standard blade rating ({}): use a higher-current fuse type, and wire that carries its rating",
+                    show_current(ElectricCurrent::new::<ampere>(BLADE_SERIES[12]))
+                ),
+            },
+        }
+    }
+
+    /// Advice when the operating point is not known (shorts or loops kept
+    /// it from being solved): the wire sets the ceiling.
+    fn advice_without_load(&self, cx: &Context) -> String {
+        match (self.wire, self.suggested()) {
+            (Some(wire), Some(s)) => format!(
+                "rate it no higher than {}: at most a {} blade, and at least 125 % of the continuous current it carries",
+                self.describe_wire(cx, &wire),
+                show_current(s)
+            ),
+            (Some(wire), None) => format!(
+                "no standard blade rating stays within {}: a heavier wire is needed",
+                self.describe_wire(cx, &wire)
+            ),
+            (None, _) => "rate it at least 125 % of the continuous current it carries, and no higher than the ampacity of the wire it protects".to_string(),
+        }
+    }
+
+    fn values(&self, mut finding: Finding) -> Finding {
+        if let Some(c) = self.continuous {
+            finding = finding
+                .value("continuous", amps(c))
+                .value("minimum_rating", amps(minimum_rating(c)));
+        }
+        if let Some(w) = self.wire {
+            finding = finding.value("ampacity", amps(w.ampacity));
+        }
+        if let Some(s) = self.suggested() {
+            finding = finding.value("suggested_rating", amps(s));
+        }
+        finding
+    }
+}
+
+/// A fuse in the plan and where its current comes from.
+struct PlacedFuse<'a> {
+    part: PartId,
+    name: &'a str,
+    spec: &'a Fuse,
+    /// Its load-side net (`None` when it carries nothing in the tree).
+    downstream: Option<NetId>,
+}
+
+fn fuses<'a>(cx: &'a Context) -> Vec<PlacedFuse<'a>> {
+    let mut found = Vec::new();
+    for (part_id, part) in cx.plan.parts.iter().enumerate() {
+        let Class::Fuse(spec) = &part.class else {
+            continue;
+        };
+        let downstream = through_pairs(cx.plan, part_id)
+            .first()
+            .and_then(|&(a, b)| cx.downstream_net(part_id, a, b));
+        found.push(PlacedFuse {
+            part: part_id,
+            name: &part.name,
+            spec,
+            downstream,
+        });
+    }
+    found
+}
+
+/// Where a finding about a value points: where the plan writes it, else the
+/// part's name (a value that came from the library).
+fn rated_span<Q>(cx: &Context, rated: &Rated<Q>, part: PartId) -> Span {
+    let part_span = cx.plan.parts[part].span;
+    if rated.span.source == part_span.source {
+        rated.span
+    } else {
+        part_span
+    }
+}
+
+fn continuous_through<'p>(cx: &'p Context, net: NetId) -> Option<(&'p OperatingPoint, f64)> {
+    worst_point(cx.points().filter(continuous), |p| {
+        Some(amps(p.net_current[net]).abs())
+    })
+}
+
+fn sizing_at(cx: &Context, net: NetId) -> Sizing {
+    Sizing {
+        continuous: continuous_through(cx, net).map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
+        wire: weakest(&protected_wires(cx, net)),
+    }
+}
+
+// ----- fuse/missing ----------------------------------------------------------
+
+/// What a battery's positive lead meets first.
+#[derive(Debug, PartialEq)]
+enum FirstElement {
+    /// A fuse (or a block of fuses side by side), possibly behind connector
+    /// contacts and switches in series.
+    Fuse,
+    /// Nothing that draws current (an open lead).
+    Nothing,
+    /// A load on this net, before any fuse.
+    Load { net: NetId, pin: PinRef },
+    /// The wiring splits on this net, and these branches start without a fuse.
+    Branch { net: NetId, pins: Vec<PinRef> },
+}
+
+/// Follows the positive lead from `start` through single series contacts
+/// (connector contacts, switches) until a fuse, a load, a branch or an end.
+/// A net where the lead meets only fuses (a fuse block at the battery) is
+/// fused; a net where it meets a load, or splits to anything but fuses, is
+/// not.
+fn first_element(cx: &Context, start: PinRef) -> FirstElement {
+    let plan = cx.plan;
+    let mut from = start;
+    let mut seen = Vec::new();
+    loop {
+        let Some(net) = plan.parts[from.part].pins[from.pin].net else {
+            return FirstElement::Nothing;
+        };
+        if seen.contains(&net) {
+            return FirstElement::Nothing;
+        }
+        seen.push(net);
+        let others: Vec<PinRef> = plan.nets[net]
+            .pins
+            .iter()
+            .copied()
+            .filter(|&p| p != from)
+            .collect();
+        if others.is_empty() {
+            return FirstElement::Nothing;
+        }
+        let is_fuse = |p: &PinRef| {
+            let part = &plan.parts[p.part];
+            matches!(part.class, Class::Fuse(_)) && part.pins[p.pin].role == PinRole::Through
+        };
+        // One fuse, or a fuse block: every wire leaving here starts at a fuse.
+        if others.iter().all(is_fuse) {
+            return FirstElement::Fuse;
+        }
+        if let Some(&load) = others
+            .iter()
+            .find(|p| plan.parts[p.part].pins[p.pin].role != PinRole::Through)
+        {
+            return FirstElement::Load { net, pin: load };
+        }
+        let only = match others.as_slice() {
+            [only] => *only,
+            _ => {
+                let pins = others.into_iter().filter(|p| !is_fuse(p)).collect();
+                return FirstElement::Branch { net, pins };
+            }
+        };
+        let partner = through_pairs(plan, only.part)
+            .into_iter()
+            .find_map(|(a, b)| match only.pin {
+                p if p == a => Some(b),
+                p if p == b => Some(a),
+                _ => None,
+            });
+        let Some(partner) = partner else {
+            return FirstElement::Nothing;
+        };
+        from = PinRef {
+            part: only.part,
+            pin: partner,
+        };
+    }
+}
+
+fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
+    let plan = cx.plan;
+    for (part_id, part) in plan.parts.iter().enumerate() {
+        if !matches!(part.class, Class::Battery(_)) {
+            continue;
+        }
+        for (pin_id, _) in part.pins_with_role(PinRole::SupplyOut) {
+            let terminal = PinRef {
+                part: part_id,
+                pin: pin_id,
+            };
+            let (net, what) = match first_element(cx, terminal) {
+                FirstElement::Fuse | FirstElement::Nothing => continue,
+                FirstElement::Load { net, pin } => (
+                    net,
+                    format!(
+                        "reaches `{}` on `{}` with no fuse in between",
+                        cx.pin_name(pin),
+                        cx.net_name(net)
+                    ),
+                ),
+                FirstElement::Branch { net, pins } => {
+                    let names: Vec<String> = pins
+                        .iter()
+                        .map(|p| format!("`{}`", cx.pin_name(*p)))
+                        .collect();
+                    (
+                        net,
+                        format!(
+                            "branches on `{}` to {} before any fuse",
+                            cx.net_name(net),
+                            names.join(", ")
+                        ),
+                    )
+                }
+            };
+            let start = part.pins[pin_id].net.unwrap_or(net);
+            // The fuse at the terminal would carry the battery's whole
+            // output and protect every supply wire of its node.
+            let sizing = Sizing {
+                continuous: worst_point(cx.points().filter(continuous), |p| {
+                    p.batteries[part_id].map(|b| amps(b.current))
+                })
+                .map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
+                wire: weakest(&protected_wires(cx, start)),
+            };
+            let finding = Finding::new(
+                &MISSING,
+                cx.pin_span(terminal),
+                format!(
+                    "`{}` {what}: a short anywhere on that wiring draws the battery's full fault current",
+                    cx.pin_name(terminal)
+                ),
+            )
+            .label(plan.nets[net].span, "first load or branch, unfused")
+            .help(format!(
+                "make a fuse the first element on the battery positive, within 7 in (178 mm) of the terminal; {}",
+                sizing.advice(cx)
+            ))
+            .part(&part.name)
+            .net(cx.net_name(net));
+            out.push(sizing.values(finding));
+        }
+    }
+}
+
+// ----- fuse/undersized -------------------------------------------------------
+
+fn check_undersized(cx: &Context, out: &mut Vec<Finding>) {
+    for fuse in fuses(cx) {
+        let (Some(rating), Some(net)) = (fuse.spec.rating, fuse.downstream) else {
+            continue;
+        };
+        let Some((point, current)) = continuous_through(cx, net) else {
+            continue;
+        };
+        let minimum = minimum_rating(ElectricCurrent::new::<ampere>(current));
+        if !exceeds(amps(minimum), amps(rating.value)) {
+            continue;
+        }
+        let sizing = sizing_at(cx, net);
+        let finding = Finding::new(
+            &UNDERSIZED,
+            rated_span(cx, &rating, fuse.part),
+            format!(
+                "`{}` carries {} continuous {}; at 125 % it needs a rating of {}, and it is rated {}",
+                fuse.name,
+                show_current(ElectricCurrent::new::<ampere>(current)),
+                mode_label(cx.plan, point.mode, point.battery),
+                show_current(minimum),
+                show_current(rating.value)
+            ),
+        )
+        .at_point(cx.plan, point)
+        .help(sizing.advice(cx))
+        .part(fuse.name)
+        .net(cx.net_name(net))
+        .value("rating", amps(rating.value));
+        out.push(sizing.values(finding));
+    }
+}
+
+// ----- fuse/oversized --------------------------------------------------------
+
+fn check_oversized(cx: &Context, out: &mut Vec<Finding>) {
+    for fuse in fuses(cx) {
+        let (Some(rating), Some(net)) = (fuse.spec.rating, fuse.downstream) else {
+            continue;
+        };
+        let over: Vec<WireLimit> = protected_wires(cx, net)
+            .into_iter()
+            .filter(|w| exceeds(amps(rating.value), amps(w.ampacity)))
+            .collect();
+        let Some(thinnest) = weakest(&over) else {
+            continue;
+        };
+        let sizing = sizing_at(cx, net);
+        let mut finding = Finding::new(
+            &OVERSIZED,
+            rated_span(cx, &rating, fuse.part),
+            format!(
+                "`{}` is rated {}, above the {} ampacity of `{}` ({}, {}) that it protects: a fault on that wire can overheat it without blowing the fuse",
+                fuse.name,
+                show_current(rating.value),
+                show_current(thinnest.ampacity),
+                cx.net_name(thinnest.net),
+                thinnest.size,
+                thinnest.table.describe()
+            ),
+        )
+        .label(cx.plan.nets[thinnest.net].span, "thinnest protected wire")
+        .help(sizing.advice(cx))
+        .part(fuse.name)
+        .value("rating", amps(rating.value));
+        for w in &over {
+            finding = finding.net(cx.net_name(w.net));
+        }
+        out.push(sizing.values(finding));
+    }
+}
+
+// ----- fuse/voltage ----------------------------------------------------------
+
+/// The highest voltage a fuse's circuit can put across it when it opens,
+/// and what sets it.
+fn circuit_voltage(cx: &Context, fuse: PartId) -> Option<(ElectricPotential, String)> {
+    let plan = cx.plan;
+    let net = plan.parts[fuse].pins.iter().find_map(|p| p.net)?;
+    let node = &cx.circuit.nodes[cx.circuit.node_of_net[net]];
+    let root = cx.circuit.root[cx.circuit.node_of_net[net]]?;
+    let on_root = |p: &&PinRef| plan.parts[p.part].pins[p.pin].net == Some(root);
+    // A fuse in a return lead breaks the pack voltage just the same.
+    let candidates = node.supply_outs.iter().chain(&node.grounds).filter(on_root);
+    let mut highest: Option<(ElectricPotential, String)> = None;
+    for pin in candidates {
+        let part = &plan.parts[pin.part];
+        let found = match &part.class {
+            Class::Battery(_) => battery_voltage(plan, pin.part, BatteryState::Full)
+                .map(|v| (v, format!("the full-charge voltage of `{}`", part.name))),
+            Class::Regulator(r) if part.pins[pin.pin].role == PinRole::SupplyOut => Some((
+                r.output.max,
+                format!("the highest output of `{}`", part.name),
+            )),
+            _ => part.pins[pin.pin]
+                .voltage
+                .filter(|_| part.pins[pin.pin].role == PinRole::SupplyOut)
+                .map(|band| {
+                    (
+                        band.max,
+                        format!("the highest output of `{}`", cx.pin_name(*pin)),
+                    )
+                }),
+        };
+        if let Some((v, what)) = found
+            && highest.as_ref().is_none_or(|(h, _)| v > *h)
+        {
+            highest = Some((v, what));
+        }
+    }
+    highest
+}
+
+fn check_voltage(cx: &Context, out: &mut Vec<Finding>) {
+    for fuse in fuses(cx) {
+        let Some(rated) = fuse.spec.voltage else {
+            continue;
+        };
+        let Some((circuit, what)) = circuit_voltage(cx, fuse.part) else {
+            continue;
+        };
+        if !exceeds(circuit.get::<volt>(), rated.value.get::<volt>()) {
+            continue;
+        }
+        let blade = BLADE_VOLTAGES
+            .iter()
+            .copied()
+            .find(|&v| !exceeds(circuit.get::<volt>(), v));
+        let voltage_advice = match blade {
+            Some(v) => format!(
+                "use a fuse rated for at least {}, such as a {} blade fuse",
+                show_voltage(circuit),
+                show_voltage(ElectricPotential::new::<volt>(v))
+            ),
+            None => format!(
+                "use a fuse rated for at least {}: above the 58 V of blade fuses, a DC-rated cartridge or bolt-down fuse",
+                show_voltage(circuit)
+            ),
+        };
+        let sizing = fuse.downstream.map(|net| sizing_at(cx, net));
+        let advice = sizing
+            .as_ref()
+            .map_or(String::new(), |s| format!("; {}", s.advice(cx)));
+        let mut finding = Finding::new(
+            &VOLTAGE,
+            rated_span(cx, &rated, fuse.part),
+            format!(
+                "`{}` is rated {}, below {} ({}) that it must break when it opens",
+                fuse.name,
+                show_voltage(rated.value),
+                what,
+                show_voltage(circuit)
+            ),
+        )
+        .help(format!("{voltage_advice}{advice}"))
+        .part(fuse.name)
+        .value("voltage_rating", rated.value.get::<volt>())
+        .value("circuit_voltage", circuit.get::<volt>());
+        if let Some(net) = fuse.downstream {
+            finding = finding.net(cx.net_name(net));
+        }
+        if let Some(sizing) = sizing {
+            finding = sizing.values(finding);
+        }
+        out.push(finding);
+    }
+}
+
+// ----- fuse/nuisance ---------------------------------------------------------
+
+fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
+    for fuse in fuses(cx) {
+        if fuse.spec.speed != FuseSpeed::Fast {
+            continue;
+        }
+        let (Some(rating), Some(net)) = (fuse.spec.rating, fuse.downstream) else {
+            continue;
+        };
+        let Some((point, peak)) =
+            worst_point(cx.points(), |p| Some(amps(p.net_current[net]).abs()))
+        else {
+            continue;
+        };
+        if !exceeds(peak, amps(rating.value)) {
+            continue;
+        }
+        let stalled: Vec<String> = point
+            .motors
+            .iter()
+            .enumerate()
+            .filter(|(_, m)| m.is_some_and(|m| m.state == crate::model::MotorState::Stall))
+            .map(|(m, _)| format!("`{}`", cx.part_name(m)))
+            .collect();
+        let cause = if stalled.is_empty() {
+            String::new()
+        } else {
+            format!(" with {} stalled", stalled.join(" and "))
+        };
+        let sizing = sizing_at(cx, net);
+        let peak_current = ElectricCurrent::new::<ampere>(peak);
+        let fast_alternative = blade_rating_for(peak_current, sizing.wire.map(|w| w.ampacity))
+            .filter(|&r| sizing.minimum().is_none_or(|m| !exceeds(amps(m), amps(r))))
+            .map_or(String::new(), |r| {
+                format!(
+                    ", or a fast fuse of {}, above that peak and within the wire's ampacity",
+                    show_current(r)
+                )
+            });
+        let finding = Finding::new(
+            &NUISANCE,
+            rated_span(cx, &rating, fuse.part),
+            format!(
+                "`{}` is a fast fuse rated {} and carries {} peak{cause} {}: it may blow at motor start",
+                fuse.name,
+                show_current(rating.value),
+                show_current(peak_current),
+                mode_label(cx.plan, point.mode, point.battery)
+            ),
+        )
+        .at_point(cx.plan, point)
+        .help(format!(
+            "use a time-delay (`speed: slow`) fuse{fast_alternative}; {}",
+            sizing.advice(cx)
+        ))
+        .part(fuse.name)
+        .net(cx.net_name(net))
+        .value("rating", amps(rating.value))
+        .value("peak", peak);
+        out.push(sizing.values(finding));
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn a(x: f64) -> ElectricCurrent {
+        ElectricCurrent::new::<ampere>(x)
+    }
+
+    fn rating(minimum: f64, ceiling: Option<f64>) -> Option<f64> {
+        blade_rating_for(a(minimum), ceiling.map(a)).map(amps)
+    }
+
+    #[test]
+    fn worked_example_w6_sizing() {
+        // Reference sheet W6: 6 A continuous → I_min = 1.25 × 6 = 7.5 A → 7.5 A blade;
+        // 22 AWG (Handbook chassis 7 A) cannot take it, 20 AWG (11 A) can.
+        assert_eq!(amps(minimum_rating(a(6.0))), 7.5);
+        assert_eq!(rating(7.5, None), Some(7.5));
+        assert_eq!(rating(7.5, Some(7.0)), None);
+        assert_eq!(rating(7.5, Some(11.0)), Some(7.5));
+        // 12 A continuous → 15 A, which needs a conductor of at least 15 A.
+        assert_eq!(rating(15.0, None), Some(15.0));
+        assert_eq!(rating(15.0, Some(22.0)), Some(15.0));
+    }
+
+    #[test]
+    fn above_the_blade_series_there_is_no_rating() {
+        // SAE J1284 / ISO 8820-3 blade series tops out at 40 A.
+        assert_eq!(rating(40.0, None), Some(40.0));
+        assert_eq!(rating(41.0, None), None);
+    }
+
+    #[test]
+    fn thinnest_even_gauge_for_a_fifteen_amp_fuse() {
+        // Handbook chassis column: 20 AWG 11 A is too thin, 18 AWG 16 A carries 15 A.
+        let (size, limit) = thinnest_wire_for(a(15.0), None).unwrap();
+        assert_eq!(size, WireSize::Awg(18));
+        assert_eq!(amps(limit), 16.0);
+        // 33 CFR Table 5 at 60 °C: 18 AWG 10 A, 16 AWG 15 A.
+        let sixty = ThermodynamicTemperature::new::<
+            uom::si::thermodynamic_temperature::degree_celsius,
+        >(60.0);
+        let (size, _) = thinnest_wire_for(a(15.0), Some(sixty)).unwrap();
+        assert_eq!(size, WireSize::Awg(16));
+    }
+}

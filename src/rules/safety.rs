@@ -1,24 +1,204 @@
-//! Safety: a stop switch in every motor supply path.
+//! Safety: every motor's supply path passes through a stop switch.
 //!
-//! STUB: rules registered, checks and documentation to be written.
+//! The path is traced from the motor's driver `vm` pin (or the rail a motor
+//! sits on directly) back to every battery that can power it: up its net
+//! tree to the rail's source, and through converters (regulators, boards,
+//! USB hosts) to their own inputs. A `stop: true` switch anywhere on a path
+//! clears it; every path must be cleared. Only the supply side counts: a
+//! switch in the return lead leaves the motor wiring live at pack voltage.
+//! Not for the plan's printed cautions (that is `crate::safety`).
 
 use super::{Context, Finding, Rule, RuleDoc, Severity};
-
-const TODO_DOC: RuleDoc = RuleDoc {
-    what: "",
-    why: "",
-    example: "",
-    fix: "",
-    references: "",
-};
-
-fn not_yet(_: &Context, _: &mut Vec<Finding>) {}
+use crate::graph::MotorFeed;
+use crate::model::{Class, NetId, PartId, PinRef, PinRole};
 
 pub const NO_STOP: Rule = Rule {
     id: "safety/no-stop",
     severity: Severity::Warning,
     summary: "motors with no stop switch in their supply path",
-    doc: TODO_DOC,
-    needs_operating_point: true,
-    check: not_yet,
+    doc: RuleDoc {
+        what: "Traces each motor's supply — its driver's `vm` pin, or the rail it sits on directly — back through the net wiring and any converters to every battery that powers it, and looks for a switch marked `stop: true` on the way. Every such path must pass one.",
+        why: "A robot that runs away, pins a hand or drives off a bench must be stoppable at once, whatever the software is doing; a stop switch that cuts the motors' power is the one control that does not depend on the firmware.",
+        example: "nets:\n  VBAT: [main_fuse.b, drive.vm, buck.vin]",
+        fix: "parts:\n  estop: { use: switch/estop-20a }\nnets:\n  VBAT: [main_fuse.b, estop.a, buck.vin]\n  VMOT: [estop.b, drive.vm]",
+        references: "Emergency stop function: ISO 13850 and IEC 60204-1 §9.2.5.4 (from memory); a latching red mushroom-head switch that cuts motor power directly is common practice for mobile robots.",
+    },
+    needs_operating_point: false,
+    check: check_no_stop,
 };
+
+/// The parts a current passes between two nets of one electrical node: the
+/// edges from each up to their common ancestor in the node's tree. `None`
+/// when the nets do not meet in one tree.
+fn parts_between(cx: &Context, a: NetId, b: NetId) -> Option<Vec<PartId>> {
+    let ancestors = |start: NetId| {
+        let mut chain = vec![(start, None)];
+        let mut net = start;
+        while let Some(parent) = cx.circuit.parent[net] {
+            // A through loop cannot make a tree cycle, but never trust a walk.
+            if chain.len() > cx.plan.nets.len() {
+                break;
+            }
+            chain.push((parent.net, Some(parent.part)));
+            net = parent.net;
+        }
+        chain
+    };
+    let up_a = ancestors(a);
+    let up_b = ancestors(b);
+    let (i, j) = up_a
+        .iter()
+        .enumerate()
+        .find_map(|(i, (net, _))| up_b.iter().position(|(n, _)| n == net).map(|j| (i, j)))?;
+    // Each entry holds the part that joins it to the entry before it.
+    Some(
+        up_a[1..=i]
+            .iter()
+            .chain(&up_b[1..=j])
+            .filter_map(|(_, part)| *part)
+            .collect(),
+    )
+}
+
+fn is_stop(cx: &Context, part: PartId) -> bool {
+    matches!(&cx.plan.parts[part].class, Class::Switch(s) if s.stop)
+}
+
+/// Follows power back from `net` toward the batteries; returns a battery it
+/// reaches with no stop switch on the way.
+fn unstopped_battery(cx: &Context, net: NetId, visited: &mut Vec<PartId>) -> Option<PartId> {
+    let plan = cx.plan;
+    let node_id = cx.circuit.node_of_net[net];
+    let node = &cx.circuit.nodes[node_id];
+    // Sources on this rail, and the host parts of USB cables that feed it.
+    let mut feeders: Vec<(PartId, NetId)> = node
+        .supply_outs
+        .iter()
+        .filter_map(|p: &PinRef| plan.parts[p.part].pins[p.pin].net.map(|n| (p.part, n)))
+        .collect();
+    for &link in &cx.circuit.vbus[node_id] {
+        let (device, port) = plan.links[link].device;
+        let fed = match plan.parts[device].ports[port].kind {
+            crate::model::PortKind::UsbDevice {
+                feeds: Some(pin), ..
+            } => plan.parts[device].pins[pin].net,
+            _ => None,
+        };
+        if let Some(fed) = fed {
+            feeders.push((plan.links[link].host.0, fed));
+        }
+    }
+    for (source, source_net) in feeders {
+        let Some(between) = parts_between(cx, net, source_net) else {
+            continue;
+        };
+        if between.iter().any(|&p| is_stop(cx, p)) {
+            continue;
+        }
+        if let Some(found) = unstopped_part(cx, source, visited) {
+            return Some(found);
+        }
+    }
+    None
+}
+
+/// A battery reached from `part` (itself, or through its inputs) with no stop.
+fn unstopped_part(cx: &Context, part: PartId, visited: &mut Vec<PartId>) -> Option<PartId> {
+    let plan = cx.plan;
+    if matches!(plan.parts[part].class, Class::Battery(_)) {
+        return Some(part);
+    }
+    if visited.contains(&part) {
+        return None;
+    }
+    visited.push(part);
+    for (_, pin) in plan.parts[part].pins_with_role(PinRole::SupplyIn) {
+        if let Some(input) = pin.net
+            && let Some(found) = unstopped_battery(cx, input, visited)
+        {
+            return Some(found);
+        }
+    }
+    // A part powered through a USB cable: its host feeds it.
+    for link in plan.links.iter().filter(|l| l.device.0 == part) {
+        if let Some(found) = unstopped_part(cx, link.host.0, visited) {
+            return Some(found);
+        }
+    }
+    None
+}
+
+/// Where a motor's power enters: the driver and its supply pin, or the
+/// motor's own pin on the rail.
+fn supply_entries(cx: &Context) -> Vec<(PinRef, Vec<PartId>)> {
+    let plan = cx.plan;
+    let mut entries: Vec<(PinRef, Vec<PartId>)> = Vec::new();
+    for (motor, feed) in cx.circuit.motor_feed.iter().enumerate() {
+        let entry = match *feed {
+            Some(MotorFeed::Driver { driver, .. }) => {
+                let part = &plan.parts[driver];
+                let pin = part.pin("vm").or_else(|| {
+                    part.pins_with_role(PinRole::SupplyIn)
+                        .map(|(i, _)| i)
+                        .next()
+                });
+                pin.map(|pin| PinRef { part: driver, pin })
+            }
+            Some(MotorFeed::Direct { supply, .. }) => plan.parts[motor]
+                .pins
+                .iter()
+                .position(|p| p.net == Some(supply))
+                .map(|pin| PinRef { part: motor, pin }),
+            None => None,
+        };
+        let Some(entry) = entry else { continue };
+        match entries.iter_mut().find(|(e, _)| *e == entry) {
+            Some((_, motors)) => motors.push(motor),
+            None => entries.push((entry, vec![motor])),
+        }
+    }
+    entries
+}
+
+fn check_no_stop(cx: &Context, out: &mut Vec<Finding>) {
+    let plan = cx.plan;
+    for (entry, motors) in supply_entries(cx) {
+        let Some(net) = plan.parts[entry.part].pins[entry.pin].net else {
+            continue;
+        };
+        let Some(battery) = unstopped_battery(cx, net, &mut Vec::new()) else {
+            continue;
+        };
+        let names: Vec<String> = motors
+            .iter()
+            .map(|&m| format!("`{}`", cx.part_name(m)))
+            .collect();
+        let (who, verb, them) = match names.as_slice() {
+            [one] => (format!("motor {one}"), "takes", "it"),
+            _ => (format!("motors {}", names.join(" and ")), "take", "them"),
+        };
+        let through = if motors.contains(&entry.part) {
+            String::new()
+        } else {
+            format!(" (through `{}`)", cx.pin_name(entry))
+        };
+        let mut finding = Finding::new(
+            &NO_STOP,
+            cx.pin_span(entry),
+            format!(
+                "{who}{through} {verb} power from `{}` with no stop switch on the way: in an emergency nothing cuts {them} off short of unplugging the battery",
+                cx.part_name(battery)
+            ),
+        )
+        .help("put a latching stop switch (`stop: true`) in the motors' supply, between the battery's fuse and the driver, rated for the motors' stall current")
+        .part(cx.part_name(battery))
+        .net(cx.net_name(net));
+        for &m in &motors {
+            finding = finding.part(cx.part_name(m));
+        }
+        if !motors.contains(&entry.part) {
+            finding = finding.part(cx.part_name(entry.part));
+        }
+        out.push(finding);
+    }
+}

@@ -1,0 +1,283 @@
+//! The reference sheet's worked examples for fuses and batteries (W6, W7,
+//! W13), reproduced through the public API: `railcheck::check` on small
+//! plans, read back from the findings' rule ids and values, and
+//! `railcheck::wire::ampacity` for the table lookups. Expected numbers are
+//! worked by hand from the published rules named beside each check.
+
+use railcheck::model::Library;
+use railcheck::rules::Finding;
+use railcheck::units::WireSize;
+use railcheck::wire::{AmpacityTable, ampacity};
+use uom::si::electric_current::ampere;
+use uom::si::f64::ThermodynamicTemperature;
+use uom::si::thermodynamic_temperature::degree_celsius;
+
+/// Findings of one rule on a plan; the plan must read cleanly.
+fn findings(plan: &str, rule: &str) -> Vec<Finding> {
+    let checked = railcheck::check("worked.yaml", plan, &Library::builtin())
+        .unwrap_or_else(|f| panic!("plan did not read: {:?}\n{plan}", f.errors));
+    checked
+        .findings
+        .into_iter()
+        .filter(|f| f.rule == rule)
+        .collect()
+}
+
+fn value(finding: &Finding, key: &str) -> f64 {
+    *finding
+        .values
+        .get(key)
+        .unwrap_or_else(|| panic!("no `{key}` in {:?}", finding.values))
+}
+
+fn within_one_percent(actual: f64, expected: f64) -> bool {
+    (actual - expected).abs() <= expected.abs() * 0.01
+}
+
+/// A lead-acid battery feeding one constant-current load through one fuse:
+/// `fuse` is the fuse part written inline, `wire` the load lead's net keys.
+fn fused_load(fuse: &str, continuous_amps: f64, wire: &str) -> String {
+    format!(
+        "railcheck: 1
+parts:
+  pack: {{ use: battery/lead-acid-12v, with: {{ max_discharge: 100 A }} }}
+  fuse: {fuse}
+  load:
+    class: load
+    pins:
+      vin: {{ role: supply-in, draw: {{ typical: {continuous_amps} A }} }}
+      gnd: {{ role: ground }}
+nets:
+  BATT+: [pack.pos, fuse.a]
+  LEAD: {{ pins: [fuse.b, load.vin], {wire} }}
+  GND: [pack.neg, load.gnd]
+"
+    )
+}
+
+fn blade(rating: &str) -> String {
+    format!("{{ class: fuse, rating: {rating}, voltage: 32 V, speed: slow }}")
+}
+
+// ----- W6: fuse for a 6 A continuous load ------------------------------------
+
+#[test]
+fn w6_six_amp_load_needs_a_seven_and_a_half_amp_blade_that_22_awg_cannot_take() {
+    // W6: I_min = 1.25 × 6 A = 7.5 A (NEC 210.20(A)) → standard blade 7.5 A;
+    // on 22 AWG (Handbook chassis 7 A) 7.5 A > 7 A fails NEC 240.4.
+    let plan = fused_load(&blade("7.5 A"), 6.0, "wire: 22 AWG, length: 0.5 m");
+    let over = findings(&plan, "fuse/oversized");
+    assert_eq!(over.len(), 1, "{over:?}");
+    let f = &over[0];
+    assert!(within_one_percent(value(f, "rating"), 7.5));
+    assert!(within_one_percent(value(f, "ampacity"), 7.0));
+    assert!(within_one_percent(value(f, "minimum_rating"), 7.5));
+    // No standard blade both carries 7.5 A and stays within 7 A: the finding
+    // says a heavier wire is needed instead of naming a rating.
+    assert!(!f.values.contains_key("suggested_rating"), "{:?}", f.values);
+    let help = f.help.as_deref().unwrap_or_default();
+    assert!(help.contains("heavier wire"), "{help}");
+    assert!(help.contains("7.5 A fuse"), "{help}");
+    // The same 7.5 A is exactly 125 % of 6 A: not undersized.
+    assert!(findings(&plan, "fuse/undersized").is_empty());
+}
+
+#[test]
+fn w6_twenty_awg_carries_the_seven_and_a_half_amp_blade() {
+    // W6: on 20 AWG (Handbook chassis 11 A) the 7.5 A blade passes.
+    let plan = fused_load(&blade("7.5 A"), 6.0, "wire: 20 AWG, length: 0.5 m");
+    assert!(findings(&plan, "fuse/oversized").is_empty());
+    assert!(findings(&plan, "fuse/undersized").is_empty());
+}
+
+#[test]
+fn w6_a_five_amp_blade_on_the_six_amp_load_is_undersized_and_seven_and_a_half_is_suggested() {
+    // W6: 1.25 × 6 A = 7.5 A > 5 A; the smallest standard blade ≥ 7.5 A is
+    // 7.5 A, and 20 AWG (11 A) allows it.
+    let plan = fused_load(&blade("5 A"), 6.0, "wire: 20 AWG, length: 0.5 m");
+    let under = findings(&plan, "fuse/undersized");
+    assert_eq!(under.len(), 1, "{under:?}");
+    assert!(within_one_percent(value(&under[0], "continuous"), 6.0));
+    assert!(within_one_percent(value(&under[0], "minimum_rating"), 7.5));
+    assert!(within_one_percent(
+        value(&under[0], "suggested_rating"),
+        7.5
+    ));
+    assert!(within_one_percent(value(&under[0], "ampacity"), 11.0));
+}
+
+#[test]
+fn w6_twelve_amp_load_needs_a_fifteen_amp_fuse_and_a_fifteen_amp_conductor() {
+    // W6: 12 A continuous → I_min = 15 A → 15 A blade, which needs a
+    // conductor of at least 15 A: 16 AWG chassis 22 A.
+    let plan = fused_load(&blade("10 A"), 12.0, "wire: 16 AWG, length: 0.5 m");
+    let under = findings(&plan, "fuse/undersized");
+    assert_eq!(under.len(), 1, "{under:?}");
+    assert!(within_one_percent(value(&under[0], "minimum_rating"), 15.0));
+    assert!(within_one_percent(
+        value(&under[0], "suggested_rating"),
+        15.0
+    ));
+    assert!(within_one_percent(value(&under[0], "ampacity"), 22.0));
+
+    let fixed = fused_load(&blade("15 A"), 12.0, "wire: 16 AWG, length: 0.5 m");
+    assert!(findings(&fixed, "fuse/undersized").is_empty());
+    assert!(findings(&fixed, "fuse/oversized").is_empty());
+
+    // W6: "or 33 CFR 18 AWG 80 °C 15 A": Table 5 gives 15 A, enough for the
+    // 15 A fuse; the same gauge with 60 °C insulation (10 A) is not.
+    let table5 = fused_load(
+        &blade("15 A"),
+        12.0,
+        "wire: 18 AWG, insulation: 80 degC, length: 0.5 m",
+    );
+    assert!(findings(&table5, "fuse/oversized").is_empty());
+    let cooler = fused_load(
+        &blade("15 A"),
+        12.0,
+        "wire: 18 AWG, insulation: 60 degC, length: 0.5 m",
+    );
+    let over = findings(&cooler, "fuse/oversized");
+    assert_eq!(over.len(), 1, "{over:?}");
+    assert!(within_one_percent(value(&over[0], "ampacity"), 10.0));
+}
+
+// ----- W7: Table 5 lookup with insulation, no 150 % allowance -----------------
+
+fn celsius(t: f64) -> Option<ThermodynamicTemperature> {
+    Some(ThermodynamicTemperature::new::<degree_celsius>(t))
+}
+
+#[test]
+fn w7_table5_ampacities_by_insulation() {
+    // W7 / 33 CFR 183.425 Table 5: 16 AWG 105 °C = 25 A; 18 AWG 105 °C = 20 A;
+    // 18 AWG 60 °C = 10 A.
+    for (gauge, insulation, amps) in [(16, 105.0, 25.0), (18, 105.0, 20.0), (18, 60.0, 10.0)] {
+        let (limit, table) = ampacity(WireSize::Awg(gauge), celsius(insulation)).unwrap();
+        assert!(
+            within_one_percent(limit.get::<ampere>(), amps),
+            "{gauge} AWG"
+        );
+        assert!(
+            matches!(table, AmpacityTable::CfrTable5 { .. }),
+            "{table:?}"
+        );
+    }
+}
+
+#[test]
+fn w7_the_150_percent_allowance_is_not_applied() {
+    // W7 allows a boat 1.5 × 25 A = 37.5 A on 16 AWG 105 °C (33 CFR
+    // 183.455(c)); railcheck holds the fuse to the 25 A ampacity (NEC 240.4).
+    let wire = "wire: 16 AWG, insulation: 105 degC, length: 1 m";
+    let thirty = fused_load(&blade("30 A"), 12.0, wire);
+    let over = findings(&thirty, "fuse/oversized");
+    assert_eq!(over.len(), 1, "{over:?}");
+    assert!(within_one_percent(value(&over[0], "ampacity"), 25.0));
+    let twenty_five = fused_load(&blade("25 A"), 12.0, wire);
+    assert!(findings(&twenty_five, "fuse/oversized").is_empty());
+}
+
+// ----- W13: pack discharge and full voltage -----------------------------------
+
+/// A lithium pack written in the plan feeding one load through a large fuse.
+fn pack_and_load(pack: &str, peak_amps: f64) -> String {
+    format!(
+        "railcheck: 1
+parts:
+  pack: {pack}
+  fuse: {{ class: fuse, rating: 100 A, voltage: 58 V, speed: slow }}
+  load:
+    class: load
+    pins:
+      vin: {{ role: supply-in, draw: {{ typical: 1 A, peak: {peak_amps} A }} }}
+      gnd: {{ role: ground }}
+nets:
+  BATT+: [pack.pos, fuse.a]
+  LOAD: [fuse.b, load.vin]
+  GND: [pack.neg, load.gnd]
+"
+    )
+}
+
+#[test]
+fn w13_twenty_five_c_on_2_2_ah_is_55_amperes() {
+    // W13: I_max = 25 × 2.2 Ah = 55.0 A (C-rate definition, reference sheet §6).
+    let pack =
+        "{ use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 25C, cutoff: true } }";
+    let above = findings(&pack_and_load(pack, 55.1), "battery/discharge");
+    assert_eq!(above.len(), 1, "{above:?}");
+    assert!(within_one_percent(value(&above[0], "max_discharge"), 55.0));
+    assert!(within_one_percent(value(&above[0], "current"), 55.1));
+    assert!(within_one_percent(value(&above[0], "capacity"), 2.2));
+    assert_eq!(above[0].mode.as_deref(), Some("worst"));
+    // At 55.0 A the limit is met, not broken (contract §6: only beyond 0.1 %).
+    assert!(findings(&pack_and_load(pack, 55.0), "battery/discharge").is_empty());
+}
+
+#[test]
+fn w13_one_c_on_2_2_ah_is_2_2_amperes() {
+    // W13: 1C = 2.20 A for a 2.2 Ah pack.
+    let pack =
+        "{ use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 1C, cutoff: true } }";
+    let above = findings(&pack_and_load(pack, 2.3), "battery/discharge");
+    assert_eq!(above.len(), 1, "{above:?}");
+    assert!(within_one_percent(value(&above[0], "max_discharge"), 2.2));
+    assert!(findings(&pack_and_load(pack, 2.2), "battery/discharge").is_empty());
+}
+
+/// A pack and a fuse of the given voltage rating feeding a small load.
+fn fuse_on_pack(pack: &str, fuse_voltage: &str) -> String {
+    format!(
+        "railcheck: 1
+parts:
+  pack: {{ use: {pack}, with: {{ cutoff: true }} }}
+  fuse: {{ class: fuse, rating: 5 A, voltage: {fuse_voltage}, speed: slow }}
+  load:
+    class: load
+    pins:
+      vin: {{ role: supply-in, draw: {{ typical: 1 A }} }}
+      gnd: {{ role: ground }}
+nets:
+  BATT+: [pack.pos, fuse.a]
+  LOAD: [fuse.b, load.vin]
+  GND: [pack.neg, load.gnd]
+"
+    )
+}
+
+#[test]
+fn w13_a_full_3s_pack_is_12_6_volts_above_a_12_volt_fuse() {
+    // W13: 3S LiPo full = 3 × 4.20 V = 12.6 V; 33 CFR 183.455(d) / NEC 240.60
+    // and reference sheet §3 step 4: the fuse's voltage rating ≥ the
+    // full-charge pack voltage.
+    let low = findings(&fuse_on_pack("battery/lipo-3s", "12 V"), "fuse/voltage");
+    assert_eq!(low.len(), 1, "{low:?}");
+    assert!(within_one_percent(value(&low[0], "circuit_voltage"), 12.6));
+    assert!(within_one_percent(value(&low[0], "voltage_rating"), 12.0));
+    assert!(findings(&fuse_on_pack("battery/lipo-3s", "32 V"), "fuse/voltage").is_empty());
+}
+
+#[test]
+fn blade_fuses_at_32_volts_carry_a_6s_pack() {
+    // A 6S lithium pack is 6 × 4.20 V = 25.2 V full (reference sheet §6);
+    // blade fuses are rated 32 V (ISO 8820-3 scope). A 24 V fuse is below it.
+    let low = findings(&fuse_on_pack("battery/lipo-6s", "24 V"), "fuse/voltage");
+    assert_eq!(low.len(), 1, "{low:?}");
+    assert!(within_one_percent(value(&low[0], "circuit_voltage"), 25.2));
+    let library_blade = "railcheck: 1
+parts:
+  pack: { use: battery/lipo-6s, with: { cutoff: true } }
+  fuse: { use: fuse/blade-10a }
+  load:
+    class: load
+    pins:
+      vin: { role: supply-in, draw: { typical: 1 A } }
+      gnd: { role: ground }
+nets:
+  BATT+: [pack.pos, fuse.a]
+  LOAD: [fuse.b, load.vin]
+  GND: [pack.neg, load.gnd]
+";
+    assert!(findings(library_blade, "fuse/voltage").is_empty());
+}

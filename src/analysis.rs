@@ -485,6 +485,25 @@ impl Solver<'_> {
         }
         point.net_potential = potential;
 
+        // Onboard outputs left unwired still set the levels of their part's
+        // logic pins: give them their voltage whenever the part is powered.
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
+                continue;
+            }
+            let powered = self.fed_supply_in(point, part_id).is_some()
+                || plan.links.iter().any(|l| l.device.0 == part_id);
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role == PinRole::SupplyOut && pin.net.is_none() {
+                    point.pin_voltage[part_id][pin_id] = if powered {
+                        self.source_voltage(point, part_id, pin_id)
+                    } else {
+                        None
+                    };
+                }
+            }
+        }
+
         // Voltage across each supply-in pin.
         for (part_id, part) in plan.parts.iter().enumerate() {
             let ground = ground_of(part_id, &point.net_potential);

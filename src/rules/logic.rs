@@ -1,60 +1,1331 @@
-//! Logic levels between drivers and receivers (JEDEC JESD8 families).
+//! Logic levels between the outputs and the inputs on each signal: an input's
+//! ceiling against the highest level that can reach it, the noise margins
+//! NMH and NML of every driver–receiver pair, two push-pull outputs fighting
+//! on one net, and inputs that nothing drives.
 //!
-//! STUB: rules registered, checks and documentation to be written.
+//! Thresholds come from the contract's family table (JEDEC JESD8 families),
+//! scaled with the actual `ref` rail where the family is ratiometric, and
+//! taken at the rail extreme that is worst for each level (contract §3). A
+//! signal is an electrical node that carries no supply or ground, together
+//! with the signal nodes it reaches through series resistors; a resistor from
+//! a signal to a rail is a pull-up, to a ground a pull-down.
+//!
+//! Not for ground shifts between the two ends of a link (`ground/offset`), nor
+//! for signals between parts with separate grounds (`ground/not-shared`
+//! reports those; their levels are not judged here).
 
-use super::{Context, Finding, Rule, RuleDoc, Severity};
-
-const TODO_DOC: RuleDoc = RuleDoc {
-    what: "",
-    why: "",
-    example: "",
-    fix: "",
-    references: "",
+use super::{
+    Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label,
+    show_voltages_apart,
 };
-
-fn not_yet(_: &Context, _: &mut Vec<Finding>) {}
+use crate::analysis::{Corner, OperatingPoint};
+use crate::model::{Class, LogicFamily, LogicSpec, NetId, PartId, PinRef, PinRole};
+use crate::units::show_voltage;
+use petgraph::unionfind::UnionFind;
+use uom::si::electric_potential::volt;
+use uom::si::f64::ElectricPotential;
 
 pub const OVERVOLTAGE: Rule = Rule {
     id: "logic/overvoltage",
     severity: Severity::Error,
     summary: "a driver's high level exceeds a receiver's absolute maximum input",
-    doc: TODO_DOC,
+    doc: RuleDoc {
+        what: "For every input on a signal, the highest level anything on that signal can put on it — a push-pull output at its rail's maximum, a pull-up resistor's rail at its maximum, or the rail the input is tied to — against the input's ceiling at its own rail's minimum (when both follow one rail they are compared at each operating point instead, since a rail is never at its top and its bottom at once). The ceiling is the pin's `max` when written; else VDD + 0.3 V; `tolerant: 5 V` raises it to 5.5 V (a V-tolerant pin is taken to withstand V + 10 %).",
+        why: "An input driven above its supply conducts through its protection diode into its own rail: the part is back-powered through the signal, latches up or is slowly destroyed. A 5 V output straight into a 3.3 V controller pin is the classic case.",
+        example: "parts:\n  ranger: { use: sensor/rangefinder-5v }   # echo swings to 5 V\n  mcu:    { use: board/mcu-3v3 }           # not 5 V tolerant: ceiling 3.3 V + 0.3 V\nnets:\n  ECHO: [ranger.echo, mcu.rx]",
+        fix: "parts:\n  shifter: { use: shifter/bidir-4ch }\nnets:\n  ECHO:     [ranger.echo, shifter.b1]\n  ECHO_3V3: [shifter.a1, mcu.rx]",
+        references: "Input ceiling VDD + 0.3 V: JEDEC JESD8 recommended input range (taking it as the absolute maximum of a pin that is not 5 V-tolerant is common practice); 5 V-tolerant meaning up to 5.5 V is common practice (reference sheet §4, W14: 5.0 V > 3.3 + 0.3 = 3.6 V).",
+    },
     needs_operating_point: true,
-    check: not_yet,
+    check: check_overvoltage,
 };
 
 pub const HIGH_MARGIN: Rule = Rule {
     id: "logic/high-margin",
     severity: Severity::Error,
     summary: "driver's minimum high level below receiver's high threshold",
-    doc: TODO_DOC,
+    doc: RuleDoc {
+        what: "For every driver–receiver pair on a signal, the driver's lowest high level VOH — its family's VOH at its rail's minimum, or for an open-drain output the lowest rail its pull-ups go to — against the receiver's high threshold VIH at its rail's maximum (point by point when both follow one rail). The finding gives both noise margins, NMH = VOH − VIH and NML = VIL − VOL.",
+        why: "Below VIH the receiver is not guaranteed to read a high: the link works on the bench and fails with a warm part, a low battery or a little noise.",
+        example: "parts:\n  mcu: { use: board/mcu-3v3 }              # lvcmos33: VOH = VDD − 0.2 V\n  hc:  { class: sensor, pins: { vcc: { role: supply-in, draw: 1 mA }, gnd: { role: ground }, in: { role: logic-in, ref: vcc, family: cmos5 } } }   # VIH = 0.7 × 5 V = 3.5 V\nnets:\n  SIG: [mcu.tx, hc.in]",
+        fix: "  hc:  { class: sensor, pins: { …, in: { role: logic-in, ref: vcc, family: ttl5 } } }   # TTL-level input, VIH = 2.0 V\n# or a level shifter between the two",
+        references: "Family levels: contract §3 table (JEDEC JESD8C LVCMOS/LVTTL, JESD8-5, JESD8-7, JESD7 HC, 54/74 TTL); NMH = VOH(min) − VIH(min), evaluated at the driver's minimum VDD (reference sheet §4; W14: 2.80 V − 3.50 V = −0.70 V).",
+    },
     needs_operating_point: true,
-    check: not_yet,
+    check: check_high_margin,
 };
 
 pub const LOW_MARGIN: Rule = Rule {
     id: "logic/low-margin",
     severity: Severity::Error,
     summary: "driver's maximum low level above receiver's low threshold",
-    doc: TODO_DOC,
+    doc: RuleDoc {
+        what: "For every driver–receiver pair on a signal, the driver's highest low level VOL against the receiver's low threshold VIL, taken at the receiver's rail minimum where the family scales with it. The finding gives both noise margins.",
+        why: "Above VIL the receiver is not guaranteed to read a low: an open-collector sensor that only pulls down to 0.4 V cannot be read by an input that needs 0.3 V.",
+        example: "parts:\n  enc: { class: sensor, pins: { vcc: { role: supply-in, draw: 5 mA }, gnd: { role: ground }, a: { role: logic-out, ref: vcc, family: cmos5, vol: 0.9 V } } }\n  mcu: { use: board/mcu-3v3 }    # VIL = 0.8 V\nnets:\n  ENC_A: [enc.a, mcu.rx]",
+        fix: "  enc: { …, a: { role: logic-out, ref: vcc, family: cmos5, vol: 0.4 V } }   # a driver that pulls lower",
+        references: "Family levels: contract §3 table (JEDEC JESD8C, JESD8-5, JESD8-7, JESD7, 54/74 TTL); NML = VIL(max) − VOL(max) (reference sheet §4).",
+    },
     needs_operating_point: true,
-    check: not_yet,
+    check: check_low_margin,
 };
 
 pub const CONTENTION: Rule = Rule {
     id: "logic/contention",
     severity: Severity::Error,
     summary: "two push-pull outputs on one net",
-    doc: TODO_DOC,
-    needs_operating_point: true,
-    check: not_yet,
+    doc: RuleDoc {
+        what: "Whether two or more push-pull outputs (`logic-out`) sit on one net (nets joined by connector contacts count as one). Bidirectional `logic-io` pins are not counted: their direction is set by firmware, and a shared bus of them (I2C data) is normal.",
+        why: "When two push-pull outputs drive opposite levels, each shorts the other's rail to ground through its output transistors: tens of milliamperes that heat and eventually kill both pins. A serial link wired TX to TX is the common way to get there.",
+        example: "nets:\n  UART: [sbc.tx, mcu.tx]",
+        fix: "nets:\n  UART_A: [sbc.tx, mcu.rx]\n  UART_B: [mcu.tx, sbc.rx]",
+        references: "Output drive: JEDEC JESD8C specifies VOH/VOL at a stated load current only; two outputs in opposition exceed every such load (Ohm's law through both output stages).",
+    },
+    needs_operating_point: false,
+    check: check_contention,
 };
 
 pub const UNDRIVEN: Rule = Rule {
     id: "logic/undriven",
     severity: Severity::Warning,
     summary: "an input on a net with no output and no pull resistor",
-    doc: TODO_DOC,
-    needs_operating_point: true,
-    check: not_yet,
+    doc: RuleDoc {
+        what: "Whether the inputs on a signal have something that sets their level: an output (`logic-out`, `logic-io`, `open-drain`), a pull-up or pull-down resistor, or a rail or ground the net is tied to. Series resistors are followed to the nets on their far side. A signal whose only outputs are open-drain needs a pull-up: without one nothing takes it high.",
+        why: "A CMOS input left floating picks up noise, reads random levels and can sit half-way, drawing current through both input transistors. A serial link wired RX to RX leaves both inputs floating.",
+        example: "nets:\n  UART: [sbc.rx, mcu.rx]",
+        fix: "nets:\n  UART_A: [sbc.tx, mcu.rx]\n  UART_B: [mcu.tx, sbc.rx]",
+        references: "CMOS inputs must not float (input levels between VIL and VIH are undefined: JEDEC JESD8C); an open-drain output only pulls low and needs a pull-up for its high level (reference sheet §4).",
+    },
+    needs_operating_point: false,
+    check: check_undriven,
 };
+
+// ----- levels, worked out without the plan ---------------------------------
+
+/// How a family sets one level: fixed, a share of VDD, or VDD less an offset.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Scale {
+    Fixed(f64),
+    Share(f64),
+    BelowVdd(f64),
+}
+
+impl Scale {
+    fn at(self, vdd: ElectricPotential) -> ElectricPotential {
+        match self {
+            Scale::Fixed(v) => volts(v),
+            Scale::Share(k) => vdd * k,
+            Scale::BelowVdd(d) => vdd - volts(d),
+        }
+    }
+
+    fn follows_vdd(self) -> bool {
+        !matches!(self, Scale::Fixed(_))
+    }
+
+    /// As the family table writes it (`0.7 × VDD`, `VDD − 0.2 V`, `0.8 V`).
+    fn formula(self) -> String {
+        match self {
+            Scale::Fixed(v) => format!("{v} V"),
+            Scale::Share(k) => format!("{k} × VDD"),
+            Scale::BelowVdd(d) => format!("VDD − {d} V"),
+        }
+    }
+}
+
+/// One family's row of the contract §3 table.
+#[derive(Clone, Copy, Debug)]
+struct FamilyLevels {
+    nominal_vdd: f64,
+    vih: Scale,
+    vil: Scale,
+    voh: Scale,
+    vol: Scale,
+}
+
+/// Contract §3: 54/74 TTL; JEDEC JESD7 (HC, from memory); JESD8C (LVTTL,
+/// LVCMOS 3.3 V); JESD8-5 (2.5 V); JESD8-7 (1.8 V).
+fn family_levels(family: LogicFamily) -> FamilyLevels {
+    use Scale::{BelowVdd, Fixed, Share};
+    let (nominal_vdd, vih, vil, voh, vol) = match family {
+        LogicFamily::Ttl5 => (5.0, Fixed(2.0), Fixed(0.8), Fixed(2.4), Fixed(0.4)),
+        LogicFamily::Cmos5 => (5.0, Share(0.7), Share(0.3), BelowVdd(0.1), Fixed(0.1)),
+        LogicFamily::Lvttl33 => (3.3, Fixed(2.0), Fixed(0.8), Fixed(2.4), Fixed(0.4)),
+        LogicFamily::Lvcmos33 => (3.3, Fixed(2.0), Fixed(0.8), BelowVdd(0.2), Fixed(0.2)),
+        LogicFamily::Lvcmos25 => (2.5, Fixed(1.7), Fixed(0.7), Fixed(2.0), Fixed(0.4)),
+        LogicFamily::Lvcmos18 => (1.8, Share(0.65), Share(0.35), BelowVdd(0.45), Fixed(0.45)),
+    };
+    FamilyLevels {
+        nominal_vdd,
+        vih,
+        vil,
+        voh,
+        vol,
+    }
+}
+
+fn family_name(family: LogicFamily) -> &'static str {
+    LogicFamily::ALL
+        .iter()
+        .find(|(_, f)| *f == family)
+        .map_or("", |(n, _)| n)
+}
+
+/// Headroom of an input above its own rail when no `max` is written:
+/// JEDEC JESD8's top of the recommended input range, VDD + 0.3 V.
+const CEILING_ABOVE_VDD: f64 = 0.3;
+
+/// A pin marked `tolerant: V` withstands V + 10 %: "5 V-tolerant means up to
+/// 5.5 V" (reference sheet §4, common practice).
+const TOLERANT_HEADROOM: f64 = 1.1;
+
+/// The verdict on one driver and one receiver: the compatibility check of
+/// the reference sheet §4, with the contract's 0.1 % tolerance on each limit.
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct Verdict {
+    /// NMH = VOH(min, driver) − VIH(min, receiver).
+    high_margin: Option<ElectricPotential>,
+    /// NML = VIL(max, receiver) − VOL(max, driver).
+    low_margin: Option<ElectricPotential>,
+    high_fails: bool,
+    low_fails: bool,
+    over_ceiling: bool,
+}
+
+fn judge(
+    voh: Option<ElectricPotential>,
+    vol: Option<ElectricPotential>,
+    highest: Option<ElectricPotential>,
+    vih: Option<ElectricPotential>,
+    vil: Option<ElectricPotential>,
+    ceiling: Option<ElectricPotential>,
+) -> Verdict {
+    let both = |a: Option<ElectricPotential>, b: Option<ElectricPotential>| a.zip(b);
+    Verdict {
+        high_margin: both(voh, vih).map(|(oh, ih)| oh - ih),
+        low_margin: both(vil, vol).map(|(il, ol)| il - ol),
+        high_fails: both(voh, vih).is_some_and(|(oh, ih)| falls_below(v(oh), v(ih))),
+        low_fails: both(vol, vil).is_some_and(|(ol, il)| exceeds(v(ol), v(il))),
+        over_ceiling: both(highest, ceiling).is_some_and(|(h, c)| exceeds(v(h), v(c))),
+    }
+}
+
+fn volts(value: f64) -> ElectricPotential {
+    ElectricPotential::new::<volt>(value)
+}
+
+fn v(value: ElectricPotential) -> f64 {
+    value.get::<volt>()
+}
+
+// ----- rails over the operating points --------------------------------------
+
+/// A voltage with the operating point it was found at (`None` when it does
+/// not depend on one).
+#[derive(Clone, Copy)]
+struct AtPoint<'p> {
+    voltage: ElectricPotential,
+    point: Option<&'p OperatingPoint>,
+}
+
+/// Which rail a level follows. Levels on one rail rise and fall together,
+/// so a pair on one rail is compared point by point; on different rails each
+/// side is taken at its own worst extreme (contract §3).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum RailId {
+    Node(usize),
+    /// A supply pin in no net (a board's onboard output left unwired).
+    Pin(PinRef),
+}
+
+/// The rail that sets a pin's levels, at every settled point where it is fed.
+#[derive(Clone)]
+struct Rail<'p> {
+    /// `None` for a family's nominal VDD, which follows nothing.
+    id: Option<RailId>,
+    samples: Vec<AtPoint<'p>>,
+    low: AtPoint<'p>,
+    high: AtPoint<'p>,
+    /// The supply pin or net it is read at; `None` for a nominal VDD.
+    named: Option<String>,
+}
+
+/// A rail's lowest and highest voltage in one comparison.
+type RailEnds<'p> = (AtPoint<'p>, AtPoint<'p>);
+
+impl<'p> Rail<'p> {
+    /// `None` when the rail has no positive voltage anywhere (an unfed
+    /// rail). Extremes are first-wins on ties, so the reported point does
+    /// not depend on float noise.
+    fn from_samples(
+        id: Option<RailId>,
+        samples: Vec<AtPoint<'p>>,
+        named: Option<String>,
+    ) -> Option<Rail<'p>> {
+        let first = *samples.first()?;
+        let (mut low, mut high) = (first, first);
+        for sample in &samples[1..] {
+            if v(sample.voltage) < v(low.voltage) - 1e-12 {
+                low = *sample;
+            }
+            if v(sample.voltage) > v(high.voltage) + 1e-12 {
+                high = *sample;
+            }
+        }
+        Some(Rail {
+            id,
+            samples,
+            low,
+            high,
+            named,
+        })
+    }
+
+    fn nominal(vdd: ElectricPotential) -> Rail<'p> {
+        let at = AtPoint {
+            voltage: vdd,
+            point: None,
+        };
+        Rail {
+            id: None,
+            samples: vec![at],
+            low: at,
+            high: at,
+            named: None,
+        }
+    }
+
+    fn ends(&self) -> RailEnds<'p> {
+        (self.low, self.high)
+    }
+
+    fn at(&self, point: &OperatingPoint) -> Option<AtPoint<'p>> {
+        self.samples
+            .iter()
+            .find(|s| s.point.is_some_and(|p| std::ptr::eq(p, point)))
+            .copied()
+    }
+
+    fn vdd_text(&self, vdd: ElectricPotential) -> String {
+        match &self.named {
+            Some(pin) => format!("VDD = {} at {pin}", show_voltage(vdd)),
+            None => format!("VDD = {}, the family's nominal", show_voltage(vdd)),
+        }
+    }
+
+    fn highest_text(&self) -> String {
+        match &self.named {
+            Some(name) => format!("{name} at its highest"),
+            None => "the family's nominal VDD".to_string(),
+        }
+    }
+}
+
+/// A level with how it was worked out, for the message.
+#[derive(Clone)]
+struct Level<'p> {
+    value: ElectricPotential,
+    basis: String,
+    point: Option<&'p OperatingPoint>,
+}
+
+impl<'p> Level<'p> {
+    fn written(value: ElectricPotential, key: &str) -> Level<'p> {
+        Level {
+            value,
+            basis: format!("written `{key}`"),
+            point: None,
+        }
+    }
+
+    /// A family's level with VDD at `at`, one of the rail's values.
+    fn from_family(
+        scale: Scale,
+        family: LogicFamily,
+        rail: &Rail<'p>,
+        at: AtPoint<'p>,
+    ) -> Level<'p> {
+        let name = family_name(family);
+        if !scale.follows_vdd() {
+            return Level {
+                value: scale.at(at.voltage),
+                basis: format!("{name}: {}", scale.formula()),
+                point: None,
+            };
+        }
+        Level {
+            value: scale.at(at.voltage),
+            basis: format!(
+                "{name}: {} with {}",
+                scale.formula(),
+                rail.vdd_text(at.voltage)
+            ),
+            point: at.point,
+        }
+    }
+}
+
+fn ground_potential(cx: &Context, point: &OperatingPoint, part: PartId) -> ElectricPotential {
+    cx.circuit.ground_net[part]
+        .and_then(|n| point.net_potential[n])
+        .unwrap_or_else(|| volts(0.0))
+}
+
+/// Whether a part has power at a point: a supply input on a fed rail, or a
+/// USB cable to a host.
+fn powered(cx: &Context, point: &OperatingPoint, part: PartId) -> bool {
+    let fed_input = cx.plan.parts[part]
+        .pins
+        .iter()
+        .enumerate()
+        .any(|(i, p)| p.role == PinRole::SupplyIn && point.pin_voltage[part][i].is_some());
+    fed_input || cx.plan.links.iter().any(|l| l.device.0 == part)
+}
+
+/// The voltage a supply pin gives its part's logic, above the part's ground.
+fn supply_voltage(
+    cx: &Context,
+    point: &OperatingPoint,
+    part: PartId,
+    pin: usize,
+) -> Option<ElectricPotential> {
+    if let Some(value) = point.pin_voltage[part][pin] {
+        return Some(value);
+    }
+    let spec = &cx.plan.parts[part].pins[pin];
+    if let Some(net) = spec.net {
+        return point.net_potential[net].map(|p| p - ground_potential(cx, point, part));
+    }
+    // An onboard output left unwired still powers its own part's pins.
+    if spec.role == PinRole::SupplyOut && powered(cx, point, part) {
+        return spec.voltage.map(|band| match point.corner {
+            Corner::Low => band.min,
+            Corner::High => band.max,
+        });
+    }
+    None
+}
+
+/// A voltage at every settled point where it is positive.
+fn sampled<'p>(
+    cx: &'p Context,
+    measure: impl Fn(&OperatingPoint) -> Option<ElectricPotential>,
+) -> Vec<AtPoint<'p>> {
+    cx.points()
+        .filter_map(|point| {
+            let voltage = measure(point).filter(|x| v(*x) > 0.0)?;
+            Some(AtPoint {
+                voltage,
+                point: Some(point),
+            })
+        })
+        .collect()
+}
+
+/// The rail behind a logic pin: its `ref` pin over the operating points, or
+/// the family's nominal VDD when it has no `ref`.
+enum PinRail<'p> {
+    Known(Rail<'p>),
+    /// The `ref` rail has no voltage (unfed): the pin is not judged.
+    Unfed,
+    /// Neither `ref` nor `family`: only written levels are known.
+    Unknown,
+}
+
+impl<'p> PinRail<'p> {
+    /// `Err` for an unfed rail.
+    fn known(self) -> Result<Option<Rail<'p>>, ()> {
+        match self {
+            PinRail::Known(rail) => Ok(Some(rail)),
+            PinRail::Unfed => Err(()),
+            PinRail::Unknown => Ok(None),
+        }
+    }
+}
+
+fn pin_rail<'p>(cx: &'p Context, pin: PinRef, spec: &LogicSpec) -> PinRail<'p> {
+    if let Some(reference) = spec.reference {
+        let supply = PinRef {
+            part: pin.part,
+            pin: reference,
+        };
+        let id = match cx.plan.parts[pin.part].pins[reference].net {
+            Some(net) => RailId::Node(cx.circuit.node_of_net[net]),
+            None => RailId::Pin(supply),
+        };
+        let samples = sampled(cx, |point| supply_voltage(cx, point, pin.part, reference));
+        let named = Some(format!("`{}`", cx.pin_name(supply)));
+        return match Rail::from_samples(Some(id), samples, named) {
+            Some(rail) => PinRail::Known(rail),
+            None => PinRail::Unfed,
+        };
+    }
+    match spec.family {
+        Some(family) => PinRail::Known(Rail::nominal(volts(family_levels(family).nominal_vdd))),
+        None => PinRail::Unknown,
+    }
+}
+
+/// A rail reached through a net (a pull-up's far end, or a net an input is
+/// tied to), measured from the receiver's ground.
+fn net_rail<'p>(cx: &'p Context, net: NetId, receiver: PartId) -> Option<Rail<'p>> {
+    let samples = sampled(cx, |point| {
+        point.net_potential[net].map(|p| p - ground_potential(cx, point, receiver))
+    });
+    Rail::from_samples(
+        Some(RailId::Node(cx.circuit.node_of_net[net])),
+        samples,
+        Some(format!("`{}`", cx.net_name(net))),
+    )
+}
+
+// ----- signals ---------------------------------------------------------------
+
+/// Something that can set the level on a signal.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Source {
+    /// A `logic-out`, `logic-io` or `open-drain` pin.
+    Pin(PinRef),
+    /// A resistor from the signal to a rail.
+    PullUp { resistor: PartId, rail: NetId },
+    /// The net the input sits on is itself a rail.
+    Tied(NetId),
+}
+
+/// Electrical nodes that carry no supply and no ground, joined through
+/// series resistors, with what hangs on them.
+#[derive(Default)]
+struct Signal {
+    nets: Vec<NetId>,
+    /// Logic pins, in net order.
+    pins: Vec<PinRef>,
+    pull_ups: Vec<(PartId, NetId)>,
+    pull_downs: Vec<PartId>,
+    /// Bridge outputs and windings: not logic, but they do drive the net.
+    other_drivers: usize,
+}
+
+fn is_power_node(cx: &Context, node: usize) -> bool {
+    let n = &cx.circuit.nodes[node];
+    !n.supply_outs.is_empty()
+        || !n.supply_ins.is_empty()
+        || !n.grounds.is_empty()
+        || !cx.circuit.vbus[node].is_empty()
+}
+
+/// Both ends of every resistor that is wired at both ends.
+fn resistors(cx: &Context) -> Vec<(PartId, NetId, NetId)> {
+    cx.plan
+        .parts
+        .iter()
+        .enumerate()
+        .filter(|(_, p)| matches!(p.class, Class::Resistor(_)))
+        .filter_map(|(id, part)| {
+            let a = part.pin("a").and_then(|i| part.pins[i].net)?;
+            let b = part.pin("b").and_then(|i| part.pins[i].net)?;
+            Some((id, a, b))
+        })
+        .collect()
+}
+
+fn signals(cx: &Context) -> Vec<Signal> {
+    let circuit = cx.circuit;
+    let node_count = circuit.nodes.len();
+    let mut joined = UnionFind::<usize>::new(node_count);
+    let resistors = resistors(cx);
+    for &(_, a, b) in &resistors {
+        let (na, nb) = (circuit.node_of_net[a], circuit.node_of_net[b]);
+        if !is_power_node(cx, na) && !is_power_node(cx, nb) {
+            joined.union(na, nb);
+        }
+    }
+    let mut index_of_root = vec![usize::MAX; node_count];
+    let mut found: Vec<Signal> = Vec::new();
+    for (net_id, net) in cx.plan.nets.iter().enumerate() {
+        let node = circuit.node_of_net[net_id];
+        if is_power_node(cx, node) {
+            continue;
+        }
+        let root = joined.find(node);
+        if index_of_root[root] == usize::MAX {
+            index_of_root[root] = found.len();
+            found.push(Signal::default());
+        }
+        let signal = &mut found[index_of_root[root]];
+        signal.nets.push(net_id);
+        for &pin in &net.pins {
+            match cx.plan.parts[pin.part].pins[pin.pin].role {
+                role if role.is_logic() => signal.pins.push(pin),
+                PinRole::BridgeOut | PinRole::Winding => signal.other_drivers += 1,
+                _ => {}
+            }
+        }
+    }
+    for &(resistor, a, b) in &resistors {
+        for (here, there) in [(a, b), (b, a)] {
+            let (nh, nt) = (circuit.node_of_net[here], circuit.node_of_net[there]);
+            if is_power_node(cx, nh) || !is_power_node(cx, nt) {
+                continue;
+            }
+            let signal = &mut found[index_of_root[joined.find(nh)]];
+            if circuit.nodes[nt].is_ground() {
+                signal.pull_downs.push(resistor);
+            } else {
+                signal.pull_ups.push((resistor, there));
+            }
+        }
+    }
+    found
+}
+
+fn role_of(cx: &Context, pin: PinRef) -> PinRole {
+    cx.plan.parts[pin.part].pins[pin.pin].role
+}
+
+fn logic_of(cx: &Context, pin: PinRef) -> LogicSpec {
+    cx.plan.parts[pin.part].pins[pin.pin]
+        .logic
+        .clone()
+        .unwrap_or_default()
+}
+
+fn net_of(cx: &Context, pin: PinRef) -> Option<NetId> {
+    cx.plan.parts[pin.part].pins[pin.pin].net
+}
+
+fn quoted(names: &[String]) -> String {
+    let quoted: Vec<String> = names.iter().map(|n| format!("`{n}`")).collect();
+    match quoted.as_slice() {
+        [] => String::new(),
+        [one] => one.clone(),
+        [init @ .., last] => format!("{} and {last}", init.join(", ")),
+    }
+}
+
+// ----- driver–receiver pairs -------------------------------------------------
+
+/// A source on a signal, seen from one receiver, with the rail its high
+/// level follows.
+struct DriverSide<'p> {
+    source: Source,
+    spec: LogicSpec,
+    /// A push-pull pin's `ref` rail; an open-drain pin's pull-up rail (the
+    /// lowest, when there are several); the net of a pull-up or a tie.
+    rail: Option<Rail<'p>>,
+    /// The pull-up an open-drain pin's high level comes from.
+    pulled_by: Option<PartId>,
+}
+
+fn driver_side<'p>(
+    cx: &'p Context,
+    source: Source,
+    pull_ups: &[(PartId, NetId)],
+    receiver: PartId,
+) -> Option<DriverSide<'p>> {
+    match source {
+        Source::Pin(pin) if role_of(cx, pin) == PinRole::OpenDrain => {
+            let lowest = pull_ups
+                .iter()
+                .filter_map(|&(resistor, net)| Some((resistor, net_rail(cx, net, receiver)?)))
+                .min_by(|a, b| v(a.1.low.voltage).total_cmp(&v(b.1.low.voltage)));
+            Some(DriverSide {
+                source,
+                spec: logic_of(cx, pin),
+                pulled_by: lowest.as_ref().map(|(r, _)| *r),
+                rail: lowest.map(|(_, rail)| rail),
+            })
+        }
+        Source::Pin(pin) => {
+            let spec = logic_of(cx, pin);
+            let rail = pin_rail(cx, pin, &spec).known().ok()?;
+            Some(DriverSide {
+                source,
+                spec,
+                rail,
+                pulled_by: None,
+            })
+        }
+        Source::PullUp { rail, .. } | Source::Tied(rail) => Some(DriverSide {
+            source,
+            spec: LogicSpec::default(),
+            rail: Some(net_rail(cx, rail, receiver)?),
+            pulled_by: None,
+        }),
+    }
+}
+
+/// What a source can put on the signal, as seen by one receiver.
+struct Drive<'p> {
+    source: Source,
+    voh: Option<Level<'p>>,
+    vol: Option<Level<'p>>,
+    highest: Option<Level<'p>>,
+}
+
+/// The driver's levels with its rail at `ends` (lowest, highest): VOH is
+/// worst at the lowest, VOL and the highest output at the highest.
+fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) -> Drive<'p> {
+    let spec = &side.spec;
+    let family = spec.family.map(|f| (f, family_levels(f)));
+    let written_vol = spec.vol.map(|value| Level::written(value, "vol"));
+    let Source::Pin(pin) = side.source else {
+        // A pull-up or a tie only sets the highest level.
+        let highest = side.rail.as_ref().zip(ends).map(|(rail, (_, high))| Level {
+            value: high.voltage,
+            basis: rail.highest_text(),
+            point: high.point,
+        });
+        return Drive {
+            source: side.source,
+            voh: None,
+            vol: None,
+            highest,
+        };
+    };
+    if role_of(cx, pin) == PinRole::OpenDrain {
+        // Every family's VOL is a fixed voltage (contract §3), so the
+        // nominal VDD serves when the pin's own rail is not at hand.
+        let vol = written_vol.or_else(|| {
+            let (f, levels) = family?;
+            let nominal = Rail::nominal(volts(levels.nominal_vdd));
+            Some(Level::from_family(levels.vol, f, &nominal, nominal.high))
+        });
+        let voh =
+            side.rail
+                .as_ref()
+                .zip(ends)
+                .zip(side.pulled_by)
+                .map(|((rail, (low, _)), resistor)| Level {
+                    value: low.voltage,
+                    basis: format!(
+                        "open drain pulled up by `{}` to {} at its lowest",
+                        cx.part_name(resistor),
+                        rail.named.clone().unwrap_or_default()
+                    ),
+                    point: low.point,
+                });
+        return Drive {
+            source: side.source,
+            voh,
+            vol,
+            // Its highest level is the pull-up's rail, reported against the pull-up.
+            highest: None,
+        };
+    }
+    let from_family = |written: Option<ElectricPotential>,
+                       key: &str,
+                       pick: fn(&FamilyLevels) -> Scale,
+                       at: fn(RailEnds<'p>) -> AtPoint<'p>| {
+        if let Some(value) = written {
+            return Some(Level::written(value, key));
+        }
+        let (f, levels) = family?;
+        let (rail, ends) = side.rail.as_ref().zip(ends)?;
+        Some(Level::from_family(pick(&levels), f, rail, at(ends)))
+    };
+    let voh = from_family(spec.voh, "voh", |l| l.voh, |(low, _)| low);
+    let vol = from_family(spec.vol, "vol", |l| l.vol, |(_, high)| high);
+    let highest = match side.rail.as_ref().zip(ends) {
+        Some((rail, (_, high))) => Some(Level {
+            value: high.voltage,
+            basis: rail.highest_text(),
+            point: high.point,
+        }),
+        // With no rail known, the written high level is the least it reaches.
+        None => spec.voh.map(|value| Level::written(value, "voh")),
+    };
+    Drive {
+        source: side.source,
+        voh,
+        vol,
+        highest,
+    }
+}
+
+/// A receiver and the rail its thresholds follow.
+struct ReceiverSide<'p> {
+    pin: PinRef,
+    spec: LogicSpec,
+    max: Option<ElectricPotential>,
+    rail: Option<Rail<'p>>,
+}
+
+fn receiver_side<'p>(cx: &'p Context, pin: PinRef) -> Option<ReceiverSide<'p>> {
+    let spec = logic_of(cx, pin);
+    let rail = pin_rail(cx, pin, &spec).known().ok()?;
+    Some(ReceiverSide {
+        pin,
+        max: cx.plan.parts[pin.part].pins[pin.pin].max,
+        spec,
+        rail,
+    })
+}
+
+/// What a receiver accepts.
+struct Sense<'p> {
+    pin: PinRef,
+    vih: Option<Level<'p>>,
+    vil: Option<Level<'p>>,
+    ceiling: Option<Level<'p>>,
+}
+
+/// The receiver's thresholds with its rail at `ends` (lowest, highest): VIH
+/// is worst at the highest, VIL and the ceiling at the lowest.
+fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
+    let spec = &side.spec;
+    let family = spec.family.map(|f| (f, family_levels(f)));
+    let rail = side.rail.as_ref().zip(ends);
+    let threshold = |written: Option<ElectricPotential>,
+                     key: &str,
+                     pick: fn(&FamilyLevels) -> Scale,
+                     at: fn(RailEnds<'p>) -> AtPoint<'p>| {
+        if let Some(value) = written {
+            return Some(Level::written(value, key));
+        }
+        let (f, levels) = family?;
+        let (rail, ends) = rail?;
+        Some(Level::from_family(pick(&levels), f, rail, at(ends)))
+    };
+    let vih = threshold(spec.vih, "vih", |l| l.vih, |(_, high)| high);
+    let vil = threshold(spec.vil, "vil", |l| l.vil, |(low, _)| low);
+    let above_rail = rail.map(|(rail, (low, _))| Level {
+        value: low.voltage + volts(CEILING_ABOVE_VDD),
+        basis: format!("VDD + 0.3 V with {}", rail.vdd_text(low.voltage)),
+        point: low.point,
+    });
+    let tolerant = spec.tolerant.map(|t| Level {
+        value: t * TOLERANT_HEADROOM,
+        basis: format!(
+            "`tolerant: {}`, taken as up to {}",
+            show_voltage(t),
+            show_voltage(t * TOLERANT_HEADROOM)
+        ),
+        point: None,
+    });
+    let ceiling = match (side.max, tolerant, above_rail) {
+        (Some(max), _, _) => Some(Level::written(max, "max")),
+        (None, Some(t), Some(r)) => Some(if v(t.value) >= v(r.value) { t } else { r }),
+        (None, t, r) => t.or(r),
+    };
+    Sense {
+        pin: side.pin,
+        vih,
+        vil,
+        ceiling,
+    }
+}
+
+/// One comparison of a driver and a receiver, with its verdict.
+struct Link<'p> {
+    drive: Drive<'p>,
+    sense: Sense<'p>,
+    verdict: Verdict,
+    net: NetId,
+}
+
+/// Every comparison one driver–receiver pair needs: a single one at each
+/// side's worst extreme when their rails differ, one per operating point
+/// when both follow one rail (a rail cannot be at its top and its bottom at
+/// once).
+fn compare<'p>(
+    cx: &Context,
+    driver: &DriverSide<'p>,
+    receiver: &ReceiverSide<'p>,
+    net: NetId,
+) -> Vec<Link<'p>> {
+    let link = |d: Option<RailEnds<'p>>, r: Option<RailEnds<'p>>| {
+        let drive = drive(cx, driver, d);
+        let sense = sense(receiver, r);
+        let value = |l: &Option<Level>| l.as_ref().map(|l| l.value);
+        let verdict = judge(
+            value(&drive.voh),
+            value(&drive.vol),
+            value(&drive.highest),
+            value(&sense.vih),
+            value(&sense.vil),
+            value(&sense.ceiling),
+        );
+        Link {
+            drive,
+            sense,
+            verdict,
+            net,
+        }
+    };
+    if let (Some(d), Some(r)) = (&driver.rail, &receiver.rail)
+        && d.id.is_some()
+        && d.id == r.id
+    {
+        let together: Vec<Link> = d
+            .samples
+            .iter()
+            .filter_map(|&at| {
+                let there = r.at(at.point?)?;
+                Some(link(Some((at, at)), Some((there, there))))
+            })
+            .collect();
+        if !together.is_empty() {
+            return together;
+        }
+    }
+    vec![link(
+        driver.rail.as_ref().map(Rail::ends),
+        receiver.rail.as_ref().map(Rail::ends),
+    )]
+}
+
+/// Whether every part with a logic pin on the signal shares one ground
+/// (else `ground/not-shared` or `ground/floating` speaks for it).
+fn shares_ground(cx: &Context, pins: &[PinRef]) -> bool {
+    let mut groups = pins.iter().map(|p| cx.circuit.ground_group[p.part]);
+    let Some(Some(first)) = groups.next() else {
+        return false;
+    };
+    cx.circuit.grounded_groups[first] && groups.all(|g| g == Some(first))
+}
+
+/// Every driver–receiver pair, each with its comparisons.
+fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
+    let mut found = Vec::new();
+    for signal in signals(cx) {
+        if !shares_ground(cx, &signal.pins) {
+            continue;
+        }
+        let receivers = signal
+            .pins
+            .iter()
+            .filter(|&&p| matches!(role_of(cx, p), PinRole::LogicIn | PinRole::LogicIo));
+        for &receiver in receivers {
+            let (Some(net), Some(receiving)) = (net_of(cx, receiver), receiver_side(cx, receiver))
+            else {
+                continue;
+            };
+            let pins = signal.pins.iter().copied().filter(|&p| {
+                p != receiver
+                    && matches!(
+                        role_of(cx, p),
+                        PinRole::LogicOut | PinRole::LogicIo | PinRole::OpenDrain
+                    )
+            });
+            let sources: Vec<Source> = pins
+                .map(Source::Pin)
+                .chain(
+                    signal
+                        .pull_ups
+                        .iter()
+                        .map(|&(resistor, rail)| Source::PullUp { resistor, rail }),
+                )
+                .collect();
+            for source in sources {
+                if let Some(driving) = driver_side(cx, source, &signal.pull_ups, receiver.part) {
+                    found.push(compare(cx, &driving, &receiving, net));
+                }
+            }
+        }
+    }
+    // Inputs wired straight onto a rail.
+    for (net_id, net) in cx.plan.nets.iter().enumerate() {
+        let node = cx.circuit.node_of_net[net_id];
+        if !is_power_node(cx, node) || cx.circuit.nodes[node].is_ground() {
+            continue;
+        }
+        for &receiver in &net.pins {
+            if !matches!(role_of(cx, receiver), PinRole::LogicIn | PinRole::LogicIo)
+                || !shares_ground(cx, &[receiver])
+            {
+                continue;
+            }
+            let (Some(driving), Some(receiving)) = (
+                driver_side(cx, Source::Tied(net_id), &[], receiver.part),
+                receiver_side(cx, receiver),
+            ) else {
+                continue;
+            };
+            found.push(compare(cx, &driving, &receiving, net_id));
+        }
+    }
+    found
+}
+
+/// The comparison of a pair where `badness` is greatest, if it is anywhere
+/// (first wins on ties).
+fn worst<'a, 'p>(
+    comparisons: &'a [Link<'p>],
+    badness: impl Fn(&Link) -> Option<f64>,
+) -> Option<&'a Link<'p>> {
+    let mut found: Option<(&Link, f64)> = None;
+    for link in comparisons {
+        if let Some(b) = badness(link)
+            && found.is_none_or(|(_, f)| b > f + 1e-12)
+        {
+            found = Some((link, b));
+        }
+    }
+    found.map(|(link, _)| link)
+}
+
+impl Link<'_> {
+    fn driver_name(&self, cx: &Context) -> String {
+        match self.drive.source {
+            Source::Pin(pin) => format!("`{}`", cx.pin_name(pin)),
+            Source::PullUp { resistor, .. } => format!("pull-up `{}`", cx.part_name(resistor)),
+            Source::Tied(net) => format!("rail `{}`", cx.net_name(net)),
+        }
+    }
+
+    fn margins_text(&self) -> String {
+        let mut parts = Vec::new();
+        if let Some(nmh) = self.verdict.high_margin {
+            parts.push(format!("NMH = {}", show_voltage(nmh)));
+        }
+        if let Some(nml) = self.verdict.low_margin {
+            parts.push(format!("NML = {}", show_voltage(nml)));
+        }
+        parts.join(", ")
+    }
+
+    /// The finding, with every number the link has.
+    fn finding(
+        &self,
+        cx: &Context,
+        rule: &Rule,
+        message: String,
+        point: Option<&OperatingPoint>,
+    ) -> Finding {
+        let receiver = self.sense.pin;
+        let mut finding = Finding::new(rule, cx.pin_span(receiver), message)
+            .part(cx.part_name(receiver.part))
+            .net(cx.net_name(self.net));
+        match self.drive.source {
+            Source::Pin(pin) => {
+                finding = finding
+                    .label(cx.pin_span(pin), "driver")
+                    .part(cx.part_name(pin.part));
+                if let Some(net) = net_of(cx, pin) {
+                    finding = finding.net(cx.net_name(net));
+                }
+            }
+            Source::PullUp { resistor, rail } => {
+                finding = finding.part(cx.part_name(resistor)).net(cx.net_name(rail));
+            }
+            Source::Tied(_) => {}
+        }
+        if let Some(point) = point {
+            finding = finding.at_point(cx.plan, point);
+        }
+        let levels = [
+            ("voh", &self.drive.voh),
+            ("vol", &self.drive.vol),
+            ("high_level", &self.drive.highest),
+            ("vih", &self.sense.vih),
+            ("vil", &self.sense.vil),
+            ("ceiling", &self.sense.ceiling),
+        ];
+        for (key, level) in levels {
+            if let Some(level) = level {
+                finding = finding.value(key, v(level.value));
+            }
+        }
+        if let Some(nmh) = self.verdict.high_margin {
+            finding = finding.value("nmh", v(nmh));
+        }
+        if let Some(nml) = self.verdict.low_margin {
+            finding = finding.value("nml", v(nml));
+        }
+        finding
+    }
+}
+
+fn at_text(cx: &Context, point: Option<&OperatingPoint>) -> String {
+    point.map_or(String::new(), |p| {
+        format!(" {}", mode_label(cx.plan, p.mode, p.battery))
+    })
+}
+
+fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
+    for pair in pairs(cx) {
+        let Some(link) = worst(&pair, |l| {
+            let (high, ceiling) = (l.drive.highest.as_ref()?, l.sense.ceiling.as_ref()?);
+            l.verdict
+                .over_ceiling
+                .then(|| v(high.value) - v(ceiling.value))
+        }) else {
+            continue;
+        };
+        let (Some(high), Some(ceiling)) = (&link.drive.highest, &link.sense.ceiling) else {
+            continue;
+        };
+        let point = high.point.or(ceiling.point);
+        let (shown, limit) = show_voltages_apart(high.value, ceiling.value);
+        let receiver = cx.pin_name(link.sense.pin);
+        let mut message = match link.drive.source {
+            Source::Tied(net) => format!(
+                "`{receiver}` is wired straight to rail `{}`, which reaches {shown}{}, above its {limit} input ceiling ({})",
+                cx.net_name(net),
+                at_text(cx, point),
+                ceiling.basis,
+            ),
+            _ => format!(
+                "{} takes `{}` up to {shown} ({}){}, above the {limit} input ceiling of `{receiver}` ({})",
+                link.driver_name(cx),
+                cx.net_name(link.net),
+                high.basis,
+                at_text(cx, point),
+                ceiling.basis,
+            ),
+        };
+        let margins = link.margins_text();
+        if !margins.is_empty() {
+            message = format!("{message}; {margins}");
+        }
+        out.push(
+            link.finding(cx, &OVERVOLTAGE, message, point)
+                .help("put a level shifter between them, power the driver (or pull-up) from the receiver's rail, or use an input rated for the higher level (`tolerant: 5 V`)"),
+        );
+    }
+}
+
+fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
+    for pair in pairs(cx) {
+        let Some(link) = worst(&pair, |l| {
+            l.verdict.high_fails.then_some(-v(l.verdict.high_margin?))
+        }) else {
+            continue;
+        };
+        let (Some(voh), Some(vih)) = (&link.drive.voh, &link.sense.vih) else {
+            continue;
+        };
+        let point = voh.point.or(vih.point);
+        let (shown, limit) = show_voltages_apart(voh.value, vih.value);
+        let message = format!(
+            "{} drives `{}` high to as little as {shown} ({}){}, below the {limit} `{}` needs to read a high ({}): {}",
+            link.driver_name(cx),
+            cx.net_name(link.net),
+            voh.basis,
+            at_text(cx, point),
+            cx.pin_name(link.sense.pin),
+            vih.basis,
+            link.margins_text(),
+        );
+        out.push(
+            link.finding(cx, &HIGH_MARGIN, message, point)
+                .help("use a level shifter, a receiver with TTL-level inputs (VIH 2.0 V), or a driver on the receiver's rail; for an open-drain output, pull up to the receiver's rail"),
+        );
+    }
+}
+
+fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
+    for pair in pairs(cx) {
+        let Some(link) = worst(&pair, |l| {
+            l.verdict.low_fails.then_some(-v(l.verdict.low_margin?))
+        }) else {
+            continue;
+        };
+        let (Some(vol), Some(vil)) = (&link.drive.vol, &link.sense.vil) else {
+            continue;
+        };
+        let point = vil.point.or(vol.point);
+        let (shown, limit) = show_voltages_apart(vol.value, vil.value);
+        let message = format!(
+            "{} drives `{}` low to as much as {shown} ({}), above the {limit} `{}` still reads as a low ({}){}: {}",
+            link.driver_name(cx),
+            cx.net_name(link.net),
+            vol.basis,
+            cx.pin_name(link.sense.pin),
+            vil.basis,
+            at_text(cx, point),
+            link.margins_text(),
+        );
+        out.push(
+            link.finding(cx, &LOW_MARGIN, message, point)
+                .help("use a driver that pulls lower, a receiver with a higher low threshold, or a level shifter"),
+        );
+    }
+}
+
+fn check_contention(cx: &Context, out: &mut Vec<Finding>) {
+    let circuit = cx.circuit;
+    for node in &circuit.nodes {
+        let outputs: Vec<PinRef> = node
+            .nets
+            .iter()
+            .flat_map(|&n| cx.plan.nets[n].pins.iter().copied())
+            .filter(|&p| role_of(cx, p) == PinRole::LogicOut)
+            .collect();
+        let [first, second, ..] = outputs.as_slice() else {
+            continue;
+        };
+        let names: Vec<String> = outputs.iter().map(|&p| cx.pin_name(p)).collect();
+        let nets: Vec<String> = node
+            .nets
+            .iter()
+            .map(|&n| cx.net_name(n).to_string())
+            .collect();
+        let mut finding = Finding::new(
+            &CONTENTION,
+            cx.pin_span(*second),
+            format!(
+                "push-pull outputs {} {} drive {}: whenever they disagree, one output shorts the other's rail to ground",
+                quoted(&names),
+                if outputs.len() == 2 { "both" } else { "all" },
+                quoted(&nets)
+            ),
+        )
+        .label(cx.pin_span(*first), "other output")
+        .help("wire each output to an input (a serial link crosses TX to RX), or make all but one of them inputs");
+        for &p in &outputs {
+            finding = finding.part(cx.part_name(p.part));
+        }
+        for net in &nets {
+            finding = finding.net(net);
+        }
+        out.push(finding);
+    }
+}
+
+fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
+    for signal in signals(cx) {
+        let inputs: Vec<PinRef> = signal
+            .pins
+            .iter()
+            .copied()
+            .filter(|&p| role_of(cx, p) == PinRole::LogicIn)
+            .collect();
+        let Some(&first) = inputs.first() else {
+            continue;
+        };
+        let count = |role: PinRole| {
+            signal
+                .pins
+                .iter()
+                .filter(|&&p| role_of(cx, p) == role)
+                .count()
+        };
+        let push_pull = count(PinRole::LogicOut) + count(PinRole::LogicIo) + signal.other_drivers;
+        let open_drain: Vec<PinRef> = signal
+            .pins
+            .iter()
+            .copied()
+            .filter(|&p| role_of(cx, p) == PinRole::OpenDrain)
+            .collect();
+        let pulled = !signal.pull_ups.is_empty() || !signal.pull_downs.is_empty();
+        let names: Vec<String> = inputs.iter().map(|&p| cx.pin_name(p)).collect();
+        let nets: Vec<String> = signal
+            .nets
+            .iter()
+            .map(|&n| cx.net_name(n).to_string())
+            .collect();
+        let message = if push_pull > 0 {
+            continue;
+        } else if open_drain.is_empty() {
+            if pulled {
+                continue;
+            }
+            let (they, read) = if inputs.len() == 1 {
+                ("it floats", "reads")
+            } else {
+                ("they float", "read")
+            };
+            format!(
+                "nothing drives {} on {}: no output and no pull resistor, so {they} and {read} noise",
+                quoted(&names),
+                quoted(&nets),
+            )
+        } else if signal.pull_ups.is_empty() {
+            let drivers: Vec<String> = open_drain.iter().map(|&p| cx.pin_name(p)).collect();
+            format!(
+                "{} on {} {} driven only by open-drain {} and nothing pulls the line high: {} whenever the output lets go",
+                quoted(&names),
+                quoted(&nets),
+                if inputs.len() == 1 { "is" } else { "are" },
+                quoted(&drivers),
+                if inputs.len() == 1 {
+                    "it floats"
+                } else {
+                    "they float"
+                },
+            )
+        } else {
+            continue;
+        };
+        let mut finding = Finding::new(&UNDRIVEN, cx.pin_span(first), message).help(
+            if open_drain.is_empty() {
+                "wire an output to it (a serial link crosses TX to RX), or add a pull-up or pull-down resistor to fix its idle level"
+            } else {
+                "add a pull-up resistor from the signal to the receiver's rail"
+            },
+        );
+        for &p in inputs.iter().chain(&open_drain) {
+            finding = finding.part(cx.part_name(p.part));
+        }
+        for net in &nets {
+            finding = finding.net(net);
+        }
+        out.push(finding);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn at(family: LogicFamily, vdd: f64) -> [f64; 4] {
+        let l = family_levels(family);
+        let vdd = volts(vdd);
+        [l.vih, l.vil, l.voh, l.vol].map(|s| v(s.at(vdd)))
+    }
+
+    fn close(actual: f64, expected: f64) {
+        assert!(
+            (actual - expected).abs() < 1e-9,
+            "{actual} is not {expected}"
+        );
+    }
+
+    #[test]
+    fn family_rows_follow_the_published_levels() {
+        // Reference sheet §4 / W14: HC at 5.0 V → VIH 3.50, VIL 1.50, VOH 4.90.
+        let [vih, vil, voh, vol] = at(LogicFamily::Cmos5, 5.0);
+        for (actual, expected) in [(vih, 3.5), (vil, 1.5), (voh, 4.9), (vol, 0.1)] {
+            close(actual, expected);
+        }
+        // JESD8-7 at 1.8 V (W14): VIH 1.17, VIL 0.630, VOH 1.35, VOL 0.45.
+        let [vih, vil, voh, vol] = at(LogicFamily::Lvcmos18, 1.8);
+        for (actual, expected) in [(vih, 1.17), (vil, 0.63), (voh, 1.35), (vol, 0.45)] {
+            close(actual, expected);
+        }
+        // JESD8C LVCMOS at VDD = 3.0 V: VOH = 2.80 V (reference sheet §4).
+        close(at(LogicFamily::Lvcmos33, 3.0)[2], 2.8);
+        // TTL levels do not move with VDD (54/74 family).
+        assert_eq!(at(LogicFamily::Ttl5, 4.5), at(LogicFamily::Ttl5, 5.5));
+    }
+
+    #[test]
+    fn margins_fail_only_past_the_tolerance() {
+        let some = |x: f64| Some(volts(x));
+        // W14: 2.80 V into VIH 3.50 V → NMH −0.70 V, fails.
+        let verdict = judge(
+            some(2.8),
+            some(0.2),
+            some(3.0),
+            some(3.5),
+            some(1.5),
+            some(5.3),
+        );
+        close(v(verdict.high_margin.expect("nmh")), -0.7);
+        close(v(verdict.low_margin.expect("nml")), 1.3);
+        assert!(verdict.high_fails && !verdict.low_fails && !verdict.over_ceiling);
+        // Equal levels are a zero margin, not a failure (contract §6, 0.1 %).
+        let verdict = judge(
+            some(2.0),
+            some(0.8),
+            some(3.6),
+            some(2.0),
+            some(0.8),
+            some(3.6),
+        );
+        assert!(!verdict.high_fails && !verdict.low_fails && !verdict.over_ceiling);
+        // W14: 5.0 V into a 3.6 V ceiling.
+        assert!(judge(None, None, some(5.0), None, None, some(3.6)).over_ceiling);
+    }
+}

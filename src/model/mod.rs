@@ -5,9 +5,11 @@
 //! `library` supplies the generic parts that plans `use`. Nothing here computes
 //! currents or voltages: that is `analysis`.
 
+mod levels;
 mod library;
 mod read;
 
+pub use levels::{FamilyLevels, Scale};
 pub use library::{Library, LibraryError};
 pub use read::read_plan;
 

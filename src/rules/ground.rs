@@ -1,5 +1,7 @@
 //! Ground topology: every part's ground must reach a battery negative, and
-//! parts that exchange signals must share a ground.
+//! parts that exchange signals must share a ground; and, on the operating
+//! point, how far return current shifts a logic receiver's ground from its
+//! driver's.
 
 use super::{Context, Finding, Rule, RuleDoc, Severity};
 use crate::model::{Class, PinRole};
@@ -133,18 +135,294 @@ fn check_not_shared(cx: &Context, out: &mut Vec<Finding>) {
     }
 }
 
-/// STUB: to be written with the wire rules.
+// ----- ground/offset ---------------------------------------------------------
+//
+// What a "shared ground wire" is in this model: every part on a ground net
+// sits at the load end of that net's one conductor, so two parts on the same
+// ground net see no offset between them. An offset appears between parts whose
+// grounds are on different ground nets of one tree (branches joined through
+// connector contacts or a switch) or at different ends of a USB cable: the
+// nets between the two grounds carry the return current of every part below
+// them — motors included — and the receiver's ground rises or falls against
+// the driver's by that current times those nets' resistance.
+
+use super::{exceeds, mode_label, worst_point};
+use crate::analysis::{OperatingPoint, usb_link_resistance};
+use crate::model::{LogicFamily, NetId, PartId, PinRef};
+use crate::units::show_voltage;
+use uom::si::electric_potential::volt;
+use uom::si::f64::ElectricPotential;
+
 pub const OFFSET: Rule = Rule {
     id: "ground/offset",
     severity: Severity::Warning,
     summary: "return current through a shared ground wire shifts a logic receiver's ground by more than half the link's noise margin",
     doc: RuleDoc {
-        what: "",
-        why: "",
-        example: "",
-        fix: "",
-        references: "",
+        what: "For each logic signal, the difference between the driver's ground and the receiver's ground — the drop that return current makes on the ground nets between them — against half the smaller noise margin of the link (NMH = driver VOH − receiver VIH, NML = receiver VIL − driver VOL, from the pins' families at the rails' voltages, or their explicit levels). Checked in every mode, `worst` included, at every battery state: a logic input misreads during a motor's start-up surge as readily as in steady running. Parts on one ground net sit at the same point of the model (the net's far end), so the offset shows between grounds on different ground nets: draw the motor return and the logic return as the separate wires they are, joined where they meet (a connector contact or terminal block at the battery negative).",
+        why: "A logic level is a voltage against the receiver's own ground. When motor current returns through a wire that also carries the logic ground, the receiver's ground lifts by I × R and eats into the noise margin: encoder counts are lost, a driver input sees a phantom edge, a controller resets.",
+        example: "nets:\n  BATT-:     [pack.neg, term.a1, term.a2]\n  LOGIC_GND: [term.b1, mcu.gnd]\n  MOTOR_GND: { pins: [term.b2, motor.gnd, sensor.gnd], wire: 26 AWG, length: 0.5 m }   # 3 A: 0.201 V\n  SIG:       [mcu.out, sensor.in]   # TTL, 0.4 V margin: over half of it",
+        fix: "nets:\n  LOGIC_GND: [term.b1, mcu.gnd, sensor.gnd]   # the sensor's ground on the logic return\n  MOTOR_GND: { pins: [term.b2, motor.gnd], wire: 22 AWG, length: 0.5 m }",
+        references: "Noise margins NMH = VOH − VIH, NML = VIL − VOL, and ground offset counting against them: reference sheet §4 and worked example W14 (warn above 50 % of the margin, common practice); family levels per JEDEC JESD8 and 54/74 TTL (format contract §3); wire resistance from the ASTM B258 gauge formula (§1).",
     },
     needs_operating_point: true,
-    check: |_, _| {},
+    check: check_offset,
 };
+
+/// Logic levels of one pin at one point; `None` where the pin has no such level.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+struct Levels {
+    voh: Option<ElectricPotential>,
+    vol: Option<ElectricPotential>,
+    vih: Option<ElectricPotential>,
+    vil: Option<ElectricPotential>,
+}
+
+/// A family's thresholds at a supply voltage (format contract §3 table);
+/// without a reference rail the family's nominal supply.
+fn family_levels(family: LogicFamily, vdd: Option<ElectricPotential>) -> Levels {
+    let table = family.levels();
+    let vdd = vdd.unwrap_or(ElectricPotential::new::<volt>(table.nominal_vdd));
+    Levels {
+        voh: Some(table.voh.at(vdd)),
+        vol: Some(table.vol.at(vdd)),
+        vih: Some(table.vih.at(vdd)),
+        vil: Some(table.vil.at(vdd)),
+    }
+}
+
+/// A pin's levels at a point: its family at its reference rail's voltage,
+/// overridden by explicit levels.
+fn pin_levels(cx: &Context, point: &OperatingPoint, pin: PinRef) -> Option<Levels> {
+    let spec = cx.plan.parts[pin.part].pins[pin.pin].logic.as_ref()?;
+    let vdd = spec
+        .reference
+        .and_then(|r| point.pin_voltage[pin.part].get(r).copied().flatten());
+    let base = spec
+        .family
+        .map(|f| family_levels(f, vdd))
+        .unwrap_or_default();
+    Some(Levels {
+        voh: spec.voh.or(base.voh),
+        vol: spec.vol.or(base.vol),
+        vih: spec.vih.or(base.vih),
+        vil: spec.vil.or(base.vil),
+    })
+}
+
+/// Per net: the rail a pull-up resistor ties it to, if any.
+fn pull_up_rails(cx: &Context) -> Vec<Option<NetId>> {
+    let mut rails = vec![None; cx.plan.nets.len()];
+    for part in &cx.plan.parts {
+        if !matches!(part.class, Class::Resistor(_)) {
+            continue;
+        }
+        let [Some(a), Some(b)] = [0, 1].map(|i| part.pins.get(i).and_then(|p| p.net)) else {
+            continue;
+        };
+        for (signal, rail) in [(a, b), (b, a)] {
+            // A rail has a source; a series resistor's far side does not.
+            let node = cx.circuit.node_of_net[rail];
+            let is_rail = !cx.circuit.nodes[node].is_ground() && cx.circuit.root[node].is_some();
+            if is_rail && rails[signal].is_none() {
+                rails[signal] = Some(rail);
+            }
+        }
+    }
+    rails
+}
+
+/// Where a part's ground sits at a point: the electrical node its potential
+/// is measured in, and that potential. A part grounded only through a USB
+/// cable sits one cable-ground drop away from the part at the other end.
+fn ground_at(
+    cx: &Context,
+    point: &OperatingPoint,
+    part: PartId,
+) -> Option<(usize, ElectricPotential)> {
+    let own = |part: PartId| {
+        let net = cx.circuit.ground_net[part]?;
+        let node = cx.circuit.node_of_net[net];
+        if matches!(cx.plan.parts[part].class, Class::Battery(_)) {
+            return Some((node, ElectricPotential::new::<volt>(0.0)));
+        }
+        Some((node, point.net_potential[net]?))
+    };
+    if cx.circuit.ground_net[part].is_some() {
+        return own(part);
+    }
+    cx.plan
+        .links
+        .iter()
+        .enumerate()
+        .find_map(|(link_id, link)| {
+            let drop = usb_link_resistance(cx.plan, link_id)
+                .map_or(ElectricPotential::new::<volt>(0.0), |r| {
+                    point.link_current[link_id] * r
+                });
+            if link.device.0 == part {
+                own(link.host.0).map(|(node, v)| (node, v + drop))
+            } else if link.host.0 == part {
+                own(link.device.0).map(|(node, v)| (node, v - drop))
+            } else {
+                None
+            }
+        })
+}
+
+/// A logic link's ground offset and noise margins at one point.
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct Shift {
+    /// Receiver's ground minus driver's ground.
+    offset: ElectricPotential,
+    nmh: Option<ElectricPotential>,
+    nml: Option<ElectricPotential>,
+}
+
+impl Shift {
+    fn margin(&self) -> Option<ElectricPotential> {
+        match (self.nmh, self.nml) {
+            (Some(h), Some(l)) => Some(h.min(l)),
+            (h, l) => h.or(l),
+        }
+    }
+
+    /// The offset as a share of half the margin; `None` when the margin is
+    /// already gone (the logic rules report that).
+    fn severity(&self) -> Option<f64> {
+        let half = self.margin()?.get::<volt>() / 2.0;
+        (half > 0.0).then(|| self.offset.get::<volt>().abs() / half)
+    }
+}
+
+fn shift_at(
+    cx: &Context,
+    point: &OperatingPoint,
+    pull_up: Option<NetId>,
+    driver: PinRef,
+    receiver: PinRef,
+) -> Option<Shift> {
+    let (driver_node, driver_ground) = ground_at(cx, point, driver.part)?;
+    let (receiver_node, receiver_ground) = ground_at(cx, point, receiver.part)?;
+    if driver_node != receiver_node {
+        return None;
+    }
+    let mut out = pin_levels(cx, point, driver)?;
+    let input = pin_levels(cx, point, receiver)?;
+    if cx.plan.parts[driver.part].pins[driver.pin].role == PinRole::OpenDrain {
+        // Its high level is the pull-up's rail, seen from the driver's ground.
+        out.voh = pull_up
+            .and_then(|rail| point.net_potential[rail])
+            .map(|rail| rail - driver_ground);
+    }
+    let difference = |a: Option<ElectricPotential>, b: Option<ElectricPotential>| Some(a? - b?);
+    Some(Shift {
+        offset: receiver_ground - driver_ground,
+        nmh: difference(out.voh, input.vih),
+        nml: difference(input.vil, out.vol),
+    })
+}
+
+fn ground_name(cx: &Context, part: PartId) -> String {
+    match cx.circuit.ground_net[part] {
+        Some(net) => format!("net `{}`", cx.net_name(net)),
+        None => "through its USB cable".to_string(),
+    }
+}
+
+fn check_offset(cx: &Context, out: &mut Vec<Finding>) {
+    let plan = cx.plan;
+    let pull_ups = pull_up_rails(cx);
+    for (net_id, net) in plan.nets.iter().enumerate() {
+        let logic = |roles: &[PinRole]| -> Vec<PinRef> {
+            net.pins
+                .iter()
+                .copied()
+                .filter(|p| roles.contains(&plan.parts[p.part].pins[p.pin].role))
+                .collect()
+        };
+        let drivers = logic(&[PinRole::LogicOut, PinRole::OpenDrain, PinRole::LogicIo]);
+        let receivers = logic(&[PinRole::LogicIn, PinRole::LogicIo]);
+        // One finding per pair of parts on a net: the worse direction.
+        let mut worst: Vec<(PinRef, PinRef, &OperatingPoint, f64)> = Vec::new();
+        for &driver in &drivers {
+            for &receiver in &receivers {
+                if driver.part == receiver.part {
+                    continue;
+                }
+                let Some((point, severity)) = worst_point(cx.points(), |p| {
+                    shift_at(cx, p, pull_ups[net_id], driver, receiver).and_then(|s| s.severity())
+                }) else {
+                    continue;
+                };
+                let key = (
+                    driver.part.min(receiver.part),
+                    driver.part.max(receiver.part),
+                );
+                match worst
+                    .iter_mut()
+                    .find(|(d, r, _, _)| (d.part.min(r.part), d.part.max(r.part)) == key)
+                {
+                    Some(entry) if entry.3 + 1e-12 < severity => {
+                        *entry = (driver, receiver, point, severity);
+                    }
+                    Some(_) => {}
+                    None => worst.push((driver, receiver, point, severity)),
+                }
+            }
+        }
+        for (driver, receiver, point, _) in worst {
+            let Some(shift) = shift_at(cx, point, pull_ups[net_id], driver, receiver) else {
+                continue;
+            };
+            let Some(margin) = shift.margin() else {
+                continue;
+            };
+            let half = margin / 2.0;
+            let offset = shift.offset.get::<volt>();
+            if !exceeds(offset.abs(), half.get::<volt>()) {
+                continue;
+            }
+            let show = |v: Option<ElectricPotential>| v.map_or("—".to_string(), show_voltage);
+            let mut finding = Finding::new(
+                &OFFSET,
+                cx.pin_span(receiver),
+                format!(
+                    "the ground of `{}` ({}) sits {} {} that of `{}` ({}) {}: more than half the {} noise margin of `{}` → `{}` (NMH {}, NML {})",
+                    cx.part_name(receiver.part),
+                    ground_name(cx, receiver.part),
+                    show_voltage(shift.offset.abs()),
+                    if offset >= 0.0 { "above" } else { "below" },
+                    cx.part_name(driver.part),
+                    ground_name(cx, driver.part),
+                    mode_label(plan, point.mode, point.battery),
+                    show_voltage(margin),
+                    cx.pin_name(driver),
+                    cx.pin_name(receiver),
+                    show(shift.nmh),
+                    show(shift.nml),
+                ),
+            )
+            .at_point(plan, point)
+            .label(cx.pin_span(driver), "driven from here")
+            .help("give the logic its own ground return that meets the motor return only at the battery negative, use a heavier ground wire, or choose logic levels with more margin")
+            .part(cx.part_name(driver.part))
+            .part(cx.part_name(receiver.part))
+            .net(&net.name)
+            .value("offset", offset)
+            .value("margin", margin.get::<volt>())
+            .value("limit", half.get::<volt>());
+            if let Some(h) = shift.nmh {
+                finding = finding.value("nmh", h.get::<volt>());
+            }
+            if let Some(l) = shift.nml {
+                finding = finding.value("nml", l.get::<volt>());
+            }
+            for part in [receiver.part, driver.part] {
+                if let Some(g) = cx.circuit.ground_net[part] {
+                    finding = finding.net(cx.net_name(g));
+                }
+            }
+            out.push(finding);
+        }
+    }
+}

@@ -20,6 +20,7 @@ use super::{
 };
 use crate::analysis::{Corner, OperatingPoint};
 use crate::model::{Class, LogicFamily, LogicSpec, NetId, PartId, PinRef, PinRole};
+use crate::model::{FamilyLevels, Scale};
 use crate::units::show_voltage;
 use petgraph::unionfind::UnionFind;
 use uom::si::electric_potential::volt;
@@ -101,68 +102,6 @@ pub const UNDRIVEN: Rule = Rule {
 };
 
 // ----- levels, worked out without the plan ---------------------------------
-
-/// How a family sets one level: fixed, a share of VDD, or VDD less an offset.
-#[derive(Clone, Copy, Debug, PartialEq)]
-enum Scale {
-    Fixed(f64),
-    Share(f64),
-    BelowVdd(f64),
-}
-
-impl Scale {
-    fn at(self, vdd: ElectricPotential) -> ElectricPotential {
-        match self {
-            Scale::Fixed(v) => volts(v),
-            Scale::Share(k) => vdd * k,
-            Scale::BelowVdd(d) => vdd - volts(d),
-        }
-    }
-
-    fn follows_vdd(self) -> bool {
-        !matches!(self, Scale::Fixed(_))
-    }
-
-    /// As the family table writes it (`0.7 × VDD`, `VDD − 0.2 V`, `0.8 V`).
-    fn formula(self) -> String {
-        match self {
-            Scale::Fixed(v) => format!("{v} V"),
-            Scale::Share(k) => format!("{k} × VDD"),
-            Scale::BelowVdd(d) => format!("VDD − {d} V"),
-        }
-    }
-}
-
-/// One family's row of the contract §3 table.
-#[derive(Clone, Copy, Debug)]
-struct FamilyLevels {
-    nominal_vdd: f64,
-    vih: Scale,
-    vil: Scale,
-    voh: Scale,
-    vol: Scale,
-}
-
-/// Contract §3: 54/74 TTL; JEDEC JESD7 (HC, from memory); JESD8C (LVTTL,
-/// LVCMOS 3.3 V); JESD8-5 (2.5 V); JESD8-7 (1.8 V).
-fn family_levels(family: LogicFamily) -> FamilyLevels {
-    use Scale::{BelowVdd, Fixed, Share};
-    let (nominal_vdd, vih, vil, voh, vol) = match family {
-        LogicFamily::Ttl5 => (5.0, Fixed(2.0), Fixed(0.8), Fixed(2.4), Fixed(0.4)),
-        LogicFamily::Cmos5 => (5.0, Share(0.7), Share(0.3), BelowVdd(0.1), Fixed(0.1)),
-        LogicFamily::Lvttl33 => (3.3, Fixed(2.0), Fixed(0.8), Fixed(2.4), Fixed(0.4)),
-        LogicFamily::Lvcmos33 => (3.3, Fixed(2.0), Fixed(0.8), BelowVdd(0.2), Fixed(0.2)),
-        LogicFamily::Lvcmos25 => (2.5, Fixed(1.7), Fixed(0.7), Fixed(2.0), Fixed(0.4)),
-        LogicFamily::Lvcmos18 => (1.8, Share(0.65), Share(0.35), BelowVdd(0.45), Fixed(0.45)),
-    };
-    FamilyLevels {
-        nominal_vdd,
-        vih,
-        vil,
-        voh,
-        vol,
-    }
-}
 
 fn family_name(family: LogicFamily) -> &'static str {
     LogicFamily::ALL
@@ -461,7 +400,7 @@ fn pin_rail<'p>(cx: &'p Context, pin: PinRef, spec: &LogicSpec) -> PinRail<'p> {
         };
     }
     match spec.family {
-        Some(family) => PinRail::Known(Rail::nominal(volts(family_levels(family).nominal_vdd))),
+        Some(family) => PinRail::Known(Rail::nominal(volts(family.levels().nominal_vdd))),
         None => PinRail::Unknown,
     }
 }
@@ -666,7 +605,7 @@ struct Drive<'p> {
 /// worst at the lowest, VOL and the highest output at the highest.
 fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) -> Drive<'p> {
     let spec = &side.spec;
-    let family = spec.family.map(|f| (f, family_levels(f)));
+    let family = spec.family.map(|f| (f, f.levels()));
     let written_vol = spec.vol.map(|value| Level::written(value, "vol"));
     let Source::Pin(pin) = side.source else {
         // A pull-up or a tie only sets the highest level.
@@ -773,7 +712,7 @@ struct Sense<'p> {
 /// is worst at the highest, VIL and the ceiling at the lowest.
 fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
     let spec = &side.spec;
-    let family = spec.family.map(|f| (f, family_levels(f)));
+    let family = spec.family.map(|f| (f, f.levels()));
     let rail = side.rail.as_ref().zip(ends);
     let threshold = |written: Option<ElectricPotential>,
                      key: &str,
@@ -1270,7 +1209,7 @@ mod tests {
     use super::*;
 
     fn at(family: LogicFamily, vdd: f64) -> [f64; 4] {
-        let l = family_levels(family);
+        let l = family.levels();
         let vdd = volts(vdd);
         [l.vih, l.vil, l.voh, l.vol].map(|s| v(s.at(vdd)))
     }

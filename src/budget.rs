@@ -116,6 +116,17 @@ fn lowest<T: Copy + PartialOrd>(
         })
 }
 
+/// The mean of a measure over the points where it is defined.
+fn mean<T>(points: &[&OperatingPoint], measure: impl Fn(&OperatingPoint) -> Option<T>) -> Option<T>
+where
+    T: Copy + std::ops::Add<Output = T> + std::ops::Div<f64, Output = T>,
+{
+    let values: Vec<T> = points.iter().filter_map(|p| measure(p)).collect();
+    let first = *values.first()?;
+    let sum = values[1..].iter().fold(first, |acc, &v| acc + v);
+    Some(sum / values.len() as f64)
+}
+
 pub fn budget(checked: &Checked) -> Budget {
     let plan = &checked.plan;
     let circuit = &checked.circuit;
@@ -145,25 +156,27 @@ pub fn budget(checked: &Checked) -> Budget {
         let current = |p: &OperatingPoint| Some(p.net_current[root]);
         let (peak_current, peak_mode) =
             highest(&points, |_| true, current).unwrap_or((zero_i, ModeId::TYPICAL));
-        let typical_current =
-            highest(&points, typical(BatteryState::Nominal), current).map_or(zero_i, |v| v.0);
-        // Nominal: midway between the regulators' tolerance corners.
-        let voltage_nominal = {
-            let hi =
-                highest(&points, typical(BatteryState::Nominal), at_source).map_or(zero_v, |v| v.0);
-            let lo = lowest(&points, typical(BatteryState::Nominal), at_source).unwrap_or(zero_v);
-            (hi + lo) / 2.0
-        };
+        // The typical figures are means over the regulators' tolerance
+        // corners at nominal battery, all taken over the same points, so
+        // power in equals power out plus loss.
+        let nominal_points: Vec<&OperatingPoint> = points
+            .iter()
+            .copied()
+            .filter(|p| typical(BatteryState::Nominal)(p))
+            .collect();
+        let typical_current = mean(&nominal_points, |p| current(p)).unwrap_or(zero_i);
+        let voltage_nominal = mean(&nominal_points, at_source).unwrap_or(zero_v);
+        let power = mean(&nominal_points, |p| Some(at_source(p)? * p.net_current[root]))
+            .unwrap_or(zero_v * zero_i);
         let rating = match &plan.parts[part].class {
             Class::Regulator(r) => r.current.map(|c| c.value),
             Class::Battery(b) => b.max_discharge_current(),
             _ => plan.parts[part].pins[pin].current,
         };
-        let conversion_loss = highest(&points, typical(BatteryState::Nominal), |p| {
+        let conversion_loss = mean(&nominal_points, |p| {
             let r = p.regulators[part]?;
             Some(r.input_voltage * r.input_current - r.output_voltage * r.output_current)
-        })
-        .map(|v| v.0);
+        });
         let mut nets = vec![plan.nets[root].name.clone()];
         nets.extend(
             node.nets
@@ -186,7 +199,7 @@ pub fn budget(checked: &Checked) -> Budget {
             peak_current,
             peak_mode: peak_mode.name(plan).to_string(),
             rating,
-            power: voltage_nominal * typical_current,
+            power,
             conversion_loss,
         });
     }
@@ -198,13 +211,15 @@ pub fn budget(checked: &Checked) -> Budget {
         };
         let window = BatteryState::ALL.map(|s| battery_voltage(plan, part_id, s).unwrap_or(zero_v));
         let battery_current = |p: &OperatingPoint| p.batteries[part_id].map(|b| b.current);
+        // A mode's current: the mean over tolerance corners at nominal battery,
+        // as for the rails.
         let in_mode = |mode: ModeId| {
-            highest(
-                &points,
-                |p| p.mode == mode && p.battery == BatteryState::Nominal,
-                battery_current,
-            )
-            .map_or(zero_i, |v| v.0)
+            let at: Vec<&OperatingPoint> = points
+                .iter()
+                .copied()
+                .filter(|p| p.mode == mode && p.battery == BatteryState::Nominal)
+                .collect();
+            mean(&at, battery_current).unwrap_or(zero_i)
         };
         let typical_current = in_mode(ModeId::TYPICAL);
         let peak_current = highest(&points, |_| true, battery_current).map_or(zero_i, |v| v.0);

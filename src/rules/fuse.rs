@@ -462,10 +462,13 @@ fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
                 part: part_id,
                 pin: pin_id,
             };
-            let (net, what) = match first_element(cx, terminal) {
+            // The label goes on the first load's pin, or the first pin the
+            // lead branches to.
+            let (net, marked, what) = match first_element(cx, terminal) {
                 FirstElement::Fuse | FirstElement::Nothing => continue,
                 FirstElement::Load { net, pin } => (
                     net,
+                    cx.pin_span(pin),
                     format!(
                         "reaches `{}` on `{}` with no fuse in between",
                         cx.pin_name(pin),
@@ -477,8 +480,12 @@ fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
                         .iter()
                         .map(|p| format!("`{}`", cx.pin_name(*p)))
                         .collect();
+                    let marked = pins
+                        .first()
+                        .map_or(plan.nets[net].span, |p| cx.pin_span(*p));
                     (
                         net,
+                        marked,
                         format!(
                             "branches on `{}` to {} before any fuse",
                             cx.net_name(net),
@@ -505,7 +512,7 @@ fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
                     cx.pin_name(terminal)
                 ),
             )
-            .label(plan.nets[net].span, "first load or branch, unfused")
+            .label(marked, "first load or branch, unfused")
             .help(format!(
                 "make a fuse the first element on the battery positive, within 7 in (178 mm) of the terminal; {}",
                 sizing.advice(cx)

@@ -166,8 +166,10 @@ pub fn budget(checked: &Checked) -> Budget {
             .collect();
         let typical_current = mean(&nominal_points, |p| current(p)).unwrap_or(zero_i);
         let voltage_nominal = mean(&nominal_points, at_source).unwrap_or(zero_v);
-        let power = mean(&nominal_points, |p| Some(at_source(p)? * p.net_current[root]))
-            .unwrap_or(zero_v * zero_i);
+        let power = mean(&nominal_points, |p| {
+            Some(at_source(p)? * p.net_current[root])
+        })
+        .unwrap_or(zero_v * zero_i);
         let rating = match &plan.parts[part].class {
             Class::Regulator(r) => r.current.map(|c| c.value),
             Class::Battery(b) => b.max_discharge_current(),

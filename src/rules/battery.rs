@@ -47,7 +47,8 @@ fn check_discharge(cx: &Context, out: &mut Vec<Finding>) {
         let Class::Battery(battery) = &part.class else {
             continue;
         };
-        let (Some(rate), Some(limit)) = (battery.max_discharge, battery.max_discharge_current()) else {
+        let (Some(rate), Some(limit)) = (battery.max_discharge, battery.max_discharge_current())
+        else {
             continue;
         };
         let Some((point, peak)) = worst_point(cx.points(), |p| {

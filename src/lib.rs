@@ -9,6 +9,7 @@
 
 pub mod analysis;
 pub mod budget;
+pub mod diagram;
 pub mod graph;
 pub mod model;
 pub mod report;

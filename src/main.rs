@@ -42,6 +42,25 @@ enum Command {
         /// Fail on warnings too.
         #[arg(long)]
         strict: bool,
+        /// Also write the plan's block diagram to this SVG file.
+        #[arg(long, value_name = "OUT.svg")]
+        diagram: Option<PathBuf>,
+    },
+    /// Draw the plan's block diagram as SVG (or PNG) for build notes.
+    Draw {
+        #[command(flatten)]
+        plan: PlanArgs,
+        /// The SVG file to write.
+        #[arg(
+            short = 'o',
+            long = "output",
+            value_name = "OUT.svg",
+            required_unless_present = "png"
+        )]
+        output: Option<PathBuf>,
+        /// Also (or instead) write the diagram as a PNG picture.
+        #[arg(long, value_name = "OUT.png")]
+        png: Option<PathBuf>,
     },
     /// Show the power budget: per rail and per battery.
     Budget {
@@ -67,7 +86,12 @@ const EXIT_INPUT: u8 = 2;
 fn main() -> ExitCode {
     let cli = Cli::parse();
     match cli.command {
-        Command::Check { plan, strict } => check(&plan, strict),
+        Command::Check {
+            plan,
+            strict,
+            diagram,
+        } => check(&plan, strict, diagram.as_deref()),
+        Command::Draw { plan, output, png } => draw(&plan, output.as_deref(), png.as_deref()),
         Command::Budget { plan } => budget(&plan),
         Command::Rules { id } => rules(id.as_deref()),
     }
@@ -122,7 +146,7 @@ fn report_input(args: &PlanArgs, failure: &railcheck::InputFailure) -> ExitCode 
     ExitCode::from(EXIT_INPUT)
 }
 
-fn check(args: &PlanArgs, strict: bool) -> ExitCode {
+fn check(args: &PlanArgs, strict: bool, diagram: Option<&Path>) -> ExitCode {
     let checked = match load(args) {
         Ok(c) => c,
         Err(code) => return code,
@@ -143,6 +167,12 @@ fn check(args: &PlanArgs, strict: bool) -> ExitCode {
         ),
     };
     emit(&out);
+    if let Some(path) = diagram {
+        let svg = railcheck::diagram::draw(&checked);
+        if let Err(message) = write_output(path, &args.file, svg.as_bytes()) {
+            return fail(&message);
+        }
+    }
     let failing = checked
         .findings
         .iter()
@@ -152,6 +182,75 @@ fn check(args: &PlanArgs, strict: bool) -> ExitCode {
     } else {
         ExitCode::SUCCESS
     }
+}
+
+fn draw(args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode {
+    let checked = match load(args) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    let svg = railcheck::diagram::draw(&checked);
+    if let Some(path) = output
+        && let Err(message) = write_output(path, &args.file, svg.as_bytes())
+    {
+        return fail(&message);
+    }
+    if let Some(path) = png {
+        let mut options = resvg::usvg::Options::default();
+        options.fontdb_mut().load_system_fonts();
+        let written = railcheck::diagram::png(&svg, &options)
+            .map_err(|e| e.to_string())
+            .and_then(|bytes| write_output(path, &args.file, &bytes));
+        if let Err(message) = written {
+            return fail(&message);
+        }
+    }
+    ExitCode::SUCCESS
+}
+
+/// Writes a file whole or not at all: into a temporary file in the same
+/// folder, then renamed over the target. Never writes over the plan itself.
+fn write_output(path: &Path, plan: &Path, bytes: &[u8]) -> Result<(), String> {
+    if is_same_file(path, plan) {
+        return Err(format!(
+            "refusing to write the diagram over the plan {}",
+            plan.display()
+        ));
+    }
+    let folder = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p,
+        _ => Path::new("."),
+    };
+    let cannot = |e: std::io::Error| format!("cannot write {}: {e}", path.display());
+    let mut file = tempfile::NamedTempFile::new_in(folder).map_err(cannot)?;
+    file.write_all(bytes).map_err(cannot)?;
+    // A temporary file is private to its owner; a diagram is for sharing.
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        file.as_file()
+            .set_permissions(std::fs::Permissions::from_mode(0o644))
+            .map_err(cannot)?;
+    }
+    file.persist(path).map_err(|e| cannot(e.error))?;
+    Ok(())
+}
+
+/// Whether two paths name one file (through links too). A path that does
+/// not exist yet names no existing file.
+fn is_same_file(a: &Path, b: &Path) -> bool {
+    let (Ok(ma), Ok(mb)) = (std::fs::metadata(a), std::fs::metadata(b)) else {
+        return false;
+    };
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::MetadataExt;
+        if ma.dev() == mb.dev() && ma.ino() == mb.ino() {
+            return true;
+        }
+    }
+    let _ = (ma, mb);
+    matches!((a.canonicalize(), b.canonicalize()), (Ok(x), Ok(y)) if x == y)
 }
 
 fn budget(args: &PlanArgs) -> ExitCode {

@@ -1,0 +1,85 @@
+//! The block diagram of a checked plan, as SVG text for build notes.
+//!
+//! `draw` lays the parts out in columns that follow the power from the
+//! batteries through protection and conversion to the loads, draws rails,
+//! motor leads, signals and USB cables as orthogonal lines, marks grounds and
+//! findings, and adds a title block, a findings panel, a legend and the
+//! safety cautions. The steps: `content` decides what is shown, `layout`
+//! where it goes (`shape` fills in each box), `render` writes it; `text`
+//! cleans and measures labels and `style` holds the palette. `png`
+//! rasterises the SVG through the same renderer the tests use.
+//!
+//! No I/O here: the caller reads the plan, loads fonts and writes files.
+//! Not a schematic: pins are shown where nets attach, not by package.
+
+mod content;
+mod layout;
+mod render;
+mod shape;
+mod style;
+mod text;
+
+use crate::Checked;
+use std::fmt;
+
+/// The plan's block diagram as an SVG document. The same plan always gives
+/// the same bytes.
+pub fn draw(checked: &Checked) -> String {
+    let content = content::gather(checked);
+    let marker_w = layout::marker_width(content.findings.len());
+    let geometry = layout::place(&content, marker_w);
+    render::write(&content, &geometry, marker_w)
+}
+
+/// Largest PNG drawn at full scale, in pixels; a larger diagram is scaled
+/// down to this area so a plan of thousands of parts cannot exhaust memory.
+const MAX_PIXELS: f64 = 40_000_000.0;
+
+/// Why an SVG could not be turned into a PNG.
+#[derive(Debug, Clone, PartialEq, Eq)]
+pub enum PngError {
+    /// The SVG did not parse.
+    Svg(String),
+    /// The picture has no area (or is too large to allocate).
+    Size,
+    Encode(String),
+}
+
+impl fmt::Display for PngError {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match self {
+            PngError::Svg(e) => write!(f, "the diagram did not parse as SVG: {e}"),
+            PngError::Size => f.write_str("the diagram has no drawable size"),
+            PngError::Encode(e) => write!(f, "cannot encode the PNG: {e}"),
+        }
+    }
+}
+
+impl std::error::Error for PngError {}
+
+/// Renders SVG text to PNG bytes on a white background. `options` carries
+/// the fonts (the caller loads them); text without a matching font is left
+/// out, the rest still draws.
+pub fn png(svg: &str, options: &resvg::usvg::Options) -> Result<Vec<u8>, PngError> {
+    let tree =
+        resvg::usvg::Tree::from_str(svg, options).map_err(|e| PngError::Svg(e.to_string()))?;
+    let size = tree.size();
+    let area = f64::from(size.width()) * f64::from(size.height());
+    let scale = if area > MAX_PIXELS {
+        (MAX_PIXELS / area).sqrt() as f32
+    } else {
+        1.0
+    };
+    let width = (size.width() * scale).ceil() as u32;
+    let height = (size.height() * scale).ceil() as u32;
+    let mut pixmap = resvg::tiny_skia::Pixmap::new(width, height).ok_or(PngError::Size)?;
+    pixmap.fill(resvg::tiny_skia::Color::WHITE);
+    resvg::render(
+        &tree,
+        resvg::tiny_skia::Transform::from_scale(scale, scale),
+        &mut pixmap.as_mut(),
+    );
+    pixmap
+        .encode_png()
+        .map_err(|e| PngError::Encode(e.to_string()))
+}

@@ -1,0 +1,751 @@
+//! Writes the placed diagram as SVG with the `svg` crate: title block, the
+//! drawing, the findings panel, the legend and the caution footer, stacked
+//! top to bottom so none can overlap another.
+//!
+//! Every element that carries geometry is written in absolute coordinates
+//! (no transforms), and boxes, connections and labels carry a `class`, so
+//! tests can check the picture geometrically. User text only ever reaches the
+//! file as a text node or an attribute value, which the `svg` crate escapes,
+//! after `text::clean` has dropped what XML cannot hold. Not for deciding
+//! where things go: that is `layout`.
+
+use super::content::{Content, Listed, Marker, WireKind};
+use super::layout::{
+    Align, GROUND_SYMBOL, Geometry, Label, MARKER_HEIGHT, MARKER_TEXT_SIZE, PlacedMarker, Tone,
+};
+use super::style::{self, LineStyle, MarkerShape, Stage};
+use super::text;
+use crate::rules::Severity;
+use svg::Document;
+use svg::node::element::{Circle, Group, Path, Polygon, Rectangle, Text, Title};
+
+const MARGIN: f64 = 24.0;
+const MIN_WIDTH: f64 = 880.0;
+const PANEL_PAD: f64 = 10.0;
+const TITLE_SIZE: f64 = 16.0;
+const HEADING_SIZE: f64 = 12.0;
+const BODY_SIZE: f64 = 10.0;
+const LINE_STEP: f64 = 14.0;
+
+/// A number as the file writes it: at most two decimals, no trailing zeros.
+fn num(v: f64) -> String {
+    let rounded = (v * 100.0).round() / 100.0;
+    let rounded = if rounded == 0.0 { 0.0 } else { rounded };
+    let text = format!("{rounded:.2}");
+    let text = text.trim_end_matches('0').trim_end_matches('.');
+    text.to_string()
+}
+
+fn label(l: &Label, class: &str) -> Text {
+    let anchor = match l.align {
+        Align::Start => "start",
+        Align::Middle => "middle",
+        Align::End => "end",
+    };
+    let fill = match l.tone {
+        Tone::Strong => style::INK,
+        Tone::Soft => style::INK_SOFT,
+        Tone::Alarm => style::FLOATING,
+    };
+    let mut t = Text::new(l.text.clone())
+        .set("class", class)
+        .set("x", num(l.x))
+        .set("y", num(l.y))
+        .set("font-size", num(l.size))
+        .set("text-anchor", anchor)
+        .set("fill", fill);
+    if l.bold {
+        t = t.set("font-weight", "bold");
+    }
+    t
+}
+
+fn plain(x: f64, y: f64, size: f64, content: &str, bold: bool) -> Label {
+    Label {
+        x,
+        y,
+        size,
+        align: Align::Start,
+        text: content.to_string(),
+        bold,
+        tone: Tone::Strong,
+    }
+}
+
+fn stroked(path: Path, line: &LineStyle, width: f64) -> Path {
+    let mut path = path
+        .set("fill", "none")
+        .set("stroke", line.colour)
+        .set("stroke-width", num(width))
+        .set("stroke-linecap", "butt");
+    if let Some(dash) = line.dash {
+        path = path.set("stroke-dasharray", dash);
+    }
+    path
+}
+
+fn line_style(kind: WireKind) -> LineStyle {
+    match kind {
+        WireKind::Rail => style::RAIL,
+        WireKind::MotorLead => style::MOTOR_LEAD,
+        WireKind::Signal => style::SIGNAL,
+        WireKind::Cable => style::CABLE,
+    }
+}
+
+fn kind_class(kind: WireKind) -> &'static str {
+    match kind {
+        WireKind::Rail => "rail",
+        WireKind::MotorLead => "motor-lead",
+        WireKind::Signal => "signal",
+        WireKind::Cable => "cable",
+    }
+}
+
+/// A connection drawn along `d`: one stroke, or for a cable a dark band with
+/// a paper stripe down its middle.
+fn connection(d: &str, kind: WireKind, name: &str) -> Group {
+    let line = line_style(kind);
+    let class = format!("wire {}", kind_class(kind));
+    let mut group = Group::new().add(stroked(
+        Path::new()
+            .set("class", class)
+            .set("data-net", name)
+            .set("d", d),
+        &line,
+        line.width,
+    ));
+    if let Some(core) = line.core {
+        let stripe = LineStyle {
+            colour: style::PAPER,
+            ..line
+        };
+        group = group.add(stroked(
+            Path::new().set("class", "wire-core").set("d", d),
+            &stripe,
+            core,
+        ));
+    }
+    group
+}
+
+fn segments_path(segments: &[[f64; 4]], dx: f64, dy: f64) -> String {
+    let mut d = String::new();
+    for [x1, y1, x2, y2] in segments {
+        if !d.is_empty() {
+            d.push(' ');
+        }
+        d.push_str(&format!(
+            "M{} {} L{} {}",
+            num(x1 + dx),
+            num(y1 + dy),
+            num(x2 + dx),
+            num(y2 + dy)
+        ));
+    }
+    d
+}
+
+fn severity_class(severity: Severity) -> &'static str {
+    severity.name()
+}
+
+fn marker(m: &PlacedMarker) -> Group {
+    let look = style::marker(m.marker.severity);
+    let (x, y, w, h) = (m.x, m.y, m.width, MARKER_HEIGHT);
+    let shape: Box<dyn svg::Node> = match look.shape {
+        MarkerShape::Disc => Box::new(
+            Rectangle::new()
+                .set("x", num(x - w / 2.0))
+                .set("y", num(y - h / 2.0))
+                .set("width", num(w))
+                .set("height", num(h))
+                .set("rx", num(h / 2.0)),
+        ),
+        MarkerShape::Hexagon => {
+            let points = [
+                (x - w / 2.0, y),
+                (x - w / 2.0 + 4.0, y - h / 2.0),
+                (x + w / 2.0 - 4.0, y - h / 2.0),
+                (x + w / 2.0, y),
+                (x + w / 2.0 - 4.0, y + h / 2.0),
+                (x - w / 2.0 + 4.0, y + h / 2.0),
+            ]
+            .iter()
+            .map(|(px, py)| format!("{},{}", num(*px), num(*py)))
+            .collect::<Vec<_>>()
+            .join(" ");
+            Box::new(Polygon::new().set("points", points))
+        }
+        MarkerShape::Square => Box::new(
+            Rectangle::new()
+                .set("x", num(x - w / 2.0 + 0.5))
+                .set("y", num(y - h / 2.0 + 0.5))
+                .set("width", num(w - 1.0))
+                .set("height", num(h - 1.0)),
+        ),
+    };
+    let mut group = Group::new()
+        .set(
+            "class",
+            format!("marker {}", severity_class(m.marker.severity)),
+        )
+        .set("data-finding", m.marker.number)
+        .set("fill", look.fill)
+        .set("stroke", look.outline)
+        .set("stroke-width", "1.2");
+    group = group.add(shape);
+    group.add(
+        Text::new(m.marker.number.to_string())
+            .set("class", "marker-number")
+            .set("x", num(x))
+            .set("y", num(y + 3.0))
+            .set("font-size", num(MARKER_TEXT_SIZE))
+            .set("text-anchor", "middle")
+            .set("fill", look.number)
+            .set("stroke", "none")
+            .set("font-weight", "bold"),
+    )
+}
+
+/// A ground symbol hanging from (x, y): a stem and three shortening bars; a
+/// floating ground is a dashed stem ending in an open circle with a cross.
+fn ground_symbol(x: f64, y: f64, reaches_battery: bool) -> Path {
+    if reaches_battery {
+        let d = format!(
+            "M{x} {y} L{x} {y5} M{a1} {y5} L{b1} {y5} M{a2} {y8} L{b2} {y8} M{a3} {y11} L{b3} {y11}",
+            x = num(x),
+            y = num(y),
+            y5 = num(y + 5.0),
+            y8 = num(y + 8.5),
+            y11 = num(y + 12.0),
+            a1 = num(x - 6.0),
+            b1 = num(x + 6.0),
+            a2 = num(x - 4.0),
+            b2 = num(x + 4.0),
+            a3 = num(x - 1.5),
+            b3 = num(x + 1.5),
+        );
+        Path::new()
+            .set("class", "ground-symbol")
+            .set("d", d)
+            .set("fill", "none")
+            .set("stroke", style::INK)
+            .set("stroke-width", "1.4")
+    } else {
+        let (cx, cy, r) = (x, y + GROUND_SYMBOL - 5.0, 4.5);
+        let k = r * 0.7;
+        let d = format!(
+            "M{x} {y} L{x} {top} M{cx} {top} A{r} {r} 0 1 0 {cx} {bottom} A{r} {r} 0 1 0 {cx} {top} M{a} {b} L{c} {e} M{a} {e} L{c} {b}",
+            x = num(x),
+            y = num(y),
+            top = num(cy - r),
+            bottom = num(cy + r),
+            cx = num(cx),
+            r = num(r),
+            a = num(cx - k),
+            b = num(cy - k),
+            c = num(cx + k),
+            e = num(cy + k),
+        );
+        Path::new()
+            .set("class", "floating-ground")
+            .set("d", d)
+            .set("fill", "none")
+            .set("stroke", style::FLOATING)
+            .set("stroke-width", "1.6")
+    }
+}
+
+/// Stacks the panels and writes the document.
+pub(crate) fn write(content: &Content, geometry: &Geometry, marker_w: f64) -> String {
+    let width = geometry.width.max(MIN_WIDTH);
+    let inner = width;
+    let mut body = Group::new().set("font-family", text::FONT_FAMILY);
+    let mut y = MARGIN;
+
+    // Title block.
+    let (title, bottom) = title_block(content, MARGIN, y, inner);
+    body = body.add(title);
+    y = (bottom + MARGIN).ceil();
+    let origin_x = MARGIN + (inner - geometry.width) / 2.0;
+    let origin_y = (y / 16.0).ceil() * 16.0;
+    body = body.add(drawing(content, geometry, origin_x, origin_y));
+    y = origin_y + geometry.height + MARGIN;
+
+    let (panel, bottom) = findings_panel(&content.findings, MARGIN, y, inner, marker_w);
+    body = body.add(panel);
+    y = bottom + MARGIN;
+    let (legend, bottom) = legend(MARGIN, y, inner, marker_w);
+    body = body.add(legend);
+    y = bottom + MARGIN;
+    let (footer, bottom) = cautions(&content.cautions, MARGIN, y, inner);
+    body = body.add(footer);
+    y = bottom + MARGIN;
+
+    let total_width = width + 2.0 * MARGIN;
+    let total_height = y.ceil();
+    let document = Document::new()
+        .set("width", num(total_width))
+        .set("height", num(total_height))
+        .set(
+            "viewBox",
+            format!("0 0 {} {}", num(total_width), num(total_height)),
+        )
+        .add(
+            Rectangle::new()
+                .set("class", "paper")
+                .set("x", 0)
+                .set("y", 0)
+                .set("width", num(total_width))
+                .set("height", num(total_height))
+                .set("fill", style::PAPER),
+        )
+        .add(body);
+    let mut out = document.to_string();
+    out.push('\n');
+    out
+}
+
+fn frame(x: f64, y: f64, width: f64, height: f64, class: &str) -> Rectangle {
+    Rectangle::new()
+        .set("class", class)
+        .set("x", num(x))
+        .set("y", num(y))
+        .set("width", num(width))
+        .set("height", num(height))
+        .set("fill", "none")
+        .set("stroke", style::RULE_LINE)
+        .set("stroke-width", "1")
+}
+
+fn cells_for(width: f64, size: f64) -> usize {
+    ((width / (text::ADVANCE_EM * size)).floor() as usize).max(8)
+}
+
+fn title_block(content: &Content, x: f64, top: f64, width: f64) -> (Group, f64) {
+    let heading = &content.heading;
+    let mut group = Group::new().set("class", "title-block");
+    let text_x = x + PANEL_PAD;
+    let text_width = width - 2.0 * PANEL_PAD;
+    let mut baseline = top + PANEL_PAD;
+    let mut lines: Vec<(String, f64, bool)> = Vec::new();
+    for line in text::wrap(&heading.name, cells_for(text_width, TITLE_SIZE)) {
+        lines.push((line, TITLE_SIZE, true));
+    }
+    let file = format!(
+        "file: {} · railcheck {}",
+        heading.file,
+        env!("CARGO_PKG_VERSION")
+    );
+    for line in text::wrap(&file, cells_for(text_width, BODY_SIZE)) {
+        lines.push((line, BODY_SIZE, false));
+    }
+    lines.push((heading.summary.clone(), BODY_SIZE, false));
+    let note = if heading.solved {
+        "Rail tags: voltage from empty to full battery in the typical mode; current typical / peak over all modes; wire size and length."
+    } else {
+        "The operating point was not solved (a short or a power loop): no voltages or currents are shown."
+    };
+    for line in text::wrap(note, cells_for(text_width, BODY_SIZE)) {
+        lines.push((line, BODY_SIZE, false));
+    }
+    let mut previous_size = 0.0;
+    for (line, size, bold) in lines {
+        baseline += if previous_size == 0.0 {
+            size
+        } else {
+            previous_size * text::DESCENT_EM + size * text::ASCENT_EM + 2.0
+        };
+        previous_size = size;
+        group = group.add(label(&plain(text_x, baseline, size, &line, bold), "title"));
+    }
+    let bottom = baseline + previous_size * text::DESCENT_EM + PANEL_PAD;
+    group = group.add(frame(x, top, width, bottom - top, "title-frame"));
+    (group, bottom)
+}
+
+fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
+    let mut wires = Group::new().set("class", "wires");
+    // Signals under power, cables on top: draw by kind.
+    let mut by_kind: Vec<usize> = (0..content.wires.len()).collect();
+    by_kind.sort_by_key(|&w| (std::cmp::Reverse(content.wires[w].kind), w));
+    for w in by_kind {
+        let wire = &content.wires[w];
+        let placed = &geometry.wires[w];
+        if placed.segments.is_empty() {
+            continue;
+        }
+        let d = segments_path(&placed.segments, dx, dy);
+        let name = text::clean(&wire.name);
+        let mut group = connection(&d, wire.kind, &name).add(Title::new(name.clone()));
+        let line = line_style(wire.kind);
+        for &(x, y) in &placed.dots {
+            group = group.add(
+                Circle::new()
+                    .set("class", "junction")
+                    .set("cx", num(x + dx))
+                    .set("cy", num(y + dy))
+                    .set("r", num(line.width.max(2.0) + 0.6))
+                    .set("fill", line.colour),
+            );
+        }
+        wires = wires.add(group);
+    }
+
+    let mut boxes = Group::new().set("class", "parts");
+    for (part, placed) in content.parts.iter().zip(&geometry.parts) {
+        let r = placed.rect;
+        let mut rect = Rectangle::new()
+            .set("class", "part-box")
+            .set("x", num(r.x + dx))
+            .set("y", num(r.y + dy))
+            .set("width", num(r.width))
+            .set("height", num(r.height))
+            .set("rx", "3")
+            .set("fill", part.stage.tint());
+        rect = if part.floating {
+            rect.set("stroke", style::FLOATING)
+                .set("stroke-width", "2.4")
+                .set("stroke-dasharray", "6 3")
+        } else {
+            rect.set("stroke", style::INK).set("stroke-width", "1.2")
+        };
+        let mut group = Group::new()
+            .set(
+                "class",
+                if part.floating {
+                    "part floating"
+                } else {
+                    "part"
+                },
+            )
+            .set("data-part", part.id.clone())
+            .add(rect);
+        for l in &placed.labels {
+            group = group.add(label(&l.shifted_by(dx, dy), "part-text"));
+        }
+        for m in &placed.markers {
+            group = group.add(marker(&m.shifted_by(dx, dy)));
+        }
+        for g in &placed.grounds {
+            group = group.add(ground_symbol(g.x + dx, g.y + dy, g.reaches_battery));
+        }
+        boxes = boxes.add(group);
+    }
+
+    let mut tags = Group::new().set("class", "tags");
+    for (tag, placed) in content.tags.iter().zip(&geometry.tags) {
+        let mut group = Group::new()
+            .set("class", if tag.ground { "tag ground" } else { "tag" })
+            .set("data-net", tag.net.clone());
+        for l in &placed.labels {
+            group = group.add(label(&l.shifted_by(dx, dy), "tag-text"));
+        }
+        for m in &placed.markers {
+            group = group.add(marker(&m.shifted_by(dx, dy)));
+        }
+        if let Some((x, y)) = placed.ground_icon {
+            group = group.add(ground_symbol(x + dx, y + dy, true));
+        }
+        tags = tags.add(group);
+    }
+    Group::new()
+        .set("class", "drawing")
+        .add(wires)
+        .add(boxes)
+        .add(tags)
+}
+
+impl Label {
+    fn shifted_by(&self, dx: f64, dy: f64) -> Label {
+        Label {
+            x: self.x + dx,
+            y: self.y + dy,
+            ..self.clone()
+        }
+    }
+}
+
+impl PlacedMarker {
+    fn shifted_by(&self, dx: f64, dy: f64) -> PlacedMarker {
+        PlacedMarker {
+            x: self.x + dx,
+            y: self.y + dy,
+            ..*self
+        }
+    }
+}
+
+fn findings_panel(
+    findings: &[Listed],
+    x: f64,
+    top: f64,
+    width: f64,
+    marker_w: f64,
+) -> (Group, f64) {
+    let mut group = Group::new().set("class", "findings-panel");
+    let mut y = top + PANEL_PAD + HEADING_SIZE;
+    group = group.add(label(
+        &plain(x + PANEL_PAD, y, HEADING_SIZE, "Findings", true),
+        "panel-heading",
+    ));
+    y += HEADING_SIZE * text::DESCENT_EM + 6.0;
+    let text_x = x + PANEL_PAD + marker_w + 8.0;
+    let cells = cells_for(x + width - PANEL_PAD - text_x, BODY_SIZE);
+    if findings.is_empty() {
+        y += BODY_SIZE;
+        group = group.add(label(
+            &plain(text_x, y, BODY_SIZE, "No findings.", false),
+            "panel-text",
+        ));
+        y += BODY_SIZE * text::DESCENT_EM;
+    }
+    for listed in findings {
+        let lines = text::wrap(
+            &format!("{} {}", listed.marker.severity.name(), listed.text),
+            cells,
+        );
+        let row_top = y + 2.0;
+        group = group.add(marker(&PlacedMarker {
+            marker: listed.marker,
+            x: x + PANEL_PAD + marker_w / 2.0,
+            y: row_top + MARKER_HEIGHT / 2.0,
+            width: marker_w,
+        }));
+        let mut baseline = row_top + 11.0;
+        for line in &lines {
+            group = group.add(label(
+                &plain(text_x, baseline, BODY_SIZE, line, false),
+                "panel-text",
+            ));
+            baseline += LINE_STEP;
+        }
+        let text_bottom = baseline - LINE_STEP + BODY_SIZE * text::DESCENT_EM;
+        y = text_bottom.max(row_top + MARKER_HEIGHT) + 3.0;
+    }
+    let bottom = y + PANEL_PAD;
+    group = group.add(frame(x, top, width, bottom - top, "panel-frame"));
+    (group, bottom)
+}
+
+/// One legend row: a sample drawing in a 56 px slot and its words.
+enum Sample {
+    Line(WireKind),
+    Junction,
+    Ground(bool),
+    Marker(Severity),
+    Tint(Stage),
+    FloatingBox,
+}
+
+fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
+    let mut rows: Vec<(Sample, &str)> = vec![
+        (
+            Sample::Line(WireKind::Rail),
+            "supply rail: heavy solid line; its tag gives name, voltage (empty–full battery), current (typical / peak) and wire",
+        ),
+        (
+            Sample::Line(WireKind::MotorLead),
+            "motor lead: heavy long dashes",
+        ),
+        (
+            Sample::Line(WireKind::Signal),
+            "logic signal: thin short dashes",
+        ),
+        (
+            Sample::Line(WireKind::Cable),
+            "USB cable: hollow band (power, data and ground together)",
+        ),
+        (
+            Sample::Junction,
+            "dot: lines joined; lines that cross without a dot do not touch",
+        ),
+        (
+            Sample::Ground(true),
+            "ground pin returning to a battery negative",
+        ),
+        (
+            Sample::Ground(false),
+            "ground that does not reach any battery negative",
+        ),
+        (
+            Sample::FloatingBox,
+            "part whose ground does not reach any battery negative (dashed outline)",
+        ),
+        (
+            Sample::Marker(Severity::Error),
+            "finding number, error: dark rounded marker",
+        ),
+        (
+            Sample::Marker(Severity::Warning),
+            "finding number, warning: mid-grey pointed marker",
+        ),
+        (
+            Sample::Marker(Severity::Note),
+            "finding number, note: light square marker",
+        ),
+    ];
+    rows.extend(Stage::ALL.map(|stage| (Sample::Tint(stage), stage.describe())));
+    let mut group = Group::new().set("class", "legend");
+    let mut y = top + PANEL_PAD + HEADING_SIZE;
+    group = group.add(label(
+        &plain(x + PANEL_PAD, y, HEADING_SIZE, "Legend", true),
+        "panel-heading",
+    ));
+    y += HEADING_SIZE * text::DESCENT_EM + 6.0;
+    let sample_x = x + PANEL_PAD;
+    let text_x = sample_x + 64.0;
+    let cells = cells_for(x + width - PANEL_PAD - text_x, BODY_SIZE);
+    for (sample, words) in rows {
+        let lines = text::wrap(words, cells);
+        let row_top = y + 2.0;
+        let mid = row_top + 8.0;
+        group = match sample {
+            Sample::Line(kind) => {
+                let d = format!(
+                    "M{} {} L{} {}",
+                    num(sample_x),
+                    num(mid),
+                    num(sample_x + 52.0),
+                    num(mid)
+                );
+                let line = line_style(kind);
+                let mut sample_group = Group::new().set("class", "legend-sample").add(stroked(
+                    Path::new().set("d", d.clone()),
+                    &line,
+                    line.width,
+                ));
+                if let Some(core) = line.core {
+                    let stripe = LineStyle {
+                        colour: style::PAPER,
+                        ..line
+                    };
+                    sample_group =
+                        sample_group.add(stroked(Path::new().set("d", d), &stripe, core));
+                }
+                group.add(sample_group)
+            }
+            Sample::Junction => group.add(
+                Group::new()
+                    .set("class", "legend-sample")
+                    .add(stroked(
+                        Path::new().set(
+                            "d",
+                            format!(
+                                "M{} {} L{} {} M{} {} L{} {}",
+                                num(sample_x),
+                                num(mid),
+                                num(sample_x + 52.0),
+                                num(mid),
+                                num(sample_x + 26.0),
+                                num(mid),
+                                num(sample_x + 26.0),
+                                num(mid + 8.0)
+                            ),
+                        ),
+                        &style::RAIL,
+                        style::RAIL.width,
+                    ))
+                    .add(
+                        Circle::new()
+                            .set("cx", num(sample_x + 26.0))
+                            .set("cy", num(mid))
+                            .set("r", num(style::RAIL.width + 0.6))
+                            .set("fill", style::RAIL.colour),
+                    ),
+            ),
+            Sample::Ground(reaches) => group.add(ground_symbol(sample_x + 26.0, row_top, reaches)),
+            Sample::Marker(severity) => group.add(marker(&PlacedMarker {
+                marker: Marker {
+                    number: 1,
+                    severity,
+                },
+                x: sample_x + 26.0,
+                y: mid,
+                width: marker_w,
+            })),
+            Sample::Tint(stage) => group.add(
+                Rectangle::new()
+                    .set("class", "legend-sample")
+                    .set("x", num(sample_x + 8.0))
+                    .set("y", num(row_top + 1.0))
+                    .set("width", "36")
+                    .set("height", "14")
+                    .set("rx", "3")
+                    .set("fill", stage.tint())
+                    .set("stroke", style::INK)
+                    .set("stroke-width", "1.2"),
+            ),
+            Sample::FloatingBox => group.add(
+                Rectangle::new()
+                    .set("class", "legend-sample")
+                    .set("x", num(sample_x + 8.0))
+                    .set("y", num(row_top + 1.0))
+                    .set("width", "36")
+                    .set("height", "14")
+                    .set("rx", "3")
+                    .set("fill", Stage::Load.tint())
+                    .set("stroke", style::FLOATING)
+                    .set("stroke-width", "2.4")
+                    .set("stroke-dasharray", "6 3"),
+            ),
+        };
+        let mut baseline = row_top + 11.0;
+        for line in &lines {
+            group = group.add(label(
+                &plain(text_x, baseline, BODY_SIZE, line, false),
+                "legend-text",
+            ));
+            baseline += LINE_STEP;
+        }
+        let text_bottom = baseline - LINE_STEP + BODY_SIZE * text::DESCENT_EM;
+        y = text_bottom.max(row_top + 16.0) + 4.0;
+    }
+    let bottom = y + PANEL_PAD;
+    group = group.add(frame(x, top, width, bottom - top, "panel-frame"));
+    (group, bottom)
+}
+
+fn cautions(cautions: &[String], x: f64, top: f64, width: f64) -> (Group, f64) {
+    let mut group = Group::new().set("class", "cautions");
+    let mut y = top + PANEL_PAD + HEADING_SIZE;
+    group = group.add(label(
+        &plain(x + PANEL_PAD, y, HEADING_SIZE, "Safety", true),
+        "panel-heading",
+    ));
+    y += HEADING_SIZE * text::DESCENT_EM + 4.0;
+    let text_x = x + PANEL_PAD + 14.0;
+    let cells = cells_for(x + width - PANEL_PAD - text_x, BODY_SIZE);
+    for caution in cautions {
+        let mut baseline = y + 12.0;
+        group = group.add(label(
+            &plain(x + PANEL_PAD, baseline, BODY_SIZE, "•", false),
+            "caution-text",
+        ));
+        for line in text::wrap(caution, cells) {
+            group = group.add(label(
+                &plain(text_x, baseline, BODY_SIZE, &line, false),
+                "caution-text",
+            ));
+            baseline += LINE_STEP;
+        }
+        y = baseline - LINE_STEP + BODY_SIZE * text::DESCENT_EM + 3.0;
+    }
+    let bottom = y + PANEL_PAD;
+    group = group.add(frame(x, top, width, bottom - top, "panel-frame"));
+    (group, bottom)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::num;
+
+    #[test]
+    fn numbers_are_short_and_stable() {
+        assert_eq!(num(12.0), "12");
+        assert_eq!(num(12.5), "12.5");
+        assert_eq!(num(1.0 / 3.0), "0.33");
+        assert_eq!(num(-0.001), "0");
+    }
+}

@@ -1,0 +1,198 @@
+//! Label text for the diagram: cleaning user text into something an XML file
+//! can carry, and estimating how much room a label takes so the layout can
+//! keep labels apart. Not for escaping (the `svg` crate escapes markup) and
+//! not for measuring real glyphs: the estimate is deliberately generous.
+
+/// The font the diagram asks for. A monospace face makes a label's width a
+/// matter of counting characters.
+pub(crate) const FONT_FAMILY: &str = "DejaVu Sans Mono, monospace";
+
+/// Advance of one character cell as a share of the font size. Monospace faces
+/// advance 0.60 em (common practice); 0.62 leaves room for a fallback face.
+pub(crate) const ADVANCE_EM: f64 = 0.62;
+/// Room above the baseline, as a share of the font size (ascenders and
+/// accents stay below 1 em in common faces).
+pub(crate) const ASCENT_EM: f64 = 1.0;
+/// Room below the baseline for descenders.
+pub(crate) const DESCENT_EM: f64 = 0.25;
+
+/// User text made safe to put in XML and on one line: characters XML 1.0
+/// does not allow (control characters, U+FFFE, U+FFFF) and the invisible
+/// direction overrides that could make a label read differently from what it
+/// is are dropped; line breaks and tabs become spaces; runs of spaces shrink
+/// to one.
+pub(crate) fn clean(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    let mut last_space = true;
+    for c in text.chars() {
+        let c = match c {
+            '\t' | '\n' | '\r' => ' ',
+            c if is_dropped(c) => continue,
+            c => c,
+        };
+        if c == ' ' {
+            if last_space {
+                continue;
+            }
+            last_space = true;
+        } else {
+            last_space = false;
+        }
+        out.push(c);
+    }
+    while out.ends_with(' ') {
+        out.pop();
+    }
+    out
+}
+
+fn is_dropped(c: char) -> bool {
+    // XML 1.0 §2.2 `Char`: #x9 | #xA | #xD | [#x20-#xD7FF] | [#xE000-#xFFFD] |
+    // [#x10000-#x10FFFF]; C1 controls are allowed but discouraged there.
+    let code = u32::from(c);
+    code < 0x20
+        || (0x7f..=0x9f).contains(&code)
+        || code == 0xfffe
+        || code == 0xffff
+        // Bidirectional embeddings, overrides and isolates.
+        || (0x202a..=0x202e).contains(&code)
+        || (0x2066..=0x2069).contains(&code)
+}
+
+/// How many character cells a text takes: wide East Asian characters and
+/// emoji take two.
+pub(crate) fn cells(text: &str) -> usize {
+    text.chars().map(|c| if is_wide(c) { 2 } else { 1 }).sum()
+}
+
+fn is_wide(c: char) -> bool {
+    let code = u32::from(c);
+    matches!(code,
+        0x1100..=0x115f
+        | 0x2e80..=0xa4cf
+        | 0xac00..=0xd7a3
+        | 0xf900..=0xfaff
+        | 0xfe30..=0xfe4f
+        | 0xff00..=0xff60
+        | 0xffe0..=0xffe6
+        | 0x1f300..=0x1f64f
+        | 0x1f900..=0x1f9ff
+        | 0x20000..=0x3fffd)
+}
+
+/// Width of a label at a font size.
+pub(crate) fn width(text: &str, size: f64) -> f64 {
+    cells(text) as f64 * ADVANCE_EM * size
+}
+
+/// The text cut to at most `max_cells` cells, ending in `…` when cut.
+pub(crate) fn truncate(text: &str, max_cells: usize) -> String {
+    if cells(text) <= max_cells {
+        return text.to_string();
+    }
+    let mut out = String::new();
+    let mut used = 0;
+    for c in text.chars() {
+        let w = if is_wide(c) { 2 } else { 1 };
+        if used + w + 1 > max_cells {
+            break;
+        }
+        used += w;
+        out.push(c);
+    }
+    out.push('…');
+    out
+}
+
+/// The text broken into lines of at most `max_cells` cells, at spaces where
+/// possible; a word longer than a line is cut.
+pub(crate) fn wrap(text: &str, max_cells: usize) -> Vec<String> {
+    let max_cells = max_cells.max(8);
+    let mut lines = Vec::new();
+    let mut line = String::new();
+    for word in text.split(' ').filter(|w| !w.is_empty()) {
+        let mut word = word.to_string();
+        loop {
+            let needed = if line.is_empty() {
+                cells(&word)
+            } else {
+                cells(&line) + 1 + cells(&word)
+            };
+            if needed <= max_cells {
+                if !line.is_empty() {
+                    line.push(' ');
+                }
+                line.push_str(&word);
+                break;
+            }
+            if !line.is_empty() {
+                lines.push(std::mem::take(&mut line));
+                continue;
+            }
+            // A word longer than a whole line: cut it.
+            let (head, tail) = split_at_cells(&word, max_cells);
+            lines.push(head);
+            word = tail;
+            if word.is_empty() {
+                break;
+            }
+        }
+    }
+    if !line.is_empty() {
+        lines.push(line);
+    }
+    if lines.is_empty() {
+        lines.push(String::new());
+    }
+    lines
+}
+
+fn split_at_cells(text: &str, max_cells: usize) -> (String, String) {
+    let mut used = 0;
+    for (i, c) in text.char_indices() {
+        let w = if is_wide(c) { 2 } else { 1 };
+        if used + w > max_cells {
+            return (text[..i].to_string(), text[i..].to_string());
+        }
+        used += w;
+    }
+    (text.to_string(), String::new())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn clean_keeps_only_characters_xml_allows() {
+        // XML 1.0 §2.2: U+0001 and U+FFFF are not characters a document may hold.
+        assert_eq!(clean("a\u{1}b\u{ffff}c"), "abc");
+        assert_eq!(clean("two\nlines\tand  tabs "), "two lines and tabs");
+        assert_eq!(clean("rail \u{202e}V5"), "rail V5");
+        assert_eq!(clean("5 V ±2 % µA Ω"), "5 V ±2 % µA Ω");
+    }
+
+    #[test]
+    fn wide_characters_take_two_cells() {
+        // Unicode East Asian Width: CJK ideographs are Wide.
+        assert_eq!(cells("ab"), 2);
+        assert_eq!(cells("电池"), 4);
+    }
+
+    #[test]
+    fn wrap_breaks_at_spaces_and_cuts_long_words() {
+        assert_eq!(wrap("one two three", 7), vec!["one two", "three"]);
+        assert_eq!(wrap("abcdefghijkl", 8), vec!["abcdefgh", "ijkl"]);
+        for line in wrap("a fairly long sentence that wraps around twice", 12) {
+            assert!(cells(&line) <= 12, "{line}");
+        }
+    }
+
+    #[test]
+    fn truncate_marks_the_cut() {
+        assert_eq!(truncate("short", 10), "short");
+        let cut = truncate("a_very_long_part_name", 10);
+        assert_eq!(cells(&cut), 10);
+        assert!(cut.ends_with('…'));
+    }
+}

@@ -1,0 +1,1160 @@
+//! The SVG block diagram, checked from the outside: every drawing is parsed
+//! by an XML parser and drawn by an SVG renderer; its geometry is read back
+//! from the file and checked (no two part boxes overlap, no label overlaps a
+//! box or another label, connections are orthogonal and never run through a
+//! box or a label); the same plan gives the same bytes; user text stays text;
+//! and the picture shows what the plan and its operating point say.
+//!
+//! Regenerate the committed example diagrams with
+//! `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test diagram`.
+
+#[path = "common/generate.rs"]
+mod generate;
+
+use railcheck::model::Library;
+use roxmltree::{Document, Node};
+use std::path::{Path, PathBuf};
+
+/// Width of a character cell as a share of the font size. The diagram asks
+/// for a monospace face; those advance 0.6 em (common practice), and 0.62
+/// leaves a margin for a fallback face.
+const ADVANCE_EM: f64 = 0.62;
+/// Room above and below the baseline, as shares of the font size: ascenders
+/// and accents stay below 0.95 em and descenders within 0.25 em in common
+/// faces (common practice).
+const ASCENT_EM: f64 = 0.95;
+const DESCENT_EM: f64 = 0.25;
+/// Touching edges are not an overlap.
+const EPS: f64 = 0.01;
+
+fn check(name: &str, text: &str) -> railcheck::Checked {
+    match railcheck::check(name, text, &Library::builtin()) {
+        Ok(c) => c,
+        Err(f) => panic!("{name}: input errors {:?}", f.errors),
+    }
+}
+
+fn draw(name: &str, text: &str) -> String {
+    railcheck::diagram::draw(&check(name, text))
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+struct Bounds {
+    x0: f64,
+    y0: f64,
+    x1: f64,
+    y1: f64,
+}
+
+impl Bounds {
+    fn overlaps(&self, o: &Bounds) -> bool {
+        self.x0 < o.x1 - EPS && o.x0 < self.x1 - EPS && self.y0 < o.y1 - EPS && o.y0 < self.y1 - EPS
+    }
+
+    fn contains(&self, o: &Bounds) -> bool {
+        o.x0 >= self.x0 - EPS
+            && o.x1 <= self.x1 + EPS
+            && o.y0 >= self.y0 - EPS
+            && o.y1 <= self.y1 + EPS
+    }
+
+    /// Whether an axis-parallel segment enters the inside of this box.
+    fn crossed_by(&self, [x1, y1, x2, y2]: [f64; 4]) -> bool {
+        let (lx, hx) = (x1.min(x2), x1.max(x2));
+        let (ly, hy) = (y1.min(y2), y1.max(y2));
+        lx < self.x1 - EPS && hx > self.x0 + EPS && ly < self.y1 - EPS && hy > self.y0 + EPS
+            || (lx == hx
+                && lx > self.x0 + EPS
+                && lx < self.x1 - EPS
+                && ly < self.y1 - EPS
+                && hy > self.y0 + EPS)
+            || (ly == hy
+                && ly > self.y0 + EPS
+                && ly < self.y1 - EPS
+                && lx < self.x1 - EPS
+                && hx > self.x0 + EPS)
+    }
+}
+
+#[derive(Debug)]
+struct Label {
+    text: String,
+    bounds: Bounds,
+    /// The part whose box group holds the label.
+    part: Option<String>,
+}
+
+struct Picture {
+    boxes: Vec<(String, Bounds)>,
+    labels: Vec<Label>,
+    /// (class, net, segment)
+    segments: Vec<(String, String, [f64; 4])>,
+}
+
+fn has_class(node: &Node, class: &str) -> bool {
+    node.attribute("class")
+        .is_some_and(|c| c.split(' ').any(|x| x == class))
+}
+
+fn number(node: &Node, name: &str) -> f64 {
+    let value = node
+        .attribute(name)
+        .unwrap_or_else(|| panic!("<{}> without {name}", node.tag_name().name()));
+    value
+        .parse()
+        .unwrap_or_else(|_| panic!("{name}={value:?} is not a number"))
+}
+
+/// A text element's content as SVG shows it: the line breaks the writer puts
+/// around it are dropped and leading and trailing spaces stripped (SVG 1.1
+/// §10.15, `xml:space="default"`).
+fn text_of(node: &Node) -> String {
+    let raw: String = node
+        .descendants()
+        .filter(|n| n.is_text())
+        .filter_map(|n| n.text())
+        .collect();
+    raw.replace('\n', "").trim().to_string()
+}
+
+/// Straight segments of a path written with absolute `M` and `L` commands.
+fn segments(d: &str) -> Vec<[f64; 4]> {
+    let mut out = Vec::new();
+    let mut tokens = d.split_whitespace().peekable();
+    let mut at = (0.0, 0.0);
+    while let Some(token) = tokens.next() {
+        let (command, first) = token.split_at(1);
+        let x: f64 = if first.is_empty() {
+            tokens.next().unwrap().parse().unwrap()
+        } else {
+            first.parse().unwrap()
+        };
+        let y: f64 = tokens.next().unwrap().parse().unwrap();
+        match command {
+            "M" => at = (x, y),
+            "L" => {
+                out.push([at.0, at.1, x, y]);
+                at = (x, y);
+            }
+            other => panic!("unexpected path command {other} in {d}"),
+        }
+    }
+    out
+}
+
+fn picture(svg: &str) -> Picture {
+    let doc = Document::parse(svg).expect("the diagram is well-formed XML");
+    let mut boxes = Vec::new();
+    let mut labels = Vec::new();
+    let mut segs = Vec::new();
+    for node in doc.descendants() {
+        if node.has_tag_name("rect") && has_class(&node, "part-box") {
+            let part = node
+                .parent()
+                .and_then(|g| g.attribute("data-part"))
+                .expect("a part box sits in its part's group")
+                .to_string();
+            let (x, y) = (number(&node, "x"), number(&node, "y"));
+            let bounds = Bounds {
+                x0: x,
+                y0: y,
+                x1: x + number(&node, "width"),
+                y1: y + number(&node, "height"),
+            };
+            boxes.push((part, bounds));
+        }
+        if node.has_tag_name("text") {
+            let text = text_of(&node);
+            let size = number(&node, "font-size");
+            let (x, y) = (number(&node, "x"), number(&node, "y"));
+            let width = text.chars().count() as f64 * ADVANCE_EM * size;
+            let x0 = match node.attribute("text-anchor") {
+                Some("middle") => x - width / 2.0,
+                Some("end") => x - width,
+                _ => x,
+            };
+            let part = node
+                .ancestors()
+                .find(|a| has_class(a, "part"))
+                .and_then(|g| g.attribute("data-part"))
+                .map(str::to_string);
+            labels.push(Label {
+                text,
+                bounds: Bounds {
+                    x0,
+                    y0: y - ASCENT_EM * size,
+                    x1: x0 + width,
+                    y1: y + DESCENT_EM * size,
+                },
+                part,
+            });
+        }
+        if node.has_tag_name("path") && has_class(&node, "wire") {
+            let class = node.attribute("class").unwrap_or_default().to_string();
+            let net = node.attribute("data-net").unwrap_or_default().to_string();
+            for s in segments(node.attribute("d").expect("a wire path has d")) {
+                segs.push((class.clone(), net.clone(), s));
+            }
+        }
+    }
+    Picture {
+        boxes,
+        labels,
+        segments: segs,
+    }
+}
+
+/// Everything the issue asks of the picture's geometry.
+fn assert_clean_geometry(svg: &str, what: &str) {
+    let pic = picture(svg);
+    assert!(!pic.boxes.is_empty(), "{what}: no part boxes");
+    for (i, (a, ba)) in pic.boxes.iter().enumerate() {
+        for (b, bb) in &pic.boxes[i + 1..] {
+            assert!(!ba.overlaps(bb), "{what}: boxes `{a}` and `{b}` overlap");
+        }
+    }
+    for label in &pic.labels {
+        for (part, bounds) in &pic.boxes {
+            if label.bounds.overlaps(bounds) {
+                assert!(
+                    bounds.contains(&label.bounds) && label.part.as_deref() == Some(part.as_str()),
+                    "{what}: label {:?} overlaps box `{part}`",
+                    label.text
+                );
+            }
+        }
+    }
+    let mut by_left: Vec<&Label> = pic.labels.iter().collect();
+    by_left.sort_by(|a, b| a.bounds.x0.total_cmp(&b.bounds.x0));
+    for (i, a) in by_left.iter().enumerate() {
+        for b in &by_left[i + 1..] {
+            if b.bounds.x0 >= a.bounds.x1 {
+                break;
+            }
+            assert!(
+                !a.bounds.overlaps(&b.bounds),
+                "{what}: labels {:?} and {:?} overlap",
+                a.text,
+                b.text
+            );
+        }
+    }
+    for (class, net, s) in &pic.segments {
+        let [x1, y1, x2, y2] = *s;
+        assert!(
+            x1 == x2 || y1 == y2,
+            "{what}: {class} `{net}` has a slanted segment {s:?}"
+        );
+        for (part, bounds) in &pic.boxes {
+            assert!(
+                !bounds.crossed_by(*s),
+                "{what}: {class} `{net}` runs through box `{part}` at {s:?}"
+            );
+        }
+        for label in &pic.labels {
+            assert!(
+                !label.bounds.crossed_by(*s),
+                "{what}: {class} `{net}` runs through label {:?} at {s:?}",
+                label.text
+            );
+        }
+    }
+}
+
+fn examples() -> Vec<PathBuf> {
+    let mut plans: Vec<PathBuf> =
+        std::fs::read_dir(Path::new(env!("CARGO_MANIFEST_DIR")).join("examples"))
+            .expect("examples folder")
+            .map(|e| e.unwrap().path())
+            .filter(|p| p.extension().is_some_and(|e| e == "yaml"))
+            .collect();
+    plans.sort();
+    plans
+}
+
+#[test]
+fn example_plans_draw_cleanly() {
+    let plans = examples();
+    assert!(!plans.is_empty());
+    for path in plans {
+        let text = std::fs::read_to_string(&path).unwrap();
+        let name = format!("examples/{}", path.file_name().unwrap().to_string_lossy());
+        let svg = draw(&name, &text);
+        assert_clean_geometry(&svg, &name);
+        assert!(!picture(&svg).segments.is_empty(), "{name}: no connections");
+        assert_eq!(svg, draw(&name, &text), "{name}: two runs differ");
+    }
+}
+
+#[test]
+fn generated_plans_of_10_50_and_200_parts_draw_cleanly() {
+    for parts in [10, 50, 200] {
+        let text = generate::plan(parts);
+        let what = format!("{parts}-part plan");
+        let svg = draw("generated.yaml", &text);
+        assert_clean_geometry(&svg, &what);
+        let pic = picture(&svg);
+        assert!(!pic.segments.is_empty(), "{what}: no connections");
+        assert_eq!(
+            pic.boxes.len(),
+            check("generated.yaml", &text).plan.parts.len()
+        );
+    }
+}
+
+#[test]
+fn the_same_plan_gives_the_same_bytes() {
+    let text = generate::plan(50);
+    let first = draw("generated.yaml", &text);
+    for _ in 0..3 {
+        assert_eq!(first, draw("generated.yaml", &text));
+    }
+}
+
+#[test]
+fn a_plan_named_like_markup_stays_text() {
+    let plan = "railcheck: 1\nname: \"<script>alert(1)</script>\"\nparts:\n  pack: { use: battery/lipo-3s }\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, lamp.vin]\n  GND: [pack.neg, lamp.gnd]\n";
+    let svg = draw("a<b>&\"c\".yaml", plan);
+    assert!(!svg.contains("<script"), "raw markup in the output");
+    let doc = Document::parse(&svg).expect("well-formed XML");
+    // XML 1.0: an element is only what the markup opens; escaped text is data.
+    assert!(doc.descendants().all(|n| !n.has_tag_name("script")));
+    let texts: Vec<String> = doc
+        .descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| text_of(&n))
+        .collect();
+    assert!(
+        texts.iter().any(|t| t == "<script>alert(1)</script>"),
+        "{texts:?}"
+    );
+    assert!(
+        texts.iter().any(|t| t.contains("a<b>&\"c\".yaml")),
+        "{texts:?}"
+    );
+}
+
+#[test]
+fn characters_xml_cannot_hold_are_dropped() {
+    // XML 1.0 §2.2 allows no U+0001..U+0008 in a document, escaped or not;
+    // YAML writes them as `\x01` in double quotes.
+    let plan = "railcheck: 1\nname: \"bell\\x07 and\\x01 start\"\nparts:\n  pack: { use: battery/lipo-3s }\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, lamp.vin]\n  GND: [pack.neg, lamp.gnd]\n";
+    let svg = draw("plan.yaml", plan);
+    let doc = Document::parse(&svg).expect("well-formed XML despite control characters");
+    assert!(
+        doc.descendants()
+            .any(|n| n.has_tag_name("text") && text_of(&n) == "bell and start")
+    );
+}
+
+/// A battery, a fuse, a switch, a regulator and a board in a chain.
+const CHAIN: &str = "railcheck: 1
+name: bench chain
+parts:
+  pack: { use: battery/lipo-3s }
+  fuse: { use: fuse/blade-5a }
+  kill: { use: switch/estop-20a }
+  buck: { use: regulator/buck-5v-3a }
+  brain: { use: board/sbc-5v }
+nets:
+  BATT+: [pack.pos, fuse.a]
+  FUSED: [fuse.b, kill.a]
+  VSYS: [kill.b, buck.vin]
+  5V: [buck.vout, brain.vin]
+  GND: [pack.neg, buck.gnd, brain.gnd]
+";
+
+fn part_box(svg: &str, part: &str) -> Bounds {
+    picture(svg)
+        .boxes
+        .into_iter()
+        .find(|(p, _)| p == part)
+        .unwrap_or_else(|| panic!("no box for {part}"))
+        .1
+}
+
+#[test]
+fn columns_follow_the_power_from_source_to_load() {
+    let svg = draw("chain.yaml", CHAIN);
+    assert_clean_geometry(&svg, "chain");
+    // The issue: sources → protection → conversion → loads, left to right.
+    let order = ["pack", "fuse", "kill", "buck", "brain"];
+    for pair in order.windows(2) {
+        let (a, b) = (part_box(&svg, pair[0]), part_box(&svg, pair[1]));
+        assert!(a.x1 < b.x0, "{} should stand left of {}", pair[0], pair[1]);
+    }
+}
+
+fn tag_lines(svg: &str, net: &str) -> Vec<String> {
+    let doc = Document::parse(svg).unwrap();
+    let tag = doc
+        .descendants()
+        .find(|n| has_class(n, "tag") && n.attribute("data-net") == Some(net))
+        .unwrap_or_else(|| panic!("no tag for {net}"));
+    tag.descendants()
+        .filter(|n| has_class(n, "tag-text"))
+        .map(|n| text_of(&n))
+        .collect()
+}
+
+#[test]
+fn a_rail_tag_shows_its_voltage_window_current_and_wire() {
+    // A 3S lithium-polymer pack with no internal resistance straight onto a
+    // lamp: open-circuit 3 × 3.00 V = 9 V empty and 3 × 4.20 V = 12.6 V full
+    // (per-cell window, format contract §3). The lamp draws 0.4 A typical and
+    // 0.6 A peak (`worst` puts it at peak). The supply is 1 m of 18 AWG:
+    // d = 0.127 mm × 92^((36 − 18)/39) = 1.024 mm (ASTM B258), A = 0.823 mm²,
+    // R = 0.017241 Ω·mm²/m / 0.823 mm² × 1 m = 20.9 mΩ (IEC 60028 annealed
+    // copper). At the lamp in the typical mode: 9 − 0.4 × 0.0209 = 8.992 V
+    // empty → 8.99 V at three figures, 12.6 − 0.008 = 12.59 V full → 12.6 V.
+    let plan = "railcheck: 1
+name: lamp test
+parts:
+  pack: { class: battery, chemistry: lipo, cells: 3 }
+  lamp:
+    class: load
+    pins:
+      vin: { role: supply-in, range: 8 V..13 V, max: 16 V, draw: { typical: 0.4 A, peak: 0.6 A } }
+      gnd: { role: ground }
+nets:
+  BATT+: { pins: [pack.pos, lamp.vin], wire: 18 AWG, length: 1 m }
+  GND: [pack.neg, lamp.gnd]
+";
+    let svg = draw("lamp.yaml", plan);
+    let lines = tag_lines(&svg, "BATT+");
+    assert_eq!(
+        lines,
+        vec![
+            "BATT+",
+            "8.99 V–12.6 V",
+            "400 mA typ / 600 mA peak",
+            "18 AWG · 1 m"
+        ]
+    );
+    assert_clean_geometry(&svg, "lamp");
+}
+
+#[test]
+fn a_part_whose_ground_misses_the_battery_is_marked() {
+    // The sensor's ground goes to a net no battery negative is on: the
+    // `ground/floating` rule fires, and the picture must show it.
+    let plan = "railcheck: 1
+name: loose ground
+parts:
+  pack: { use: battery/lipo-3s }
+  buck: { use: regulator/buck-5v-3a }
+  probe:
+    class: sensor
+    pins:
+      vcc: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 20 mA } }
+      gnd: { role: ground }
+nets:
+  BATT+: [pack.pos, buck.vin]
+  5V: [buck.vout, probe.vcc]
+  GND: [pack.neg, buck.gnd]
+  PROBE_GND: [probe.gnd]
+";
+    let checked = check("loose.yaml", plan);
+    let floating = checked
+        .findings
+        .iter()
+        .position(|f| f.rule == "ground/floating")
+        .expect("the rule fires");
+    let svg = railcheck::diagram::draw(&checked);
+    assert_clean_geometry(&svg, "loose ground");
+    let doc = Document::parse(&svg).unwrap();
+    let probe = doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("probe"))
+        .unwrap();
+    assert!(has_class(&probe, "floating"), "the part is not marked");
+    assert!(
+        probe
+            .descendants()
+            .any(|n| has_class(&n, "floating-ground")),
+        "no floating-ground symbol at its ground pin"
+    );
+    let number = (floating + 1).to_string();
+    assert!(
+        probe.descendants().any(|n| has_class(&n, "marker")
+            && has_class(&n, "error")
+            && n.attribute("data-finding") == Some(number.as_str())),
+        "no error marker {number} on the part"
+    );
+    // Grounded parts get the plain symbol, never the floating one.
+    let buck = doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("buck"))
+        .unwrap();
+    assert!(buck.descendants().any(|n| has_class(&n, "ground-symbol")));
+    assert!(!buck.descendants().any(|n| has_class(&n, "floating-ground")));
+    // With two grounds in the plan, each symbol says which one it is.
+    let texts = |part: Node| -> Vec<String> {
+        part.descendants()
+            .filter(|n| n.has_tag_name("text"))
+            .map(|n| text_of(&n))
+            .collect()
+    };
+    assert!(
+        texts(buck).contains(&"GND".to_string()),
+        "{:?}",
+        texts(buck)
+    );
+    assert!(
+        texts(probe).contains(&"PROBE_GND".to_string()),
+        "{:?}",
+        texts(probe)
+    );
+    // With one ground, the symbols need no names.
+    let chain = draw("chain.yaml", CHAIN);
+    let chain_doc = Document::parse(&chain).unwrap();
+    let chain_buck = chain_doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("buck"))
+        .unwrap();
+    assert!(!texts(chain_buck).contains(&"GND".to_string()));
+}
+
+#[test]
+fn every_finding_is_numbered_marked_and_listed() {
+    // A rig wired in a hurry (the fixture's comment lists its mistakes):
+    // errors and a warning, on parts and on nets.
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/diagram/many-findings.yaml"),
+    )
+    .unwrap();
+    let checked = check("many-findings.yaml", &text);
+    assert!(checked.findings.len() >= 2, "{:?}", checked.findings);
+    let svg = railcheck::diagram::draw(&checked);
+    assert_clean_geometry(&svg, "many findings");
+    let doc = Document::parse(&svg).unwrap();
+    let panel = doc
+        .descendants()
+        .find(|n| has_class(n, "findings-panel"))
+        .unwrap();
+    for (i, finding) in checked.findings.iter().enumerate() {
+        let number = (i + 1).to_string();
+        let listed = panel.descendants().find(|n| {
+            has_class(n, "marker") && n.attribute("data-finding") == Some(number.as_str())
+        });
+        let listed = listed.unwrap_or_else(|| panic!("finding {number} not in the panel"));
+        assert!(has_class(&listed, finding.severity.name()));
+        let panel_text: String = panel
+            .descendants()
+            .filter(|n| n.has_tag_name("text"))
+            .map(|n| text_of(&n))
+            .collect::<Vec<_>>()
+            .join(" ");
+        assert!(
+            panel_text.contains(finding.rule),
+            "{} not listed",
+            finding.rule
+        );
+        // On the drawing: a marker on every named part.
+        for part in &finding.parts {
+            let group = doc
+                .descendants()
+                .find(|n| has_class(n, "part") && n.attribute("data-part") == Some(part.as_str()))
+                .unwrap();
+            assert!(
+                group.descendants().any(|n| has_class(&n, "marker")
+                    && n.attribute("data-finding") == Some(number.as_str())),
+                "finding {number} has no marker on `{part}`"
+            );
+        }
+        // And on the tag of every named net.
+        for net in &finding.nets {
+            let tag = doc
+                .descendants()
+                .find(|n| has_class(n, "tag") && n.attribute("data-net") == Some(net.as_str()))
+                .unwrap_or_else(|| panic!("no tag for net `{net}`"));
+            assert!(
+                tag.descendants().any(|n| has_class(&n, "marker")
+                    && n.attribute("data-finding") == Some(number.as_str())),
+                "finding {number} has no marker on net `{net}`"
+            );
+        }
+    }
+    let severities: std::collections::BTreeSet<_> =
+        checked.findings.iter().map(|f| f.severity).collect();
+    assert!(severities.len() >= 2, "{severities:?}");
+    assert!(checked.findings.iter().any(|f| !f.nets.is_empty()));
+}
+
+#[test]
+fn without_an_operating_point_the_diagram_still_draws() {
+    // The fuse joins the pack's positive to its negative: a short, so the
+    // operating point is not solved (contract §7) and no voltage is shown.
+    let plan = "railcheck: 1
+name: greenhouse cart, miswired fuse
+parts:
+  pack: { use: battery/lipo-3s }
+  main_fuse: { use: fuse/blade-10a }
+  lamp: { use: load/lamp-12v }
+nets:
+  BATT+: [pack.pos, main_fuse.a]
+  OOPS: [main_fuse.b, pack.neg, lamp.gnd]
+  LAMP: [lamp.vin]
+";
+    let checked = check("short.yaml", plan);
+    assert!(checked.analysis.is_none());
+    let svg = railcheck::diagram::draw(&checked);
+    assert_clean_geometry(&svg, "short");
+    let doc = Document::parse(&svg).unwrap();
+    let tag_text: Vec<String> = doc
+        .descendants()
+        .filter(|n| has_class(n, "tag-text"))
+        .map(|n| text_of(&n))
+        .collect();
+    assert!(!tag_text.is_empty());
+    assert!(
+        tag_text
+            .iter()
+            .all(|t| !t.ends_with(" V") && !t.contains(" V–")),
+        "{tag_text:?}"
+    );
+    assert!(svg.contains("not solved"));
+    // The shorted rail is still drawn as a rail, so the short shows.
+    assert!(
+        picture(&svg)
+            .segments
+            .iter()
+            .any(|(class, net, _)| class.contains("rail") && net == "BATT+")
+    );
+}
+
+#[test]
+fn a_power_loop_still_draws_in_columns() {
+    // The boost feeds the buck and the buck feeds the boost: the cycle is
+    // broken for the columns, and both converters still get a place.
+    let plan = "railcheck: 1
+name: lab prototype, converter ring
+parts:
+  pack: { use: battery/lipo-3s }
+  boost: { use: regulator/boost-12v }
+  buck: { use: regulator/buck-5v-3a }
+  lamp: { use: load/lamp-12v }
+nets:
+  VIN: [boost.vout, buck.vin, lamp.vin]
+  5V: [buck.vout, boost.vin]
+  GND: [pack.neg, boost.gnd, buck.gnd, lamp.gnd]
+  BATT+: [pack.pos]
+";
+    let svg = draw("ring.yaml", plan);
+    assert_clean_geometry(&svg, "ring");
+    assert_eq!(picture(&svg).boxes.len(), 4);
+}
+
+fn stroke_of(node: &Node) -> (String, String, String) {
+    (
+        node.attribute("stroke").unwrap_or_default().to_string(),
+        node.attribute("stroke-width")
+            .unwrap_or_default()
+            .to_string(),
+        node.attribute("stroke-dasharray")
+            .unwrap_or_default()
+            .to_string(),
+    )
+}
+
+#[test]
+fn signals_look_different_from_power_and_the_legend_shows_every_style() {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml"),
+    )
+    .unwrap();
+    let svg = draw("orchard-rover.yaml", &text);
+    let doc = Document::parse(&svg).unwrap();
+    let mut styles: std::collections::BTreeMap<String, (String, String, String)> =
+        std::collections::BTreeMap::new();
+    for node in doc.descendants().filter(|n| has_class(n, "wire")) {
+        let kind = node
+            .attribute("class")
+            .unwrap()
+            .split(' ')
+            .find(|c| *c != "wire")
+            .unwrap()
+            .to_string();
+        let style = stroke_of(&node);
+        if let Some(seen) = styles.get(&kind) {
+            assert_eq!(seen, &style, "{kind} drawn two ways");
+        }
+        styles.insert(kind, style);
+    }
+    for kind in ["rail", "signal", "motor-lead", "cable"] {
+        assert!(
+            styles.contains_key(kind),
+            "the rover has {kind} connections"
+        );
+    }
+    let (rail, signal) = (&styles["rail"], &styles["signal"]);
+    assert!(
+        rail.1 != signal.1 && rail.2 != signal.2,
+        "{rail:?} vs {signal:?}"
+    );
+    // Every connection style and every marker class drawn appears in the legend.
+    let legend = doc.descendants().find(|n| has_class(n, "legend")).unwrap();
+    let legend_styles: Vec<(String, String, String)> = legend
+        .descendants()
+        .filter(|n| n.has_tag_name("path"))
+        .map(|n| stroke_of(&n))
+        .collect();
+    for (kind, style) in &styles {
+        assert!(
+            legend_styles.contains(style),
+            "{kind} {style:?} not in the legend"
+        );
+    }
+    for severity in ["error", "warning", "note"] {
+        assert!(
+            legend
+                .descendants()
+                .any(|n| has_class(&n, "marker") && has_class(&n, severity)),
+            "{severity} marker not in the legend"
+        );
+    }
+    assert!(legend.descendants().any(|n| has_class(&n, "ground-symbol")));
+    assert!(
+        legend
+            .descendants()
+            .any(|n| has_class(&n, "floating-ground"))
+    );
+}
+
+#[test]
+fn title_block_and_cautions() {
+    let svg = draw("chain.yaml", CHAIN);
+    let doc = Document::parse(&svg).unwrap();
+    let texts = |class: &str| -> String {
+        let group = doc.descendants().find(|n| has_class(n, class)).unwrap();
+        group
+            .descendants()
+            .filter(|n| n.has_tag_name("text"))
+            .map(|n| text_of(&n))
+            .collect::<Vec<_>>()
+            .join(" ")
+    };
+    let title = texts("title-block");
+    assert!(title.contains("bench chain"));
+    assert!(title.contains("chain.yaml"));
+    assert!(title.contains(&format!("railcheck {}", env!("CARGO_PKG_VERSION"))));
+    let footer = texts("cautions");
+    let checked = check("chain.yaml", CHAIN);
+    for caution in railcheck::safety::cautions(&checked.plan) {
+        let first_words: String = caution.split(' ').take(4).collect::<Vec<_>>().join(" ");
+        assert!(footer.contains(&first_words), "{first_words:?} missing");
+    }
+    assert!(
+        footer.contains("Lithium"),
+        "a lipo pack needs the lithium caution"
+    );
+}
+
+fn rover_svg() -> String {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml"),
+    )
+    .unwrap();
+    draw("examples/orchard-rover.yaml", &text)
+}
+
+#[test]
+fn an_svg_renderer_draws_it() {
+    let svg = rover_svg();
+    let options = resvg::usvg::Options::default();
+    let tree = resvg::usvg::Tree::from_str(&svg, &options).expect("usvg reads the diagram");
+    let size = tree.size().to_int_size();
+    let mut pixmap = resvg::tiny_skia::Pixmap::new(size.width(), size.height()).unwrap();
+    resvg::render(
+        &tree,
+        resvg::tiny_skia::Transform::default(),
+        &mut pixmap.as_mut(),
+    );
+    let pixels = pixmap.pixels();
+    let inked = pixels
+        .iter()
+        .filter(|p| p.alpha() == 255 && (p.red() < 200 || p.green() < 200 || p.blue() < 200))
+        .count();
+    assert!(inked > pixels.len() / 100, "only {inked} inked pixels");
+    // The middle of the battery box's top edge is outline ink, not paper.
+    let pack = part_box(&svg, "pack");
+    let x = ((pack.x0 + pack.x1) / 2.0) as u32;
+    let y = pack.y0.round() as u32;
+    let darkest = (y - 1..=y + 1)
+        .filter_map(|row| pixmap.pixel(x, row))
+        .map(|p| u32::from(p.red()) + u32::from(p.green()) + u32::from(p.blue()))
+        .min()
+        .unwrap();
+    // Paper sums to 765 and the box tint to about 685; the outline ink is far darker.
+    assert!(darkest < 450, "the box outline at ({x}, {y}) is not drawn");
+}
+
+#[test]
+fn png_export_writes_a_png() {
+    let svg = draw("chain.yaml", CHAIN);
+    let png = railcheck::diagram::png(&svg, &resvg::usvg::Options::default()).unwrap();
+    // PNG signature, ISO/IEC 15948 §5.2.
+    assert_eq!(&png[..8], &[0x89, b'P', b'N', b'G', 0x0d, 0x0a, 0x1a, 0x0a]);
+    assert!(railcheck::diagram::png("not svg", &resvg::usvg::Options::default()).is_err());
+}
+
+#[test]
+fn laid_out_text_from_a_real_font_stays_in_place() {
+    // The estimate above counts characters; here the renderer lays the text
+    // out with a real monospace face (when the machine has one) and the
+    // same rules must hold for the glyph boxes it measures.
+    let svg = rover_svg();
+    let mut options = resvg::usvg::Options::default();
+    options.fontdb_mut().load_system_fonts();
+    let has_mono = options
+        .fontdb
+        .faces()
+        .any(|f| f.monospaced && f.families.iter().any(|(name, _)| name.contains("Mono")));
+    if !has_mono {
+        eprintln!("no monospace font installed: the real-font check is skipped");
+        return;
+    }
+    let tree = resvg::usvg::Tree::from_str(&svg, &options).unwrap();
+    let mut measured = Vec::new();
+    collect_text_boxes(tree.root(), &mut measured);
+    let pic = picture(&svg);
+    assert!(
+        measured.len() >= pic.labels.len() * 9 / 10,
+        "texts went missing"
+    );
+    for (content, b) in &measured {
+        for (part, bounds) in &pic.boxes {
+            if b.overlaps(bounds) {
+                assert!(bounds.contains(b), "{content:?} spills out of box `{part}`");
+            }
+        }
+    }
+    for (i, (ta, a)) in measured.iter().enumerate() {
+        for (tb, b) in &measured[i + 1..] {
+            assert!(!a.overlaps(b), "{ta:?} and {tb:?} overlap");
+        }
+    }
+}
+
+fn collect_text_boxes(group: &resvg::usvg::Group, out: &mut Vec<(String, Bounds)>) {
+    for node in group.children() {
+        match node {
+            resvg::usvg::Node::Group(g) => collect_text_boxes(g, out),
+            resvg::usvg::Node::Text(t) => {
+                let r = t.abs_bounding_box();
+                let content: String = t.chunks().iter().map(|c| c.text()).collect();
+                out.push((
+                    content,
+                    Bounds {
+                        x0: f64::from(r.left()),
+                        y0: f64::from(r.top()),
+                        x1: f64::from(r.right()),
+                        y1: f64::from(r.bottom()),
+                    },
+                ));
+            }
+            _ => {}
+        }
+    }
+}
+
+#[test]
+fn committed_example_diagrams_are_current() {
+    // `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test diagram` rewrites them.
+    let update = std::env::var_os("RAILCHECK_UPDATE_DIAGRAMS").is_some_and(|v| v == "1");
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let rover = root.join("examples/orchard-rover.svg");
+    for plan in examples() {
+        let svg_path = plan.with_extension("svg");
+        if !svg_path.exists() && svg_path != rover {
+            continue;
+        }
+        let text = std::fs::read_to_string(&plan).unwrap();
+        let name = format!("examples/{}", plan.file_name().unwrap().to_string_lossy());
+        let fresh = draw(&name, &text);
+        if update {
+            std::fs::write(&svg_path, &fresh).unwrap();
+            continue;
+        }
+        let committed = std::fs::read_to_string(&svg_path).unwrap_or_else(|_| {
+            panic!(
+                "{} is missing: run `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test diagram`",
+                svg_path.display()
+            )
+        });
+        assert!(
+            committed == fresh,
+            "{} is stale: run `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test diagram`",
+            svg_path.display()
+        );
+    }
+}
+
+/// A small deterministic pseudo-random sequence (64-bit linear congruential
+/// generator, constants from Knuth's MMIX), so the random plans below are
+/// the same on every run.
+struct Sequence(u64);
+
+impl Sequence {
+    fn next(&mut self, below: usize) -> usize {
+        self.0 = self
+            .0
+            .wrapping_mul(6364136223846793005)
+            .wrapping_add(1442695040888963407);
+        ((self.0 >> 33) % below as u64) as usize
+    }
+}
+
+/// A plan of library parts whose pins are dealt into nets at random: shorts,
+/// loops, floating grounds, unfed rails and odd mixtures of roles included.
+fn random_plan(seed: u64) -> String {
+    const TEMPLATES: &[(&str, &str, &[&str])] = &[
+        ("pack", "battery/lipo-3s", &["pos", "neg"]),
+        ("fuse", "fuse/blade-5a", &["a", "b"]),
+        ("stop", "switch/estop-20a", &["a", "b"]),
+        (
+            "plug",
+            "connector/header-2pin-3a",
+            &["a1", "b1", "a2", "b2"],
+        ),
+        ("buck", "regulator/buck-5v-3a", &["vin", "vout", "gnd"]),
+        ("ldo", "regulator/linear-3v3-800ma", &["vin", "vout", "gnd"]),
+        (
+            "drive",
+            "driver/mosfet-dual-hbridge",
+            &["vm", "vlogic", "gnd", "out1a", "out1b", "in1", "ena"],
+        ),
+        ("wheel", "motor/gearmotor-small", &["a", "b"]),
+        (
+            "mcu",
+            "board/mcu-3v3",
+            &["vin", "3v3", "gnd", "gpio1", "sda", "scl"],
+        ),
+        (
+            "imu",
+            "sensor/imu-3v3",
+            &["vcc", "gnd", "scl", "sda", "int"],
+        ),
+        ("pull", "resistor/pullup-10k", &["a", "b"]),
+        ("fan", "load/fan-12v", &["vin", "gnd"]),
+        ("sbc", "board/sbc-5v", &["vin", "gnd"]),
+    ];
+    let mut random = Sequence(seed);
+    let names = ["random rig", "电池 rig ✓", "a & b <rig>", "rig 'quoted'"];
+    let mut text = format!(
+        "railcheck: 1\nname: \"{}\"\nparts:\n",
+        names[random.next(names.len())]
+    );
+    let mut pins = Vec::new();
+    let mut boards = (Vec::new(), Vec::new());
+    let count = 3 + random.next(28);
+    for i in 0..count {
+        // Every plan starts from a battery; the rest is chance.
+        let (prefix, id, part_pins) = if i == 0 {
+            TEMPLATES[0]
+        } else {
+            TEMPLATES[random.next(TEMPLATES.len())]
+        };
+        let name = format!("{prefix}{i}");
+        text.push_str(&format!("  {name}: {{ use: {id} }}\n"));
+        for pin in part_pins {
+            pins.push(format!("{name}.{pin}"));
+        }
+        match prefix {
+            "sbc" => boards.0.push(name),
+            "mcu" => boards.1.push(name),
+            _ => {}
+        }
+    }
+    // Deal the pins (a few stay unconnected) into nets of one to five.
+    for i in (1..pins.len()).rev() {
+        pins.swap(i, random.next(i + 1));
+    }
+    text.push_str("nets:\n");
+    let mut rest = &pins[..];
+    let mut net = 0;
+    while !rest.is_empty() {
+        let take = (1 + random.next(5)).min(rest.len());
+        if random.next(10) > 0 {
+            text.push_str(&format!("  N{net}: [{}]\n", rest[..take].join(", ")));
+            net += 1;
+        }
+        rest = &rest[take..];
+    }
+    let links: Vec<String> = boards
+        .0
+        .iter()
+        .zip(&boards.1)
+        .map(|(host, device)| format!("  - {{ usb: [{host}.usb1, {device}.usb] }}\n"))
+        .collect();
+    if !links.is_empty() {
+        text.push_str("links:\n");
+        text.push_str(&links.concat());
+    }
+    text
+}
+
+#[test]
+fn random_plans_never_break_the_picture() {
+    let mut drawn = 0;
+    for seed in 0..100 {
+        let text = random_plan(seed);
+        let Ok(checked) = railcheck::check("random.yaml", &text, &Library::builtin()) else {
+            continue;
+        };
+        let svg = railcheck::diagram::draw(&checked);
+        assert_clean_geometry(&svg, &format!("random plan {seed}:\n{text}"));
+        drawn += 1;
+    }
+    assert!(
+        drawn >= 90,
+        "only {drawn} of 100 random plans could be read"
+    );
+}
+
+mod command {
+    //! `railcheck draw` and `railcheck check --diagram`: files written whole,
+    //! the plan never overwritten, exit codes as for `check`.
+
+    use assert_cmd::Command;
+    use std::path::Path;
+
+    const PLAN: &str = "railcheck: 1\nname: bench lamp\nparts:\n  pack: { use: battery/lipo-3s }\n  fuse: { use: fuse/blade-5a }\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  LAMP: [fuse.b, lamp.vin]\n  GND: [pack.neg, lamp.gnd]\n";
+
+    fn railcheck() -> Command {
+        Command::cargo_bin("railcheck").unwrap()
+    }
+
+    fn plan_in(dir: &Path) -> std::path::PathBuf {
+        let plan = dir.join("plan.yaml");
+        std::fs::write(&plan, PLAN).unwrap();
+        plan
+    }
+
+    #[test]
+    fn draw_writes_a_parsable_svg() {
+        let dir = tempfile::tempdir().unwrap();
+        let plan = plan_in(dir.path());
+        let out = dir.path().join("plan.svg");
+        railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .arg("-o")
+            .arg(&out)
+            .assert()
+            .code(0);
+        let svg = std::fs::read_to_string(&out).unwrap();
+        roxmltree::Document::parse(&svg).expect("well-formed XML");
+        assert!(svg.contains("bench lamp"));
+        // No temporary file is left beside it.
+        let names: Vec<_> = std::fs::read_dir(dir.path()).unwrap().collect();
+        assert_eq!(names.len(), 2, "{names:?}");
+    }
+
+    #[test]
+    fn draw_refuses_to_overwrite_the_plan() {
+        let dir = tempfile::tempdir().unwrap();
+        let plan = plan_in(dir.path());
+        railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .arg("-o")
+            .arg(&plan)
+            .assert()
+            .code(2)
+            .stderr(predicates::str::contains("plan"));
+        assert_eq!(std::fs::read_to_string(&plan).unwrap(), PLAN);
+        // Nor through another spelling of the same path.
+        let other = dir.path().join(".").join("plan.yaml");
+        railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .arg("--png")
+            .arg(&other)
+            .assert()
+            .code(2);
+        assert_eq!(std::fs::read_to_string(&plan).unwrap(), PLAN);
+    }
+
+    #[test]
+    fn an_unreadable_plan_or_folder_is_exit_code_2() {
+        let dir = tempfile::tempdir().unwrap();
+        let bad = dir.path().join("bad.yaml");
+        std::fs::write(
+            &bad,
+            "railcheck: 1\nparts:\n  pack: { use: battery/no-such-pack }\nnets: {}\n",
+        )
+        .unwrap();
+        let out = dir.path().join("bad.svg");
+        railcheck()
+            .arg("draw")
+            .arg(&bad)
+            .arg("-o")
+            .arg(&out)
+            .assert()
+            .code(2);
+        assert!(
+            !out.exists(),
+            "nothing is drawn from a plan that cannot be read"
+        );
+        let plan = plan_in(dir.path());
+        railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .arg("-o")
+            .arg(dir.path().join("missing-folder/plan.svg"))
+            .assert()
+            .code(2);
+        railcheck().arg("draw").arg(&plan).assert().code(2);
+    }
+
+    #[test]
+    fn check_writes_the_diagram_alongside_the_report() {
+        let dir = tempfile::tempdir().unwrap();
+        let plan = plan_in(dir.path());
+        let out = dir.path().join("notes.svg");
+        let expected = railcheck()
+            .arg("check")
+            .arg(&plan)
+            .output()
+            .unwrap()
+            .status
+            .code();
+        railcheck()
+            .arg("check")
+            .arg(&plan)
+            .arg("--diagram")
+            .arg(&out)
+            .assert()
+            .code(expected.unwrap());
+        roxmltree::Document::parse(&std::fs::read_to_string(&out).unwrap()).unwrap();
+        railcheck()
+            .arg("check")
+            .arg(&plan)
+            .arg("--diagram")
+            .arg(&plan)
+            .assert()
+            .code(2);
+        assert_eq!(std::fs::read_to_string(&plan).unwrap(), PLAN);
+    }
+
+    #[test]
+    fn draw_png_writes_a_png() {
+        let dir = tempfile::tempdir().unwrap();
+        let plan = plan_in(dir.path());
+        let out = dir.path().join("plan.png");
+        railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .arg("--png")
+            .arg(&out)
+            .assert()
+            .code(0);
+        let bytes = std::fs::read(&out).unwrap();
+        // PNG signature, ISO/IEC 15948 §5.2.
+        assert_eq!(
+            &bytes[..8],
+            &[0x89, b'P', b'N', b'G', 0x0d, 0x0a, 0x1a, 0x0a]
+        );
+    }
+}

@@ -98,7 +98,11 @@ fn check_conflict(cx: &Context, out: &mut Vec<Finding>) {
         let mut finding = Finding::new(
             &CONFLICT,
             sources[1].1,
-            format!("{} all drive one rail", names.join(" and ")),
+            format!(
+                "{} {} drive one rail",
+                names.join(" and "),
+                if names.len() == 2 { "both" } else { "all" }
+            ),
         )
         .label(sources[0].1, "first source")
         .help("keep one source per rail, or mark sources that cannot back-feed with `or: diode`");

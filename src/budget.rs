@@ -26,6 +26,12 @@ pub const LEAD_ACID_RATED_HOURS: f64 = 20.0;
 pub struct Budget {
     pub rails: Vec<RailBudget>,
     pub batteries: Vec<BatteryBudget>,
+    /// False when shorts or power loops kept the operating point from being
+    /// solved: then no current or voltage figure means anything.
+    pub solved: bool,
+    /// Modes and battery states whose operating point did not settle
+    /// (`analysis/no-convergence`); the figures leave them out.
+    pub unsolved: Vec<String>,
 }
 
 #[derive(Clone, Debug)]
@@ -263,7 +269,25 @@ pub fn budget(checked: &Checked) -> Budget {
             runtime,
         });
     }
-    Budget { rails, batteries }
+    let mut unsolved: Vec<String> = Vec::new();
+    for point in checked.analysis.iter().flat_map(|a| &a.points) {
+        if point.unsettled.is_some() {
+            let label = format!(
+                "mode `{}` at {} battery",
+                point.mode.name(plan),
+                point.battery.name()
+            );
+            if !unsolved.contains(&label) {
+                unsolved.push(label);
+            }
+        }
+    }
+    Budget {
+        rails,
+        batteries,
+        solved: checked.analysis.is_some(),
+        unsolved,
+    }
 }
 
 /// Runtime from usable capacity at a mean current. Lead-acid follows

@@ -264,7 +264,12 @@ fn budget(args: &PlanArgs) -> ExitCode {
         Format::Json => report::budget_json(name, &budget),
         Format::Human => report::budget_table(name, &budget),
     });
-    ExitCode::SUCCESS
+    // A plan whose operating point could not be solved has no budget.
+    if budget.solved {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(EXIT_FINDINGS)
+    }
 }
 
 fn rules(id: Option<&str>) -> ExitCode {

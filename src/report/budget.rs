@@ -110,8 +110,20 @@ fn battery_row(b: &BatteryBudget) -> Vec<String> {
 }
 
 pub fn budget_table(file: &str, budget: &Budget) -> String {
-    let mut out =
-        format!("Power budget for {file}\n\nRails (voltage at the source, typical mode):\n");
+    let mut out = format!("Power budget for {file}\n\n");
+    if !budget.solved {
+        out.push_str(
+            "No operating point: the plan has a short circuit or a power loop (`railcheck check` shows where), so there are no voltages or currents to add up.\n",
+        );
+        return out;
+    }
+    if !budget.unsolved.is_empty() {
+        out.push_str(&format!(
+            "Not solved (`analysis/no-convergence`): {}. The figures below leave these out.\n\n",
+            budget.unsolved.join("; ")
+        ));
+    }
+    out.push_str("Rails (voltage at the source, typical mode):\n");
     let rails: Vec<Vec<String>> = budget.rails.iter().map(rail_row).collect();
     out.push_str(&table(
         &[
@@ -211,8 +223,10 @@ pub fn budget_json(file: &str, budget: &Budget) -> String {
         .collect();
     let mut text = serde_json::to_string_pretty(&json!({
         "file": file,
-        "rails": rails,
-        "batteries": batteries,
+        "solved": budget.solved,
+        "unsolved": budget.unsolved,
+        "rails": if budget.solved { rails } else { Vec::new() },
+        "batteries": if budget.solved { batteries } else { Vec::new() },
     }))
     .unwrap_or_default();
     text.push('\n');

@@ -5,7 +5,7 @@
 use super::{Context, Finding, Rule, RuleDoc, Severity};
 use crate::graph::Stage;
 use crate::model::{PinRole, PortKind};
-use petgraph::algo::tarjan_scc;
+use petgraph::algo::kosaraju_scc;
 
 pub const SHORT: Rule = Rule {
     id: "power/short",
@@ -233,7 +233,9 @@ pub const LOOP: Rule = Rule {
 
 fn check_loop(cx: &Context, out: &mut Vec<Finding>) {
     let flow = &cx.circuit.flow;
-    for component in tarjan_scc(flow) {
+    // Kosaraju walks the graph iteratively: a long converter chain cannot
+    // exhaust the stack.
+    for component in kosaraju_scc(flow) {
         let self_loop = component.len() == 1 && flow.contains_edge(component[0], component[0]);
         if component.len() < 2 && !self_loop {
             continue;

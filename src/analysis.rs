@@ -115,7 +115,7 @@ pub fn battery_voltage(
         BatteryState::Nominal => nominal,
         BatteryState::Empty => empty,
     };
-    Some(cell * battery.cells as f64)
+    Some(cell * battery.cells? as f64)
 }
 
 /// Why a point did not settle.
@@ -325,6 +325,11 @@ impl Solver<'_> {
                 return point;
             }
             self.currents(&mut point);
+            if let Some(mut failure) = self.out_of_range(&point) {
+                failure.iterations = iteration;
+                point.unsettled = Some(failure);
+                return point;
+            }
             let moved_v = before_potential
                 .iter()
                 .zip(&point.net_potential)
@@ -404,6 +409,25 @@ impl Solver<'_> {
         Some(Unsettled {
             part: Some(part),
             reason,
+            iterations: 0,
+        })
+    }
+
+    /// Numbers no plan can mean (a wire of 1e300 m, a dropout of 1e300 V)
+    /// overflow to infinity or NaN: stop rather than report them.
+    fn out_of_range(&self, point: &OperatingPoint) -> Option<Unsettled> {
+        let finite_v = point
+            .net_potential
+            .iter()
+            .flatten()
+            .all(|v| v.get::<volt>().is_finite());
+        let finite_i = point
+            .net_current
+            .iter()
+            .all(|i| i.get::<ampere>().is_finite());
+        (!finite_v || !finite_i).then(|| Unsettled {
+            part: None,
+            reason: "the voltages and currents run out of any physical range: check the plan for a value far too large or too small".into(),
             iterations: 0,
         })
     }

@@ -61,7 +61,8 @@ pub struct RailBudget {
 pub struct BatteryBudget {
     pub name: String,
     pub chemistry: Chemistry,
-    pub cells: u32,
+    /// `3S lipo`, or the chemistry alone for a pack given by its window.
+    pub pack: String,
     pub capacity: Option<ElectricCharge>,
     pub voltage_full: ElectricPotential,
     pub voltage_nominal: ElectricPotential,
@@ -244,17 +245,12 @@ pub fn budget(checked: &Checked) -> Budget {
             })
         };
         let capacity = battery.capacity.map(|c| c.value);
-        let runtime = capacity.and_then(|c| {
-            runtime(
-                battery.chemistry,
-                c * battery.usable.get::<ratio>(),
-                average_current,
-            )
-        });
+        let runtime =
+            capacity.and_then(|c| runtime(battery.chemistry, c, battery.usable, average_current));
         batteries.push(BatteryBudget {
             name: part.name.clone(),
             chemistry: battery.chemistry,
-            cells: battery.cells,
+            pack: battery.pack_name(),
             capacity,
             voltage_full: window[0],
             voltage_nominal: window[1],
@@ -290,30 +286,33 @@ pub fn budget(checked: &Checked) -> Budget {
     }
 }
 
-/// Runtime from usable capacity at a mean current. Lead-acid follows
-/// Peukert's law t = H·(C / (I·H))^k (reference sheet §6, W12); the other
-/// chemistries deliver close to their rated capacity, t = C / I.
+/// Runtime at a mean current: the usable share of the time the rated
+/// capacity lasts. Lead-acid follows Peukert's law t = H·(C / (I·H))^k with
+/// C the rated capacity (reference sheet §6, W12); the other chemistries
+/// deliver close to their rated capacity, t = C / I.
 pub fn runtime(
     chemistry: Chemistry,
-    usable: ElectricCharge,
+    rated: ElectricCharge,
+    usable: Ratio,
     current: ElectricCurrent,
 ) -> Option<Runtime> {
     let amps = amps(current);
     if amps <= 0.0 {
         return None;
     }
-    let ah = usable.get::<ampere_hour>();
+    let ah = rated.get::<ampere_hour>();
+    let share = usable.get::<ratio>();
     Some(if chemistry == Chemistry::LeadAcid {
         let h = LEAD_ACID_RATED_HOURS;
         Runtime {
-            time: Time::new::<hour>(h * (ah / (amps * h)).powf(PEUKERT_LEAD_ACID)),
+            time: Time::new::<hour>(share * h * (ah / (amps * h)).powf(PEUKERT_LEAD_ACID)),
             method: format!(
                 "Peukert's law, k = {PEUKERT_LEAD_ACID} (lead-acid), capacity rated at the {h} h rate"
             ),
         }
     } else {
         Runtime {
-            time: Time::new::<hour>(ah / amps),
+            time: Time::new::<hour>(share * ah / amps),
             method: "usable capacity ÷ mean current".to_string(),
         }
     })
@@ -323,6 +322,10 @@ pub fn runtime(
 mod tests {
     use super::*;
 
+    fn all() -> Ratio {
+        Ratio::new::<ratio>(1.0)
+    }
+
     #[test]
     fn peukert_matches_worked_example_w12() {
         // Reference sheet W12: SLA 7 Ah at 20 h, k = 1.2, 2.0 A:
@@ -330,6 +333,7 @@ mod tests {
         let t = runtime(
             Chemistry::LeadAcid,
             ElectricCharge::new::<ampere_hour>(7.0),
+            all(),
             ElectricCurrent::new::<ampere>(2.0),
         )
         .unwrap();
@@ -338,11 +342,26 @@ mod tests {
     }
 
     #[test]
+    fn peukert_applies_to_the_rated_capacity_then_the_usable_share() {
+        // Peukert's C is the rated capacity at the 20 h rate (W12); using
+        // 80 % of it leaves 0.8 × 2.47 h = 1.98 h, not Peukert on 5.6 Ah (1.89 h).
+        let t = runtime(
+            Chemistry::LeadAcid,
+            ElectricCharge::new::<ampere_hour>(7.0),
+            Ratio::new::<ratio>(0.8),
+            ElectricCurrent::new::<ampere>(2.0),
+        )
+        .unwrap();
+        assert!((t.time.get::<hour>() - 1.98).abs() < 0.01, "{:?}", t.time);
+    }
+
+    #[test]
     fn lithium_runtime_is_usable_capacity_over_current_w13() {
         // Reference sheet W13: 5.0 Ah at 1.5 A average, 80 % usable: 2.67 h.
         let t = runtime(
             Chemistry::Lipo,
-            ElectricCharge::new::<ampere_hour>(5.0 * 0.8),
+            ElectricCharge::new::<ampere_hour>(5.0),
+            Ratio::new::<ratio>(0.8),
             ElectricCurrent::new::<ampere>(1.5),
         )
         .unwrap();
@@ -354,6 +373,7 @@ mod tests {
         let none = runtime(
             Chemistry::Lipo,
             ElectricCharge::new::<ampere_hour>(5.0),
+            all(),
             ElectricCurrent::new::<ampere>(0.0),
         );
         assert!(none.is_none());

@@ -1241,3 +1241,56 @@ proptest! {
         }
     }
 }
+
+// ----- values no part can have --------------------------------------------------------------
+
+/// §3 motor: the winding resistance is rated_voltage / stall_current (reference
+/// sheet §8), so a zero stall current is no motor; a stall below the running
+/// current is a slip of the pen.
+#[test]
+fn motor_values_must_describe_a_motor() {
+    let plan = "railcheck: 1\nparts:\n  m: { class: motor, rated_voltage: 12 V, rated_current: 1 A, stall_current: 0 A }\nnets: {}\n";
+    let error = single_error(plan);
+    assert_at(&error, 3, 78, "0 A");
+    assert_hint(&error, &["stall current"]);
+    let plan = "railcheck: 1\nparts:\n  m: { class: motor, rated_voltage: 12 V, rated_current: 2 A, stall_current: 1 A }\nnets: {}\n";
+    let error = single_error(plan);
+    assert_at(&error, 3, 78, "1 A");
+}
+
+/// §3 driver: each channel names two different bridge outputs, once.
+#[test]
+fn driver_channels_name_two_outputs_once() {
+    let plan = "railcheck: 1\nparts:\n  d:\n    class: driver\n    channels: { 1: [o1, o1] }\n    pins: { vm: { role: supply-in }, gnd: { role: ground }, o1: { role: bridge-out }, o2: { role: bridge-out } }\nnets: {}\n";
+    let error = single_error(plan);
+    assert_at(&error, 5, 20, "[o1, o1]");
+    assert_hint(&error, &["two different"]);
+}
+
+/// §3 ports: `feeds` names the supply pin VBUS joins, never a ground.
+#[test]
+fn usb_feeds_names_a_supply_pin() {
+    let plan = "railcheck: 1\nparts:\n  b:\n    class: board\n    pins: { vin: { role: supply-in }, gnd: { role: ground } }\n    ports: { usb: { kind: usb-device, feeds: gnd } }\nnets: {}\n";
+    let error = single_error(plan);
+    assert_at(&error, 6, 46, "gnd");
+    assert_hint(&error, &["supply"]);
+}
+
+/// §3 logic pins: a low level at or above the high level is no logic pin.
+#[test]
+fn logic_low_level_is_below_the_high_level() {
+    let plan = "railcheck: 1\nparts:\n  s:\n    class: sensor\n    pins: { out: { role: logic-out, voh: 2.4 V, vol: 2.5 V } }\nnets: {}\n";
+    let error = single_error(plan);
+    assert_at(&error, 5, 54, "2.5 V");
+}
+
+/// §3 battery and §1 ambient: a thousand cells in series or a temperature
+/// below absolute zero (−273.15 °C, SI) is a typing slip.
+#[test]
+fn impossible_cells_and_temperatures_are_refused() {
+    let plan = "railcheck: 1\nambient: -300 degC\nparts:\n  p: { use: battery/lipo-3s, with: { cells: 4294967295 } }\nnets: {}\n";
+    let errors = input_errors(plan);
+    assert_eq!(errors.len(), 2, "{errors:#?}");
+    assert_at(&errors[0], 2, 10, "-300 degC");
+    assert_at(&errors[1], 4, 45, "4294967295");
+}

@@ -58,7 +58,7 @@ fn battery_parts_match_their_ids() {
         let (_, _, plan) =
             railcheck::read("plan.yaml", &text, &library).unwrap_or_else(|_| panic!("{id} reads"));
         match &plan.parts[0].class {
-            Class::Battery(b) => assert_eq!(b.cells, cells, "{id}"),
+            Class::Battery(b) => assert_eq!(b.cells, Some(cells), "{id}"),
             _ => panic!("{id} is not a battery"),
         }
     }

@@ -520,12 +520,7 @@ fn rating(plan: &Plan, part_id: PartId) -> Option<String> {
     let text = match &part.class {
         Class::Battery(b) => {
             let nominal = crate::analysis::battery_voltage(plan, part_id, BatteryState::Nominal)?;
-            let mut s = format!(
-                "{} {}S {}",
-                b.chemistry.name(),
-                b.cells,
-                show_voltage(nominal)
-            );
+            let mut s = format!("{} {}", b.pack_name(), show_voltage(nominal));
             if let Some(capacity) = b.capacity {
                 s.push(' ');
                 s.push_str(&crate::units::show_charge(capacity.value));

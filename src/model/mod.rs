@@ -330,7 +330,9 @@ impl Chemistry {
 #[derive(Clone, Debug)]
 pub struct Battery {
     pub chemistry: Chemistry,
-    pub cells: u32,
+    /// Cells in series; `None` when the pack is given by its `voltage:`
+    /// window instead.
+    pub cells: Option<u32>,
     pub capacity: Option<Rated<ElectricCharge>>,
     pub max_discharge: Option<Rated<DischargeRate>>,
     pub internal_resistance: ElectricalResistance,
@@ -343,6 +345,14 @@ pub struct Battery {
 }
 
 impl Battery {
+    /// `3S lipo`, or just the chemistry for a pack given by its window.
+    pub fn pack_name(&self) -> String {
+        match self.cells {
+            Some(n) => format!("{n}S {}", self.chemistry.name()),
+            None => self.chemistry.name().to_string(),
+        }
+    }
+
     /// `max_discharge` in amperes: as written, or C-rate × capacity per hour
     /// (the IEC "It" reference current, reference sheet §6).
     pub fn max_discharge_current(&self) -> Option<ElectricCurrent> {

@@ -15,6 +15,21 @@ use uom::si::electrical_resistance::ohm;
 use uom::si::ratio::ratio;
 use uom::si::thermodynamic_temperature::degree_celsius;
 
+/// A temperature a plan can mean: above absolute zero and below 1000 °C.
+fn plausible_temperature(text: &str) -> Result<ThermodynamicTemperature, UnitError> {
+    let t = units::temperature(text)?;
+    let celsius = t.get::<degree_celsius>();
+    if celsius > -273.15 && celsius < 1000.0 {
+        Ok(t)
+    } else {
+        Err(UnitError {
+            message: format!("`{}` is outside any temperature a robot meets", text.trim()),
+            hint: "write a temperature in °C, e.g. `35 degC`".into(),
+            span: 0..text.len(),
+        })
+    }
+}
+
 /// The assumed converter efficiency when a switching regulator gives none
 /// (published-values §7: "use 0.85 when none is given", common practice).
 const DEFAULT_EFFICIENCY: f64 = 0.85;
@@ -23,6 +38,7 @@ const DEFAULT_TJ_MAX_DEGC: f64 = 125.0;
 const DEFAULT_AMBIENT_DEGC: f64 = 25.0;
 const DEFAULT_WIRE_DROP: f64 = 0.05;
 const DEFAULT_DERATE: f64 = 0.80;
+const MAX_CELLS: u32 = 1000;
 
 const TOP_KEYS: &[&str] = &[
     "railcheck",
@@ -152,7 +168,7 @@ impl Reader<'_> {
             .get("name")
             .and_then(|n| self.text(n, "the plan's name"));
         let ambient = match root.get("ambient") {
-            Some(n) => self.scalar_quantity(n, units::temperature).unwrap_or(
+            Some(n) => self.scalar_quantity(n, plausible_temperature).unwrap_or(
                 ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_AMBIENT_DEGC),
             ),
             None => ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_AMBIENT_DEGC),
@@ -701,6 +717,30 @@ impl Reader<'_> {
             if let Some(f) = body.get("family") {
                 logic.family = self.choice(f, &LogicFamily::ALL, "logic family");
             }
+            // A low level at or above the high one describes no logic pin.
+            for (low, high, low_key) in
+                [(logic.vol, logic.voh, "vol"), (logic.vil, logic.vih, "vil")]
+            {
+                if let (Some(low), Some(high)) = (low, high)
+                    && low >= high
+                    && let Some(n) = body.get(low_key)
+                {
+                    self.error(
+                        n.span,
+                        format!("`{low_key}` of {context} is not below its high level"),
+                        Some("the low level must be below the high level (e.g. `vol: 0.4 V`, `voh: 2.4 V`)".into()),
+                    );
+                }
+            }
+            if let (Some(t), Some(n)) = (logic.tolerant, body.get("tolerant"))
+                && t.get::<volt>() <= 0.0
+            {
+                self.error(
+                    n.span,
+                    "`tolerant:` names the voltage the input withstands, above zero",
+                    Some("write e.g. `tolerant: 5 V`".into()),
+                );
+            }
             if let Some(r) = body.get("ref")
                 && let Some(ref_name) = self.text(r, "`ref`")
             {
@@ -807,6 +847,19 @@ impl Reader<'_> {
                 let feeds = body.get("feeds").and_then(|f| {
                     let pin_name = self.text(f, "`feeds`")?;
                     let found = pins.iter().position(|p| p.name == pin_name);
+                    if let Some(i) = found
+                        && !matches!(pins[i].role, PinRole::SupplyIn | PinRole::SupplyOut)
+                    {
+                        self.error(
+                            f.span,
+                            format!("`feeds: {pin_name}` must name a supply pin of `{part}`"),
+                            Some(
+                                "name the supply-in or supply-out pin that the cable's VBUS joins"
+                                    .into(),
+                            ),
+                        );
+                        return None;
+                    }
                     if found.is_none() {
                         self.error(
                             f.span,
@@ -865,8 +918,8 @@ impl Reader<'_> {
                     }
                 };
                 let cells = match body.get("cells") {
-                    Some(n) => self.count(n),
-                    None if body.get("voltage").is_some() => Some(1),
+                    Some(n) => self.count(n).map(Some),
+                    None if body.get("voltage").is_some() => Some(None),
                     None => {
                         self.error(
                             at,
@@ -947,11 +1000,43 @@ impl Reader<'_> {
                 let stall_current =
                     self.required(body, "stall_current", units::current, &what, "5 A", at);
                 let no_load_current = self.quantity(body, "no_load_current", units::current);
+                let (rated_voltage, rated_current, stall_current) =
+                    (rated_voltage?, rated_current?, stall_current?);
+                // The winding resistance is rated_voltage / stall_current: both
+                // must be above zero, and a motor stalls at more than it runs.
+                let mut sound = true;
+                for (key, positive) in [
+                    ("rated_voltage", rated_voltage.get::<volt>() > 0.0),
+                    ("stall_current", stall_current.get::<ampere>() > 0.0),
+                ] {
+                    if !positive && let Some(n) = body.get(key) {
+                        sound = false;
+                        self.error(
+                            n.span,
+                            format!("`{key}` of {what} must be above zero"),
+                            Some("give the motor's rated voltage and its stall current at that voltage".into()),
+                        );
+                    }
+                }
+                if sound
+                    && stall_current < rated_current
+                    && let Some(n) = body.get("stall_current")
+                {
+                    sound = false;
+                    self.error(
+                        n.span,
+                        format!("{what} stalls at less than its rated current"),
+                        Some("the stall current (shaft held still) is the largest a motor draws: check the two values".into()),
+                    );
+                }
+                if !sound {
+                    return None;
+                }
                 Class::Motor(Motor {
-                    rated_voltage: rated_voltage?,
-                    rated_current: rated_current?,
+                    rated_voltage,
+                    rated_current,
                     no_load_current,
-                    stall_current: stall_current?,
+                    stall_current,
                 })
             }
             "resistor" => Class::Resistor(Resistor {
@@ -966,12 +1051,14 @@ impl Reader<'_> {
     }
 
     fn count(&mut self, node: &Node) -> Option<u32> {
+        // A robot's pack has a handful of cells in series; more than a
+        // thousand is a typing slip, not a battery.
         match node.as_scalar().and_then(|s| s.parse::<u32>().ok()) {
-            Some(n) if n >= 1 => Some(n),
+            Some(n) if (1..=MAX_CELLS).contains(&n) => Some(n),
             _ => {
                 self.error(
                     node.span,
-                    "expected a whole number of cells, at least 1",
+                    format!("expected a whole number of cells in series, from 1 to {MAX_CELLS}"),
                     Some("write `cells: 3`".into()),
                 );
                 None
@@ -1024,9 +1111,11 @@ impl Reader<'_> {
             .quantity(body, "quiescent", units::current)
             .unwrap_or(ElectricCurrent::new::<ampere>(0.0));
         let theta_ja = self.quantity(body, "theta_ja", units::thermal_resistance);
-        let tj_max = self.quantity(body, "tj_max", units::temperature).unwrap_or(
-            ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_TJ_MAX_DEGC),
-        );
+        let tj_max = self
+            .quantity(body, "tj_max", plausible_temperature)
+            .unwrap_or(ThermodynamicTemperature::new::<degree_celsius>(
+                DEFAULT_TJ_MAX_DEGC,
+            ));
         let (topology, output) = (topology?, output?);
         let efficiency = match (topology, efficiency_written) {
             (_, Some(e)) if e.get::<ratio>() > 0.0 => e,
@@ -1161,6 +1250,25 @@ impl Reader<'_> {
                         }
                     }
                 }
+                if ok && outputs[0] == outputs[1] {
+                    ok = false;
+                    self.error(
+                        value.span,
+                        format!("channel {number} names the same output twice"),
+                        Some(
+                            "a motor sits across two different bridge outputs: `[out1a, out1b]`"
+                                .into(),
+                        ),
+                    );
+                }
+                if ok && channels.iter().any(|c: &Channel| c.number == number) {
+                    ok = false;
+                    self.error(
+                        key.span,
+                        format!("channel {number} is given twice"),
+                        Some("number each channel once".into()),
+                    );
+                }
                 if ok {
                     channels.push(Channel {
                         number,
@@ -1281,7 +1389,7 @@ impl Reader<'_> {
                         items,
                         self.rated(body, "wire", units::wire_size, key.span),
                         self.rated(body, "length", units::length, key.span),
-                        self.quantity(body, "insulation", units::temperature),
+                        self.quantity(body, "insulation", plausible_temperature),
                     )
                 }
                 _ => {

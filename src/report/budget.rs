@@ -87,7 +87,7 @@ fn rail_row(r: &RailBudget) -> Vec<String> {
 fn battery_row(b: &BatteryBudget) -> Vec<String> {
     vec![
         b.name.clone(),
-        format!("{} {}S", b.chemistry.name(), b.cells),
+        b.pack.clone(),
         b.capacity.map_or("—".into(), show_charge),
         format!(
             "{} / {} / {}",
@@ -203,7 +203,7 @@ pub fn budget_json(file: &str, budget: &Budget) -> String {
             json!({
                 "name": b.name,
                 "chemistry": b.chemistry.name(),
-                "cells": b.cells,
+                "pack": b.pack,
                 "capacity": b.capacity.map(|c| num(c.get::<ampere_hour>())),
                 "voltage": {
                     "full": num(b.voltage_full.get::<volt>()),

@@ -110,10 +110,9 @@ fn check_no_cutoff(cx: &Context, out: &mut Vec<Finding>) {
                 &NO_CUTOFF,
                 part.span,
                 format!(
-                    "`{}` is a {}S {} pack with no low-voltage cut-off: left running, the loads drain its cells below their discharge floor",
+                    "`{}` is a {} pack with no low-voltage cut-off: left running, the loads drain its cells below their discharge floor",
                     part.name,
-                    battery.cells,
-                    battery.chemistry.name()
+                    battery.pack_name()
                 ),
             )
             .help("fit a low-voltage cut-off or a protection board (or a battery monitor that switches the load off) and write `cutoff: true`")

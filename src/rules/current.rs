@@ -7,8 +7,8 @@ use super::{
     Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
 };
 use crate::analysis::OperatingPoint;
-use crate::graph::through_pairs;
-use crate::model::{Class, PartId, PinRole, PortKind, Rated};
+use crate::graph::{MotorFeed, through_pairs};
+use crate::model::{Class, MotorState, PartId, PinRole, PortKind, Rated};
 use crate::syntax::Span;
 use crate::units::{show_current, show_share};
 use uom::si::electric_current::ampere;
@@ -127,7 +127,21 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                                 .map(|n| cx.net_name(n).to_string()),
                             rating: rating.value,
                             continuous_rating: true,
+                            // The continuous rating meets the channel with its
+                            // motors running (contract §6); a stall meets the
+                            // peak rating, in `driver/stall`.
                             current: Box::new(move |p| {
+                                let stalled =
+                                    cx.circuit.motor_feed.iter().enumerate().any(|(m, f)| {
+                                        *f == Some(MotorFeed::Driver {
+                                            driver: part_id,
+                                            channel: number,
+                                        }) && p.motors[m]
+                                            .is_some_and(|m| m.state == MotorState::Stall)
+                                    });
+                                if stalled {
+                                    return None;
+                                }
                                 p.channels[part_id]
                                     .iter()
                                     .find(|(n, _)| *n == number)

@@ -233,14 +233,16 @@ impl Finding {
 }
 
 /// A limit is broken only when exceeded by more than 0.1 % (contract §6).
+/// The margin is 0.1 % of the limit's size, so it loosens the comparison
+/// for negative limits too. Temperatures are compared in kelvin.
 pub const LIMIT_TOLERANCE: f64 = 0.001;
 
 pub fn exceeds(value: f64, limit: f64) -> bool {
-    value > limit * (1.0 + LIMIT_TOLERANCE)
+    value - limit > limit.abs() * LIMIT_TOLERANCE
 }
 
 pub fn falls_below(value: f64, limit: f64) -> bool {
-    value < limit * (1.0 - LIMIT_TOLERANCE)
+    limit - value > limit.abs() * LIMIT_TOLERANCE
 }
 
 /// Runs every rule and returns the findings in a stable order.

@@ -38,7 +38,17 @@ fn check_short(cx: &Context, out: &mut Vec<Finding>) {
             ),
         )
         .label(cx.pin_span(ground), "ground joined here")
-        .help("separate the supply and the ground into different nets; check which pin each wire lands on")
+        .help(
+            if source.part != ground.part
+                && [source.part, ground.part]
+                    .iter()
+                    .all(|&p| matches!(cx.plan.parts[p].class, crate::model::Class::Battery(_)))
+            {
+                "if these are two packs wired in series, describe them as one battery with the total `cells:` (or a `voltage:` window); otherwise separate the supply from the ground"
+            } else {
+                "separate the supply and the ground into different nets; check which pin each wire lands on"
+            },
+        )
         .part(cx.part_name(source.part))
         .part(cx.part_name(ground.part));
         for &net in &node.nets {

@@ -157,7 +157,7 @@ fn check_overheat(cx: &Context, out: &mut Vec<Finding>) {
             continue;
         };
         let found = heat(spec, &at, theta_ja, plan.ambient);
-        if !exceeds(celsius(found.junction), celsius(spec.tj_max)) {
+        if !exceeds(found.junction.get::<kelvin>(), spec.tj_max.get::<kelvin>()) {
             continue;
         }
         let over = -found.margin;

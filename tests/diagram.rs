@@ -806,14 +806,12 @@ fn laid_out_text_from_a_real_font_stays_in_place() {
     let svg = rover_svg();
     let mut options = resvg::usvg::Options::default();
     options.fontdb_mut().load_system_fonts();
-    let has_mono = options
-        .fontdb
-        .faces()
-        .any(|f| f.monospaced && f.families.iter().any(|(name, _)| name.contains("Mono")));
-    if !has_mono {
+    let Some(family) = first_monospaced_family(&options.fontdb) else {
         eprintln!("no monospace font installed: the real-font check is skipped");
         return;
-    }
+    };
+    // The SVG asks for the generic family only; point it at that face.
+    options.fontdb_mut().set_monospace_family(family);
     let tree = resvg::usvg::Tree::from_str(&svg, &options).unwrap();
     let mut measured = Vec::new();
     collect_text_boxes(tree.root(), &mut measured);
@@ -834,6 +832,56 @@ fn laid_out_text_from_a_real_font_stays_in_place() {
             assert!(!a.overlaps(b), "{ta:?} and {tb:?} overlap");
         }
     }
+}
+
+/// The family of the first face the font database flags as monospaced (the
+/// fixed-pitch flag of the face's `post` table).
+fn first_monospaced_family(fonts: &resvg::usvg::fontdb::Database) -> Option<String> {
+    fonts
+        .faces()
+        .filter(|face| face.monospaced)
+        .find_map(|face| face.families.first().map(|(name, _)| name.clone()))
+}
+
+#[test]
+fn png_export_draws_labels_when_the_generic_monospace_face_is_missing() {
+    // A font database whose generic families all name faces that are not
+    // installed: the PNG must still carry the labels, drawn with a face that
+    // is installed and monospaced.
+    let svg = rover_svg();
+    let mut options = resvg::usvg::Options::default();
+    options.fontdb_mut().load_system_fonts();
+    if first_monospaced_family(&options.fontdb).is_none() {
+        eprintln!("no monospace font installed: the PNG font check is skipped");
+        return;
+    }
+    let missing = "no face is installed under this family name";
+    let fonts = options.fontdb_mut();
+    fonts.set_monospace_family(missing);
+    fonts.set_serif_family(missing);
+    fonts.set_sans_serif_family(missing);
+    let png = railcheck::diagram::png(&svg, &options).unwrap();
+    let pixmap = resvg::tiny_skia::Pixmap::decode_png(&png).unwrap();
+    let pic = picture(&svg);
+    // A label's box holds ink when its darkest and lightest pixels differ
+    // clearly; without text the inside of a label is one flat fill.
+    let inked = |b: &Bounds| {
+        let sums: Vec<u32> = (b.y0.ceil() as u32..b.y1.floor() as u32)
+            .flat_map(|y| (b.x0.ceil() as u32..b.x1.floor() as u32).map(move |x| (x, y)))
+            .filter_map(|(x, y)| pixmap.pixel(x, y))
+            .map(|p| u32::from(p.red()) + u32::from(p.green()) + u32::from(p.blue()))
+            .collect();
+        let (Some(low), Some(high)) = (sums.iter().min(), sums.iter().max()) else {
+            return false;
+        };
+        high - low > 150
+    };
+    let drawn = pic.labels.iter().filter(|l| inked(&l.bounds)).count();
+    assert!(
+        drawn >= pic.labels.len() * 9 / 10,
+        "only {drawn} of {} labels were drawn",
+        pic.labels.len()
+    );
 }
 
 fn collect_text_boxes(group: &resvg::usvg::Group, out: &mut Vec<(String, Bounds)>) {

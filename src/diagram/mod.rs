@@ -7,12 +7,14 @@
 //! safety cautions. The steps: `content` decides what is shown, `layout`
 //! where it goes (`shape` fills in each box), `render` writes it; `text`
 //! cleans and measures labels and `style` holds the palette. `png`
-//! rasterises the SVG through the same renderer the tests use.
+//! rasterises the SVG through the same renderer the tests use, with `fonts`
+//! choosing the installed face for the generic `monospace` family.
 //!
 //! No I/O here: the caller reads the plan, loads fonts and writes files.
 //! Not a schematic: pins are shown where nets attach, not by package.
 
 mod content;
+mod fonts;
 mod layout;
 mod render;
 mod shape;
@@ -58,9 +60,20 @@ impl fmt::Display for PngError {
 impl std::error::Error for PngError {}
 
 /// Renders SVG text to PNG bytes on a white background. `options` carries
-/// the fonts (the caller loads them); text without a matching font is left
-/// out, the rest still draws.
+/// the fonts (the caller loads them). The diagram asks for the generic
+/// `monospace` family: when the fonts' own choice for it is not installed or
+/// not monospaced, the first installed monospaced face stands in, so the
+/// labels keep the widths the layout counted on. Text without any matching
+/// font is left out, the rest still draws.
 pub fn png(svg: &str, options: &resvg::usvg::Options) -> Result<Vec<u8>, PngError> {
+    let remapped;
+    let options = match fonts::with_monospace(&options.fontdb) {
+        Some(fontdb) => {
+            remapped = with_fonts(options, fontdb);
+            &remapped
+        }
+        None => options,
+    };
     let tree =
         resvg::usvg::Tree::from_str(svg, options).map_err(|e| PngError::Svg(e.to_string()))?;
     let size = tree.size();
@@ -82,4 +95,36 @@ pub fn png(svg: &str, options: &resvg::usvg::Options) -> Result<Vec<u8>, PngErro
     pixmap
         .encode_png()
         .map_err(|e| PngError::Encode(e.to_string()))
+}
+
+/// The caller's options with another font database. The resolvers cannot be
+/// cloned, so the copy forwards to the caller's.
+fn with_fonts<'a>(
+    options: &'a resvg::usvg::Options,
+    fontdb: std::sync::Arc<resvg::usvg::fontdb::Database>,
+) -> resvg::usvg::Options<'a> {
+    use resvg::usvg::{FontResolver, ImageHrefResolver, Options};
+    let images = &options.image_href_resolver;
+    let fonts = &options.font_resolver;
+    Options {
+        resources_dir: options.resources_dir.clone(),
+        dpi: options.dpi,
+        font_family: options.font_family.clone(),
+        font_size: options.font_size,
+        languages: options.languages.clone(),
+        shape_rendering: options.shape_rendering,
+        text_rendering: options.text_rendering,
+        image_rendering: options.image_rendering,
+        default_size: options.default_size,
+        image_href_resolver: ImageHrefResolver {
+            resolve_data: Box::new(|mime, data, opts| (images.resolve_data)(mime, data, opts)),
+            resolve_string: Box::new(|href, opts| (images.resolve_string)(href, opts)),
+        },
+        font_resolver: FontResolver {
+            select_font: Box::new(|font, db| (fonts.select_font)(font, db)),
+            select_fallback: Box::new(|c, used, db| (fonts.select_fallback)(c, used, db)),
+        },
+        fontdb,
+        style_sheet: options.style_sheet.clone(),
+    }
 }

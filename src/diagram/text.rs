@@ -3,9 +3,10 @@
 //! keep labels apart. Not for escaping (the `svg` crate escapes markup) and
 //! not for measuring real glyphs: the estimate is deliberately generous.
 
-/// The font the diagram asks for. A monospace face makes a label's width a
-/// matter of counting characters.
-pub(crate) const FONT_FAMILY: &str = "DejaVu Sans Mono, monospace";
+/// The font the diagram asks for: the generic monospace family, so every
+/// viewer picks its own monospaced face and a label's width stays a matter
+/// of counting characters.
+pub(crate) const FONT_FAMILY: &str = "monospace";
 
 /// Advance of one character cell as a share of the font size. Monospace faces
 /// advance 0.60 em (common practice); 0.62 leaves room for a fallback face.

@@ -10,20 +10,21 @@ fn volts(value: f64) -> ElectricPotential {
     ElectricPotential::new::<volt>(value)
 }
 
-/// How a family sets one level: fixed, a share of VDD, or VDD less an offset.
+/// How a family sets one level: a fixed voltage, a share of VDD (a plain
+/// ratio), or VDD less an offset.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Scale {
-    Fixed(f64),
+    Fixed(ElectricPotential),
     Share(f64),
-    BelowVdd(f64),
+    BelowVdd(ElectricPotential),
 }
 
 impl Scale {
     pub fn at(self, vdd: ElectricPotential) -> ElectricPotential {
         match self {
-            Scale::Fixed(v) => volts(v),
+            Scale::Fixed(level) => level,
             Scale::Share(k) => vdd * k,
-            Scale::BelowVdd(d) => vdd - volts(d),
+            Scale::BelowVdd(offset) => vdd - offset,
         }
     }
 
@@ -34,9 +35,9 @@ impl Scale {
     /// As the family table writes it (`0.7 × VDD`, `VDD − 0.2 V`, `0.8 V`).
     pub fn formula(self) -> String {
         match self {
-            Scale::Fixed(v) => format!("{v} V"),
+            Scale::Fixed(level) => format!("{} V", level.get::<volt>()),
             Scale::Share(k) => format!("{k} × VDD"),
-            Scale::BelowVdd(d) => format!("VDD − {d} V"),
+            Scale::BelowVdd(offset) => format!("VDD − {} V", offset.get::<volt>()),
         }
     }
 }
@@ -44,7 +45,7 @@ impl Scale {
 /// One family's row of the contract §3 table.
 #[derive(Clone, Copy, Debug)]
 pub struct FamilyLevels {
-    pub nominal_vdd: f64,
+    pub nominal_vdd: ElectricPotential,
     pub vih: Scale,
     pub vil: Scale,
     pub voh: Scale,
@@ -56,22 +57,40 @@ pub struct FamilyLevels {
 impl LogicFamily {
     /// This family's row of the table.
     pub fn levels(self) -> FamilyLevels {
-        let family = self;
-        use Scale::{BelowVdd, Fixed, Share};
-        let (nominal_vdd, vih, vil, voh, vol) = match family {
-            LogicFamily::Ttl5 => (5.0, Fixed(2.0), Fixed(0.8), Fixed(2.4), Fixed(0.4)),
-            LogicFamily::Cmos5 => (5.0, Share(0.7), Share(0.3), BelowVdd(0.1), Fixed(0.1)),
-            LogicFamily::Lvttl33 => (3.3, Fixed(2.0), Fixed(0.8), Fixed(2.4), Fixed(0.4)),
-            LogicFamily::Lvcmos33 => (3.3, Fixed(2.0), Fixed(0.8), BelowVdd(0.2), Fixed(0.2)),
-            LogicFamily::Lvcmos25 => (2.5, Fixed(1.7), Fixed(0.7), Fixed(2.0), Fixed(0.4)),
-            LogicFamily::Lvcmos18 => (1.8, Share(0.65), Share(0.35), BelowVdd(0.45), Fixed(0.45)),
+        // The table is written in volts.
+        let fixed = |level| Scale::Fixed(volts(level));
+        let share = Scale::Share;
+        let below_vdd = |offset| Scale::BelowVdd(volts(offset));
+        let (nominal_vdd, vih, vil, voh, vol) = match self {
+            LogicFamily::Ttl5 => (5.0, fixed(2.0), fixed(0.8), fixed(2.4), fixed(0.4)),
+            LogicFamily::Cmos5 => (5.0, share(0.7), share(0.3), below_vdd(0.1), fixed(0.1)),
+            LogicFamily::Lvttl33 => (3.3, fixed(2.0), fixed(0.8), fixed(2.4), fixed(0.4)),
+            LogicFamily::Lvcmos33 => (3.3, fixed(2.0), fixed(0.8), below_vdd(0.2), fixed(0.2)),
+            LogicFamily::Lvcmos25 => (2.5, fixed(1.7), fixed(0.7), fixed(2.0), fixed(0.4)),
+            LogicFamily::Lvcmos18 => (1.8, share(0.65), share(0.35), below_vdd(0.45), fixed(0.45)),
         };
         FamilyLevels {
-            nominal_vdd,
+            nominal_vdd: volts(nominal_vdd),
             vih,
             vil,
             voh,
             vol,
         }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn formulas_read_as_the_family_table_writes_them() {
+        // Contract §3 table: LVCMOS 3.3 V VOH = VDD − 0.2 V, VIL = 0.8 V;
+        // HC (JESD7) VIH = 0.7 × VDD.
+        let lvcmos33 = LogicFamily::Lvcmos33.levels();
+        assert_eq!(lvcmos33.voh.formula(), "VDD − 0.2 V");
+        assert_eq!(lvcmos33.vil.formula(), "0.8 V");
+        assert_eq!(LogicFamily::Cmos5.levels().vih.formula(), "0.7 × VDD");
+        assert_eq!(LogicFamily::Lvcmos18.levels().voh.formula(), "VDD − 0.45 V");
     }
 }

@@ -181,7 +181,7 @@ struct Levels {
 /// without a reference rail the family's nominal supply.
 fn family_levels(family: LogicFamily, vdd: Option<ElectricPotential>) -> Levels {
     let table = family.levels();
-    let vdd = vdd.unwrap_or(ElectricPotential::new::<volt>(table.nominal_vdd));
+    let vdd = vdd.unwrap_or(table.nominal_vdd);
     Levels {
         voh: Some(table.voh.at(vdd)),
         vol: Some(table.vol.at(vdd)),

@@ -112,7 +112,9 @@ fn family_name(family: LogicFamily) -> &'static str {
 
 /// Headroom of an input above its own rail when no `max` is written:
 /// JEDEC JESD8's top of the recommended input range, VDD + 0.3 V.
-const CEILING_ABOVE_VDD: f64 = 0.3;
+fn ceiling_above_vdd() -> ElectricPotential {
+    volts(0.3)
+}
 
 /// A pin marked `tolerant: V` withstands V + 10 %: "5 V-tolerant means up to
 /// 5.5 V" (reference sheet §4, common practice).
@@ -400,7 +402,7 @@ fn pin_rail<'p>(cx: &'p Context, pin: PinRef, spec: &LogicSpec) -> PinRail<'p> {
         };
     }
     match spec.family {
-        Some(family) => PinRail::Known(Rail::nominal(volts(family.levels().nominal_vdd))),
+        Some(family) => PinRail::Known(Rail::nominal(family.levels().nominal_vdd)),
         None => PinRail::Unknown,
     }
 }
@@ -626,7 +628,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
         // nominal VDD serves when the pin's own rail is not at hand.
         let vol = written_vol.or_else(|| {
             let (f, levels) = family?;
-            let nominal = Rail::nominal(volts(levels.nominal_vdd));
+            let nominal = Rail::nominal(levels.nominal_vdd);
             Some(Level::from_family(levels.vol, f, &nominal, nominal.high))
         });
         let voh =
@@ -728,7 +730,7 @@ fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
     let vih = threshold(spec.vih, "vih", |l| l.vih, |(_, high)| high);
     let vil = threshold(spec.vil, "vil", |l| l.vil, |(low, _)| low);
     let above_rail = rail.map(|(rail, (low, _))| Level {
-        value: low.voltage + volts(CEILING_ABOVE_VDD),
+        value: low.voltage + ceiling_above_vdd(),
         basis: format!("VDD + 0.3 V with {}", rail.vdd_text(low.voltage)),
         point: low.point,
     });

@@ -1,8 +1,10 @@
 //! The reference sheet's worked examples for fuses and batteries (W6, W7,
-//! W13), reproduced through the public API: `railcheck::check` on small
-//! plans, read back from the findings' rule ids and values, and
-//! `railcheck::wire::ampacity` for the table lookups. Expected numbers are
-//! worked by hand from the published rules named beside each check.
+//! W13), NEC 240.4 applied to return conductors, and the fuse's place on the
+//! battery positive (33 CFR 183.455(b)), reproduced through the public API:
+//! `railcheck::check` on small plans, read back from the findings' rule ids
+//! and values, and `railcheck::wire::ampacity` for the table lookups.
+//! Expected numbers are worked by hand from the published rules named beside
+//! each check.
 
 use railcheck::model::Library;
 use railcheck::rules::Finding;
@@ -140,6 +142,125 @@ fn w6_twelve_amp_load_needs_a_fifteen_amp_fuse_and_a_fifteen_amp_conductor() {
     let over = findings(&cooler, "fuse/oversized");
     assert_eq!(over.len(), 1, "{over:?}");
     assert!(within_one_percent(value(&over[0], "ampacity"), 10.0));
+}
+
+// ----- NEC 240.4 on the return conductor -------------------------------------
+
+/// The same lead-acid battery, fuse and load, with the feed in 14 AWG and the
+/// load's return written as `return_wire` (net keys).
+fn fused_load_with_return(fuse: &str, continuous_amps: f64, return_wire: &str) -> String {
+    format!(
+        "railcheck: 1
+parts:
+  pack: {{ use: battery/lead-acid-12v, with: {{ max_discharge: 100 A }} }}
+  fuse: {fuse}
+  load:
+    class: load
+    pins:
+      vin: {{ role: supply-in, draw: {{ typical: {continuous_amps} A }} }}
+      gnd: {{ role: ground }}
+nets:
+  BATT+: [pack.pos, fuse.a]
+  LEAD: {{ pins: [fuse.b, load.vin], wire: 14 AWG, length: 1 m }}
+  RETURN: {{ pins: [load.gnd, pack.neg], {return_wire} }}
+"
+    )
+}
+
+#[test]
+fn a_fifteen_amp_fuse_is_oversized_for_a_26_awg_return() {
+    // NEC 240.4 protects every conductor of the circuit, the return included.
+    // Handbook chassis column: 26 AWG carries 2.2 A, and 15 A > 2.2 A; the
+    // 14 AWG feed (32 A) alone would pass.
+    let plan = fused_load_with_return(&blade("15 A"), 1.0, "wire: 26 AWG, length: 1 m");
+    let over = findings(&plan, "fuse/oversized");
+    assert_eq!(over.len(), 1, "{over:?}");
+    let f = &over[0];
+    assert!(within_one_percent(value(f, "rating"), 15.0));
+    assert!(within_one_percent(value(f, "ampacity"), 2.2));
+    assert!(
+        f.message.contains("return conductor `RETURN`"),
+        "{}",
+        f.message
+    );
+    assert!(
+        f.labels.iter().any(|(_, l)| l.contains("return conductor")),
+        "{:?}",
+        f.labels
+    );
+    assert_eq!(f.nets, ["RETURN"]);
+    // 1 A continuous → 1.25 A minimum (NEC 210.20(A)) → 2 A blade, within
+    // the 2.2 A of the return.
+    assert!(within_one_percent(value(f, "suggested_rating"), 2.0));
+}
+
+#[test]
+fn a_fifteen_amp_fuse_fits_a_14_awg_return() {
+    // Handbook chassis column: 14 AWG carries 32 A ≥ 15 A, feed and return.
+    let plan = fused_load_with_return(&blade("15 A"), 1.0, "wire: 14 AWG, length: 1 m");
+    assert!(findings(&plan, "fuse/oversized").is_empty());
+}
+
+#[test]
+fn a_return_fuse_suggestion_stays_within_the_return_ampacity() {
+    // A 6 A load (W6: 1.25 × 6 A = 7.5 A blade) returning through 22 AWG
+    // (Handbook chassis 7 A): 7.5 A > 7 A, so no blade fits both and the
+    // undersized 5 A fuse's advice asks for a heavier wire, naming the return.
+    let plan = fused_load_with_return(&blade("5 A"), 6.0, "wire: 22 AWG, length: 0.5 m");
+    let under = findings(&plan, "fuse/undersized");
+    assert_eq!(under.len(), 1, "{under:?}");
+    assert!(within_one_percent(value(&under[0], "ampacity"), 7.0));
+    assert!(!under[0].values.contains_key("suggested_rating"));
+    let help = under[0].help.as_deref().unwrap_or_default();
+    assert!(help.contains("heavier wire"), "{help}");
+    assert!(help.contains("return conductor `RETURN`"), "{help}");
+}
+
+// ----- placement: a fuse is the first element on the battery positive ---------
+
+/// A pack and a lamp, with the extra `parts` lines and the positive lead
+/// from the terminal to the lamp written as `nets` lines.
+fn lead_through(parts: &str, nets: &str) -> String {
+    format!(
+        "railcheck: 1
+parts:
+  pack: {{ use: battery/lead-acid-12v }}
+  lamp: {{ use: load/lamp-12v }}
+{parts}nets:
+{nets}  GND: [pack.neg, lamp.gnd]
+"
+    )
+}
+
+#[test]
+fn a_switch_ahead_of_the_fuse_is_reported_and_a_plug_is_not() {
+    // 33 CFR 183.455(b): the overcurrent device sits at the source of power.
+    // A switch between the terminal and the fuse leaves the switch and its
+    // wiring unprotected; the pack's own connector is part of its lead.
+    let switch_first = lead_through(
+        "  master: { use: switch/toggle-20a }\n  fuse: { use: fuse/blade-3a }\n",
+        "  BATT+: [pack.pos, master.a]\n  SWITCHED: [master.b, fuse.a]\n  LAMP: [fuse.b, lamp.vin]\n",
+    );
+    let missing = findings(&switch_first, "fuse/missing");
+    assert_eq!(missing.len(), 1, "{missing:?}");
+    let message = &missing[0].message;
+    assert!(
+        message.contains("the first element on `pack.pos` is switch `master`, not a fuse"),
+        "{message}"
+    );
+    assert!(message.contains("unprotected"), "{message}");
+
+    let plug_first = lead_through(
+        "  plug: { use: connector/power-2pin-30a }\n  fuse: { use: fuse/blade-3a }\n",
+        "  BATT+: [pack.pos, plug.a1]\n  PLUGGED: [plug.b1, fuse.a]\n  LAMP: [fuse.b, lamp.vin]\n",
+    );
+    assert!(findings(&plug_first, "fuse/missing").is_empty());
+
+    let fuse_then_switch = lead_through(
+        "  master: { use: switch/toggle-20a }\n  fuse: { use: fuse/blade-3a }\n",
+        "  BATT+: [pack.pos, fuse.a]\n  FUSED: [fuse.b, master.a]\n  LAMP: [master.b, lamp.vin]\n",
+    );
+    assert!(findings(&fuse_then_switch, "fuse/missing").is_empty());
 }
 
 // ----- W7: Table 5 lookup with insulation, no 150 % allowance -----------------

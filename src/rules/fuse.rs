@@ -1,6 +1,11 @@
 //! Fuses: one at the head of every battery positive, sized between the load
-//! it carries and the wire it protects, rated for the voltage it must break,
+//! it carries and the wires it protects, rated for the voltage it must break,
 //! and slow enough not to blow at every motor start.
+//!
+//! Placement (`fuse/missing`): the walk from each battery positive may pass
+//! only connector contacts (the pack's own plug, part of its lead) before it
+//! meets a fuse or a fuse block; a switch or any other part ahead of the fuse,
+//! a load, or a branch to anything but fuses is reported.
 //!
 //! Sizing follows the order of the reference sheet §3: I_min = 1.25 × the
 //! continuous current (NEC 210.20(A)); the smallest standard blade rating at
@@ -13,16 +18,18 @@
 //! What a fuse protects: the supply-side nets below it in its electrical node
 //! (its load-side net and everything hanging under it through switches and
 //! connector contacts), stopping at the next fuse down, which protects what
-//! lies beyond it. Nets past a converter (regulator, driver, board output) are
-//! not counted: their current is set by that converter, not by this fuse.
-//! Return (ground) conductors are not counted either; `wire/ampacity` checks
-//! them against the current they carry.
+//! lies beyond it; and the return conductors of the loads fed from those
+//! nets — each load's ground net and every ground net above it up to the
+//! battery negative — since a fault at a load comes back through them. Nets
+//! past a converter (regulator, driver, board output), and the grounds of the
+//! loads that converter feeds, are not counted: their current is set by that
+//! converter, not by this fuse.
 
 use super::{
     Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
 };
 use crate::analysis::{BatteryState, OperatingPoint, battery_voltage};
-use crate::graph::through_pairs;
+use crate::graph::{MotorFeed, through_pairs};
 use crate::model::{Class, Fuse, FuseSpeed, NetId, PartId, PinRef, PinRole, Rated};
 use crate::syntax::Span;
 use crate::units::{WireSize, show_current, show_voltage};
@@ -36,7 +43,7 @@ pub const MISSING: Rule = Rule {
     severity: Severity::Error,
     summary: "no fuse between the battery positive and the first load or branch",
     doc: RuleDoc {
-        what: "Follows each battery's positive terminal along its wiring: the first thing it meets must be a fuse. A pack connector or a master switch in series ahead of the fuse is accepted as long as nothing loads or branches off before the fuse, and a fuse block (several fuses side by side on the battery lead) counts as fused; a load, or a net where the wiring splits to anything but fuses, reached before any fuse is reported.",
+        what: "Follows each battery's positive terminal along its wiring: the first element it meets must be a fuse. Only the contacts of a connector (the pack's own plug, part of its lead) may come before it; a fuse block (several fuses side by side on the battery lead, or behind the plug) counts as fused. A switch or any other part in series ahead of the fuse is reported (the wire and the switch ahead of the fuse are unprotected), and so is a load, or a net where the wiring splits to anything but fuses, reached before any fuse.",
         why: "A lithium or lead-acid pack can deliver hundreds of amperes into a short (reference sheet W15: 474 A from a 3S pack through 2 m of 14 AWG). Without a fuse at the source, a chafed wire or a slipped probe heats the wiring until its insulation melts or burns.",
         example: "nets:\n  VBAT: [pack.pos, buck.vin, estop.a]\n  GND:  [pack.neg, buck.gnd]",
         fix: "nets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT:  [main_fuse.b, buck.vin, estop.a]\n  GND:   [pack.neg, buck.gnd]",
@@ -66,7 +73,7 @@ pub const OVERSIZED: Rule = Rule {
     severity: Severity::Error,
     summary: "rating above the ampacity of a wire it protects",
     doc: RuleDoc {
-        what: "Each fuse's rating against the ampacity of every wire it protects: the supply nets with a `wire:` below it in its electrical node (its load-side net and what hangs under it through switches and connectors, up to the next fuse). Ampacity per the format contract §4 (Handbook chassis column; 33 CFR 183.425 Table 5 when `insulation:` is given for 8–18 AWG); the 150 % allowance of 33 CFR 183.455(c) is not applied.",
+        what: "Each fuse's rating against the ampacity of every wire it protects: the supply nets with a `wire:` below it in its electrical node (its load-side net and what hangs under it through switches and connectors, up to the next fuse), and the return conductors of the loads fed from those nets (each load's ground net and the ground nets above it up to the battery negative, where they have a `wire:`). Ampacity per the format contract §4 (Handbook chassis column; 33 CFR 183.425 Table 5 when `insulation:` is given for 8–18 AWG); the 150 % allowance of 33 CFR 183.455(c) is not applied.",
         why: "A fuse protects the wire, not the load. Rated above what its thinnest wire can carry, it lets a fault heat that wire past its insulation rating without ever blowing.",
         example: "parts:\n  main_fuse: { use: fuse/blade-15a }\nnets:\n  LAMP: { pins: [main_fuse.b, lamp.vin], wire: 22 AWG, length: 1 m }   # 7 A",
         fix: "parts:\n  main_fuse: { use: fuse/blade-5a }\n# or keep the fuse and run LAMP in 16 AWG (22 A)",
@@ -141,6 +148,15 @@ fn amps(i: ElectricCurrent) -> f64 {
     i.get::<ampere>()
 }
 
+/// Which side of the circuit a protected wire is on.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Conductor {
+    /// A supply net below the fuse.
+    Supply,
+    /// A ground net a load below the fuse returns its current through.
+    Return,
+}
+
 /// A wire a fuse protects, with its ampacity.
 #[derive(Clone, Copy, Debug)]
 struct WireLimit {
@@ -149,19 +165,36 @@ struct WireLimit {
     ampacity: ElectricCurrent,
     table: AmpacityTable,
     insulation: Option<ThermodynamicTemperature>,
+    conductor: Conductor,
 }
 
-/// The supply nets below `start` in its node's tree (itself included), not
-/// crossing another fuse; those with a wire whose ampacity a table gives.
-fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
-    let mut wires = Vec::new();
-    let mut stack = vec![start];
-    let mut seen = vec![false; cx.plan.nets.len()];
-    while let Some(net) = stack.pop() {
-        if std::mem::replace(&mut seen[net], true) {
-            continue;
+impl WireLimit {
+    /// How a finding names the wire: "`VBAT`", or "the return conductor
+    /// `GND`" for a ground net.
+    fn named(&self, cx: &Context) -> String {
+        match self.conductor {
+            Conductor::Supply => format!("`{}`", cx.net_name(self.net)),
+            Conductor::Return => format!("the return conductor `{}`", cx.net_name(self.net)),
         }
-        let n = &cx.plan.nets[net];
+    }
+}
+
+/// The wires a fuse whose load side is `start` protects: the supply nets
+/// below `start` in its node's tree (itself included), not crossing another
+/// fuse, and the return path of every load fed from those nets — its ground
+/// net and each net above it up to the battery negative. A fault at a load
+/// drives the fuse's current out along the supply and back along that
+/// return, so NEC 240.4 asks both to carry the fuse's rating. Only nets with
+/// a wire whose ampacity a table gives are kept.
+fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
+    let plan = cx.plan;
+    let mut wires = Vec::new();
+    let mut seen = vec![false; plan.nets.len()];
+    let mut keep = |net: NetId, conductor: Conductor, wires: &mut Vec<WireLimit>| {
+        if std::mem::replace(&mut seen[net], true) {
+            return false;
+        }
+        let n = &plan.nets[net];
         if let Some(wire) = n.wire
             && let Some((limit, table)) = ampacity(wire.value, n.insulation)
         {
@@ -171,17 +204,76 @@ fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
                 ampacity: limit,
                 table,
                 insulation: n.insulation,
+                conductor,
             });
         }
+        true
+    };
+
+    let mut supply_nets = Vec::new();
+    let mut stack = vec![start];
+    while let Some(net) = stack.pop() {
+        if !keep(net, Conductor::Supply, &mut wires) {
+            continue;
+        }
+        supply_nets.push(net);
         for &child in &cx.circuit.children[net] {
             let behind_fuse = cx.circuit.parent[child]
-                .is_some_and(|p| matches!(cx.plan.parts[p.part].class, Class::Fuse(_)));
+                .is_some_and(|p| matches!(plan.parts[p.part].class, Class::Fuse(_)));
             if !behind_fuse {
                 stack.push(child);
             }
         }
     }
+
+    for ground in return_starts(cx, &supply_nets) {
+        // Up the ground tree: each net's parent is one step nearer the
+        // battery negative at the root.
+        let mut net = Some(ground);
+        while let Some(here) = net {
+            if !keep(here, Conductor::Return, &mut wires) {
+                break;
+            }
+            net = cx.circuit.parent[here].map(|p| p.net);
+        }
+    }
     wires
+}
+
+/// The ground nets where the loads fed from `supply_nets` return their
+/// current: each supply-in part's ground net, and the ground side of a motor
+/// wired straight across a rail. Grounds that never reach a battery negative
+/// carry no return current and are left out (`ground/floating` reports them).
+fn return_starts(cx: &Context, supply_nets: &[NetId]) -> Vec<NetId> {
+    let plan = cx.plan;
+    let reaches_battery = |ground: NetId| {
+        let node = cx.circuit.node_of_net[ground];
+        cx.circuit.nodes[node]
+            .grounds
+            .iter()
+            .any(|p| matches!(plan.parts[p.part].class, Class::Battery(_)))
+    };
+    let mut starts = Vec::new();
+    for &net in supply_nets {
+        for pin in &plan.nets[net].pins {
+            let part = pin.part;
+            let ground = match plan.parts[part].pins[pin.pin].role {
+                PinRole::SupplyIn => cx.circuit.ground_net[part],
+                PinRole::Winding => match cx.circuit.motor_feed[part] {
+                    Some(MotorFeed::Direct { supply, ground }) if supply == net => Some(ground),
+                    _ => None,
+                },
+                _ => None,
+            };
+            if let Some(ground) = ground
+                && reaches_battery(ground)
+                && !starts.contains(&ground)
+            {
+                starts.push(ground);
+            }
+        }
+    }
+    starts
 }
 
 fn weakest(wires: &[WireLimit]) -> Option<WireLimit> {
@@ -237,9 +329,9 @@ impl Sizing {
 
     fn describe_wire(&self, cx: &Context, wire: &WireLimit) -> String {
         format!(
-            "the {} ampacity of `{}` ({}, {})",
+            "the {} ampacity of {} ({}, {})",
             show_current(wire.ampacity),
-            cx.net_name(wire.net),
+            wire.named(cx),
             wire.size,
             wire.table.describe()
         )
@@ -334,14 +426,11 @@ fn fuses<'a>(cx: &'a Context) -> Vec<PlacedFuse<'a>> {
         let Class::Fuse(spec) = &part.class else {
             continue;
         };
-        let downstream = through_pairs(cx.plan, part_id)
-            .first()
-            .and_then(|&(a, b)| cx.downstream_net(part_id, a, b));
         found.push(PlacedFuse {
             part: part_id,
             name: &part.name,
             spec,
-            downstream,
+            downstream: fuse_downstream(cx, part_id),
         });
     }
     found
@@ -373,11 +462,11 @@ fn sizing_at(cx: &Context, net: NetId) -> Sizing {
 
 // ----- fuse/missing ----------------------------------------------------------
 
-/// What a battery's positive lead meets first.
+/// What a battery's positive lead meets first, past its connector contacts.
 #[derive(Debug, PartialEq)]
 enum FirstElement {
     /// A fuse (or a block of fuses side by side), possibly behind connector
-    /// contacts and switches in series.
+    /// contacts.
     Fuse,
     /// Nothing that draws current (an open lead).
     Nothing,
@@ -385,17 +474,29 @@ enum FirstElement {
     Load { net: NetId, pin: PinRef },
     /// The wiring splits on this net, and these branches start without a fuse.
     Branch { net: NetId, pins: Vec<PinRef> },
+    /// A part in series that is neither a fuse nor a connector contact (a
+    /// switch), entered at `pin` on `net` after the contacts of `connectors`;
+    /// the lead then reaches `fuses`.
+    AheadOfFuse {
+        net: NetId,
+        pin: PinRef,
+        connectors: Vec<PartId>,
+        fuses: Vec<PartId>,
+    },
 }
 
 /// Follows the positive lead from `start` through single series contacts
-/// (connector contacts, switches) until a fuse, a load, a branch or an end.
-/// A net where the lead meets only fuses (a fuse block at the battery) is
-/// fused; a net where it meets a load, or splits to anything but fuses, is
-/// not.
+/// until a fuse, a load, a branch or an end. A net where the lead meets only
+/// fuses (a fuse block at the battery) is fused; a net where it meets a load,
+/// or splits to anything but fuses, is not. Connector contacts are part of the
+/// pack's lead; the first other series part (a switch) met before the fuse is
+/// reported as what stands ahead of it.
 fn first_element(cx: &Context, start: PinRef) -> FirstElement {
     let plan = cx.plan;
     let mut from = start;
     let mut seen = Vec::new();
+    let mut connectors: Vec<PartId> = Vec::new();
+    let mut ahead: Option<(NetId, PinRef, Vec<PartId>)> = None;
     loop {
         let Some(net) = plan.parts[from.part].pins[from.pin].net else {
             return FirstElement::Nothing;
@@ -419,7 +520,23 @@ fn first_element(cx: &Context, start: PinRef) -> FirstElement {
         };
         // One fuse, or a fuse block: every wire leaving here starts at a fuse.
         if others.iter().all(is_fuse) {
-            return FirstElement::Fuse;
+            return match ahead {
+                None => FirstElement::Fuse,
+                Some((net, pin, connectors)) => {
+                    let mut fuses: Vec<PartId> = Vec::new();
+                    for p in &others {
+                        if !fuses.contains(&p.part) {
+                            fuses.push(p.part);
+                        }
+                    }
+                    FirstElement::AheadOfFuse {
+                        net,
+                        pin,
+                        connectors,
+                        fuses,
+                    }
+                }
+            };
         }
         if let Some(&load) = others
             .iter()
@@ -444,11 +561,36 @@ fn first_element(cx: &Context, start: PinRef) -> FirstElement {
         let Some(partner) = partner else {
             return FirstElement::Nothing;
         };
+        if ahead.is_none() {
+            if matches!(plan.parts[only.part].class, Class::Connector(_)) {
+                if !connectors.contains(&only.part) {
+                    connectors.push(only.part);
+                }
+            } else {
+                ahead = Some((net, only, connectors.clone()));
+            }
+        }
         from = PinRef {
             part: only.part,
             pin: partner,
         };
     }
+}
+
+/// `` `a` `` or `` `a`, `b` ``: part names for a message.
+fn quoted_parts(cx: &Context, parts: &[PartId]) -> String {
+    parts
+        .iter()
+        .map(|&p| format!("`{}`", cx.part_name(p)))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// The load-side net of a fuse part, if it carries anything in the tree.
+fn fuse_downstream(cx: &Context, fuse: PartId) -> Option<NetId> {
+    through_pairs(cx.plan, fuse)
+        .first()
+        .and_then(|&(a, b)| cx.downstream_net(fuse, a, b))
 }
 
 fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
@@ -462,17 +604,20 @@ fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
                 part: part_id,
                 pin: pin_id,
             };
-            // The label goes on the first load's pin, or the first pin the
-            // lead branches to.
-            let (net, marked, what) = match first_element(cx, terminal) {
+            let first = first_element(cx, terminal);
+            // The label goes on the first load's pin, the first pin the lead
+            // branches to, or the part that stands ahead of the fuse.
+            let (net, marked, label, message) = match &first {
                 FirstElement::Fuse | FirstElement::Nothing => continue,
                 FirstElement::Load { net, pin } => (
-                    net,
-                    cx.pin_span(pin),
+                    *net,
+                    cx.pin_span(*pin),
+                    "first load or branch, unfused".to_string(),
                     format!(
-                        "reaches `{}` on `{}` with no fuse in between",
-                        cx.pin_name(pin),
-                        cx.net_name(net)
+                        "`{}` reaches `{}` on `{}` with no fuse in between: a short anywhere on that wiring draws the battery's full fault current",
+                        cx.pin_name(terminal),
+                        cx.pin_name(*pin),
+                        cx.net_name(*net)
                     ),
                 ),
                 FirstElement::Branch { net, pins } => {
@@ -482,43 +627,97 @@ fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
                         .collect();
                     let marked = pins
                         .first()
-                        .map_or(plan.nets[net].span, |p| cx.pin_span(*p));
+                        .map_or(plan.nets[*net].span, |p| cx.pin_span(*p));
                     (
-                        net,
+                        *net,
                         marked,
+                        "first load or branch, unfused".to_string(),
                         format!(
-                            "branches on `{}` to {} before any fuse",
-                            cx.net_name(net),
+                            "`{}` branches on `{}` to {} before any fuse: a short anywhere on that wiring draws the battery's full fault current",
+                            cx.pin_name(terminal),
+                            cx.net_name(*net),
                             names.join(", ")
+                        ),
+                    )
+                }
+                FirstElement::AheadOfFuse {
+                    net,
+                    pin,
+                    connectors,
+                    fuses,
+                } => {
+                    let element = &plan.parts[pin.part];
+                    let past = if connectors.is_empty() {
+                        String::new()
+                    } else {
+                        let noun = if connectors.len() == 1 {
+                            "connector"
+                        } else {
+                            "connectors"
+                        };
+                        format!(
+                            ", past the contacts of {noun} {},",
+                            quoted_parts(cx, connectors)
+                        )
+                    };
+                    let fuse_word = if fuses.len() == 1 { "fuse" } else { "fuses" };
+                    (
+                        *net,
+                        cx.pin_span(*pin),
+                        format!("{} ahead of the fuse, unprotected", element.class.name()),
+                        format!(
+                            "the first element on `{}`{past} is {} `{}`, not a fuse: the wire and the {} ahead of {fuse_word} {} are unprotected, and a short there draws the battery's full fault current",
+                            cx.pin_name(terminal),
+                            element.class.name(),
+                            element.name,
+                            element.class.name(),
+                            quoted_parts(cx, fuses)
                         ),
                     )
                 }
             };
             let start = part.pins[pin_id].net.unwrap_or(net);
             // The fuse at the terminal would carry the battery's whole
-            // output and protect every supply wire of its node.
+            // output and protect every wire of its node down to the next
+            // fuse; one moved up from behind a switch keeps protecting what
+            // it protected there as well.
+            let mut wires = protected_wires(cx, start);
+            let placement = match &first {
+                FirstElement::AheadOfFuse { pin, fuses, .. } => {
+                    let element = &plan.parts[pin.part];
+                    let ahead = format!("{} `{}`", element.class.name(), element.name);
+                    match fuses.as_slice() {
+                        [fuse] => {
+                            if let Some(below) = fuse_downstream(cx, *fuse) {
+                                wires.extend(protected_wires(cx, below));
+                            }
+                            format!(
+                                "move `{}` ahead of {ahead}, so that only the pack's connector comes before it on the battery positive",
+                                cx.part_name(*fuse)
+                            )
+                        }
+                        _ => format!(
+                            "put a fuse ahead of {ahead}, so that only the pack's connector comes before it on the battery positive"
+                        ),
+                    }
+                }
+                _ => "make a fuse the first element on the battery positive".to_string(),
+            };
             let sizing = Sizing {
                 continuous: worst_point(cx.points().filter(continuous), |p| {
                     p.batteries[part_id].map(|b| amps(b.current))
                 })
                 .map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
-                wire: weakest(&protected_wires(cx, start)),
+                wire: weakest(&wires),
             };
-            let finding = Finding::new(
-                &MISSING,
-                cx.pin_span(terminal),
-                format!(
-                    "`{}` {what}: a short anywhere on that wiring draws the battery's full fault current",
-                    cx.pin_name(terminal)
-                ),
-            )
-            .label(marked, "first load or branch, unfused")
-            .help(format!(
-                "make a fuse the first element on the battery positive, within 7 in (178 mm) of the terminal; {}",
-                sizing.advice(cx)
-            ))
-            .part(&part.name)
-            .net(cx.net_name(net));
+            let finding = Finding::new(&MISSING, cx.pin_span(terminal), message)
+                .label(marked, label)
+                .help(format!(
+                    "{placement}, within 7 in (178 mm) of the terminal; {}",
+                    sizing.advice(cx)
+                ))
+                .part(&part.name)
+                .net(cx.net_name(net));
             out.push(sizing.values(finding));
         }
     }
@@ -579,16 +778,28 @@ fn check_oversized(cx: &Context, out: &mut Vec<Finding>) {
             &OVERSIZED,
             rated_span(cx, &rating, fuse.part),
             format!(
-                "`{}` is rated {}, above the {} ampacity of `{}` ({}, {}) that it protects: a fault on that wire can overheat it without blowing the fuse",
+                "`{}` is rated {}, above the {} ampacity of {} ({}, {}) that it protects: {}",
                 fuse.name,
                 show_current(rating.value),
                 show_current(thinnest.ampacity),
-                cx.net_name(thinnest.net),
+                thinnest.named(cx),
                 thinnest.size,
-                thinnest.table.describe()
+                thinnest.table.describe(),
+                match thinnest.conductor {
+                    Conductor::Supply =>
+                        "a fault on that wire can overheat it without blowing the fuse",
+                    Conductor::Return =>
+                        "a fault at a load it feeds returns through that wire, which can overheat without blowing the fuse",
+                }
             ),
         )
-        .label(cx.plan.nets[thinnest.net].span, "thinnest protected wire")
+        .label(
+            cx.plan.nets[thinnest.net].span,
+            match thinnest.conductor {
+                Conductor::Supply => "thinnest protected wire",
+                Conductor::Return => "thinnest protected wire: a return conductor",
+            },
+        )
         .help(sizing.advice(cx))
         .part(fuse.name)
         .value("rating", amps(rating.value));

@@ -71,3 +71,48 @@ fn an_unknown_rule_is_refused_with_exit_2() {
     assert_eq!(output.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&output.stderr).contains("railcheck rules"));
 }
+
+/// Each rule's documented example is a whole plan on which the rule fires,
+/// and its documented fix a whole plan on which it does not, so the
+/// catalogue teaches with examples that are true.
+#[test]
+fn every_doc_example_fires_and_its_fix_does_not() {
+    let library = railcheck::model::Library::builtin();
+    let mut problems = Vec::new();
+    for rule in RULES {
+        for (what, text, should_fire) in [
+            ("example", rule.doc.example, true),
+            ("fix", rule.doc.fix, false),
+        ] {
+            match railcheck::check(&format!("{} {what}", rule.id), text, &library) {
+                Err(failure) => problems.push(format!(
+                    "{} {what} does not read: {}",
+                    rule.id,
+                    failure
+                        .errors
+                        .iter()
+                        .map(|e| e.message.as_str())
+                        .collect::<Vec<_>>()
+                        .join("; ")
+                )),
+                Ok(checked) => {
+                    let fired = checked.findings.iter().any(|f| f.rule == rule.id);
+                    if fired != should_fire {
+                        problems.push(format!(
+                            "{} {what}: the rule {} (findings: {:?})",
+                            rule.id,
+                            if fired { "fires" } else { "does not fire" },
+                            checked.findings.iter().map(|f| f.rule).collect::<Vec<_>>()
+                        ));
+                    }
+                }
+            }
+        }
+    }
+    assert!(
+        problems.is_empty(),
+        "{} problems:\n{}",
+        problems.len(),
+        problems.join("\n")
+    );
+}

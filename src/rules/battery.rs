@@ -18,8 +18,8 @@ pub const DISCHARGE: Rule = Rule {
     doc: RuleDoc {
         what: "The total current out of each battery at its highest over every mode and battery state, `worst` included (every load at peak, every motor stalled), against its `max_discharge`: a current, or a C-rate times `capacity`.",
         why: "A pack driven past its discharge rating sags hard, heats, and ages fast; a lithium pack can swell or vent. The sag can also brown out the electronics just as the motors start.",
-        example: "parts:\n  pack: { use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 25C } }   # 55 A; the robot's stall peak is 60 A",
-        fix: "parts:\n  pack: { use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 35C } }   # 77 A",
+        example: "railcheck: 1\nname: orchard platform winch\nparts:\n  pack:  { use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 25C, cutoff: true } }   # 25 × 2.2 Ah = 55 A\n  fuse:  { use: fuse/blade-20a, with: { speed: slow } }\n  winch: { class: load, pins: { vin: { role: supply-in, range: 7 V..13 V, draw: { typical: 10 A, peak: 60 A } }, gnd: { role: ground } } }   # 60 A > 55 A\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, winch.vin]\n  GND:   [pack.neg, winch.gnd]\n",
+        fix: "railcheck: 1\nname: orchard platform winch\nparts:\n  pack:  { use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 35C, cutoff: true } }   # 35 × 2.2 Ah = 77 A\n  fuse:  { use: fuse/blade-20a, with: { speed: slow } }\n  winch: { class: load, pins: { vin: { role: supply-in, range: 7 V..13 V, draw: { typical: 10 A, peak: 60 A } }, gnd: { role: ground } } }   # 60 A ≤ 77 A\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, winch.vin]\n  GND:   [pack.neg, winch.gnd]\n",
         references: "C-rate: I = C-rate × rated capacity (IEC 61434 'It'; reference sheet §6 and worked example W13: 2.2 Ah at 25C gives 55.0 A); discharge within the labelled rating, common practice (reference sheet §10); peak current per the format contract §6.",
     },
     needs_operating_point: true,
@@ -33,8 +33,8 @@ pub const NO_CUTOFF: Rule = Rule {
     doc: RuleDoc {
         what: "Whether each lithium battery (`lipo`, `li-ion`, `lifepo4`) declares `cutoff: true`: a low-voltage cut-off or protection board that disconnects it before its cells are over-discharged.",
         why: "A robot left running drains its pack below the cells' discharge floor; an over-discharged lithium cell is damaged, and recharging it risks internal shorts, swelling and fire. The loads keep drawing long after the robot has stopped moving.",
-        example: "parts:\n  pack: { use: battery/lipo-3s }   # cutoff: false",
-        fix: "parts:\n  pack: { use: battery/lipo-3s, with: { cutoff: true } }   # with a cut-off board fitted",
+        example: "railcheck: 1\nname: orchard soil logger\nparts:\n  pack:   { use: battery/lipo-3s }   # cutoff: false, no protection board\n  fuse:   { use: fuse/blade-3a }\n  logger: { class: load, pins: { vin: { role: supply-in, range: 8 V..18 V, draw: 400 mA }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, logger.vin]\n  GND:   [pack.neg, logger.gnd]\n",
+        fix: "railcheck: 1\nname: orchard soil logger\nparts:\n  pack:   { use: battery/lipo-3s, with: { cutoff: true } }   # a cut-off board fitted\n  fuse:   { use: fuse/blade-3a }\n  logger: { class: load, pins: { vin: { role: supply-in, range: 8 V..18 V, draw: 400 mA }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, logger.vin]\n  GND:   [pack.neg, logger.gnd]\n",
         references: "Recommended discharge cut-off 3.0 V per Li-ion/LiPo cell and 2.5 V per LiFePO4 cell, with the cells' absolute floor below that (Linden & Reddy, Handbook of Batteries; reference sheet §6).",
     },
     needs_operating_point: false,

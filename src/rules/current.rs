@@ -22,8 +22,8 @@ pub const OVER_RATING: Rule = Rule {
     doc: RuleDoc {
         what: "The highest current over all modes (`worst` included) through each regulator output, onboard supply output, switch, connector contact and USB host port against its rating; and the continuous current of each driver channel (motors running) against `channel_current`.",
         why: "A regulator past its rating folds back or overheats, a switch or contact past its rating burns its contacts, a driver past its continuous rating shuts down or fails — and the robot stops or smokes.",
-        example: "parts:\n  buck: { use: regulator/buck-5v-3a }\n  brain: { use: board/sbc-5v }     # 1.8 A peak plus 1.2 A of USB devices\n  cam:  { class: load, pins: { vin: { role: supply-in, range: 4.75 V..5.25 V, draw: { peak: 0.8 A } }, gnd: { role: ground } } }",
-        fix: "parts:\n  buck: { use: regulator/buck-5v-5a }",
+        example: "railcheck: 1\nname: orchard scout, 5 V rail\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-3a }\n  buck:  { use: regulator/buck-5v-3a }   # brain 1.8 A + camera 1.5 A = 3.3 A peak > 3 A\n  brain: { use: board/sbc-5v }\n  cam:   { class: load, pins: { vin: { role: supply-in, range: 4.75 V..5.25 V, draw: { typical: 0.5 A, peak: 1.5 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, brain.vin, cam.vin]\n  GND:   [pack.neg, buck.gnd, brain.gnd, cam.gnd]\n",
+        fix: "railcheck: 1\nname: orchard scout, 5 V rail\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-3a }\n  buck:  { use: regulator/buck-5v-5a }   # 3.3 A peak ≤ 5 A\n  brain: { use: board/sbc-5v }\n  cam:   { class: load, pins: { vin: { role: supply-in, range: 4.75 V..5.25 V, draw: { typical: 0.5 A, peak: 1.5 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, brain.vin, cam.vin]\n  GND:   [pack.neg, buck.gnd, brain.gnd, cam.gnd]\n",
         references: "Rating comparison with the 0.1 % tolerance of the format contract §6; driver continuous vs running current, reference sheet §8 (common practice).",
     },
     needs_operating_point: true,
@@ -37,8 +37,8 @@ pub const DERATING: Rule = Rule {
     doc: RuleDoc {
         what: "The continuous current (over `typical` and the user's modes, never `worst`) through each rated output, switch, contact and driver channel against `limits.derate` (default 80 %) of its rating.",
         why: "Parts run at their full rating run hot and age fast; 80 % continuous is the usual margin for regulators, drivers and switches.",
-        example: "parts:\n  buck: { use: regulator/buck-5v-3a }   # 2.7 A continuous: 90 % of 3 A",
-        fix: "parts:\n  buck: { use: regulator/buck-5v-5a }   # 54 %",
+        example: "railcheck: 1\nname: greenhouse controller, 5 V heater rail\nparts:\n  pack:   { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:   { use: fuse/blade-3a }\n  buck:   { use: regulator/buck-5v-3a }   # 2.7 A continuous: 90 % of 3 A > 80 %\n  heater: { class: load, pins: { vin: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 2.7 A, peak: 2.9 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, heater.vin]\n  GND:   [pack.neg, buck.gnd, heater.gnd]\n",
+        fix: "railcheck: 1\nname: greenhouse controller, 5 V heater rail\nparts:\n  pack:   { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:   { use: fuse/blade-3a }\n  buck:   { use: regulator/buck-5v-5a }   # 2.7 A continuous: 54 % of 5 A\n  heater: { class: load, pins: { vin: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 2.7 A, peak: 2.9 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, heater.vin]\n  GND:   [pack.neg, buck.gnd, heater.gnd]\n",
         references: "Continuous load ≤ 80 % of rating: NEC 210.20(A) for overcurrent devices; the same margin for regulators and drivers is common practice (reference sheet §10).",
     },
     needs_operating_point: true,

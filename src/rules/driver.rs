@@ -15,8 +15,8 @@ pub const STALL: Rule = Rule {
     doc: RuleDoc {
         what: "The current each motor draws when stalled — its stall current scaled to the voltage its driver actually applies (supply less the bridge drop) — against the driver channel's `channel_peak`.",
         why: "Every start is a stall for a few tens of milliseconds, and a jammed wheel is a stall for as long as it lasts: a driver whose peak rating is below the stall current trips, or burns out, at exactly the moment the robot needs torque.",
-        example: "parts:\n  drive: { use: driver/bipolar-dual-2a }     # 3 A peak per channel\n  left:  { use: motor/gearmotor-medium }     # stalls at several amperes on 12 V",
-        fix: "parts:\n  drive: { use: driver/mosfet-dual-hbridge } # 30 A peak per channel",
+        example: "railcheck: 1\nname: orchard scout, wheel drive\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-10a }\n  estop: { use: switch/estop-20a }\n  drive: { use: driver/bipolar-dual-2a }   # 3 A peak per channel, 2 V bridge drop\n  left:  { use: motor/gearmotor-medium }   # 12 V / 5 A = 2.4 ohm: stalls at (12.6 V − 2 V) / 2.4 ohm ≈ 4.4 A > 3 A\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, estop.a]\n  VMOT:  [estop.b, drive.vm]\n  GND:   [pack.neg, drive.gnd]\n  M1A:   [drive.out1a, left.a]\n  M1B:   [drive.out1b, left.b]\n",
+        fix: "railcheck: 1\nname: orchard scout, wheel drive\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-10a }\n  estop: { use: switch/estop-20a }\n  drive: { use: driver/mosfet-dual-hbridge }   # 30 A peak per channel, 2 × 5 mohm\n  left:  { use: motor/gearmotor-medium }   # 12 V / 5 A = 2.4 ohm: stalls at 12.6 V / 2.41 ohm = 5.2 A < 30 A\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, estop.a]\n  VMOT:  [estop.b, drive.vm]\n  GND:   [pack.neg, drive.gnd]\n  M1A:   [drive.out1a, left.a]\n  M1B:   [drive.out1b, left.b]\n",
         references: "Stall current I = V / R_winding and start-up inrush equal to stall (reference sheet §8, W11); driver peak ≥ stall, common practice.",
     },
     needs_operating_point: true,

@@ -14,8 +14,8 @@ pub const SHORT: Rule = Rule {
     doc: RuleDoc {
         what: "Whether any electrical node (nets joined through fuses, switches and connector contacts count as one) holds both a `supply-out` pin and a `ground` pin.",
         why: "A source wired straight to ground is a dead short: a battery delivers hundreds of amperes, melts wire insulation and can start a fire before any fuse clears.",
-        example: "nets:\n  BATT+: [pack.pos, main_fuse.a]\n  OOPS:  [main_fuse.b, pack.neg]",
-        fix: "nets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT:  [main_fuse.b, buck.vin]\n  GND:   [pack.neg, buck.gnd]",
+        example: "railcheck: 1\nname: greenhouse lamp cart\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-5a }\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  LAMP:  [lamp.vin]\n  GND:   [pack.neg, lamp.gnd, fuse.b]   # fused lead crimped into ground",
+        fix: "railcheck: 1\nname: greenhouse lamp cart\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-5a }\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  LAMP:  [fuse.b, lamp.vin]\n  GND:   [pack.neg, lamp.gnd]",
         references: "Kirchhoff's laws; reference sheet W15 (short-circuit current of a 3S pack through 14 AWG: 474 A).",
     },
     needs_operating_point: false,
@@ -65,8 +65,8 @@ pub const CONFLICT: Rule = Rule {
     doc: RuleDoc {
         what: "Whether two sources, neither marked `or: diode`, drive the same rail: two `supply-out` pins, or a supply-out and the VBUS of a USB cable whose device port `feeds` that rail.",
         why: "Two regulated outputs tied together fight: the higher one back-feeds the lower, which can destroy a regulator or a USB port and makes the rail voltage undefined.",
-        example: "nets:\n  5V: [buck.vout, mcu.5v, sensor.vcc]",
-        fix: "nets:\n  5V:     [buck.vout, sensor.vcc]\n  MCU5V:  [mcu.5v]   # or mark one output `or: diode`",
+        example: "railcheck: 1\nname: orchard scout\nparts:\n  pack:   { use: battery/nimh-8cell }\n  fuse:   { use: fuse/blade-2a }\n  buck:   { use: regulator/buck-5v-3a }\n  brain:  { use: board/mcu-8bit-5v }\n  ranger: { use: sensor/rangefinder-5v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin, brain.vin]\n  5V:    [buck.vout, brain.5v, ranger.vcc]   # two 5 V outputs tied together\n  GND:   [pack.neg, buck.gnd, brain.gnd, ranger.gnd]",
+        fix: "railcheck: 1\nname: orchard scout\nparts:\n  pack:   { use: battery/nimh-8cell }\n  fuse:   { use: fuse/blade-2a }\n  buck:   { use: regulator/buck-5v-3a }\n  brain:  { use: board/mcu-8bit-5v }\n  ranger: { use: sensor/rangefinder-5v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin, brain.vin]\n  5V:    [buck.vout, ranger.vcc]\n  GND:   [pack.neg, buck.gnd, brain.gnd, ranger.gnd]",
         references: "Kirchhoff's voltage law (two ideal sources in parallel are undefined); diode-OR power sharing, common practice.",
     },
     needs_operating_point: false,
@@ -133,8 +133,8 @@ pub const UNFED: Rule = Rule {
     doc: RuleDoc {
         what: "Whether every `supply-in` pin that is wired sits on a rail that some `supply-out` feeds, and whether every part that needs power has at least one fed supply input (or a USB cable that powers it).",
         why: "A load on a rail with no source never powers up; often a net name was mistyped or a wire forgotten.",
-        example: "nets:\n  5V: [sensor.vcc]",
-        fix: "nets:\n  5V: [buck.vout, sensor.vcc]",
+        example: "railcheck: 1\nname: greenhouse climate logger\nparts:\n  pack:   { use: battery/nimh-8cell }\n  fuse:   { use: fuse/blade-2a }\n  buck:   { use: regulator/buck-5v-3a }\n  ranger: { use: sensor/rangefinder-5v }\nnets:\n  BATT+:   [pack.pos, fuse.a]\n  VBAT:    [fuse.b, buck.vin]\n  5V:      [buck.vout]\n  5V_SENS: [ranger.vcc]   # no source on this rail\n  GND:     [pack.neg, buck.gnd, ranger.gnd]",
+        fix: "railcheck: 1\nname: greenhouse climate logger\nparts:\n  pack:   { use: battery/nimh-8cell }\n  fuse:   { use: fuse/blade-2a }\n  buck:   { use: regulator/buck-5v-3a }\n  ranger: { use: sensor/rangefinder-5v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, ranger.vcc]\n  GND:   [pack.neg, buck.gnd, ranger.gnd]",
         references: "Kirchhoff's current law: a node with loads and no source carries no current.",
     },
     needs_operating_point: false,
@@ -233,8 +233,8 @@ pub const LOOP: Rule = Rule {
     doc: RuleDoc {
         what: "Whether power can flow from a converter's output back to its own input (directly or through other converters).",
         why: "A regulator that powers itself has no real source: the rail either collapses or latches in an undefined state, and the plan cannot be solved.",
-        example: "nets:\n  VIN: [boost.vout, buck.vin]\n  5V:  [buck.vout, boost.vin]",
-        fix: "nets:\n  VIN: [pack.pos, buck.vin]\n  5V:  [buck.vout, boost.vin]\n  12V: [boost.vout, lamp.vin]",
+        example: "railcheck: 1\nname: lab lamp rig\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-3a }\n  buck:  { use: regulator/buck-5v-3a }\n  boost: { use: regulator/boost-12v }\n  lamp:  { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b]\n  12V:   [boost.vout, lamp.vin, buck.vin]   # buck fed from the boost's output\n  5V:    [buck.vout, boost.vin]\n  GND:   [pack.neg, buck.gnd, boost.gnd, lamp.gnd]",
+        fix: "railcheck: 1\nname: lab lamp rig\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-3a }\n  buck:  { use: regulator/buck-5v-3a }\n  boost: { use: regulator/boost-12v }\n  lamp:  { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  12V:   [boost.vout, lamp.vin]\n  5V:    [buck.vout, boost.vin]\n  GND:   [pack.neg, buck.gnd, boost.gnd, lamp.gnd]",
         references: "Conservation of energy: a converter chain cannot supply its own input.",
     },
     needs_operating_point: false,

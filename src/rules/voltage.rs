@@ -18,8 +18,8 @@ pub const OVER_MAX: Rule = Rule {
     doc: RuleDoc {
         what: "The highest voltage a supply input sees (full battery, lightest load, regulator at the top of its tolerance) against the pin's absolute maximum `max`.",
         why: "Above the absolute maximum a part can fail at once or degrade silently; a 3S pack at full charge is 12.6 V, not 11.1 V.",
-        example: "parts:\n  pack: { use: battery/lipo-4s }\n  ldo:  { use: regulator/linear-3v3-800ma }   # input max 15 V\nnets:\n  BATT+: [pack.pos, ldo.vin]",
-        fix: "parts:\n  pack: { use: battery/lipo-4s }\n  buck: { use: regulator/buck-5v-3a }\nnets:\n  BATT+: [pack.pos, buck.vin]",
+        example: "railcheck: 1\nname: greenhouse sensor mast\nparts:\n  pack: { use: battery/lipo-4s, with: { cutoff: true } }   # 4S full = 16.8 V\n  fuse: { use: fuse/blade-1a }\n  ldo:  { use: regulator/linear-3v3-800ma }                # input max 15 V\n  imu:  { use: sensor/imu-3v3 }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, ldo.vin]\n  3V3:   [ldo.vout, imu.vcc]\n  GND:   [pack.neg, ldo.gnd, imu.gnd]",
+        fix: "railcheck: 1\nname: greenhouse sensor mast\nparts:\n  pack: { use: battery/lipo-3s, with: { cutoff: true } }   # 3S full = 12.6 V\n  fuse: { use: fuse/blade-1a }\n  ldo:  { use: regulator/linear-3v3-800ma }                # input max 15 V\n  imu:  { use: sensor/imu-3v3 }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, ldo.vin]\n  3V3:   [ldo.vout, imu.vcc]\n  GND:   [pack.neg, ldo.gnd, imu.gnd]",
         references: "Pack windows: reference sheet §6 and W13 (cells × 4.20 V at full charge).",
     },
     needs_operating_point: true,
@@ -33,8 +33,8 @@ pub const OVER_RANGE: Rule = Rule {
     doc: RuleDoc {
         what: "The highest voltage a supply input sees against the top of its operating `range`, when it stays below the absolute maximum.",
         why: "Outside the operating range the part is not specified: it may run hot or misbehave even though it is not immediately damaged.",
-        example: "parts:\n  lamp: { class: load, pins: { vin: { role: supply-in, range: 10 V..12 V, max: 16 V, draw: 0.4 A }, gnd: { role: ground } } }\n# on a 3S pack (12.6 V full)",
-        fix: "pins: { vin: { role: supply-in, range: 10 V..13 V, max: 16 V, draw: 0.4 A } }   # a lamp rated for the pack's full voltage",
+        example: "railcheck: 1\nname: orchard work lamp\nparts:\n  pack: { use: battery/lead-acid-12v }   # full 6 × 2.30 V = 13.8 V\n  fuse: { use: fuse/blade-2a }\n  lamp:\n    class: load\n    pins:\n      vin: { role: supply-in, range: 10 V..12 V, max: 16 V, draw: 0.4 A }\n      gnd: { role: ground }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  LAMP:  [fuse.b, lamp.vin]\n  GND:   [pack.neg, lamp.gnd]",
+        fix: "railcheck: 1\nname: orchard work lamp\nparts:\n  pack: { use: battery/lead-acid-12v }   # full 6 × 2.30 V = 13.8 V\n  fuse: { use: fuse/blade-2a }\n  lamp: { use: load/lamp-12v }   # rated 10 V..15 V\nnets:\n  BATT+: [pack.pos, fuse.a]\n  LAMP:  [fuse.b, lamp.vin]\n  GND:   [pack.neg, lamp.gnd]",
         references: "Pack windows: reference sheet §6 and W13.",
     },
     needs_operating_point: true,
@@ -49,8 +49,8 @@ pub const UNDER_RANGE: Rule = Rule {
     doc: RuleDoc {
         what: "The lowest voltage a supply input sees (battery sag, wire drops, regulators dropping out, motors stalling) against the bottom of its operating `range`. An error when it happens at nominal battery; a warning when only an empty battery brings it there.",
         why: "Below its range a controller browns out and resets — typically the moment the motors stall and pull the battery down.",
-        example: "parts:\n  pack: { use: battery/lipo-2s, with: { internal_resistance: 0.2 ohm } }\n# stalled motors pull 7.4 V down to 5.9 V: the 5 V linear regulator drops out",
-        fix: "parts:\n  pack: { use: battery/lipo-3s }\n  reg:  { use: regulator/buck-5v-3a }",
+        example: "railcheck: 1\nname: orchard cart\nparts:\n  pack:  { use: battery/lead-acid-12v, with: { internal_resistance: 0.5 ohm } }   # worn\n  fuse:  { use: fuse/blade-10a }\n  stop:  { use: switch/estop-20a }\n  wheel: { use: motor/gearmotor-medium }   # winding 12 V / 5 A = 2.4 ohm\n  lamp:  { use: load/lamp-12v }            # vin 10 V..15 V\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, stop.a]\n  VMOT:  [stop.b, wheel.a, lamp.vin]       # a stall sags 12 V to 9.7 V\n  GND:   [pack.neg, wheel.b, lamp.gnd]",
+        fix: "railcheck: 1\nname: orchard cart\nparts:\n  pack:  { use: battery/lead-acid-12v }   # healthy: 0.025 ohm\n  fuse:  { use: fuse/blade-10a }\n  stop:  { use: switch/estop-20a }\n  wheel: { use: motor/gearmotor-medium }   # winding 12 V / 5 A = 2.4 ohm\n  lamp:  { use: load/lamp-12v }            # vin 10 V..15 V\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, stop.a]\n  VMOT:  [stop.b, wheel.a, lamp.vin]       # a stall at empty: 10.4 V\n  GND:   [pack.neg, wheel.b, lamp.gnd]",
         references: "Battery sag V = Voc − I·R (Ohm's law); pack windows reference sheet §6; stall current I = V/R, reference sheet §8.",
     },
     needs_operating_point: true,

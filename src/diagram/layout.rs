@@ -87,6 +87,16 @@ impl Label {
     }
 }
 
+impl PlacedMarker {
+    pub(super) fn shifted(&self, dx: f64, dy: f64) -> PlacedMarker {
+        PlacedMarker {
+            x: self.x + dx,
+            y: self.y + dy,
+            ..*self
+        }
+    }
+}
+
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub(crate) struct Rect {
     pub x: f64,
@@ -687,11 +697,7 @@ fn place_tag(shape: &TagShape, item: &Item) -> PlacedTag {
         markers: shape
             .markers
             .iter()
-            .map(|m| PlacedMarker {
-                x: m.x + item.x,
-                y: m.y + item.top,
-                ..*m
-            })
+            .map(|m| m.shifted(item.x, item.top))
             .collect(),
         ground_icon: shape.ground_icon.map(|(x, y)| (x + item.x, y + item.top)),
     }
@@ -713,11 +719,7 @@ fn place_box(shape: BoxShape, item: &Item) -> PlacedBox {
         markers: shape
             .markers
             .iter()
-            .map(|m| PlacedMarker {
-                x: m.x + item.x,
-                y: m.y + item.top,
-                ..*m
-            })
+            .map(|m| m.shifted(item.x, item.top))
             .collect(),
         grounds: shape
             .grounds

@@ -423,10 +423,10 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
             .set("data-part", part.id.clone())
             .add(rect);
         for l in &placed.labels {
-            group = group.add(label(&l.shifted_by(dx, dy), "part-text"));
+            group = group.add(label(&l.shifted(dx, dy), "part-text"));
         }
         for m in &placed.markers {
-            group = group.add(marker(&m.shifted_by(dx, dy)));
+            group = group.add(marker(&m.shifted(dx, dy)));
         }
         for g in &placed.grounds {
             group = group.add(ground_symbol(g.x + dx, g.y + dy, g.reaches_battery));
@@ -440,10 +440,10 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
             .set("class", if tag.ground { "tag ground" } else { "tag" })
             .set("data-net", tag.net.clone());
         for l in &placed.labels {
-            group = group.add(label(&l.shifted_by(dx, dy), "tag-text"));
+            group = group.add(label(&l.shifted(dx, dy), "tag-text"));
         }
         for m in &placed.markers {
-            group = group.add(marker(&m.shifted_by(dx, dy)));
+            group = group.add(marker(&m.shifted(dx, dy)));
         }
         if let Some((x, y)) = placed.ground_icon {
             group = group.add(ground_symbol(x + dx, y + dy, true));
@@ -455,26 +455,6 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
         .add(wires)
         .add(boxes)
         .add(tags)
-}
-
-impl Label {
-    fn shifted_by(&self, dx: f64, dy: f64) -> Label {
-        Label {
-            x: self.x + dx,
-            y: self.y + dy,
-            ..self.clone()
-        }
-    }
-}
-
-impl PlacedMarker {
-    fn shifted_by(&self, dx: f64, dy: f64) -> PlacedMarker {
-        PlacedMarker {
-            x: self.x + dx,
-            y: self.y + dy,
-            ..*self
-        }
-    }
 }
 
 fn findings_panel(

@@ -475,14 +475,7 @@ impl Solver<'_> {
             if node.is_ground() {
                 continue;
             }
-            let Some(root) = circuit.root[node_id] else {
-                continue;
-            };
-            let Some(pin) = node
-                .supply_outs
-                .iter()
-                .find(|p| plan.parts[p.part].pins[p.pin].net == Some(root))
-            else {
+            let Some(pin) = circuit.source[node_id] else {
                 if let Some(&link) = circuit.vbus[node_id].first() {
                     let device = plan.links[link].device.0;
                     source[node_id] = self
@@ -749,11 +742,7 @@ impl Solver<'_> {
             let (Some(&link), Some(root)) = (links.first(), circuit.root[node_id]) else {
                 continue;
             };
-            let has_source = circuit.nodes[node_id]
-                .supply_outs
-                .iter()
-                .any(|p| plan.parts[p.part].pins[p.pin].net == Some(root));
-            if !has_source {
+            if circuit.source[node_id].is_none() {
                 link_current[link] += point.net_current[root];
             }
         }
@@ -887,14 +876,11 @@ impl Solver<'_> {
             let Some(root) = circuit.root[node_id] else {
                 continue;
             };
-            // The first source on the root net is the one the voltages are
-            // taken from; it carries the node. Others (a conflict, or
-            // diode-joined spares) are charged nothing rather than twice.
-            let mut charged = false;
+            // The node's source (the one its voltage is taken from) carries
+            // it. Others (a conflict, or diode-joined spares) are charged
+            // nothing rather than twice.
             for pin in &node.supply_outs {
-                let on_root = plan.parts[pin.part].pins[pin.pin].net == Some(root);
-                pin_current[pin.part][pin.pin] = if on_root && !charged {
-                    charged = true;
+                pin_current[pin.part][pin.pin] = if circuit.source[node_id] == Some(*pin) {
                     net_current[root]
                 } else {
                     zero_current()

@@ -146,14 +146,7 @@ pub fn budget(checked: &Checked) -> Budget {
         if node.is_ground() {
             continue;
         }
-        let Some(root) = circuit.root[node_id] else {
-            continue;
-        };
-        let Some(&source) = node
-            .supply_outs
-            .iter()
-            .find(|p| plan.parts[p.part].pins[p.pin].net == Some(root))
-        else {
+        let (Some(root), Some(source)) = (circuit.root[node_id], circuit.source[node_id]) else {
             continue;
         };
         let PinRef { part, pin } = source;

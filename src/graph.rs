@@ -63,6 +63,9 @@ pub struct Circuit {
     pub children: Vec<Vec<NetId>>,
     /// Per electrical node: the net holding its source (or battery negative).
     pub root: Vec<Option<NetId>>,
+    /// Per electrical node: the supply-out pin its voltage is taken from (the
+    /// first one on its root net), if a pin feeds it.
+    pub source: Vec<Option<PinRef>>,
     /// Per electrical node: the USB links whose device port `feeds` a pin on it
     /// (VBUS joins that rail).
     pub vbus: Vec<Vec<usize>>,
@@ -142,6 +145,17 @@ impl Circuit {
             .map(|(i, node)| root_net(plan, node).or(vbus_net[i]))
             .collect();
         let (parent, children, net_order) = trees(net_count, &nodes, &root, &through_edges);
+        let source: Vec<Option<PinRef>> = nodes
+            .iter()
+            .zip(&root)
+            .map(|(node, root)| {
+                let root = (*root)?;
+                node.supply_outs
+                    .iter()
+                    .copied()
+                    .find(|p| plan.parts[p.part].pins[p.pin].net == Some(root))
+            })
+            .collect();
 
         let ground_net: Vec<Option<NetId>> = plan
             .parts
@@ -161,6 +175,7 @@ impl Circuit {
             node_of_net,
             parent,
             children,
+            source,
             root,
             vbus,
             net_order,

@@ -251,13 +251,7 @@ impl WiringDrop {
 
 /// The supply-out pin on the root net of the node a supply net belongs to.
 fn source_of(cx: &Context, net: NetId) -> Option<PinRef> {
-    let node = cx.circuit.node_of_net[net];
-    let root = cx.circuit.root[node]?;
-    cx.circuit.nodes[node]
-        .supply_outs
-        .iter()
-        .copied()
-        .find(|p| cx.plan.parts[p.part].pins[p.pin].net == Some(root))
+    cx.circuit.source[cx.circuit.node_of_net[net]]
 }
 
 fn wiring_drop(

@@ -231,8 +231,12 @@ fn load_state(plan: &Plan, mode: ModeId, part: PartId) -> LoadState {
 
 const MAX_ITERATIONS: usize = 500;
 /// Settled when no potential moves by more than this between passes.
-const VOLTAGE_TOLERANCE: f64 = 1e-9;
-const CURRENT_TOLERANCE: f64 = 1e-9;
+fn voltage_tolerance() -> ElectricPotential {
+    ElectricPotential::new::<volt>(1e-9)
+}
+fn current_tolerance() -> ElectricCurrent {
+    ElectricCurrent::new::<ampere>(1e-9)
+}
 
 fn zero_current() -> ElectricCurrent {
     ElectricCurrent::new::<ampere>(0.0)
@@ -344,7 +348,10 @@ impl Solver<'_> {
                 .zip(&point.net_current)
                 .map(|(a, b)| (*a - *b).get::<ampere>().abs())
                 .fold(0.0, f64::max);
-            if iteration > 1 && moved_v < VOLTAGE_TOLERANCE && moved_i < CURRENT_TOLERANCE {
+            if iteration > 1
+                && moved_v < voltage_tolerance().get::<volt>()
+                && moved_i < current_tolerance().get::<ampere>()
+            {
                 self.voltages(&mut point);
                 return point;
             }

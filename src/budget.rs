@@ -19,8 +19,10 @@ use uom::si::time::hour;
 /// Peukert's exponent for lead-acid batteries (reference sheet §6: flooded
 /// 1.2–1.3, AGM 1.05–1.15; 1.2 as in worked example W12).
 pub const PEUKERT_LEAD_ACID: f64 = 1.2;
-/// Hours of the rate at which lead-acid capacity is rated (the 20 h rate).
-pub const LEAD_ACID_RATED_HOURS: f64 = 20.0;
+/// The rate at which lead-acid capacity is rated: the 20 h rate.
+pub fn lead_acid_rated_time() -> Time {
+    Time::new::<hour>(20.0)
+}
 
 #[derive(Clone, Debug)]
 pub struct Budget {
@@ -296,7 +298,7 @@ pub fn runtime(
     let ah = rated.get::<ampere_hour>();
     let share = usable.get::<ratio>();
     Some(if chemistry == Chemistry::LeadAcid {
-        let h = LEAD_ACID_RATED_HOURS;
+        let h = lead_acid_rated_time().get::<hour>();
         Runtime {
             time: Time::new::<hour>(share * h * (ah / (amps * h)).powf(PEUKERT_LEAD_ACID)),
             method: format!(

@@ -34,8 +34,14 @@ fn plausible_temperature(text: &str) -> Result<ThermodynamicTemperature, UnitErr
 /// (published-values §7: "use 0.85 when none is given", common practice).
 const DEFAULT_EFFICIENCY: f64 = 0.85;
 /// Many linear regulators and LDOs (published-values §7, common practice).
-const DEFAULT_TJ_MAX_DEGC: f64 = 125.0;
-const DEFAULT_AMBIENT_DEGC: f64 = 25.0;
+fn default_tj_max() -> ThermodynamicTemperature {
+    ThermodynamicTemperature::new::<degree_celsius>(125.0)
+}
+
+/// Contract §1: `ambient` defaults to 25 °C.
+fn default_ambient() -> ThermodynamicTemperature {
+    ThermodynamicTemperature::new::<degree_celsius>(25.0)
+}
 const DEFAULT_WIRE_DROP: f64 = 0.05;
 const DEFAULT_DERATE: f64 = 0.80;
 const MAX_CELLS: u32 = 1000;
@@ -168,10 +174,10 @@ impl Reader<'_> {
             .get("name")
             .and_then(|n| self.text(n, "the plan's name"));
         let ambient = match root.get("ambient") {
-            Some(n) => self.scalar_quantity(n, plausible_temperature).unwrap_or(
-                ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_AMBIENT_DEGC),
-            ),
-            None => ThermodynamicTemperature::new::<degree_celsius>(DEFAULT_AMBIENT_DEGC),
+            Some(n) => self
+                .scalar_quantity(n, plausible_temperature)
+                .unwrap_or(default_ambient()),
+            None => default_ambient(),
         };
         let limits = self.limits(root.get("limits"));
 
@@ -1113,9 +1119,7 @@ impl Reader<'_> {
         let theta_ja = self.quantity(body, "theta_ja", units::thermal_resistance);
         let tj_max = self
             .quantity(body, "tj_max", plausible_temperature)
-            .unwrap_or(ThermodynamicTemperature::new::<degree_celsius>(
-                DEFAULT_TJ_MAX_DEGC,
-            ));
+            .unwrap_or(default_tj_max());
         let (topology, output) = (topology?, output?);
         let efficiency = match (topology, efficiency_written) {
             (_, Some(e)) if e.get::<ratio>() > 0.0 => e,

@@ -451,63 +451,54 @@ impl Solver<'_> {
     fn voltages(&self, point: &mut OperatingPoint) {
         let plan = self.plan;
         let circuit = self.circuit;
-        // Ground nets: the battery negative's net is 0 V at its root; return
-        // current raises the far end.
-        let mut potential: Vec<Option<ElectricPotential>> = vec![None; plan.nets.len()];
+        // Ground nets first, from the last pass's currents: the battery
+        // negative's net is 0 V at its root; return current raises the far end.
+        point.net_potential = vec![None; plan.nets.len()];
         for &net in &circuit.net_order {
             let node = &circuit.nodes[circuit.node_of_net[net]];
             if !node.is_ground() {
                 continue;
             }
             let upstream = match circuit.parent[net] {
-                Some(parent) => potential[parent.net],
+                Some(parent) => point.net_potential[parent.net],
                 None => Some(zero_voltage()),
             };
-            potential[net] = upstream.map(|u| u + self.drop(net, point.net_current[net]));
+            point.net_potential[net] = upstream.map(|u| u + self.drop(net, point.net_current[net]));
         }
-        // A battery's negative terminal is the reference every potential is
-        // measured from; other parts sit at the load end of their ground net.
-        let ground_of = |part: PartId, potential: &[Option<ElectricPotential>]| {
-            if matches!(plan.parts[part].class, Class::Battery(_)) {
-                return zero_voltage();
-            }
-            circuit.ground_net[part]
-                .and_then(|n| potential[n])
-                .unwrap_or_else(zero_voltage)
-        };
 
-        // Source potentials, from the previous pass's inputs.
-        let mut source: Vec<Option<ElectricPotential>> = vec![None; circuit.nodes.len()];
-        for (node_id, node) in circuit.nodes.iter().enumerate() {
-            if node.is_ground() {
-                continue;
-            }
-            let Some(pin) = circuit.source[node_id] else {
-                if let Some(&link) = circuit.vbus[node_id].first() {
-                    let device = plan.links[link].device.0;
-                    source[node_id] = self
-                        .vbus_voltage(point, link)
-                        .map(|v| ground_of(device, &potential) + v);
+        // Then the rails in the order power flows, so a converter's input is
+        // known before its output is worked out in the same pass.
+        for &node_id in &circuit.rail_order {
+            let source = match circuit.source[node_id] {
+                Some(pin) => {
+                    let ground = self.ground_of(point, pin.part);
+                    let across = self.source_voltage(point, pin.part, pin.pin);
+                    point.pin_voltage[pin.part][pin.pin] = across;
+                    across.map(|v| ground + v)
                 }
-                continue;
+                None => circuit.vbus[node_id].first().and_then(|&link| {
+                    let device = plan.links[link].device.0;
+                    let ground = self.ground_of(point, device);
+                    self.vbus_voltage(point, link).map(|v| ground + v)
+                }),
             };
-            let ground = ground_of(pin.part, &potential);
-            let across = self.source_voltage(point, pin.part, pin.pin);
-            source[node_id] = across.map(|v| ground + v);
-            point.pin_voltage[pin.part][pin.pin] = across;
-        }
-        for &net in &circuit.net_order {
-            let node_id = circuit.node_of_net[net];
-            if circuit.nodes[node_id].is_ground() {
-                continue;
+            for &net in &circuit.node_nets[node_id] {
+                let upstream = match circuit.parent[net] {
+                    Some(parent) => point.net_potential[parent.net],
+                    None => source,
+                };
+                point.net_potential[net] =
+                    upstream.map(|u| u - self.drop(net, point.net_current[net]));
             }
-            let upstream = match circuit.parent[net] {
-                Some(parent) => potential[parent.net],
-                None => source[node_id],
-            };
-            potential[net] = upstream.map(|u| u - self.drop(net, point.net_current[net]));
+            // The voltage across each part fed from this rail.
+            for pin in &circuit.nodes[node_id].supply_ins {
+                let ground = self.ground_of(point, pin.part);
+                point.pin_voltage[pin.part][pin.pin] = plan.parts[pin.part].pins[pin.pin]
+                    .net
+                    .and_then(|n| point.net_potential[n])
+                    .map(|v| v - ground);
+            }
         }
-        point.net_potential = potential;
 
         // Onboard outputs left unwired still set the levels of their part's
         // logic pins: give them their voltage whenever the part is powered.
@@ -527,20 +518,18 @@ impl Solver<'_> {
                 }
             }
         }
+    }
 
-        // Voltage across each supply-in pin.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            let ground = ground_of(part_id, &point.net_potential);
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role != PinRole::SupplyIn {
-                    continue;
-                }
-                point.pin_voltage[part_id][pin_id] = pin
-                    .net
-                    .and_then(|n| point.net_potential[n])
-                    .map(|v| v - ground);
-            }
+    /// Where a part's ground sits: a battery's negative terminal is the
+    /// reference every potential is measured from; other parts sit at the
+    /// load end of their ground net.
+    fn ground_of(&self, point: &OperatingPoint, part: PartId) -> ElectricPotential {
+        if matches!(self.plan.parts[part].class, Class::Battery(_)) {
+            return zero_voltage();
         }
+        self.circuit.ground_net[part]
+            .and_then(|n| point.net_potential[n])
+            .unwrap_or_else(zero_voltage)
     }
 
     /// VBUS at the device end of a cable: the host's own supply less the drop
@@ -630,17 +619,6 @@ impl Solver<'_> {
         let plan = self.plan;
         let circuit = self.circuit;
 
-        // Supply-out pins keep what they delivered in the last pass until the
-        // net currents of this pass are known.
-        let mut pin_current: Vec<Vec<ElectricCurrent>> = point.pin_current.clone();
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role != PinRole::SupplyOut {
-                    pin_current[part_id][pin_id] = zero_current();
-                }
-            }
-        }
-
         // Motors first: drivers add them up.
         for (part_id, feed) in circuit.motor_feed.iter().enumerate() {
             let Class::Motor(motor) = &plan.parts[part_id].class else {
@@ -722,129 +700,76 @@ impl Solver<'_> {
             }
         }
 
-        // USB cables: what each host port sends to its device.
-        let mut link_current = vec![zero_current(); plan.links.len()];
-        for (link_id, link) in plan.links.iter().enumerate() {
-            let (device, port) = link.device;
-            let state = load_state(plan, self.mode, device);
-            let mut current = match &plan.parts[device].ports[port].kind {
-                PortKind::UsbDevice { draw: Some(d), .. } => d.in_state(state),
-                _ => zero_current(),
-            };
-            // A device powered only by the cable also passes on what its own
-            // outputs deliver.
-            let fed_otherwise = self.fed_supply_in(point, device).is_some();
-            if !fed_otherwise {
-                for (pin_id, pin) in plan.parts[device].pins.iter().enumerate() {
-                    if pin.role == PinRole::SupplyOut {
-                        current += pin_current[device][pin_id];
-                    }
-                }
-            }
-            link_current[link_id] = current;
-        }
-
-        // A cable that feeds a rail with no other source carries that rail.
-        for (node_id, links) in circuit.vbus.iter().enumerate() {
-            let (Some(&link), Some(root)) = (links.first(), circuit.root[node_id]) else {
-                continue;
-            };
-            if circuit.source[node_id].is_none() {
-                link_current[link] += point.net_current[root];
-            }
-        }
-
-        // Each part's supply-in pins.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            let state = load_state(plan, self.mode, part_id);
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                // Only a pin on a fed rail draws: an open or unfed input
-                // carries nothing (its part may be powered another way).
-                let fed = pin.net.is_some_and(|n| point.net_potential[n].is_some());
-                if pin.role == PinRole::SupplyIn {
-                    pin_current[part_id][pin_id] = match pin.draw {
-                        Some(d) if fed => d.in_state(state),
-                        _ => zero_current(),
-                    };
-                }
-            }
-            match &part.class {
-                Class::Regulator(regulator) => {
-                    let (Some(vin), Some(vout)) = (part.pin("vin"), part.pin("vout")) else {
-                        continue;
-                    };
-                    let output_current = pin_current[part_id][vout];
-                    let input_voltage =
-                        point.pin_voltage[part_id][vin].unwrap_or_else(zero_voltage);
-                    let output_voltage = point.regulators[part_id]
-                        .map_or(regulator.output.nominal, |r| r.output_voltage);
-                    let input_current = if regulator.topology == Topology::Linear {
-                        output_current + regulator.quiescent
-                    } else if input_voltage.get::<volt>() > 0.0 {
-                        // Energy balance: Iin = Vout·Iout / (η·Vin) (reference sheet §7).
-                        let output_power: Power = output_voltage * output_current;
-                        output_power / (input_voltage * regulator.efficiency.get::<ratio>())
-                            + regulator.quiescent
-                    } else {
-                        regulator.quiescent
-                    };
-                    pin_current[part_id][vin] = input_current;
-                    let entry = point.regulators[part_id].get_or_insert(RegulatorPoint {
-                        input_voltage,
-                        output_voltage,
-                        input_current,
-                        output_current,
-                        out_of_regulation: false,
-                    });
-                    entry.input_current = input_current;
-                    entry.output_current = output_current;
-                }
-                Class::Driver(driver) => {
-                    if let Some(vm) = part.pin("vm") {
-                        let motors = channels[part_id]
-                            .iter()
-                            .fold(zero_current(), |sum, (_, i)| sum + *i);
-                        pin_current[part_id][vm] += motors + driver.quiescent;
-                    }
-                }
-                _ => {}
-            }
-        }
-        // Onboard outputs and USB host ports are paid for by the part's own supply.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
-                continue;
-            }
-            let mut passed_on = zero_current();
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyOut {
-                    passed_on += pin_current[part_id][pin_id];
-                }
-            }
-            for (link_id, link) in plan.links.iter().enumerate() {
-                if link.host.0 == part_id {
-                    passed_on += link_current[link_id];
-                }
-            }
-            if passed_on.get::<ampere>() == 0.0 {
-                continue;
-            }
-            if let Some(pin) = self.fed_supply_in(point, part_id) {
-                pin_current[part_id][pin] += passed_on;
-            }
-        }
-
-        // Net currents: each net carries what hangs on it and below it.
+        // Rails downstream first: what a converter draws depends on what its
+        // outputs deliver, so those are known before its input is worked out.
+        let mut pin_current: Vec<Vec<ElectricCurrent>> = plan
+            .parts
+            .iter()
+            .map(|p| vec![zero_current(); p.pins.len()])
+            .collect();
         let mut net_current = vec![zero_current(); plan.nets.len()];
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyIn
-                    && let Some(net) = pin.net
-                {
-                    net_current[net] += pin_current[part_id][pin_id];
+        let mut done: Vec<Vec<bool>> = plan
+            .parts
+            .iter()
+            .map(|p| vec![false; p.pins.len()])
+            .collect();
+        for &node_id in circuit.rail_order.iter().rev() {
+            let node = &circuit.nodes[node_id];
+            for pin in &node.supply_ins {
+                pin_current[pin.part][pin.pin] =
+                    self.supply_in_current(point, *pin, &pin_current, &net_current, &channels);
+                done[pin.part][pin.pin] = true;
+            }
+            // Each net carries what hangs on it and below it.
+            for &net in circuit.node_nets[node_id].iter().rev() {
+                for pin in &plan.nets[net].pins {
+                    if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn {
+                        net_current[net] += pin_current[pin.part][pin.pin];
+                    }
+                }
+                for (motor, feed) in circuit.motor_feed.iter().enumerate() {
+                    if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) =
+                        (feed, point.motors[motor])
+                        && *supply == net
+                    {
+                        net_current[net] += m.current;
+                    }
+                }
+                if let Some(parent) = circuit.parent[net] {
+                    let below = net_current[net];
+                    net_current[parent.net] += below;
                 }
             }
-            // Return current: what a part takes in minus what it gives out.
+            // The node's source (the one its voltage is taken from) carries
+            // it. Others (a conflict, or diode-joined spares) are charged
+            // nothing rather than twice.
+            if let (Some(source), Some(root)) = (circuit.source[node_id], circuit.root[node_id]) {
+                pin_current[source.part][source.pin] = net_current[root];
+            }
+        }
+        // Inputs on no rail carry nothing, but a regulator there still gets
+        // its operating point recorded.
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role == PinRole::SupplyIn && !done[part_id][pin_id] {
+                    let pin_ref = crate::model::PinRef {
+                        part: part_id,
+                        pin: pin_id,
+                    };
+                    let _ = self.supply_in_current(
+                        point,
+                        pin_ref,
+                        &pin_current,
+                        &net_current,
+                        &channels,
+                    );
+                }
+            }
+        }
+
+        // Return current: what a part takes in minus what it gives out, on
+        // its ground net, summed toward the battery negative.
+        for (part_id, part) in plan.parts.iter().enumerate() {
             if matches!(part.class, Class::Battery(_)) {
                 continue;
             }
@@ -861,44 +786,143 @@ impl Solver<'_> {
             }
         }
         for (motor, feed) in circuit.motor_feed.iter().enumerate() {
-            if let (Some(MotorFeed::Direct { supply, ground }), Some(m)) =
-                (feed, point.motors[motor])
-            {
-                net_current[*supply] += m.current;
+            if let (Some(MotorFeed::Direct { ground, .. }), Some(m)) = (feed, point.motors[motor]) {
                 net_current[*ground] += m.current;
             }
         }
         for &net in circuit.net_order.iter().rev() {
+            if !circuit.nodes[circuit.node_of_net[net]].is_ground() {
+                continue;
+            }
             if let Some(parent) = circuit.parent[net] {
                 let below = net_current[net];
                 net_current[parent.net] += below;
             }
         }
 
-        // What each source delivers: everything its node carries.
-        for (node_id, node) in circuit.nodes.iter().enumerate() {
-            if node.is_ground() {
-                continue;
-            }
-            let Some(root) = circuit.root[node_id] else {
-                continue;
-            };
-            // The node's source (the one its voltage is taken from) carries
-            // it. Others (a conflict, or diode-joined spares) are charged
-            // nothing rather than twice.
-            for pin in &node.supply_outs {
-                pin_current[pin.part][pin.pin] = if circuit.source[node_id] == Some(*pin) {
-                    net_current[root]
-                } else {
-                    zero_current()
-                };
-            }
-        }
-
+        point.link_current = (0..plan.links.len())
+            .map(|link| self.link_current(point, link, &pin_current, &net_current))
+            .collect();
         point.pin_current = pin_current;
         point.net_current = net_current;
         point.channels = channels;
-        point.link_current = link_current;
+    }
+
+    /// What a USB cable carries from its host: the device port's draw, what a
+    /// device powered only by the cable passes on from its own outputs, and
+    /// a rail the cable's VBUS feeds when nothing else feeds it.
+    fn link_current(
+        &self,
+        point: &OperatingPoint,
+        link: usize,
+        pin_current: &[Vec<ElectricCurrent>],
+        net_current: &[ElectricCurrent],
+    ) -> ElectricCurrent {
+        let plan = self.plan;
+        let circuit = self.circuit;
+        let (device, port) = plan.links[link].device;
+        let state = load_state(plan, self.mode, device);
+        let mut current = match &plan.parts[device].ports[port].kind {
+            PortKind::UsbDevice { draw: Some(d), .. } => d.in_state(state),
+            _ => zero_current(),
+        };
+        if self.fed_supply_in(point, device).is_none() {
+            for (pin_id, pin) in plan.parts[device].pins.iter().enumerate() {
+                if pin.role == PinRole::SupplyOut {
+                    current += pin_current[device][pin_id];
+                }
+            }
+        }
+        for (node_id, links) in circuit.vbus.iter().enumerate() {
+            if links.first() == Some(&link)
+                && circuit.source[node_id].is_none()
+                && let Some(root) = circuit.root[node_id]
+            {
+                current += net_current[root];
+            }
+        }
+        current
+    }
+
+    /// The current into one supply-in pin: its draw in the mode's state, a
+    /// regulator's input by its topology, a driver's motors, and, on the
+    /// part's first fed input, what its onboard outputs and USB host ports
+    /// deliver.
+    fn supply_in_current(
+        &self,
+        point: &mut OperatingPoint,
+        pin_ref: crate::model::PinRef,
+        pin_current: &[Vec<ElectricCurrent>],
+        net_current: &[ElectricCurrent],
+        channels: &[Vec<(u32, ElectricCurrent)>],
+    ) -> ElectricCurrent {
+        let plan = self.plan;
+        let (part_id, pin_id) = (pin_ref.part, pin_ref.pin);
+        let part = &plan.parts[part_id];
+        let pin = &part.pins[pin_id];
+        let state = load_state(plan, self.mode, part_id);
+        // Only a pin on a fed rail draws: an open or unfed input carries
+        // nothing (its part may be powered another way).
+        let fed = pin.net.is_some_and(|n| point.net_potential[n].is_some());
+        let mut current = match pin.draw {
+            Some(d) if fed => d.in_state(state),
+            _ => zero_current(),
+        };
+        match &part.class {
+            Class::Regulator(regulator) if part.pin("vin") == Some(pin_id) => {
+                let Some(vout) = part.pin("vout") else {
+                    return current;
+                };
+                let output_current = pin_current[part_id][vout];
+                let input_voltage = point.pin_voltage[part_id][pin_id].unwrap_or_else(zero_voltage);
+                let output_voltage = point.regulators[part_id]
+                    .map_or(regulator.output.nominal, |r| r.output_voltage);
+                let input_current = if regulator.topology == Topology::Linear {
+                    output_current + regulator.quiescent
+                } else if input_voltage.get::<volt>() > 0.0 {
+                    // Energy balance: Iin = Vout·Iout / (η·Vin) (reference sheet §7).
+                    let output_power: Power = output_voltage * output_current;
+                    output_power / (input_voltage * regulator.efficiency.get::<ratio>())
+                        + regulator.quiescent
+                } else {
+                    regulator.quiescent
+                };
+                let entry = point.regulators[part_id].get_or_insert(RegulatorPoint {
+                    input_voltage,
+                    output_voltage,
+                    input_current,
+                    output_current,
+                    out_of_regulation: false,
+                });
+                entry.input_current = input_current;
+                entry.output_current = output_current;
+                return input_current;
+            }
+            Class::Driver(driver) if part.pin("vm") == Some(pin_id) => {
+                let motors = channels[part_id]
+                    .iter()
+                    .fold(zero_current(), |sum, (_, i)| sum + *i);
+                current += motors + driver.quiescent;
+            }
+            _ => {}
+        }
+        // Onboard outputs and USB host ports are paid for by the part's own
+        // supply, through its first fed input.
+        let pays = !matches!(part.class, Class::Battery(_) | Class::Regulator(_))
+            && self.fed_supply_in(point, part_id) == Some(pin_id);
+        if pays {
+            for (out_id, out) in part.pins.iter().enumerate() {
+                if out.role == PinRole::SupplyOut {
+                    current += pin_current[part_id][out_id];
+                }
+            }
+            for (link, l) in plan.links.iter().enumerate() {
+                if l.host.0 == part_id {
+                    current += self.link_current(point, link, pin_current, net_current);
+                }
+            }
+        }
+        current
     }
 
     /// The first supply-in pin of a part that sits on a fed rail.

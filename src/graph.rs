@@ -71,6 +71,11 @@ pub struct Circuit {
     pub vbus: Vec<Vec<usize>>,
     /// Nets in an order where each net's parent comes before it.
     pub net_order: Vec<NetId>,
+    /// Per electrical node: its nets in that order.
+    pub node_nets: Vec<Vec<NetId>>,
+    /// Supply nodes in the order power flows through them (upstream first),
+    /// so one pass down and one pass up settle a chain of converters.
+    pub rail_order: Vec<usize>,
     /// Per part: the net of its first connected ground pin.
     pub ground_net: Vec<Option<NetId>>,
     /// Per part: the ground group it belongs to (electrical nodes joined by
@@ -169,6 +174,11 @@ impl Circuit {
             ground_groups(plan, &nodes, &node_of_net, &ground_net);
         let motor_feed = motor_feeds(plan, &nodes, &node_of_net);
         let (flow, rail_stage, converter_stage) = flow_graph(plan, &nodes, &node_of_net);
+        let mut node_nets = vec![Vec::new(); nodes.len()];
+        for &net in &net_order {
+            node_nets[node_of_net[net]].push(net);
+        }
+        let rail_order = rail_order(&flow, &nodes);
 
         Circuit {
             nodes,
@@ -179,6 +189,8 @@ impl Circuit {
             root,
             vbus,
             net_order,
+            node_nets,
+            rail_order,
             ground_net,
             ground_group,
             grounded_groups,
@@ -375,6 +387,29 @@ fn motor_feeds(
         .collect()
 }
 
+/// Supply nodes upstream first, by the flow graph's topological order; a
+/// graph with a power loop (never solved) or a node outside the graph falls
+/// back to index order.
+fn rail_order(flow: &StableDiGraph<Stage, ()>, nodes: &[ElectricalNode]) -> Vec<usize> {
+    let mut order: Vec<usize> = petgraph::algo::toposort(flow, None)
+        .map(|stages| {
+            stages
+                .into_iter()
+                .filter_map(|s| match flow[s] {
+                    Stage::Rail(node) => Some(node),
+                    Stage::Converter(_) => None,
+                })
+                .collect()
+        })
+        .unwrap_or_default();
+    let mut placed = vec![false; nodes.len()];
+    for &n in &order {
+        placed[n] = true;
+    }
+    order.extend((0..nodes.len()).filter(|&n| !placed[n] && !nodes[n].is_ground()));
+    order
+}
+
 type Flow = (
     StableDiGraph<Stage, ()>,
     Vec<Option<NodeIndex>>,
@@ -422,10 +457,21 @@ fn flow_graph(plan: &Plan, nodes: &[ElectricalNode], node_of_net: &[usize]) -> F
         }
     }
     for link in &plan.links {
-        if let (Some(host), Some(device)) =
-            (converter_stage[link.host.0], converter_stage[link.device.0])
-        {
+        let Some(host) = converter_stage[link.host.0] else {
+            continue;
+        };
+        if let Some(device) = converter_stage[link.device.0] {
             flow.add_edge(host, device, ());
+        }
+        // VBUS fed into a rail: the host powers that rail.
+        let (device, port) = link.device;
+        if let PortKind::UsbDevice {
+            feeds: Some(pin), ..
+        } = plan.parts[device].ports[port].kind
+            && let Some(net) = plan.parts[device].pins[pin].net
+            && let Some(rail) = rail_stage[node_of_net[net]]
+        {
+            flow.add_edge(host, rail, ());
         }
     }
     (flow, rail_stage, converter_stage)

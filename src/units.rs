@@ -1437,7 +1437,19 @@ fn show_scaled(value: f64, prefixes: &[Prefix]) -> String {
         return format!("{value}");
     };
     let sign = if value < 0.0 { "-" } else { "" };
-    let number = decimal(digits, exponent - 2 - chosen.scale_exponent);
+    let shift = exponent - 2 - chosen.scale_exponent;
+    // Past a million million of the largest unit (or below a millionth of
+    // the smallest) a written-out number would run to dozens of digits: use
+    // powers of ten instead.
+    if !(-8..=12).contains(&shift) {
+        let mantissa = decimal(digits, -2);
+        return format!(
+            "{sign}{mantissa}e{} {}",
+            exponent - chosen.scale_exponent,
+            chosen.symbol
+        );
+    }
+    let number = decimal(digits, shift);
     format!("{sign}{number} {}", chosen.symbol)
 }
 
@@ -2147,6 +2159,8 @@ mod tests {
         assert_eq!(show_power(p(5.9)), "5.9 W");
         assert_eq!(show_power(p(0.25)), "250 mW");
         assert_eq!(show_power(p(1500.0)), "1.5 kW");
+        // Absurd magnitudes switch to powers of ten instead of 140 digits.
+        assert_eq!(show_power(p(8.72e141)), "8.72e138 kW");
         let r = ElectricalResistance::new::<ohm>;
         assert_eq!(show_resistance(r(0.05)), "50 m\u{3a9}");
         assert_eq!(show_resistance(r(10_000.0)), "10 k\u{3a9}");

@@ -199,9 +199,9 @@ fn linear_regulator_below_dropout_follows_its_input() {
     close(volts_in(full, pin(&c, "mcu", "vin")), 5.0, 1e-9);
 }
 
-fn constant_power_plan(internal_resistance: &str) -> String {
+fn constant_power_plan(internal_resistance: &str, topology: &str) -> String {
     format!(
-        "railcheck: 1\nparts:\n  supply: {{ class: battery, chemistry: lipo, voltage: 12 V, internal_resistance: {internal_resistance} }}\n  buck: {{ class: regulator, topology: buck, output: 5 V, efficiency: 90 % }}\n{}nets:\n  VIN: [supply.pos, buck.vin]\n  5V: [buck.vout, load.vin]\n  GND: [supply.neg, buck.gnd, load.gnd]\n",
+        "railcheck: 1\nparts:\n  supply: {{ class: battery, chemistry: lipo, voltage: 12 V, internal_resistance: {internal_resistance} }}\n  buck: {{ class: regulator, topology: {topology}, output: 5 V, efficiency: 90 % }}\n{}nets:\n  VIN: [supply.pos, buck.vin]\n  5V: [buck.vout, load.vin]\n  GND: [supply.neg, buck.gnd, load.gnd]\n",
         load("load", "3 A")
     )
 }
@@ -212,7 +212,7 @@ fn constant_power_load_settles_on_the_upper_root() {
     // 12 V source behind R = 0.5 Ω: V = 12 − R·P/V, so V² − 12·V + R·P = 0 and
     // the stable operating point is the upper root
     // V = (12 + √(144 − 4 × 0.5 × 16.67)) / 2 = 11.260 V (quadratic formula).
-    let c = checked(&constant_power_plan("0.5 ohm"));
+    let c = checked(&constant_power_plan("0.5 ohm", "buck"));
     let p = point(&c, ModeId::TYPICAL, BatteryState::Nominal, Corner::Low);
     assert!(p.unsettled.is_none());
     let power = 15.0 / 0.9;
@@ -227,9 +227,11 @@ fn constant_power_load_settles_on_the_upper_root() {
 
 #[test]
 fn constant_power_beyond_the_source_does_not_settle() {
-    // A real solution needs R·P ≤ V²/4 (discriminant of V² − V·Vb + R·P):
-    // with R = 3 Ω, R·P = 50 W·Ω > 144/4 = 36: no operating point.
-    let c = checked(&constant_power_plan("3 ohm"));
+    // A buck-boost holds its output at any input, so it draws constant power
+    // P = 15 / 0.9 = 16.67 W. A real solution needs R·P ≤ V²/4 (discriminant
+    // of V² − V·Vb + R·P): with R = 3 Ω, R·P = 50 W·Ω > 144/4 = 36: no
+    // operating point.
+    let c = checked(&constant_power_plan("3 ohm", "buck-boost"));
     let p = point(&c, ModeId::TYPICAL, BatteryState::Nominal, Corner::Low);
     assert!(p.unsettled.is_some());
     let finding = c
@@ -238,6 +240,20 @@ fn constant_power_beyond_the_source_does_not_settle() {
         .find(|f| f.rule == "analysis/no-convergence")
         .expect("no-convergence reported");
     assert_eq!(finding.parts, vec!["buck".to_string()]);
+}
+
+#[test]
+fn a_buck_beyond_its_source_settles_in_dropout() {
+    // The same load on a buck (dropout 0): below 5 V in it passes its input
+    // through, Vout = Vin, so Iin = Vout·Iout/(η·Vin) = Iout/η = 3.333 A, a
+    // constant current: Vin = 12 − 3 Ω × 3.333 A = 2.0 V (Ohm's law), and the
+    // rail browns out instead of collapsing.
+    let c = checked(&constant_power_plan("3 ohm", "buck"));
+    let p = point(&c, ModeId::TYPICAL, BatteryState::Nominal, Corner::Low);
+    assert!(p.unsettled.is_none());
+    close(volts_in(p, pin(&c, "buck", "vin")), 2.0, 1e-6);
+    close(volts_in(p, pin(&c, "load", "vin")), 2.0, 1e-6);
+    assert!(c.findings.iter().any(|f| f.rule == "regulator/dropout"));
 }
 
 #[test]

@@ -145,12 +145,12 @@ fn no_budget_without_an_operating_point() {
 
 #[test]
 fn unsolved_modes_are_named_not_counted_as_zero() {
-    // A 5 V buck at 90 % drawing 3 A in `worst` takes 16.7 W; from 12 V behind
-    // 3 Ω the most a source can deliver is V²/(4R) = 12 W (maximum power
-    // transfer), so `worst` has no operating point while `typical` (0.5 A,
-    // 2.8 W) does.
+    // A 5 V buck-boost (it holds its output at any input) at 90 % drawing
+    // 3 A in `worst` takes 16.7 W; from 12 V behind 3 Ω the most a source can
+    // deliver is V²/(4R) = 12 W (maximum power transfer), so `worst` has no
+    // operating point while `typical` (0.5 A, 2.8 W) does.
     let c = checked(
-        "railcheck: 1\nparts:\n  supply: { class: battery, chemistry: lipo, voltage: 12 V, internal_resistance: 3 ohm, cutoff: true }\n  buck: { class: regulator, topology: buck, output: 5 V, efficiency: 90 % }\n  load: { class: load, pins: { vin: { role: supply-in, draw: { typical: 0.5 A, peak: 3 A } }, gnd: { role: ground } } }\nnets:\n  VB: [supply.pos, buck.vin]\n  5V: [buck.vout, load.vin]\n  GND: [supply.neg, buck.gnd, load.gnd]\n",
+        "railcheck: 1\nparts:\n  supply: { class: battery, chemistry: lipo, voltage: 12 V, internal_resistance: 3 ohm, cutoff: true }\n  buck: { class: regulator, topology: buck-boost, output: 5 V, efficiency: 90 % }\n  load: { class: load, pins: { vin: { role: supply-in, draw: { typical: 0.5 A, peak: 3 A } }, gnd: { role: ground } } }\nnets:\n  VB: [supply.pos, buck.vin]\n  5V: [buck.vout, load.vin]\n  GND: [supply.neg, buck.gnd, load.gnd]\n",
     );
     let budget = railcheck::budget::budget(&c);
     assert!(budget.solved);

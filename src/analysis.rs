@@ -708,6 +708,13 @@ impl Solver<'_> {
             .map(|p| vec![zero_current(); p.pins.len()])
             .collect();
         let mut net_current = vec![zero_current(); plan.nets.len()];
+        // Motors wired straight across a rail load its supply net.
+        let mut direct_motor = vec![zero_current(); plan.nets.len()];
+        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
+            if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) = (feed, point.motors[motor]) {
+                direct_motor[*supply] += m.current;
+            }
+        }
         let mut done: Vec<Vec<bool>> = plan
             .parts
             .iter()
@@ -727,14 +734,7 @@ impl Solver<'_> {
                         net_current[net] += pin_current[pin.part][pin.pin];
                     }
                 }
-                for (motor, feed) in circuit.motor_feed.iter().enumerate() {
-                    if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) =
-                        (feed, point.motors[motor])
-                        && *supply == net
-                    {
-                        net_current[net] += m.current;
-                    }
-                }
+                net_current[net] += direct_motor[net];
                 if let Some(parent) = circuit.parent[net] {
                     let below = net_current[net];
                     net_current[parent.net] += below;

@@ -209,28 +209,6 @@ fn pin_levels(cx: &Context, point: &OperatingPoint, pin: PinRef) -> Option<Level
     })
 }
 
-/// Per net: the rail a pull-up resistor ties it to, if any.
-fn pull_up_rails(cx: &Context) -> Vec<Option<NetId>> {
-    let mut rails = vec![None; cx.plan.nets.len()];
-    for part in &cx.plan.parts {
-        if !matches!(part.class, Class::Resistor(_)) {
-            continue;
-        }
-        let [Some(a), Some(b)] = [0, 1].map(|i| part.pins.get(i).and_then(|p| p.net)) else {
-            continue;
-        };
-        for (signal, rail) in [(a, b), (b, a)] {
-            // A rail has a source; a series resistor's far side does not.
-            let node = cx.circuit.node_of_net[rail];
-            let is_rail = !cx.circuit.nodes[node].is_ground() && cx.circuit.root[node].is_some();
-            if is_rail && rails[signal].is_none() {
-                rails[signal] = Some(rail);
-            }
-        }
-    }
-    rails
-}
-
 /// Where a part's ground sits at a point: the electrical node its potential
 /// is measured in, and that potential. A part grounded only through a USB
 /// cable sits one cable-ground drop away from the part at the other end.
@@ -331,7 +309,7 @@ fn ground_name(cx: &Context, part: PartId) -> String {
 
 fn check_offset(cx: &Context, out: &mut Vec<Finding>) {
     let plan = cx.plan;
-    let pull_ups = pull_up_rails(cx);
+    let pull_ups = super::logic::pull_up_rails(cx);
     for (net_id, net) in plan.nets.iter().enumerate() {
         let logic = |roles: &[PinRole]| -> Vec<PinRef> {
             net.pins

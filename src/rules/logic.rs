@@ -469,6 +469,20 @@ fn resistors(cx: &Context) -> Vec<(PartId, NetId, NetId)> {
         .collect()
 }
 
+/// Per net: the rail a pull-up resistor ties its signal to (through series
+/// resistors too), if any. `ground/offset` reads open-drain highs from it.
+pub(super) fn pull_up_rails(cx: &Context) -> Vec<Option<NetId>> {
+    let mut rails = vec![None; cx.plan.nets.len()];
+    for signal in signals(cx) {
+        if let Some(&(_, rail)) = signal.pull_ups.first() {
+            for &net in &signal.nets {
+                rails[net] = Some(rail);
+            }
+        }
+    }
+    rails
+}
+
 fn signals(cx: &Context) -> Vec<Signal> {
     let circuit = cx.circuit;
     let node_count = circuit.nodes.len();

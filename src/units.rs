@@ -268,6 +268,108 @@ pub fn discharge_rate(text: &str) -> Result<DischargeRate, UnitError> {
     }
 }
 
+/// The kinds of quantity a plan's fields take, for the format's declaration
+/// (`model::format`) and the JSON Schema generated from it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Quantity {
+    Voltage,
+    /// A voltage, a range `4.5..5.5 V` or a tolerance `5 V ±2%`.
+    VoltageBand,
+    Current,
+    Charge,
+    Power,
+    Resistance,
+    Temperature,
+    ThermalResistance,
+    Length,
+    WireSize,
+    /// `80 %` or a plain fraction `0.8`.
+    Share,
+    /// A current or a C-rate `25C`.
+    DischargeRate,
+}
+
+impl Quantity {
+    /// Every kind, in the order the format reference lists them.
+    pub const ALL: [Quantity; 12] = [
+        Quantity::Voltage,
+        Quantity::VoltageBand,
+        Quantity::Current,
+        Quantity::Charge,
+        Quantity::Power,
+        Quantity::Resistance,
+        Quantity::Temperature,
+        Quantity::ThermalResistance,
+        Quantity::Length,
+        Quantity::WireSize,
+        Quantity::Share,
+        Quantity::DischargeRate,
+    ];
+
+    /// What the format reference calls it.
+    pub fn name(self) -> &'static str {
+        match self {
+            Quantity::Voltage => "voltage",
+            Quantity::VoltageBand => "voltage range",
+            Quantity::Current => "current",
+            Quantity::Charge => "charge",
+            Quantity::Power => "power",
+            Quantity::Resistance => "resistance",
+            Quantity::Temperature => "temperature",
+            Quantity::ThermalResistance => "thermal resistance",
+            Quantity::Length => "length",
+            Quantity::WireSize => "wire size",
+            Quantity::Share => "share",
+            Quantity::DischargeRate => "discharge rate",
+        }
+    }
+
+    /// Whether `text` reads as this kind of quantity; the error says why not.
+    pub fn parse(self, text: &str) -> Result<(), UnitError> {
+        match self {
+            Quantity::Voltage => voltage(text).map(drop),
+            Quantity::VoltageBand => voltage_band(text).map(drop),
+            Quantity::Current => current(text).map(drop),
+            Quantity::Charge => charge(text).map(drop),
+            Quantity::Power => power(text).map(drop),
+            Quantity::Resistance => resistance(text).map(drop),
+            Quantity::Temperature => temperature(text).map(drop),
+            Quantity::ThermalResistance => thermal_resistance(text).map(drop),
+            Quantity::Length => length(text).map(drop),
+            Quantity::WireSize => wire_size(text).map(drop),
+            Quantity::Share => share(text).map(drop),
+            Quantity::DischargeRate => discharge_rate(text).map(drop),
+        }
+    }
+
+    /// The unit spellings this kind accepts after its number.
+    pub fn units(self) -> Vec<&'static str> {
+        let of = |kind: Kind| kind.spellings().iter().map(|s| s.text).collect::<Vec<_>>();
+        match self {
+            Quantity::Voltage | Quantity::VoltageBand => of(Kind::Voltage),
+            Quantity::Current => of(Kind::Current),
+            Quantity::Charge => of(Kind::Charge),
+            Quantity::Power => of(Kind::Power),
+            Quantity::Resistance => of(Kind::Resistance),
+            Quantity::Temperature => of(Kind::Temperature),
+            Quantity::ThermalResistance => of(Kind::ThermalResistance),
+            Quantity::Length => of(Kind::Length),
+            Quantity::WireSize => WIRE_UNITS.to_vec(),
+            Quantity::Share => vec!["%"],
+            Quantity::DischargeRate => {
+                let mut units = of(Kind::Current);
+                units.push("C");
+                units
+            }
+        }
+    }
+
+    /// Whether a range (`a..b`) or a tolerance (`±x`) is accepted.
+    pub fn is_band(self) -> bool {
+        self == Quantity::VoltageBand
+    }
+}
+
 // ---------------------------------------------------------------------------------------------
 // Public formatters
 // ---------------------------------------------------------------------------------------------

@@ -5,6 +5,7 @@
 //! `library` supplies the generic parts that plans `use`. Nothing here computes
 //! currents or voltages: that is `analysis`.
 
+pub mod format;
 mod levels;
 mod library;
 mod read;

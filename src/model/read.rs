@@ -5,6 +5,7 @@
 //! without units, bad ranges. Every error carries the span of the offending
 //! text and, where there is an obvious fix, a hint.
 
+use super::format;
 use super::*;
 use crate::syntax::{Node, NodeKind, SourceId, Sources, Span};
 use crate::units::{self, UnitError};
@@ -45,18 +46,6 @@ fn default_ambient() -> ThermodynamicTemperature {
 const DEFAULT_WIRE_DROP: f64 = 0.05;
 const DEFAULT_DERATE: f64 = 0.80;
 const MAX_CELLS: u32 = 1000;
-
-const TOP_KEYS: &[&str] = &[
-    "railcheck",
-    "name",
-    "ambient",
-    "limits",
-    "parts",
-    "nets",
-    "links",
-    "modes",
-    "profile",
-];
 
 /// Reads a whole plan. `root` is the parsed plan; library parts it uses are
 /// parsed into `sources` as they are met.
@@ -153,7 +142,7 @@ impl Reader<'_> {
             );
             return None;
         }
-        self.check_keys(root, TOP_KEYS, "the plan");
+        self.check_keys(root, &format::keys(format::TOP_LEVEL), "the plan");
         match root.get("railcheck") {
             None => self.error(
                 first_key_span(root),
@@ -307,11 +296,7 @@ impl Reader<'_> {
 
     fn name(&mut self, node: &Node, what: &str) -> Option<String> {
         let text = self.text(node, &format!("a {what} name"))?;
-        let valid = !text.is_empty()
-            && text
-                .chars()
-                .all(|c| c.is_alphanumeric() || matches!(c, '_' | '-' | '+'));
-        if valid {
+        if format::is_name(&text) {
             Some(text)
         } else {
             self.error(
@@ -445,7 +430,7 @@ impl Reader<'_> {
         if self.mapping(node, "`limits:`").is_none() {
             return limits;
         }
-        self.check_keys(node, &["wire_drop", "derate"], "`limits:`");
+        self.check_keys(node, &format::keys(format::LIMITS), "`limits:`");
         if let Some(v) = self.quantity(node, "wire_drop", units::share) {
             limits.wire_drop = v;
         }
@@ -462,7 +447,7 @@ impl Reader<'_> {
         if let Some(use_node) = body.get("use") {
             self.check_keys(
                 body,
-                &["use", "with", "pins", "ports"],
+                format::LIBRARY_PART_KEYS,
                 &format!("part `{name}` (a library part)"),
             );
             let id = self.text(use_node, "a library part id")?;
@@ -569,11 +554,12 @@ impl Reader<'_> {
             );
             return None;
         }
-        let mut allowed: Vec<&str> = vec!["class", "pins", "ports"];
-        allowed.extend(class_fields(&class_name));
+        let spec = format::class(&class_name);
+        let mut allowed: Vec<&str> = format::INLINE_PART_KEYS.to_vec();
+        allowed.extend(spec.iter().flat_map(|c| c.fields.iter().map(|f| f.key)));
         self.check_keys(body, &allowed, &context);
 
-        let fixed = fixed_pins(&class_name);
+        let fixed = spec.map_or(&[][..], |c| c.fixed_pins);
         let mut pins: Vec<Pin> = fixed
             .iter()
             .map(|(pin_name, role)| blank_pin(pin_name, *role, name_span))
@@ -686,18 +672,11 @@ impl Reader<'_> {
                 }
             },
         };
-        let allowed: &[&str] = match role {
-            PinRole::SupplyOut => &["role", "voltage", "current", "or"],
-            PinRole::SupplyIn => &["role", "range", "max", "draw"],
-            PinRole::LogicOut => &["role", "ref", "family", "voh", "vol"],
-            PinRole::OpenDrain => &["role", "ref", "family", "vol"],
-            PinRole::LogicIn => &["role", "ref", "family", "vih", "vil", "max", "tolerant"],
-            PinRole::LogicIo => &[
-                "role", "ref", "family", "voh", "vol", "vih", "vil", "max", "tolerant",
-            ],
-            _ => &["role"],
-        };
-        self.check_keys(body, allowed, &format!("{context} ({})", role.name()));
+        self.check_keys(
+            body,
+            &format::role_keys(role),
+            &format!("{context} ({})", role.name()),
+        );
         let mut pin = blank_pin(&name, role, span);
         pin.range = self.quantity(body, "range", units::voltage_band);
         pin.max = self.quantity(body, "max", units::voltage);
@@ -785,7 +764,7 @@ impl Reader<'_> {
             });
         }
         self.mapping(node, "`draw:`")?;
-        self.check_keys(node, &["idle", "typical", "peak"], "`draw:`");
+        self.check_keys(node, &format::keys(format::DRAW), "`draw:`");
         let idle = self.quantity(node, "idle", units::current);
         let typical = self.quantity(node, "typical", units::current);
         let peak = self.quantity(node, "peak", units::current);
@@ -839,7 +818,7 @@ impl Reader<'_> {
                 continue;
             };
             let kind = if is_host {
-                self.check_keys(body, &["kind", "current", "shared"], &context);
+                self.check_keys(body, &format::keys(format::USB_HOST), &context);
                 PortKind::UsbHost {
                     current: self.quantity(body, "current", units::current),
                     shared: body
@@ -848,7 +827,7 @@ impl Reader<'_> {
                         .unwrap_or(false),
                 }
             } else {
-                self.check_keys(body, &["kind", "draw", "feeds", "or"], &context);
+                self.check_keys(body, &format::keys(format::USB_DEVICE), &context);
                 let draw = body.get("draw").and_then(|d| self.draw(d));
                 let feeds = body.get("feeds").and_then(|f| {
                     let pin_name = self.text(f, "`feeds`")?;
@@ -1367,7 +1346,7 @@ impl Reader<'_> {
                 NodeKind::Seq(items) => (items.as_slice(), None, None, None),
                 NodeKind::Map(_) => {
                     let context = format!("net `{name}`");
-                    self.check_keys(body, &["pins", "wire", "length", "insulation"], &context);
+                    self.check_keys(body, &format::keys(format::NET), &context);
                     let items = match body.get("pins") {
                         Some(p) => match p.as_seq() {
                             Some(items) => items,
@@ -1478,7 +1457,7 @@ impl Reader<'_> {
             if self.mapping(item, "a link").is_none() {
                 continue;
             }
-            self.check_keys(item, &["usb", "wire", "length"], "a link");
+            self.check_keys(item, &format::keys(format::LINK), "a link");
             let Some(ends) = item.get("usb") else {
                 self.error(
                     item.span,
@@ -1755,67 +1734,6 @@ fn blank_pin(name: &str, role: PinRole, span: Span) -> Pin {
         logic: None,
         net: None,
         net_span: None,
-    }
-}
-
-fn fixed_pins(class: &str) -> &'static [(&'static str, PinRole)] {
-    match class {
-        "battery" => &[("pos", PinRole::SupplyOut), ("neg", PinRole::Ground)],
-        "fuse" | "switch" => &[("a", PinRole::Through), ("b", PinRole::Through)],
-        "regulator" => &[
-            ("vin", PinRole::SupplyIn),
-            ("vout", PinRole::SupplyOut),
-            ("gnd", PinRole::Ground),
-        ],
-        "motor" => &[("a", PinRole::Winding), ("b", PinRole::Winding)],
-        "resistor" => &[("a", PinRole::Passive), ("b", PinRole::Passive)],
-        _ => &[],
-    }
-}
-
-fn class_fields(class: &str) -> &'static [&'static str] {
-    match class {
-        "battery" => &[
-            "chemistry",
-            "cells",
-            "capacity",
-            "max_discharge",
-            "internal_resistance",
-            "cutoff",
-            "voltage",
-            "usable",
-        ],
-        "fuse" => &["rating", "voltage", "speed"],
-        "switch" => &["rating", "voltage", "stop"],
-        "connector" => &["rating"],
-        "regulator" => &[
-            "topology",
-            "output",
-            "input",
-            "current",
-            "dropout",
-            "efficiency",
-            "quiescent",
-            "theta_ja",
-            "tj_max",
-        ],
-        "driver" => &[
-            "supply",
-            "channel_current",
-            "channel_peak",
-            "drop",
-            "rds_on",
-            "quiescent",
-            "channels",
-        ],
-        "motor" => &[
-            "rated_voltage",
-            "rated_current",
-            "no_load_current",
-            "stall_current",
-        ],
-        "resistor" => &["value", "power"],
-        _ => &[],
     }
 }
 

@@ -72,6 +72,8 @@ enum Command {
         /// A rule id.
         id: Option<String>,
     },
+    /// Print the JSON Schema of the plan format, for YAML editors.
+    Schema,
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -94,6 +96,10 @@ fn main() -> ExitCode {
         Command::Draw { plan, output, png } => draw(&plan, output.as_deref(), png.as_deref()),
         Command::Budget { plan } => budget(&plan),
         Command::Rules { id } => rules(id.as_deref()),
+        Command::Schema => {
+            emit(&report::plan_schema_text());
+            ExitCode::SUCCESS
+        }
     }
 }
 

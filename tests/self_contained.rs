@@ -81,8 +81,15 @@ fn paths_leaving(folder: &Path, text: &str) -> Vec<String> {
     leaving
 }
 
-/// Whether `written`, resolved from `folder`, leaves the repository root.
+/// Whether `written`, resolved from `folder`, names something outside the repository
+/// root. A bare `../` names nothing (prose that speaks of such paths).
 fn climbs_out(folder: &Path, written: &str) -> bool {
+    let names_something = Path::new(written)
+        .components()
+        .any(|c| matches!(c, Component::Normal(_)));
+    if !names_something {
+        return false;
+    }
     let mut depth: i64 = folder.components().count() as i64;
     for component in Path::new(written).components() {
         match component {
@@ -147,4 +154,6 @@ fn climbing_paths_are_judged_from_the_file_that_holds_them() {
         [concat!("../", "../base.yaml")]
     );
     assert!(paths_leaving(Path::new("docs"), "[readme](../README.md)").is_empty());
+    // Prose about such paths names no file.
+    assert!(paths_leaving(Path::new(""), "a `../` path").is_empty());
 }

@@ -71,7 +71,7 @@ impl ModeId {
     }
 
     /// Continuous modes meet continuous ratings; `worst` only meets maximum
-    /// ratings (contract §6).
+    /// ratings (format reference §6).
     pub fn is_continuous(self) -> bool {
         self != ModeId::WORST
     }
@@ -82,7 +82,7 @@ impl ModeId {
 }
 
 /// Per-cell voltage window (full, nominal, empty) from the handbook values in
-/// the reference sheet §6, as fixed by the format contract §3.
+/// Linden & Reddy, Handbook of Batteries, as fixed by the format reference §3.
 pub fn cell_window(chemistry: Chemistry) -> [ElectricPotential; 3] {
     let (full, nominal, empty) = match chemistry {
         Chemistry::Lipo | Chemistry::LiIon => (4.20, 3.70, 3.00),
@@ -533,7 +533,7 @@ impl Solver<'_> {
     }
 
     /// VBUS at the device end of a cable: the host's own supply less the drop
-    /// over the cable's VBUS and ground conductors (contract §5: the wire
+    /// over the cable's VBUS and ground conductors (format reference §5: the wire
     /// spec applies to both).
     fn vbus_voltage(&self, point: &OperatingPoint, link: usize) -> Option<ElectricPotential> {
         let host = self.plan.links[link].host.0;
@@ -663,7 +663,7 @@ impl Solver<'_> {
                 ),
                 (MotorState::Running, None) => (supply_voltage, motor.rated_current),
                 // Stall: the winding resistance alone limits the current
-                // (I = V / R, reference sheet §8).
+                // (I = V / R, brushed DC motor equation).
                 (MotorState::Stall, Some(BridgeDrop::Fixed(d))) => {
                     let v = (supply_voltage - d).max(zero_voltage());
                     (v, v / winding)
@@ -880,7 +880,7 @@ impl Solver<'_> {
                 let input_current = if regulator.topology == Topology::Linear {
                     output_current + regulator.quiescent
                 } else if input_voltage.get::<volt>() > 0.0 {
-                    // Energy balance: Iin = Vout·Iout / (η·Vin) (reference sheet §7).
+                    // Energy balance: Iin = Vout·Iout / (η·Vin) (conservation of energy).
                     let output_power: Power = output_voltage * output_current;
                     output_power / (input_voltage * regulator.efficiency.get::<ratio>())
                         + regulator.quiescent

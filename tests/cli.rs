@@ -1,9 +1,9 @@
 //! The `railcheck` command seen from outside: exit codes, the JSON and
-//! terminal reports of the format contract (§7 rules, §8 outputs), and the two
+//! terminal reports of the format reference (§7 rules, §8 outputs), and the two
 //! example plans, a clean rover and its first draft full of classic mistakes.
 //!
 //! Not for the rules' own logic case by case: the rule fixtures cover that.
-//! Here every expectation comes from the contract or from a value worked out
+//! Here every expectation comes from the format reference or from a value worked out
 //! by hand from published figures, named beside the check.
 
 use assert_cmd::Command;
@@ -16,10 +16,10 @@ const ROVER: &str = "examples/orchard-rover.yaml";
 const DRAFT: &str = "examples/first-draft.yaml";
 
 /// The user modes of the first draft; `typical` and `worst` always exist
-/// (contract §6).
+/// (format reference §6).
 const DRAFT_MODES: [&str; 3] = ["parked", "cruise", "climb"];
 
-/// Every rule id of contract §7 with the severities it may carry.
+/// Every rule id of format reference §7 with the severities it may carry.
 const CONTRACT_RULES: &[(&str, &[&str])] = &[
     ("power/short", &["error"]),
     ("power/conflict", &["error"]),
@@ -56,10 +56,10 @@ const CONTRACT_RULES: &[(&str, &[&str])] = &[
     ("analysis/no-convergence", &["error"]),
 ];
 
-/// Rules decided on the graph alone (contract §7: "Shorts and loops are found
+/// Rules decided on the graph alone (format reference §7: "Shorts and loops are found
 /// on the graph before the operating point is solved"; conflicts, unfed rails
 /// and ground topology likewise depend on no current): their findings carry
-/// no `mode` or `battery` (contract §8).
+/// no `mode` or `battery` (format reference §8).
 const GRAPH_RULES: &[&str] = &[
     "power/short",
     "power/conflict",
@@ -70,7 +70,7 @@ const GRAPH_RULES: &[&str] = &[
 ];
 
 /// Rules that judge a solved operating point: their findings name the mode
-/// and battery state where the limit is broken (contract §6 and §8).
+/// and battery state where the limit is broken (format reference §6 and §8).
 const OPERATING_POINT_RULES: &[&str] = &[
     "voltage/over-max",
     "voltage/over-range",
@@ -166,7 +166,7 @@ fn plan_file(name: &str, text: &str) -> (tempfile::TempDir, PathBuf) {
     (dir, path)
 }
 
-/// Every structural promise of contract §8 for a findings document.
+/// Every structural promise of format reference §8 for a findings document.
 fn assert_findings_document(document: &Value, file: &str, user_modes: &[&str]) {
     let top: BTreeSet<&str> = document
         .as_object()
@@ -174,7 +174,7 @@ fn assert_findings_document(document: &Value, file: &str, user_modes: &[&str]) {
         .keys()
         .map(String::as_str)
         .collect();
-    // Contract §8's three keys, plus the safety cautions railcheck adds.
+    // Format reference §8's three keys, plus the safety cautions railcheck adds.
     assert_eq!(
         top,
         BTreeSet::from(["file", "summary", "findings", "cautions"])
@@ -202,11 +202,11 @@ fn assert_findings_document(document: &Value, file: &str, user_modes: &[&str]) {
         let allowed = CONTRACT_RULES
             .iter()
             .find(|(id, _)| *id == rule)
-            .unwrap_or_else(|| panic!("`{rule}` is not a rule id of contract §7"))
+            .unwrap_or_else(|| panic!("`{rule}` is not a rule id of format reference §7"))
             .1;
         assert!(
             allowed.contains(&severity),
-            "`{rule}` reported as {severity}; contract §7 allows {allowed:?}"
+            "`{rule}` reported as {severity}; format reference §7 allows {allowed:?}"
         );
         match severity {
             "error" => counted[0] += 1,
@@ -269,11 +269,11 @@ fn assert_findings_document(document: &Value, file: &str, user_modes: &[&str]) {
     );
 }
 
-// ----- exit codes (contract §8) ----------------------------------------------
+// ----- exit codes (format reference §8) ----------------------------------------------
 
 #[test]
 fn the_orchard_rover_passes_even_when_strict() {
-    // Contract §8: exit 0 with no errors; `--strict` fails on warnings, so 0
+    // Format reference §8: exit 0 with no errors; `--strict` fails on warnings, so 0
     // there means no warnings either.
     railcheck()
         .args(["check", ROVER])
@@ -293,13 +293,13 @@ fn the_orchard_rover_passes_even_when_strict() {
 
 #[test]
 fn the_first_draft_fails() {
-    // Contract §8: exit 1 when there are errors.
+    // Format reference §8: exit 1 when there are errors.
     railcheck().args(["check", DRAFT]).assert().code(1);
 }
 
 #[test]
 fn a_missing_file_is_an_input_error() {
-    // Contract §8: exit 2 when the input cannot be used; the message names it.
+    // Format reference §8: exit 2 when the input cannot be used; the message names it.
     let dir = tempfile::tempdir().expect("a temporary folder");
     let missing = dir.path().join("no-such-plan.yaml");
     railcheck()
@@ -312,7 +312,7 @@ fn a_missing_file_is_an_input_error() {
 
 #[test]
 fn input_errors_exit_2_with_every_problem_in_file_order() {
-    // Contract §2: a bare number where a unit is needed is an input error;
+    // Format reference §2: a bare number where a unit is needed is an input error;
     // §7: every input problem other than YAML syntax is reported in the same
     // run; §8: `{"file", "error", "errors"}`, `error` the first of `errors`,
     // exit code 2.
@@ -374,9 +374,9 @@ nets:
 #[test]
 fn strict_turns_a_warnings_only_plan_into_a_failure() {
     // A 3S lithium pack is 3 × 4.20 V = 12.6 V when full (handbook cell
-    // window, contract §3), above the 7–12 V operating range of the 5 V
+    // window, format reference §3), above the 7–12 V operating range of the 5 V
     // board's input and below its 20 V absolute maximum: `voltage/over-range`,
-    // a warning (contract §7). Exit 0 plain, 1 with `--strict` (§8).
+    // a warning (format reference §7). Exit 0 plain, 1 with `--strict` (§8).
     let text = "railcheck: 1
 name: 3S pack straight into a 7-12 V board input
 parts:
@@ -411,7 +411,7 @@ nets:
     assert_eq!(value_of(over, "range_max"), 12.0);
 }
 
-// ----- JSON shape (contract §8) ----------------------------------------------
+// ----- JSON shape (format reference §8) ----------------------------------------------
 
 #[test]
 fn the_first_draft_json_follows_the_contract() {
@@ -434,7 +434,7 @@ fn the_first_draft_json_follows_the_contract() {
 
 #[test]
 fn a_short_carries_no_mode_or_battery() {
-    // Contract §7: a supply output and a ground on one node (a fuse passes
+    // Format reference §7: a supply output and a ground on one node (a fuse passes
     // the pack's positive straight to its negative) is `power/short`; §8: a
     // short does not depend on mode or battery, so neither key is present.
     let text = "railcheck: 1
@@ -459,7 +459,7 @@ nets:
 
 #[test]
 fn every_mistake_in_the_first_draft_is_reported_at_its_line() {
-    // Each `# mistake:` comment names the rule (contract §7 id) that must
+    // Each `# mistake:` comment names the rule (format reference §7 id) that must
     // report it at that line of the plan (§8: findings carry their line).
     let text = std::fs::read_to_string(manifest_dir().join(DRAFT)).expect("the draft");
     let expected = mistakes(&text);
@@ -476,7 +476,7 @@ fn every_mistake_in_the_first_draft_is_reported_at_its_line() {
     for (line, rule) in &expected {
         assert!(
             CONTRACT_RULES.iter().any(|(id, _)| id == rule),
-            "line {line}: `{rule}` is not a contract §7 rule id"
+            "line {line}: `{rule}` is not a format reference §7 rule id"
         );
         assert!(
             reported.contains(&(*line, rule.as_str())),
@@ -488,14 +488,14 @@ fn every_mistake_in_the_first_draft_is_reported_at_its_line() {
 #[test]
 fn the_mast_regulator_drops_out_by_the_handbook_numbers() {
     // The draft's mast: a 2S pack at empty is 2 × 3.00 V = 6.00 V (handbook
-    // cell window, contract §3). In `worst` the rangefinder draws its 20 mA
+    // cell window, format reference §3). In `worst` the rangefinder draws its 20 mA
     // peak and the linear regulator passes it plus 5 mA quiescent (linear
     // input current = output + Iq, energy balance). That 25 mA sags through
     // the pack's 25 mohm and 0.3 m of 22 AWG out and 0.3 m back
     // (53.0 mohm/m, ASTM B258 gauge with annealed-copper resistivity):
     //   6.00 - 0.025 × (0.025 + 2 × 0.3 × 0.0530) = 5.99858 V,
     // below the 7.0 V that a 5 V output with 2 V dropout needs, so the output
-    // follows Vin - 2 V = 3.99858 V (contract §3 dropout).
+    // follows Vin - 2 V = 3.99858 V (format reference §3 dropout).
     let (document, _) = check_json(Path::new(DRAFT));
     let dropout = only(&document, "regulator/dropout");
     assert_eq!(dropout["mode"], "worst");
@@ -528,11 +528,11 @@ fn the_draft_motors_stall_by_ohms_law() {
     }
 }
 
-// ----- the terminal report (contract §8) ----------------------------------------
+// ----- the terminal report (format reference §8) ----------------------------------------
 
 #[test]
 fn the_terminal_report_shows_every_finding_and_ends_with_the_cautions() {
-    // Contract §8: each finding is printed with the YAML line it concerns.
+    // Format reference §8: each finding is printed with the YAML line it concerns.
     // The report then closes with the safety cautions, the last of which
     // defers to local codes and qualified practice.
     let output = railcheck()

@@ -401,7 +401,7 @@ fn tag_lines(svg: &str, net: &str) -> Vec<String> {
 fn a_rail_tag_shows_its_voltage_window_current_and_wire() {
     // A 3S lithium-polymer pack with no internal resistance straight onto a
     // lamp: open-circuit 3 × 3.00 V = 9 V empty and 3 × 4.20 V = 12.6 V full
-    // (per-cell window, format contract §3). The lamp draws 0.4 A typical and
+    // (per-cell window, format reference §3). The lamp draws 0.4 A typical and
     // 0.6 A peak (`worst` puts it at peak). The supply is 1 m of 18 AWG:
     // d = 0.127 mm × 92^((36 − 18)/39) = 1.024 mm (ASTM B258), A = 0.823 mm²,
     // R = 0.017241 Ω·mm²/m / 0.823 mm² × 1 m = 20.9 mΩ (IEC 60028 annealed
@@ -584,7 +584,7 @@ fn every_finding_is_numbered_marked_and_listed() {
 #[test]
 fn without_an_operating_point_the_diagram_still_draws() {
     // The fuse joins the pack's positive to its negative: a short, so the
-    // operating point is not solved (contract §7) and no voltage is shown.
+    // operating point is not solved (format reference §7) and no voltage is shown.
     let plan = "railcheck: 1
 name: greenhouse cart, miswired fuse
 parts:

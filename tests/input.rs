@@ -1,6 +1,6 @@
 //! Input problems in a plan: where they are reported and what the user is told.
 //!
-//! For: the contract's promise about input errors (netlist-format.md, the paragraph on input
+//! For: the format reference's promise about input errors (docs/format.md, the paragraph on input
 //! problems after the §7 rule table, and the JSON form in §8): every problem in the plan (§1
 //! file, §2 quantities, §3 parts, §4 nets, §5 links, §6 modes and profile) is reported at the
 //! line and column of the offending text, with a hint that says how to fix it; a YAML syntax
@@ -1244,8 +1244,8 @@ proptest! {
 
 // ----- values no part can have --------------------------------------------------------------
 
-/// §3 motor: the winding resistance is rated_voltage / stall_current (reference
-/// sheet §8), so a zero stall current is no motor; a stall below the running
+/// §3 motor: the winding resistance is rated_voltage / stall_current (brushed DC
+/// motor equation), so a zero stall current is no motor; a stall below the running
 /// current is a slip of the pen.
 #[test]
 fn motor_values_must_describe_a_motor() {

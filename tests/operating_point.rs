@@ -1,6 +1,6 @@
 //! Operating-point tests: every expected number is worked out by hand in the
-//! comment beside it, from a published formula or a worked example of the
-//! reference sheet, and reached through the library's public API.
+//! comment beside it, from a published formula or a worked example of a
+//! published source, and reached through the library's public API.
 
 use railcheck::analysis::{BatteryState, Corner, ModeId, OperatingPoint, battery_voltage};
 use railcheck::model::Library;
@@ -69,7 +69,7 @@ fn load(name: &str, draw: &str) -> String {
 
 #[test]
 fn pack_windows_follow_the_handbook_cell_windows() {
-    // Reference sheet W13 (handbook per-cell windows, contract §3):
+    // Handbook of Batteries pack-window worked example (handbook per-cell windows, format reference §3):
     // 3S LiPo 12.6 / 11.1 / 9.00 V; 4S LiFePO4 14.6 / 12.8 / 10.0 V;
     // 6-cell lead-acid nominal 12.0 V, cut-off 10.5 V (1.75 V per cell).
     let c = checked(
@@ -97,7 +97,7 @@ fn pack_windows_follow_the_handbook_cell_windows() {
 
 #[test]
 fn buck_input_current_by_energy_balance_w10() {
-    // Reference sheet W10: 5 V × 3 A out, η = 0.90, Vin = 11.1 V (3S nominal):
+    // Buck energy-balance worked example: 5 V × 3 A out, η = 0.90, Vin = 11.1 V (3S nominal):
     // Iin = Vout·Iout / (η·Vin) = 15 / (0.9 × 11.1) = 1.5015 A ≈ 1.50 A.
     let text = format!(
         "railcheck: 1\nparts:\n  pack: {{ use: battery/lipo-3s, with: {{ internal_resistance: 0 ohm }} }}\n  buck: {{ class: regulator, topology: buck, output: 5 V, efficiency: 90 %, current: 5 A }}\n{}nets:\n  VBAT: [pack.pos, buck.vin]\n  5V: [buck.vout, cam.vin]\n  GND: [pack.neg, buck.gnd, cam.gnd]\n",
@@ -107,7 +107,7 @@ fn buck_input_current_by_energy_balance_w10() {
     let p = point(&c, ModeId::TYPICAL, BatteryState::Nominal, Corner::Low);
     close(amps_in(p, pin(&c, "buck", "vin")), 1.5015, 0.001);
     close(amps_in(p, pin(&c, "pack", "pos")), 1.5015, 0.001);
-    // Loss = Pout (1/η − 1) = 15 × 0.111 = 1.67 W (W10): input power less output power.
+    // Loss = Pout (1/η − 1) = 15 × 0.111 = 1.67 W (Buck energy-balance worked example): input power less output power.
     let input_power = 11.1 * amps_in(p, pin(&c, "buck", "vin"));
     close(input_power - 15.0, 1.6667, 0.002);
 }
@@ -115,7 +115,7 @@ fn buck_input_current_by_energy_balance_w10() {
 #[test]
 fn linear_regulator_input_is_output_plus_quiescent() {
     // Energy conservation for a series pass element: Iin = Iout + Iq
-    // (reference sheet §7): 0.5 A + 5 mA = 0.505 A.
+    // (Kirchhoff's current law): 0.5 A + 5 mA = 0.505 A.
     let text = format!(
         "railcheck: 1\nparts:\n  pack: {{ use: battery/lipo-3s }}\n  reg: {{ class: regulator, topology: linear, output: 5 V, dropout: 2 V, quiescent: 5 mA }}\n{}nets:\n  VBAT: [pack.pos, reg.vin]\n  5V: [reg.vout, lamp.vin]\n  GND: [pack.neg, reg.gnd, lamp.gnd]\n",
         load("lamp", "0.5 A")
@@ -139,7 +139,7 @@ fn battery_sags_by_current_times_internal_resistance() {
 
 #[test]
 fn supply_and_return_wire_drop_w2() {
-    // Reference sheet W2: 1 m of 22 AWG out and 1 m back, 2.0 A:
+    // Voltage-drop worked example (Ohm's law): 1 m of 22 AWG out and 1 m back, 2.0 A:
     // R = 2 × 0.0530 Ω = 0.106 Ω, ΔV = 0.212 V; on a 5 V rail the load sees
     // 4.788 V (4.24 % drop).
     let text = format!(
@@ -153,7 +153,7 @@ fn supply_and_return_wire_drop_w2() {
 
 #[test]
 fn motor_stall_through_bridges_w11() {
-    // Reference sheet W11: 12 V, R_winding = 1.5 Ω (12 V / 8 A stall).
+    // Motor-equation worked example: 12 V, R_winding = 1.5 Ω (12 V / 8 A stall).
     // Bipolar bridge dropping 2.0 V: (12 − 2) / 1.5 = 6.67 A.
     // MOSFET bridge with 2 × 20 mΩ: 12 / 1.54 = 7.79 A.
     for (bridge, expected) in [("drop: 2 V", 6.6667), ("rds_on: 20 mohm", 7.7922)] {
@@ -164,7 +164,7 @@ fn motor_stall_through_bridges_w11() {
         let p = point(&c, ModeId::WORST, BatteryState::Nominal, Corner::Low);
         let motor = p.motors[part(&c, "m")].expect("motor solved");
         close(motor.current.get::<ampere>(), expected, 0.001);
-        // The driver's supply carries the motor current (contract §3).
+        // The driver's supply carries the motor current (format reference §3).
         close(amps_in(p, pin(&c, "drv", "vm")), expected, 0.001);
         // Running: the rated current, whatever the bridge.
         let typical = point(&c, ModeId::TYPICAL, BatteryState::Nominal, Corner::Low);
@@ -181,7 +181,7 @@ fn motor_stall_through_bridges_w11() {
 
 #[test]
 fn linear_regulator_below_dropout_follows_its_input() {
-    // Contract §3: below output + dropout the output is Vin − dropout.
+    // Format reference §3: below output + dropout the output is Vin − dropout.
     // 2S LiPo empty = 2 × 3.00 V = 6.0 V; 6.0 − 2 V dropout = 4.0 V.
     let text = format!(
         "railcheck: 1\nparts:\n  pack: {{ use: battery/lipo-2s, with: {{ internal_resistance: 0 ohm }} }}\n  reg: {{ class: regulator, topology: linear, output: 5 V, dropout: 2 V }}\n{}nets:\n  VBAT: [pack.pos, reg.vin]\n  5V: [reg.vout, mcu.vin]\n  GND: [pack.neg, reg.gnd, mcu.gnd]\n",
@@ -258,7 +258,7 @@ fn a_buck_beyond_its_source_settles_in_dropout() {
 
 #[test]
 fn onboard_output_load_is_added_to_the_board_input() {
-    // Contract §3: what is drawn from a board's supply-out is added to the
+    // Format reference §3: what is drawn from a board's supply-out is added to the
     // board's own supply-in draw: 50 mA own + 120 mA sensor = 170 mA
     // (Kirchhoff's current law through the board).
     let text = format!(
@@ -273,7 +273,7 @@ fn onboard_output_load_is_added_to_the_board_input() {
 
 #[test]
 fn usb_device_draw_is_paid_by_the_host_supply() {
-    // Contract §3/§5: what a host port delivers is added to its part's supply
+    // Format reference §3/§5: what a host port delivers is added to its part's supply
     // draw: 1.2 A own + 100 mA device typical = 1.3 A.
     let text = "railcheck: 1\nparts:\n  pack: { use: battery/lipo-3s }\n  buck: { class: regulator, topology: buck, output: 5 V, efficiency: 100 % }\n  host:\n    class: board\n    pins: { vin: { role: supply-in, draw: 1.2 A }, gnd: { role: ground } }\n    ports: { usb1: { kind: usb-host, current: 500 mA } }\n  dev:\n    class: board\n    pins: { gnd: { role: ground } }\n    ports: { usb: { kind: usb-device, draw: { typical: 100 mA, peak: 400 mA } } }\nnets:\n  VBAT: [pack.pos, buck.vin]\n  5V: [buck.vout, host.vin]\n  GND: [pack.neg, buck.gnd, host.gnd]\nlinks:\n  - { usb: [host.usb1, dev.usb] }\n";
     let c = checked(text);
@@ -282,7 +282,7 @@ fn usb_device_draw_is_paid_by_the_host_supply() {
     // Worst: 1.2 A (no peak given: peak takes typical) + 400 mA = 1.6 A.
     let w = point(&c, ModeId::WORST, BatteryState::Nominal, Corner::Low);
     close(amps_in(w, pin(&c, "host", "vin")), 1.6, 1e-9);
-    // The device is grounded through its cable (contract §5).
+    // The device is grounded through its cable (format reference §5).
     assert!(
         !c.findings.iter().any(|f| f.rule == "ground/floating"),
         "{:?}",
@@ -309,9 +309,9 @@ fn through_parts_carry_the_current_of_everything_below_them() {
 
 #[test]
 fn usb_cable_feeding_a_rail_carries_it_and_drops_over_both_conductors() {
-    // Contract §5: a device port that `feeds` a pin joins VBUS to that pin's
+    // Format reference §5: a device port that `feeds` a pin joins VBUS to that pin's
     // net; the cable's wire spec applies to VBUS and ground. 28 AWG is
-    // 213 mΩ/m (ASTM B258, reference sheet §1.2): 1 m of cable carrying
+    // 213 mΩ/m (ASTM B258 gauge table): 1 m of cable carrying
     // 0.1 A (hub) + 0.4 A (fan) = 0.5 A drops 2 × 0.5 × 0.213 = 0.213 V, so
     // the hub sees 5.000 − 0.213 = 4.787 V; the host's 5 V input carries its
     // own 1 A plus the cable's 0.5 A.

@@ -1,5 +1,5 @@
 //! The built-in parts library: every part reads cleanly, documents where its
-//! numbers come from, and holds the classes the format contract names.
+//! numbers come from, and holds the classes the format reference names.
 
 use railcheck::model::{Class, Library};
 
@@ -41,7 +41,7 @@ fn every_builtin_part_says_where_its_numbers_come_from() {
 
 #[test]
 fn battery_parts_match_their_ids() {
-    // Contract §3: a battery's window is cells × the chemistry's cell window;
+    // Format reference §3: a battery's window is cells × the chemistry's cell window;
     // the id names the cell count, so the two must agree.
     let library = Library::builtin();
     for (id, cells) in [

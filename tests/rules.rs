@@ -1,5 +1,5 @@
 //! Every rule against its fixtures, and the rule catalogue against the format
-//! contract.
+//! reference (`docs/format.md`).
 //!
 //! Each rule has a folder under `tests/fixtures/`, named for its id with `/`
 //! written `__` (`power/short` → `power__short`). `fires-*.yaml` plans must
@@ -13,7 +13,7 @@
 //! calculation and the source of its numbers.
 //!
 //! Not for checking message wording or computed values: the verdict and the
-//! line are what the contract promises.
+//! line are what the format reference promises.
 
 use railcheck::model::Library;
 use railcheck::rules::{RULES, Severity};
@@ -21,7 +21,7 @@ use std::collections::BTreeSet;
 use std::fmt::Write as _;
 use std::path::{Path, PathBuf};
 
-/// Every rule in the contract's §7 table with its severity, as written there
+/// Every rule in the format reference's §7 table with its severity, as written there
 /// (`voltage/under-range` is "error at `nominal`, warning at `empty` only":
 /// error is its default).
 const CONTRACT_RULES: &[(&str, Severity)] = &[
@@ -384,21 +384,23 @@ fn catalogue_matches_the_contract_and_the_fixtures() {
         }
     }
 
-    // Every id of the contract's §7 table is implemented.
+    // Every id of the format reference's §7 table is implemented.
     for (id, _) in CONTRACT_RULES {
         if !ids.contains(id) {
-            problems.push(format!("contract §7 rule `{id}` is missing from RULES"));
+            problems.push(format!(
+                "format reference §7 rule `{id}` is missing from RULES"
+            ));
         }
     }
 
     for rule in RULES {
         match CONTRACT_RULES.iter().find(|(id, _)| *id == rule.id) {
             None => problems.push(format!(
-                "`{}` is not a rule id of the contract's §7 table",
+                "`{}` is not a rule id of the format reference's §7 table",
                 rule.id
             )),
             Some((_, severity)) if *severity != rule.severity => problems.push(format!(
-                "`{}` has severity {}, the contract says {}",
+                "`{}` has severity {}, the format reference says {}",
                 rule.id,
                 rule.severity.name(),
                 severity.name()

@@ -22,7 +22,7 @@ fn a_thousand_part_plan_reads_and_solves() {
     assert!(analysis.points.iter().all(|p| p.unsettled.is_none()));
     // Each drive module is inside its ratings (e.g. 6 V gearmotor stalled
     // on 14.6 V through 2 × 5 mΩ: 14.6 / (3.75 + 0.01) = 3.9 A, below the
-    // 30 A channel peak; reference sheet §8), so nothing is an error.
+    // 30 A channel peak; brushed DC motor equation), so nothing is an error.
     let errors: Vec<&String> = checked
         .findings
         .iter()

@@ -1,5 +1,5 @@
-//! The power budget and port limits against the reference sheet's worked
-//! examples W12, W13 and W15, through the library and the command.
+//! The power budget and port limits against worked examples
+//! of Peukert's law, the Handbook of Batteries pack windows and the USB 2.0 port budget, through the library and the command.
 
 use assert_cmd::Command;
 use railcheck::model::Library;
@@ -29,7 +29,7 @@ fn pack_and_load(pack: &str, draw: &str) -> String {
 
 #[test]
 fn lead_acid_runtime_follows_peukert_w12() {
-    // Reference sheet W12: SLA rated 7 Ah at 20 h, k = 1.2, 2.0 A load:
+    // Peukert's law worked example: SLA rated 7 Ah at 20 h, k = 1.2, 2.0 A load:
     // t = 20 × (7 / (2 × 20))^1.2 = 2.47 h, not the naive 3.50 h.
     let c = checked(&pack_and_load(
         "{ class: battery, chemistry: lead-acid, cells: 6, capacity: 7 Ah, cutoff: true }",
@@ -43,7 +43,7 @@ fn lead_acid_runtime_follows_peukert_w12() {
 
 #[test]
 fn lithium_energy_and_runtime_w13() {
-    // Reference sheet W13: 3S 5 Ah → 11.1 V × 5 Ah = 55.5 Wh; 5.0 Ah at
+    // Handbook of Batteries pack-window worked example: 3S 5 Ah → 11.1 V × 5 Ah = 55.5 Wh; 5.0 Ah at
     // 1.5 A average with 80 % usable → 4.0 / 1.5 = 2.67 h.
     let c = checked(&pack_and_load(
         "{ use: battery/lipo-3s, with: { capacity: 5 Ah, usable: 80 %, internal_resistance: 0 ohm, cutoff: true } }",
@@ -62,7 +62,7 @@ fn lithium_energy_and_runtime_w13() {
 
 #[test]
 fn c_rate_sets_the_discharge_limit_w13() {
-    // Reference sheet W13: a 2.2 Ah pack at 25C may deliver 25 × 2.2 = 55.0 A.
+    // Handbook of Batteries pack-window worked example: a 2.2 Ah pack at 25C may deliver 25 × 2.2 = 55.0 A.
     let c = checked(&pack_and_load(
         "{ use: battery/lipo-2s, with: { capacity: 2200 mAh, max_discharge: 25C } }",
         "1 A",
@@ -80,7 +80,7 @@ fn c_rate_sets_the_discharge_limit_w13() {
 
 #[test]
 fn five_usb_loads_overload_a_usb_2_port_w15() {
-    // Reference sheet W15: five 150 mA loads on one USB 2.0 port (500 mA,
+    // USB 2.0 port-budget worked example: five 150 mA loads on one USB 2.0 port (500 mA,
     // USB 2.0 §7.2.1) draw 0.750 A → fail; a USB 3.x port (900 mA) carries them.
     for (port_limit, fires) in [("500 mA", true), ("900 mA", false)] {
         let text = format!(
@@ -101,7 +101,7 @@ fn five_usb_loads_overload_a_usb_2_port_w15() {
 
 #[test]
 fn budget_command_prints_both_examples() {
-    // The budget of the shipped rover: a 3S 5 Ah pack is 55.5 Wh (W13).
+    // The budget of the shipped rover: a 3S 5 Ah pack is 55.5 Wh (Handbook of Batteries pack-window worked example).
     for (example, needle) in [
         ("examples/orchard-rover.yaml", "55.5 Wh"),
         ("examples/first-draft.yaml", "Batteries:"),
@@ -131,7 +131,7 @@ fn budget_command_prints_both_examples() {
 
 #[test]
 fn no_budget_without_an_operating_point() {
-    // Contract §7: a short is decided on the graph, and no operating point is
+    // Format reference §7: a short is decided on the graph, and no operating point is
     // solved; the budget then has nothing to add up and says so.
     let c = checked(
         "railcheck: 1\nparts:\n  pack: { use: battery/lipo-3s }\nnets:\n  OOPS: [pack.pos, pack.neg]\n",

@@ -1,5 +1,5 @@
-//! The reference sheet's worked examples for fuses and batteries (W6, W7,
-//! W13), NEC 240.4 applied to return conductors, and the fuse's place on the
+//! Worked examples for fuses and batteries (NEC 210.20(A) fuse sizing,
+//! 33 CFR 183.425 Table 5, Handbook of Batteries pack windows), NEC 240.4 applied to return conductors, and the fuse's place on the
 //! battery positive (33 CFR 183.455(b)), reproduced through the public API:
 //! `railcheck::check` on small plans, read back from the findings' rule ids
 //! and values, and `railcheck::wire::ampacity` for the table lookups.
@@ -61,11 +61,11 @@ fn blade(rating: &str) -> String {
     format!("{{ class: fuse, rating: {rating}, voltage: 32 V, speed: slow }}")
 }
 
-// ----- W6: fuse for a 6 A continuous load ------------------------------------
+// ----- NEC 210.20(A) fuse-sizing worked example: fuse for a 6 A continuous load ------------------------------------
 
 #[test]
 fn w6_six_amp_load_needs_a_seven_and_a_half_amp_blade_that_22_awg_cannot_take() {
-    // W6: I_min = 1.25 × 6 A = 7.5 A (NEC 210.20(A)) → standard blade 7.5 A;
+    // NEC 210.20(A) fuse-sizing worked example: I_min = 1.25 × 6 A = 7.5 A (NEC 210.20(A)) → standard blade 7.5 A;
     // on 22 AWG (Handbook chassis 7 A) 7.5 A > 7 A fails NEC 240.4.
     let plan = fused_load(&blade("7.5 A"), 6.0, "wire: 22 AWG, length: 0.5 m");
     let over = findings(&plan, "fuse/oversized");
@@ -86,7 +86,7 @@ fn w6_six_amp_load_needs_a_seven_and_a_half_amp_blade_that_22_awg_cannot_take() 
 
 #[test]
 fn w6_twenty_awg_carries_the_seven_and_a_half_amp_blade() {
-    // W6: on 20 AWG (Handbook chassis 11 A) the 7.5 A blade passes.
+    // NEC 210.20(A) fuse-sizing worked example: on 20 AWG (Handbook chassis 11 A) the 7.5 A blade passes.
     let plan = fused_load(&blade("7.5 A"), 6.0, "wire: 20 AWG, length: 0.5 m");
     assert!(findings(&plan, "fuse/oversized").is_empty());
     assert!(findings(&plan, "fuse/undersized").is_empty());
@@ -94,7 +94,7 @@ fn w6_twenty_awg_carries_the_seven_and_a_half_amp_blade() {
 
 #[test]
 fn w6_a_five_amp_blade_on_the_six_amp_load_is_undersized_and_seven_and_a_half_is_suggested() {
-    // W6: 1.25 × 6 A = 7.5 A > 5 A; the smallest standard blade ≥ 7.5 A is
+    // NEC 210.20(A) fuse-sizing worked example: 1.25 × 6 A = 7.5 A > 5 A; the smallest standard blade ≥ 7.5 A is
     // 7.5 A, and 20 AWG (11 A) allows it.
     let plan = fused_load(&blade("5 A"), 6.0, "wire: 20 AWG, length: 0.5 m");
     let under = findings(&plan, "fuse/undersized");
@@ -110,7 +110,7 @@ fn w6_a_five_amp_blade_on_the_six_amp_load_is_undersized_and_seven_and_a_half_is
 
 #[test]
 fn w6_twelve_amp_load_needs_a_fifteen_amp_fuse_and_a_fifteen_amp_conductor() {
-    // W6: 12 A continuous → I_min = 15 A → 15 A blade, which needs a
+    // NEC 210.20(A) fuse-sizing worked example: 12 A continuous → I_min = 15 A → 15 A blade, which needs a
     // conductor of at least 15 A: 16 AWG chassis 22 A.
     let plan = fused_load(&blade("10 A"), 12.0, "wire: 16 AWG, length: 0.5 m");
     let under = findings(&plan, "fuse/undersized");
@@ -126,7 +126,7 @@ fn w6_twelve_amp_load_needs_a_fifteen_amp_fuse_and_a_fifteen_amp_conductor() {
     assert!(findings(&fixed, "fuse/undersized").is_empty());
     assert!(findings(&fixed, "fuse/oversized").is_empty());
 
-    // W6: "or 33 CFR 18 AWG 80 °C 15 A": Table 5 gives 15 A, enough for the
+    // NEC 210.20(A) fuse-sizing worked example: "or 33 CFR 18 AWG 80 °C 15 A": Table 5 gives 15 A, enough for the
     // 15 A fuse; the same gauge with 60 °C insulation (10 A) is not.
     let table5 = fused_load(
         &blade("15 A"),
@@ -203,7 +203,7 @@ fn a_fifteen_amp_fuse_fits_a_14_awg_return() {
 
 #[test]
 fn a_return_fuse_suggestion_stays_within_the_return_ampacity() {
-    // A 6 A load (W6: 1.25 × 6 A = 7.5 A blade) returning through 22 AWG
+    // A 6 A load (NEC 210.20(A) fuse-sizing worked example: 1.25 × 6 A = 7.5 A blade) returning through 22 AWG
     // (Handbook chassis 7 A): 7.5 A > 7 A, so no blade fits both and the
     // undersized 5 A fuse's advice asks for a heavier wire, naming the return.
     let plan = fused_load_with_return(&blade("5 A"), 6.0, "wire: 22 AWG, length: 0.5 m");
@@ -263,7 +263,7 @@ fn a_switch_ahead_of_the_fuse_is_reported_and_a_plug_is_not() {
     assert!(findings(&fuse_then_switch, "fuse/missing").is_empty());
 }
 
-// ----- W7: Table 5 lookup with insulation, no 150 % allowance -----------------
+// ----- 33 CFR 183.425 Table 5 worked example: Table 5 lookup with insulation, no 150 % allowance -----------------
 
 fn celsius(t: f64) -> Option<ThermodynamicTemperature> {
     Some(ThermodynamicTemperature::new::<degree_celsius>(t))
@@ -271,7 +271,7 @@ fn celsius(t: f64) -> Option<ThermodynamicTemperature> {
 
 #[test]
 fn w7_table5_ampacities_by_insulation() {
-    // W7 / 33 CFR 183.425 Table 5: 16 AWG 105 °C = 25 A; 18 AWG 105 °C = 20 A;
+    // 33 CFR 183.425 Table 5 worked example: 16 AWG 105 °C = 25 A; 18 AWG 105 °C = 20 A;
     // 18 AWG 60 °C = 10 A.
     for (gauge, insulation, amps) in [(16, 105.0, 25.0), (18, 105.0, 20.0), (18, 60.0, 10.0)] {
         let (limit, table) = ampacity(WireSize::Awg(gauge), celsius(insulation)).unwrap();
@@ -288,7 +288,7 @@ fn w7_table5_ampacities_by_insulation() {
 
 #[test]
 fn w7_the_150_percent_allowance_is_not_applied() {
-    // W7 allows a boat 1.5 × 25 A = 37.5 A on 16 AWG 105 °C (33 CFR
+    // 33 CFR 183.425 Table 5 worked example allows a boat 1.5 × 25 A = 37.5 A on 16 AWG 105 °C (33 CFR
     // 183.455(c)); railcheck holds the fuse to the 25 A ampacity (NEC 240.4).
     let wire = "wire: 16 AWG, insulation: 105 degC, length: 1 m";
     let thirty = fused_load(&blade("30 A"), 12.0, wire);
@@ -299,7 +299,7 @@ fn w7_the_150_percent_allowance_is_not_applied() {
     assert!(findings(&twenty_five, "fuse/oversized").is_empty());
 }
 
-// ----- W13: pack discharge and full voltage -----------------------------------
+// ----- Handbook of Batteries pack-window worked example: pack discharge and full voltage -----------------------------------
 
 /// A lithium pack written in the plan feeding one load through a large fuse.
 fn pack_and_load(pack: &str, peak_amps: f64) -> String {
@@ -323,7 +323,7 @@ nets:
 
 #[test]
 fn w13_twenty_five_c_on_2_2_ah_is_55_amperes() {
-    // W13: I_max = 25 × 2.2 Ah = 55.0 A (C-rate definition, reference sheet §6).
+    // Handbook of Batteries pack-window worked example: I_max = 25 × 2.2 Ah = 55.0 A (C-rate definition, Linden & Reddy, Handbook of Batteries).
     let pack =
         "{ use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 25C, cutoff: true } }";
     let above = findings(&pack_and_load(pack, 55.1), "battery/discharge");
@@ -332,13 +332,13 @@ fn w13_twenty_five_c_on_2_2_ah_is_55_amperes() {
     assert!(within_one_percent(value(&above[0], "current"), 55.1));
     assert!(within_one_percent(value(&above[0], "capacity"), 2.2));
     assert_eq!(above[0].mode.as_deref(), Some("worst"));
-    // At 55.0 A the limit is met, not broken (contract §6: only beyond 0.1 %).
+    // At 55.0 A the limit is met, not broken (format reference §6: only beyond 0.1 %).
     assert!(findings(&pack_and_load(pack, 55.0), "battery/discharge").is_empty());
 }
 
 #[test]
 fn w13_one_c_on_2_2_ah_is_2_2_amperes() {
-    // W13: 1C = 2.20 A for a 2.2 Ah pack.
+    // Handbook of Batteries pack-window worked example: 1C = 2.20 A for a 2.2 Ah pack.
     let pack =
         "{ use: battery/lipo-3s, with: { capacity: 2200 mAh, max_discharge: 1C, cutoff: true } }";
     let above = findings(&pack_and_load(pack, 2.3), "battery/discharge");
@@ -369,8 +369,8 @@ nets:
 
 #[test]
 fn w13_a_full_3s_pack_is_12_6_volts_above_a_12_volt_fuse() {
-    // W13: 3S LiPo full = 3 × 4.20 V = 12.6 V; 33 CFR 183.455(d) / NEC 240.60
-    // and reference sheet §3 step 4: the fuse's voltage rating ≥ the
+    // Handbook of Batteries pack-window worked example: 3S LiPo full = 3 × 4.20 V = 12.6 V; 33 CFR 183.455(d) / NEC 240.60
+    // and NEC 210.20(A) and 33 CFR 183.455 step 4: the fuse's voltage rating ≥ the
     // full-charge pack voltage.
     let low = findings(&fuse_on_pack("battery/lipo-3s", "12 V"), "fuse/voltage");
     assert_eq!(low.len(), 1, "{low:?}");
@@ -381,7 +381,7 @@ fn w13_a_full_3s_pack_is_12_6_volts_above_a_12_volt_fuse() {
 
 #[test]
 fn blade_fuses_at_32_volts_carry_a_6s_pack() {
-    // A 6S lithium pack is 6 × 4.20 V = 25.2 V full (reference sheet §6);
+    // A 6S lithium pack is 6 × 4.20 V = 25.2 V full (Linden & Reddy, Handbook of Batteries);
     // blade fuses are rated 32 V (ISO 8820-3 scope). A 24 V fuse is below it.
     let low = findings(&fuse_on_pack("battery/lipo-6s", "24 V"), "fuse/voltage");
     assert_eq!(low.len(), 1, "{low:?}");

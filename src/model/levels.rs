@@ -1,4 +1,4 @@
-//! The logic families of the format contract §3: how each sets its input
+//! The logic families of the format reference §3: how each sets its input
 //! thresholds and output levels from its supply voltage. Shared by the logic
 //! rules and the ground-offset rule, so the table exists once.
 
@@ -42,7 +42,7 @@ impl Scale {
     }
 }
 
-/// One family's row of the contract §3 table.
+/// One family's row of the format reference §3 table.
 #[derive(Clone, Copy, Debug)]
 pub struct FamilyLevels {
     pub nominal_vdd: ElectricPotential,
@@ -52,7 +52,7 @@ pub struct FamilyLevels {
     pub vol: Scale,
 }
 
-/// Contract §3: 54/74 TTL; JEDEC JESD7 (HC, from memory); JESD8C (LVTTL,
+/// Format reference §3: 54/74 TTL; JEDEC JESD7 (HC, from memory); JESD8C (LVTTL,
 /// LVCMOS 3.3 V); JESD8-5 (2.5 V); JESD8-7 (1.8 V).
 impl LogicFamily {
     /// This family's row of the table.
@@ -85,7 +85,7 @@ mod tests {
 
     #[test]
     fn formulas_read_as_the_family_table_writes_them() {
-        // Contract §3 table: LVCMOS 3.3 V VOH = VDD − 0.2 V, VIL = 0.8 V;
+        // Format reference §3 table: LVCMOS 3.3 V VOH = VDD − 0.2 V, VIL = 0.8 V;
         // HC (JESD7) VIH = 0.7 × VDD.
         let lvcmos33 = LogicFamily::Lvcmos33.levels();
         assert_eq!(lvcmos33.voh.formula(), "VDD − 0.2 V");

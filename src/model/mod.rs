@@ -355,7 +355,7 @@ impl Battery {
     }
 
     /// `max_discharge` in amperes: as written, or C-rate × capacity per hour
-    /// (the IEC "It" reference current, reference sheet §6).
+    /// (the IEC "It" reference current, Linden & Reddy, Handbook of Batteries).
     pub fn max_discharge_current(&self) -> Option<ElectricCurrent> {
         match self.max_discharge?.value {
             DischargeRate::Current(i) => Some(i),

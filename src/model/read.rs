@@ -32,14 +32,14 @@ fn plausible_temperature(text: &str) -> Result<ThermodynamicTemperature, UnitErr
 }
 
 /// The assumed converter efficiency when a switching regulator gives none
-/// (published-values §7: "use 0.85 when none is given", common practice).
+/// ("use 0.85 when none is given", common practice).
 const DEFAULT_EFFICIENCY: f64 = 0.85;
-/// Many linear regulators and LDOs (published-values §7, common practice).
+/// Many linear regulators and LDOs (common practice).
 fn default_tj_max() -> ThermodynamicTemperature {
     ThermodynamicTemperature::new::<degree_celsius>(125.0)
 }
 
-/// Contract §1: `ambient` defaults to 25 °C.
+/// Format reference §1: `ambient` defaults to 25 °C.
 fn default_ambient() -> ThermodynamicTemperature {
     ThermodynamicTemperature::new::<degree_celsius>(25.0)
 }
@@ -768,7 +768,7 @@ impl Reader<'_> {
         let idle = self.quantity(node, "idle", units::current);
         let typical = self.quantity(node, "typical", units::current);
         let peak = self.quantity(node, "peak", units::current);
-        // States left out take the next one given (contract §3).
+        // States left out take the next one given (format reference §3).
         let typical = typical.or(peak);
         let Some(typical) = typical else {
             if node.get("typical").is_some() || node.get("peak").is_some() {

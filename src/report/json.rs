@@ -1,4 +1,4 @@
-//! The JSON outputs of the format contract §8.
+//! The JSON outputs of the format reference §8.
 
 use super::Summary;
 use crate::model::InputError;
@@ -24,7 +24,7 @@ fn rounded(value: f64) -> Value {
     serde_json::Number::from_f64(r).map_or(Value::Null, Value::Number)
 }
 
-/// The findings document of contract §8, plus the safety `cautions` that
+/// The findings document of format reference §8, plus the safety `cautions` that
 /// apply to the plan (an added key).
 pub fn findings_json(
     sources: &Sources,

@@ -1,4 +1,4 @@
-//! Output formats: the terminal report (via `miette`) and JSON (contract §8).
+//! Output formats: the terminal report (via `miette`) and JSON (format reference §8).
 //!
 //! The only module that knows how findings and input errors look on the
 //! outside. It returns strings; the binary decides where they go.

@@ -1,7 +1,7 @@
 //! Currents against the ratings of what carries them: regulator and onboard
 //! outputs, switches, connector contacts, driver channels, USB host ports.
 //! Peak current meets maximum ratings; continuous current meets continuous
-//! ratings and the derating limit (contract §6).
+//! ratings and the derating limit (format reference §6).
 
 use super::{
     Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
@@ -24,7 +24,7 @@ pub const OVER_RATING: Rule = Rule {
         why: "A regulator past its rating folds back or overheats, a switch or contact past its rating burns its contacts, a driver past its continuous rating shuts down or fails — and the robot stops or smokes.",
         example: "railcheck: 1\nname: orchard scout, 5 V rail\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-3a }\n  buck:  { use: regulator/buck-5v-3a }   # brain 1.8 A + camera 1.5 A = 3.3 A peak > 3 A\n  brain: { use: board/sbc-5v }\n  cam:   { class: load, pins: { vin: { role: supply-in, range: 4.75 V..5.25 V, draw: { typical: 0.5 A, peak: 1.5 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, brain.vin, cam.vin]\n  GND:   [pack.neg, buck.gnd, brain.gnd, cam.gnd]\n",
         fix: "railcheck: 1\nname: orchard scout, 5 V rail\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-3a }\n  buck:  { use: regulator/buck-5v-5a }   # 3.3 A peak ≤ 5 A\n  brain: { use: board/sbc-5v }\n  cam:   { class: load, pins: { vin: { role: supply-in, range: 4.75 V..5.25 V, draw: { typical: 0.5 A, peak: 1.5 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, brain.vin, cam.vin]\n  GND:   [pack.neg, buck.gnd, brain.gnd, cam.gnd]\n",
-        references: "Rating comparison with the 0.1 % tolerance of the format contract §6; driver continuous vs running current, reference sheet §8 (common practice).",
+        references: "Rating comparison with the 0.1 % tolerance of the format reference §6; a driver's continuous rating against the motor's running current and its peak rating against stall, common practice.",
     },
     needs_operating_point: true,
     check: check_ratings,
@@ -39,7 +39,7 @@ pub const DERATING: Rule = Rule {
         why: "Parts run at their full rating run hot and age fast; 80 % continuous is the usual margin for regulators, drivers and switches.",
         example: "railcheck: 1\nname: greenhouse controller, 5 V heater rail\nparts:\n  pack:   { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:   { use: fuse/blade-3a }\n  buck:   { use: regulator/buck-5v-3a }   # 2.7 A continuous: 90 % of 3 A > 80 %\n  heater: { class: load, pins: { vin: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 2.7 A, peak: 2.9 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, heater.vin]\n  GND:   [pack.neg, buck.gnd, heater.gnd]\n",
         fix: "railcheck: 1\nname: greenhouse controller, 5 V heater rail\nparts:\n  pack:   { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:   { use: fuse/blade-3a }\n  buck:   { use: regulator/buck-5v-5a }   # 2.7 A continuous: 54 % of 5 A\n  heater: { class: load, pins: { vin: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 2.7 A, peak: 2.9 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, heater.vin]\n  GND:   [pack.neg, buck.gnd, heater.gnd]\n",
-        references: "Continuous load ≤ 80 % of rating: NEC 210.20(A) for overcurrent devices; the same margin for regulators and drivers is common practice (reference sheet §10).",
+        references: "Continuous load ≤ 80 % of rating: NEC 210.20(A) for overcurrent devices (the inverse of its 125 % rule); the same margin for regulators and drivers is common practice.",
     },
     needs_operating_point: true,
     // Decided together with over-rating in `check_ratings`.
@@ -128,7 +128,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             rating: rating.value,
                             continuous_rating: true,
                             // The continuous rating meets the channel with its
-                            // motors running (contract §6); a stall meets the
+                            // motors running (format reference §6); a stall meets the
                             // peak rating, in `driver/stall`.
                             current: Box::new(move |p| {
                                 let stalled =

@@ -7,10 +7,10 @@
 //! meets a fuse or a fuse block; a switch or any other part ahead of the fuse,
 //! a load, or a branch to anything but fuses is reported.
 //!
-//! Sizing follows the order of the reference sheet §3: I_min = 1.25 × the
+//! Sizing follows the usual order (NEC 210.20(A), NEC 240.4, 33 CFR 183.455): I_min = 1.25 × the
 //! continuous current (NEC 210.20(A)); the smallest standard blade rating at
 //! or above it; that rating no higher than the ampacity of any wire it
-//! protects (NEC 240.4, ampacity per the format contract §4 — the 33 CFR
+//! protects (NEC 240.4, ampacity per the format reference §4 — the 33 CFR
 //! 183.455(c) 150 % allowance for boats is not applied). Every finding ends
 //! with that suggestion. Not for the wires themselves: `wire/ampacity` checks
 //! a wire against the current it carries.
@@ -44,10 +44,10 @@ pub const MISSING: Rule = Rule {
     summary: "no fuse between the battery positive and the first load or branch",
     doc: RuleDoc {
         what: "Follows each battery's positive terminal along its wiring: the first element it meets must be a fuse. Only the contacts of a connector (the pack's own plug, part of its lead) may come before it; a fuse block (several fuses side by side on the battery lead, or behind the plug) counts as fused. A switch or any other part in series ahead of the fuse is reported (the wire and the switch ahead of the fuse are unprotected), and so is a load, or a net where the wiring splits to anything but fuses, reached before any fuse.",
-        why: "A lithium or lead-acid pack can deliver hundreds of amperes into a short (reference sheet W15: 474 A from a 3S pack through 2 m of 14 AWG). Without a fuse at the source, a chafed wire or a slipped probe heats the wiring until its insulation melts or burns.",
+        why: "A lithium or lead-acid pack can deliver hundreds of amperes into a short (Ohm's law worked example: 12.6 V through an assumed 10 mΩ pack and 2 m of 14 AWG gives 474 A). Without a fuse at the source, a chafed wire or a slipped probe heats the wiring until its insulation melts or burns.",
         example: "railcheck: 1\nname: greenhouse sprayer lamp\nparts:\n  pack: { use: battery/lead-acid-12v }\n  lamp: { use: load/lamp-12v }\nnets:\n  VBAT: [pack.pos, lamp.vin]   # the lamp hangs straight on the pack\n  GND: [pack.neg, lamp.gnd]",
         fix: "railcheck: 1\nname: greenhouse sprayer lamp\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-1a }   # first on the battery positive; 1.25 x 0.4 A = 0.5 A\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT: [main_fuse.b, lamp.vin]\n  GND: [pack.neg, lamp.gnd]",
-        references: "33 CFR 183.455(b): overcurrent protection at the source of power, or within 7 in (175 mm) along the conductor; ABYC E-11 §11.10, 7 in from the battery (reference sheet §3). Sizing: NEC 210.20(A) (125 % of continuous), NEC 240.4 (not above the wire's ampacity).",
+        references: "33 CFR 183.455(b): overcurrent protection at the source of power, or within 7 in (175 mm) along the conductor; ABYC E-11 §11.10, 7 in from the battery. Sizing: NEC 210.20(A) (125 % of continuous), NEC 240.4 (not above the wire's ampacity).",
     },
     needs_operating_point: false,
     check: check_missing,
@@ -62,7 +62,7 @@ pub const UNDERSIZED: Rule = Rule {
         why: "A fuse carrying close to its rating for hours runs hot and ages; it blows on an ordinary day's work, stopping the robot in the field, and a fuse that blows for no fault tempts its owner to fit a bigger one than the wire allows.",
         example: "railcheck: 1\nname: warehouse cart heater\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-5a }   # 4.5 A continuous needs 1.25 x 4.5 A = 5.625 A\n  heater: { class: load, pins: { vin: { role: supply-in, draw: 4.5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  HEAT: { pins: [main_fuse.b, heater.vin], wire: 18 AWG, length: 1 m }   # 18 AWG carries 16 A\n  GND: { pins: [pack.neg, heater.gnd], wire: 18 AWG, length: 1 m }",
         fix: "railcheck: 1\nname: warehouse cart heater\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-7a5 }   # 5.625 A <= 7.5 A <= the 16 A of 18 AWG\n  heater: { class: load, pins: { vin: { role: supply-in, draw: 4.5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  HEAT: { pins: [main_fuse.b, heater.vin], wire: 18 AWG, length: 1 m }   # 18 AWG carries 16 A\n  GND: { pins: [pack.neg, heater.gnd], wire: 18 AWG, length: 1 m }",
-        references: "NEC 210.20(A): overcurrent device rating ≥ 125 % of the continuous load (reference sheet §3 and §10); continuous current per the format contract §6.",
+        references: "NEC 210.20(A): overcurrent device rating ≥ 125 % of the continuous load (equivalently, continuous load ≤ 80 % of the rating); continuous current per the format reference §6.",
     },
     needs_operating_point: true,
     check: check_undersized,
@@ -73,11 +73,11 @@ pub const OVERSIZED: Rule = Rule {
     severity: Severity::Error,
     summary: "rating above the ampacity of a wire it protects",
     doc: RuleDoc {
-        what: "Each fuse's rating against the ampacity of every wire it protects: the supply nets with a `wire:` below it in its electrical node (its load-side net and what hangs under it through switches and connectors, up to the next fuse), and the return conductors of the loads fed from those nets (each load's ground net and the ground nets above it up to the battery negative, where they have a `wire:`). Ampacity per the format contract §4 (Handbook chassis column; 33 CFR 183.425 Table 5 when `insulation:` is given for 8–18 AWG); the 150 % allowance of 33 CFR 183.455(c) is not applied.",
+        what: "Each fuse's rating against the ampacity of every wire it protects: the supply nets with a `wire:` below it in its electrical node (its load-side net and what hangs under it through switches and connectors, up to the next fuse), and the return conductors of the loads fed from those nets (each load's ground net and the ground nets above it up to the battery negative, where they have a `wire:`). Ampacity per the format reference §4 (Handbook chassis column; 33 CFR 183.425 Table 5 when `insulation:` is given for 8–18 AWG); the 150 % allowance of 33 CFR 183.455(c) is not applied.",
         why: "A fuse protects the wire, not the load. Rated above what its thinnest wire can carry, it lets a fault heat that wire past its insulation rating without ever blowing.",
         example: "railcheck: 1\nname: orchard sprayer work lamp\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-15a }   # 15 A > the 7 A its wire carries\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  LAMP: { pins: [main_fuse.b, lamp.vin], wire: 22 AWG, length: 1 m }   # 22 AWG carries 7 A\n  GND: [pack.neg, lamp.gnd]",
         fix: "railcheck: 1\nname: orchard sprayer work lamp\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-5a }   # 5 A <= 7 A (or keep 15 A and run LAMP in 16 AWG, 22 A)\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  LAMP: { pins: [main_fuse.b, lamp.vin], wire: 22 AWG, length: 1 m }   # 22 AWG carries 7 A\n  GND: [pack.neg, lamp.gnd]",
-        references: "NEC 240.4: conductors protected at their ampacity (reference sheet §3); ampacity from the Handbook of Electronic Tables and Formulas chassis column and 33 CFR 183.425 Table 5 (reference sheet §2.1, §2.2); worked example W6.",
+        references: "NEC 240.4: conductors protected at their ampacity; ampacity from the Handbook of Electronic Tables and Formulas for American Wire Gauge (chassis wiring column) and 33 CFR 183.425 Table 5; NEC 210.20(A) worked example: a 6 A continuous load takes a 7.5 A blade, too large for 22 AWG (7 A) but not for 20 AWG (11 A).",
     },
     needs_operating_point: false,
     check: check_oversized,
@@ -92,7 +92,7 @@ pub const VOLTAGE: Rule = Rule {
         why: "A fuse rated below the circuit voltage may not quench the arc when it opens: the fault current keeps flowing through the arc, and the holder can melt or burn.",
         example: "railcheck: 1\nname: orchard scout fan\nparts:\n  pack: { use: battery/lipo-3s, with: { cutoff: true } }   # 3 x 4.20 V = 12.6 V full\n  main_fuse: { class: fuse, rating: 10 A, voltage: 12 V, speed: slow }   # 12 V < 12.6 V\n  fan: { use: load/fan-12v }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT: [main_fuse.b, fan.vin]\n  GND: [pack.neg, fan.gnd]",
         fix: "railcheck: 1\nname: orchard scout fan\nparts:\n  pack: { use: battery/lipo-3s, with: { cutoff: true } }   # 3 x 4.20 V = 12.6 V full\n  main_fuse: { class: fuse, rating: 10 A, voltage: 32 V, speed: slow }   # 32 V, as blade fuses are\n  fan: { use: load/fan-12v }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT: [main_fuse.b, fan.vin]\n  GND: [pack.neg, fan.gnd]",
-        references: "33 CFR 183.455(d) and NEC 240.60: fuse voltage rating ≥ circuit voltage; take the full-charge pack voltage (reference sheet §3, step 4; W13: 3S LiPo full 12.6 V); blade fuses are rated 32 V or 58 V (ISO 8820-3).",
+        references: "33 CFR 183.455(d) and NEC 240.60: fuse voltage rating ≥ circuit voltage; take the full-charge pack voltage (a 3S LiPo is 3 × 4.20 V = 12.6 V full, Linden & Reddy, Handbook of Batteries); blade fuses are rated 32 V or 58 V (ISO 8820-3).",
     },
     needs_operating_point: false,
     check: check_voltage,
@@ -107,7 +107,7 @@ pub const NUISANCE: Rule = Rule {
         why: "Every motor start is a stall for tens of milliseconds; a fast fuse rated below that current blows at start-up or the first time a wheel jams, though nothing is wrong with the wiring.",
         example: "railcheck: 1\nname: greenhouse vent opener\nparts:\n  pack: { use: battery/lead-acid-12v }   # 13.8 V full\n  vent_fuse: { use: fuse/blade-5a }   # fast; stall: 13.8 V / (2.4 + 0.025) ohm = 5.69 A\n  stop: { use: switch/estop-20a }\n  vent: { use: motor/gearmotor-medium }   # 12 V, 5 A stall: 2.4 ohm\nnets:\n  BATT+: [pack.pos, vent_fuse.a]\n  FUSED: [vent_fuse.b, stop.a]\n  VENT: [stop.b, vent.a]\n  GND: [pack.neg, vent.b]",
         fix: "railcheck: 1\nname: greenhouse vent opener\nparts:\n  pack: { use: battery/lead-acid-12v }   # 13.8 V full\n  vent_fuse: { use: fuse/blade-5a, with: { speed: slow } }   # time-delay: rides through the stall\n  stop: { use: switch/estop-20a }\n  vent: { use: motor/gearmotor-medium }   # 12 V, 5 A stall: 2.4 ohm\nnets:\n  BATT+: [pack.pos, vent_fuse.a]\n  FUSED: [vent_fuse.b, stop.a]\n  VENT: [stop.b, vent.a]\n  GND: [pack.neg, vent.b]",
-        references: "Motor circuits take time-delay fuses that ride through the start-up inrush, equal to the stall current for 10–100 ms (IEC 60127 'T' characteristic, NEC Art. 430; reference sheet §3 and §8, common practice).",
+        references: "Motor circuits take time-delay fuses that ride through the start-up inrush, equal to the stall current for 10–100 ms (IEC 60127 'T' characteristic, NEC Art. 430, common practice); stall current I = V / R_winding (brushed DC motor equation).",
     },
     needs_operating_point: true,
     check: check_nuisance,
@@ -125,7 +125,7 @@ pub const CONTINUOUS_FACTOR: f64 = 1.25;
 const BLADE_VOLTAGES: [f64; 2] = [32.0, 58.0];
 
 /// The smallest standard blade rating that carries `minimum` and stays
-/// within `ceiling` (the protected wire's ampacity), both with the contract's
+/// within `ceiling` (the protected wire's ampacity), both with the format reference's
 /// 0.1 % tolerance. `None` when no blade rating fits.
 pub fn blade_rating_for(
     minimum: ElectricCurrent,
@@ -984,7 +984,7 @@ mod tests {
 
     #[test]
     fn worked_example_w6_sizing() {
-        // Reference sheet W6: 6 A continuous → I_min = 1.25 × 6 = 7.5 A → 7.5 A blade;
+        // NEC 210.20(A) fuse-sizing worked example: 6 A continuous → I_min = 1.25 × 6 = 7.5 A → 7.5 A blade;
         // 22 AWG (Handbook chassis 7 A) cannot take it, 20 AWG (11 A) can.
         assert_eq!(amps(minimum_rating(a(6.0))), 7.5);
         assert_eq!(rating(7.5, None), Some(7.5));

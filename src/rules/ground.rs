@@ -162,7 +162,7 @@ pub const OFFSET: Rule = Rule {
         why: "A logic level is a voltage against the receiver's own ground. When motor current returns through a wire that also carries the logic ground, the receiver's ground lifts by I × R and eats into the noise margin: encoder counts are lost, a driver input sees a phantom edge, a controller resets.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-2a }\n  term: { use: connector/header-2pin-3a }   # the two returns meet at the battery negative\n  pump: { class: load, pins: { vin: { role: supply-in, draw: 1.5 A }, gnd: { role: ground } } }\n  ctrl: { class: board, pins: { gnd: { role: ground }, out: { role: logic-out, family: ttl5 } } }\n  flow: { class: sensor, pins: { gnd: { role: ground }, in: { role: logic-in, family: ttl5 } } }\nnets:\n  BATT+:     [pack.pos, fuse.a]\n  VBAT:      [fuse.b, pump.vin]\n  BATT-:     [pack.neg, term.a1, term.a2]\n  LOGIC_GND: [term.b1, ctrl.gnd]\n  PUMP_GND:  { pins: [term.b2, pump.gnd, flow.gnd], wire: 26 AWG, length: 1.5 m }   # 1.5 A × 0.20 ohm = 0.30 V\n  SIG:       [ctrl.out, flow.in]   # TTL to TTL: half the 0.4 V margin is 0.2 V",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-2a }\n  term: { use: connector/header-2pin-3a }   # the two returns meet at the battery negative\n  pump: { class: load, pins: { vin: { role: supply-in, draw: 1.5 A }, gnd: { role: ground } } }\n  ctrl: { class: board, pins: { gnd: { role: ground }, out: { role: logic-out, family: ttl5 } } }\n  flow: { class: sensor, pins: { gnd: { role: ground }, in: { role: logic-in, family: ttl5 } } }\nnets:\n  BATT+:     [pack.pos, fuse.a]\n  VBAT:      [fuse.b, pump.vin]\n  BATT-:     [pack.neg, term.a1, term.a2]\n  LOGIC_GND: [term.b1, ctrl.gnd, flow.gnd]   # the sensor's ground on the logic return\n  PUMP_GND:  { pins: [term.b2, pump.gnd], wire: 26 AWG, length: 1.5 m }\n  SIG:       [ctrl.out, flow.in]",
-        references: "Noise margins NMH = VOH − VIH, NML = VIL − VOL, and ground offset counting against them: reference sheet §4 and worked example W14 (warn above 50 % of the margin, common practice); family levels per JEDEC JESD8 and 54/74 TTL (format contract §3); wire resistance from the ASTM B258 gauge formula (§1).",
+        references: "Noise margins NMH = VOH − VIH, NML = VIL − VOL, and ground offset counting against them (worked example: a 3 A return over 0.5 m of 26 AWG shifts ground by 0.201 V, half the 0.4 V TTL margin; warn above 50 % of the margin, common practice); family levels per JEDEC JESD8 and 54/74 TTL (format reference §3); wire resistance from the ASTM B258 gauge formula with annealed-copper resistivity (IEC 60028).",
     },
     needs_operating_point: true,
     check: check_offset,
@@ -177,7 +177,7 @@ struct Levels {
     vil: Option<ElectricPotential>,
 }
 
-/// A family's thresholds at a supply voltage (format contract §3 table);
+/// A family's thresholds at a supply voltage (format reference §3 table);
 /// without a reference rail the family's nominal supply.
 fn family_levels(family: LogicFamily, vdd: Option<ElectricPotential>) -> Levels {
     let table = family.levels();

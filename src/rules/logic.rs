@@ -3,9 +3,9 @@
 //! NMH and NML of every driver–receiver pair, two push-pull outputs fighting
 //! on one net, and inputs that nothing drives.
 //!
-//! Thresholds come from the contract's family table (JEDEC JESD8 families),
+//! Thresholds come from the format reference's family table (JEDEC JESD8 families),
 //! scaled with the actual `ref` rail where the family is ratiometric, and
-//! taken at the rail extreme that is worst for each level (contract §3). A
+//! taken at the rail extreme that is worst for each level (format reference §3). A
 //! signal is an electrical node that carries no supply or ground, together
 //! with the signal nodes it reaches through series resistors; a resistor from
 //! a signal to a rail is a pull-up, to a ground a pull-down.
@@ -35,7 +35,7 @@ pub const OVERVOLTAGE: Rule = Rule {
         why: "An input driven above its supply conducts through its protection diode into its own rail: the part is back-powered through the signal, latches up or is slowly destroyed. A 5 V output straight into a 3.3 V controller pin is the classic case.",
         example: "railcheck: 1\nparts:\n  pack:   { use: battery/nimh-8cell }\n  fuse:   { use: fuse/blade-1a }\n  buck:   { use: regulator/buck-5v-3a }\n  ranger: { use: sensor/rangefinder-5v }   # echo swings to its rail: up to 5 V + 2 % = 5.1 V\n  mcu:    { use: board/mcu-3v3 }           # rx ceiling: 3.3 V × 0.97 + 0.3 V = 3.5 V\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, ranger.vcc, mcu.vin]\n  GND:   [pack.neg, buck.gnd, ranger.gnd, mcu.gnd]\n  ECHO:  [ranger.echo, mcu.rx]",
         fix: "railcheck: 1\nparts:\n  pack:    { use: battery/nimh-8cell }\n  fuse:    { use: fuse/blade-1a }\n  buck:    { use: regulator/buck-5v-3a }\n  ranger:  { use: sensor/rangefinder-5v }\n  mcu:     { use: board/mcu-3v3 }\n  shifter: { use: shifter/bidir-4ch }   # 5 V side b1, 3.3 V side a1\nnets:\n  BATT+:    [pack.pos, fuse.a]\n  VBAT:     [fuse.b, buck.vin]\n  5V:       [buck.vout, ranger.vcc, mcu.vin, shifter.hv]\n  3V3:      [mcu.3v3, shifter.lv]\n  GND:      [pack.neg, buck.gnd, ranger.gnd, mcu.gnd, shifter.gnd]\n  ECHO:     [ranger.echo, shifter.b1]\n  ECHO_3V3: [shifter.a1, mcu.rx]",
-        references: "Input ceiling VDD + 0.3 V: JEDEC JESD8 recommended input range (taking it as the absolute maximum of a pin that is not 5 V-tolerant is common practice); 5 V-tolerant meaning up to 5.5 V is common practice (reference sheet §4, W14: 5.0 V > 3.3 + 0.3 = 3.6 V).",
+        references: "Input ceiling VDD + 0.3 V: JEDEC JESD8 recommended input range (taking it as the absolute maximum of a pin that is not 5 V-tolerant is common practice); 5 V-tolerant meaning up to 5.5 V is common practice (worked example: 5.0 V > 3.3 + 0.3 = 3.6 V).",
     },
     needs_operating_point: true,
     check: check_overvoltage,
@@ -50,7 +50,7 @@ pub const HIGH_MARGIN: Rule = Rule {
         why: "Below VIH the receiver is not guaranteed to read a high: the link works on the bench and fails with a warm part, a low battery or a little noise.",
         example: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-1a }\n  buck:  { use: regulator/buck-5v-3a }\n  mcu:   { use: board/mcu-3v3 }   # tx VOH = 3.3 V × 0.97 − 0.2 V = 3.0 V at its lowest\n  valve: { class: load, pins: { vcc: { role: supply-in, draw: 10 mA }, gnd: { role: ground }, open: { role: logic-in, ref: vcc, family: cmos5 } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin, valve.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, valve.gnd]\n  VALVE: [mcu.tx, valve.open]   # greenhouse valve driver, HC-type input: VIH = 0.7 × 5.1 V = 3.57 V",
         fix: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-1a }\n  buck:  { use: regulator/buck-5v-3a }\n  mcu:   { use: board/mcu-3v3 }   # tx VOH = 3.3 V × 0.97 − 0.2 V = 3.0 V at its lowest\n  valve: { class: load, pins: { vcc: { role: supply-in, draw: 10 mA }, gnd: { role: ground }, open: { role: logic-in, ref: vcc, family: ttl5 } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin, valve.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, valve.gnd]\n  VALVE: [mcu.tx, valve.open]   # its HCT-type (TTL-level) version: VIH = 2.0 V",
-        references: "Family levels: contract §3 table (JEDEC JESD8C LVCMOS/LVTTL, JESD8-5, JESD8-7, JESD7 HC, 54/74 TTL); NMH = VOH(min) − VIH(min), evaluated at the driver's minimum VDD (reference sheet §4; W14: 2.80 V − 3.50 V = −0.70 V).",
+        references: "Family levels: format reference §3 table (JEDEC JESD8C LVCMOS/LVTTL, JESD8-5, JESD8-7, JESD7 HC, 54/74 TTL); NMH = VOH(min) − VIH(min), evaluated at the driver's minimum VDD (JEDEC JESD8C worked example: LVCMOS at 3.0 V into a 5 V HC input, 2.80 V − 3.50 V = −0.70 V).",
     },
     needs_operating_point: true,
     check: check_high_margin,
@@ -65,7 +65,7 @@ pub const LOW_MARGIN: Rule = Rule {
         why: "Above VIL the receiver is not guaranteed to read a low: an open-collector sensor that only pulls down to 0.4 V cannot be read by an input that needs 0.3 V.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  buck: { use: regulator/buck-5v-3a }\n  mcu:  { use: board/mcu-3v3 }   # rx: lvcmos33, VIL = 0.8 V\n  beam: { class: sensor, pins: { vcc: { role: supply-in, draw: 5 mA }, gnd: { role: ground }, out: { role: logic-out, ref: vcc, family: lvcmos33, vol: 1.0 V } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin]\n  3V3:   [mcu.3v3, beam.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, beam.gnd]\n  DOOR:  [beam.out, mcu.rx]   # warehouse door beam that pulls down only to 1.0 V",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  buck: { use: regulator/buck-5v-3a }\n  mcu:  { use: board/mcu-3v3 }   # rx: lvcmos33, VIL = 0.8 V\n  beam: { class: sensor, pins: { vcc: { role: supply-in, draw: 5 mA }, gnd: { role: ground }, out: { role: logic-out, ref: vcc, family: lvcmos33, vol: 0.4 V } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin]\n  3V3:   [mcu.3v3, beam.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, beam.gnd]\n  DOOR:  [beam.out, mcu.rx]   # a beam sensor that pulls down to 0.4 V",
-        references: "Family levels: contract §3 table (JEDEC JESD8C, JESD8-5, JESD8-7, JESD7, 54/74 TTL); NML = VIL(max) − VOL(max) (reference sheet §4).",
+        references: "Family levels: format reference §3 table (JEDEC JESD8C, JESD8-5, JESD8-7, JESD7, 54/74 TTL); NML = VIL(max) − VOL(max), the noise-margin definition.",
     },
     needs_operating_point: true,
     check: check_low_margin,
@@ -95,7 +95,7 @@ pub const UNDRIVEN: Rule = Rule {
         why: "A CMOS input left floating picks up noise, reads random levels and can sit half-way, drawing current through both input transistors. A serial link wired RX to RX leaves both inputs floating.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  cart: { use: board/mcu-8bit-5v }\n  enc:  { use: sensor/encoder-optical-oc }   # warehouse cart wheel: open-collector, only pulls low\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, cart.vin]\n  5V:    [cart.5v, enc.vcc]\n  GND:   [pack.neg, cart.gnd, enc.gnd]\n  ENC_A: [enc.a, cart.enc1a]   # nothing takes it high",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  cart: { use: board/mcu-8bit-5v }\n  enc:  { use: sensor/encoder-optical-oc }   # warehouse cart wheel: open-collector, only pulls low\n  pull: { use: resistor/pullup-10k }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, cart.vin]\n  5V:    [cart.5v, enc.vcc, pull.a]\n  GND:   [pack.neg, cart.gnd, enc.gnd]\n  ENC_A: [enc.a, cart.enc1a, pull.b]   # the pull-up takes it high",
-        references: "CMOS inputs must not float (input levels between VIL and VIH are undefined: JEDEC JESD8C); an open-drain output only pulls low and needs a pull-up for its high level (reference sheet §4).",
+        references: "CMOS inputs must not float (input levels between VIL and VIH are undefined: JEDEC JESD8C); an open-drain output only pulls low and needs a pull-up for its high level.",
     },
     needs_operating_point: false,
     check: check_undriven,
@@ -117,11 +117,11 @@ fn ceiling_above_vdd() -> ElectricPotential {
 }
 
 /// A pin marked `tolerant: V` withstands V + 10 %: "5 V-tolerant means up to
-/// 5.5 V" (reference sheet §4, common practice).
+/// 5.5 V" (JEDEC JESD8 logic levels, common practice).
 const TOLERANT_HEADROOM: f64 = 1.1;
 
 /// The verdict on one driver and one receiver: the compatibility check of
-/// the reference sheet §4, with the contract's 0.1 % tolerance on each limit.
+/// JEDEC JESD8 logic levels, with the format reference's 0.1 % tolerance on each limit.
 #[derive(Clone, Copy, Debug, PartialEq)]
 struct Verdict {
     /// NMH = VOH(min, driver) − VIH(min, receiver).
@@ -171,7 +171,7 @@ struct AtPoint<'p> {
 
 /// Which rail a level follows. Levels on one rail rise and fall together,
 /// so a pair on one rail is compared point by point; on different rails each
-/// side is taken at its own worst extreme (contract §3).
+/// side is taken at its own worst extreme (format reference §3).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 enum RailId {
     Node(usize),
@@ -638,7 +638,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
         };
     };
     if role_of(cx, pin) == PinRole::OpenDrain {
-        // Every family's VOL is a fixed voltage (contract §3), so the
+        // Every family's VOL is a fixed voltage (format reference §3), so the
         // nominal VDD serves when the pin's own rail is not at hand.
         let vol = written_vol.or_else(|| {
             let (f, levels) = family?;
@@ -1239,17 +1239,17 @@ mod tests {
 
     #[test]
     fn family_rows_follow_the_published_levels() {
-        // Reference sheet §4 / W14: HC at 5.0 V → VIH 3.50, VIL 1.50, VOH 4.90.
+        // JEDEC logic-level worked example: HC at 5.0 V → VIH 3.50, VIL 1.50, VOH 4.90.
         let [vih, vil, voh, vol] = at(LogicFamily::Cmos5, 5.0);
         for (actual, expected) in [(vih, 3.5), (vil, 1.5), (voh, 4.9), (vol, 0.1)] {
             close(actual, expected);
         }
-        // JESD8-7 at 1.8 V (W14): VIH 1.17, VIL 0.630, VOH 1.35, VOL 0.45.
+        // JESD8-7 at 1.8 V (JEDEC logic-level worked example): VIH 1.17, VIL 0.630, VOH 1.35, VOL 0.45.
         let [vih, vil, voh, vol] = at(LogicFamily::Lvcmos18, 1.8);
         for (actual, expected) in [(vih, 1.17), (vil, 0.63), (voh, 1.35), (vol, 0.45)] {
             close(actual, expected);
         }
-        // JESD8C LVCMOS at VDD = 3.0 V: VOH = 2.80 V (reference sheet §4).
+        // JESD8C LVCMOS at VDD = 3.0 V: VOH = 2.80 V (JEDEC JESD8 logic levels).
         close(at(LogicFamily::Lvcmos33, 3.0)[2], 2.8);
         // TTL levels do not move with VDD (54/74 family).
         assert_eq!(at(LogicFamily::Ttl5, 4.5), at(LogicFamily::Ttl5, 5.5));
@@ -1258,7 +1258,7 @@ mod tests {
     #[test]
     fn margins_fail_only_past_the_tolerance() {
         let some = |x: f64| Some(volts(x));
-        // W14: 2.80 V into VIH 3.50 V → NMH −0.70 V, fails.
+        // JEDEC logic-level worked example: 2.80 V into VIH 3.50 V → NMH −0.70 V, fails.
         let verdict = judge(
             some(2.8),
             some(0.2),
@@ -1270,7 +1270,7 @@ mod tests {
         close(v(verdict.high_margin.expect("nmh")), -0.7);
         close(v(verdict.low_margin.expect("nml")), 1.3);
         assert!(verdict.high_fails && !verdict.low_fails && !verdict.over_ceiling);
-        // Equal levels are a zero margin, not a failure (contract §6, 0.1 %).
+        // Equal levels are a zero margin, not a failure (format reference §6, 0.1 %).
         let verdict = judge(
             some(2.0),
             some(0.8),
@@ -1280,7 +1280,7 @@ mod tests {
             some(3.6),
         );
         assert!(!verdict.high_fails && !verdict.low_fails && !verdict.over_ceiling);
-        // W14: 5.0 V into a 3.6 V ceiling.
+        // JEDEC logic-level worked example: 5.0 V into a 3.6 V ceiling.
         assert!(judge(None, None, some(5.0), None, None, some(3.6)).over_ceiling);
     }
 }

@@ -1,7 +1,7 @@
 //! The rule catalogue: each rule reads the model, the graph and the operating
 //! points, and returns findings. Rules never change what they read.
 //!
-//! One file per rule family. Every rule has its contract id, a default
+//! One file per rule family. Every rule has its stable id (format reference §7), a default
 //! severity and documentation in a fixed shape (what it checks, why it
 //! matters, example, fix, references); `RULES` lists them all, and the
 //! catalogue test walks it.
@@ -232,7 +232,7 @@ impl Finding {
     }
 }
 
-/// A limit is broken only when exceeded by more than 0.1 % (contract §6).
+/// A limit is broken only when exceeded by more than 0.1 % (format reference §6).
 /// The margin is 0.1 % of the limit's size, so it loosens the comparison
 /// for negative limits too. Temperatures are compared in kelvin.
 pub const LIMIT_TOLERANCE: f64 = 0.001;
@@ -283,7 +283,7 @@ pub fn worst_point<'p>(
     best
 }
 
-/// Mode filter for continuous ratings (contract §6: never `worst`).
+/// Mode filter for continuous ratings (format reference §6: never `worst`).
 pub fn continuous(point: &&OperatingPoint) -> bool {
     point.mode.is_continuous()
 }

@@ -16,7 +16,7 @@ pub const SHORT: Rule = Rule {
         why: "A source wired straight to ground is a dead short: a battery delivers hundreds of amperes, melts wire insulation and can start a fire before any fuse clears.",
         example: "railcheck: 1\nname: greenhouse lamp cart\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-5a }\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  LAMP:  [lamp.vin]\n  GND:   [pack.neg, lamp.gnd, fuse.b]   # fused lead crimped into ground",
         fix: "railcheck: 1\nname: greenhouse lamp cart\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-5a }\n  lamp: { use: load/lamp-12v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  LAMP:  [fuse.b, lamp.vin]\n  GND:   [pack.neg, lamp.gnd]",
-        references: "Kirchhoff's laws; reference sheet W15 (short-circuit current of a 3S pack through 14 AWG: 474 A).",
+        references: "Kirchhoff's laws; prospective short-circuit current I = V / (R_pack + R_wires) (Ohm's law worked example: 12.6 V through 10 mΩ and 2 m of 14 AWG gives 474 A, within the 1000 A breaking capacity of ISO 8820-3 blade fuses).",
     },
     needs_operating_point: false,
     check: check_short,

@@ -17,7 +17,7 @@ pub const DROPOUT: Rule = Rule {
         why: "Below output + dropout the regulator passes its input through less the dropout: the rail it feeds sags with the battery, and the loads on it may brown out.",
         example: "railcheck: 1\nname: greenhouse sensor node\nparts:\n  pack:   { use: battery/lipo-2s, with: { cutoff: true } }   # 6.0 V when empty\n  fuse:   { use: fuse/blade-1a }\n  reg:    { use: regulator/linear-5v-1a }                    # 5 V + 2 V dropout = 7 V\n  ranger: { use: sensor/rangefinder-5v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, reg.vin]\n  5V:    [reg.vout, ranger.vcc]\n  GND:   [pack.neg, reg.gnd, ranger.gnd]",
         fix: "railcheck: 1\nname: greenhouse sensor node\nparts:\n  pack:   { use: battery/lipo-3s, with: { cutoff: true } }   # 9.0 V when empty\n  fuse:   { use: fuse/blade-1a }\n  reg:    { use: regulator/linear-5v-1a }                    # 5 V + 2 V dropout = 7 V\n  ranger: { use: sensor/rangefinder-5v }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, reg.vin]\n  5V:    [reg.vout, ranger.vcc]\n  GND:   [pack.neg, reg.gnd, ranger.gnd]",
-        references: "Dropout requirement Vin ≥ Vout + Vdropout; typical dropout ≈ 2 V for an NPN linear regulator, 0.1–0.6 V for an LDO (reference sheet §7, common practice).",
+        references: "Dropout requirement Vin ≥ Vout + Vdropout; typical dropout ≈ 2 V for an NPN linear regulator, 0.1–0.6 V for an LDO (common practice).",
     },
     needs_operating_point: true,
     check: check_dropout,

@@ -4,7 +4,7 @@
 //!
 //! Not for the current a regulator delivers (`current/*`) nor for its input
 //! falling below output plus dropout (`regulator/dropout`). The dissipation
-//! follows the reference sheet §7 formulas, not the operating point's energy
+//! follows the textbook formulas (conservation of energy, thermal Ohm's law), not the operating point's energy
 //! balance, so the numbers match the published worked examples.
 
 use super::{
@@ -34,7 +34,7 @@ pub const OVERHEAT: Rule = Rule {
         why: "A linear regulator burns the whole input-to-output difference as heat: 12 V down to 5 V at half an ampere is 3.5 W, far more than a bare package can shed. Past its maximum junction temperature the regulator shuts down on its thermal protection — the electronics reset mid-run — or ages and fails.",
         example: "railcheck: 1\nname: greenhouse lamp driver\nambient: 25 degC\nparts:\n  pack: { class: battery, chemistry: lead-acid, voltage: 12 V }\n  fuse: { use: fuse/blade-1a }\n  reg:  { class: regulator, topology: linear, output: 5 V, quiescent: 5 mA, theta_ja: 50 degC/W }\n  lamp: { class: load, pins: { vin: { role: supply-in, draw: 0.5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, reg.vin]\n  5V:    [reg.vout, lamp.vin]\n  GND:   [pack.neg, reg.gnd, lamp.gnd]\n# P = 7 V × 0.5 A + 12 V × 5 mA = 3.56 W; Tj = 25 + 3.56 × 50 = 203 °C > 125 °C\n",
         fix: "railcheck: 1\nname: greenhouse lamp driver\nambient: 25 degC\nparts:\n  pack: { class: battery, chemistry: lead-acid, voltage: 12 V }\n  fuse: { use: fuse/blade-1a }\n  reg:  { class: regulator, topology: buck, output: 5 V, efficiency: 90 %, quiescent: 5 mA, theta_ja: 50 degC/W }\n  lamp: { class: load, pins: { vin: { role: supply-in, draw: 0.5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, reg.vin]\n  5V:    [reg.vout, lamp.vin]\n  GND:   [pack.neg, reg.gnd, lamp.gnd]\n# P = 2.5 W × (1/0.9 − 1) = 0.28 W; Tj = 25 + 0.28 × 50 = 39 °C (or keep the linear one on a heatsink: θJA = θJC + θCS + θSA)\n",
-        references: "Linear dissipation P = (Vin − Vout)·Iout + Vin·Iq, switching loss Pout·(1/η − 1), Tj = Ta + P·θJA and the largest load (Tj_max − Ta)/(θJA·(Vin − Vout)): reference sheet §7 and worked examples W8, W9, W10; θJA is measured in the JEDEC JESD51-2 still-air box.",
+        references: "Linear dissipation P = (Vin − Vout)·Iout + Vin·Iq, switching loss Pout·(1/η − 1) (conservation of energy), Tj = Ta + P·θJA (thermal Ohm's law) and the largest load (Tj_max − Ta)/(θJA·(Vin − Vout)); worked examples: 12 V → 5 V at 0.5 A with θJA 50 °C/W reaches 203 °C, 7.4 V → 5 V at 0.3 A with θJA 60 °C/W at 40 °C reaches 83.2 °C; θJA is measured in the JEDEC JESD51-2 still-air box.",
     },
     needs_operating_point: true,
     check: check_overheat,
@@ -49,13 +49,13 @@ pub const UNRATED: Rule = Rule {
         why: "Without the package's thermal resistance the heat check is silently skipped; a few watts in a small package is enough to trip its thermal shutdown.",
         example: "railcheck: 1\nname: lab sensor hub\nparts:\n  pack: { class: battery, chemistry: lead-acid, voltage: 12 V }\n  fuse: { use: fuse/blade-1a }\n  reg:  { class: regulator, topology: linear, output: 5 V }   # no theta_ja; P = 7 V × 0.2 A = 1.4 W\n  hub:  { class: load, pins: { vin: { role: supply-in, draw: 0.2 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, reg.vin]\n  5V:    [reg.vout, hub.vin]\n  GND:   [pack.neg, reg.gnd, hub.gnd]\n",
         fix: "railcheck: 1\nname: lab sensor hub\nparts:\n  pack: { class: battery, chemistry: lead-acid, voltage: 12 V }\n  fuse: { use: fuse/blade-1a }\n  reg:  { class: regulator, topology: linear, output: 5 V, theta_ja: 50 degC/W, tj_max: 125 degC }   # TO-220, no heatsink: Tj = 25 + 1.4 × 50 = 95 °C\n  hub:  { class: load, pins: { vin: { role: supply-in, draw: 0.2 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, reg.vin]\n  5V:    [reg.vout, hub.vin]\n  GND:   [pack.neg, reg.gnd, hub.gnd]\n",
-        references: "Dissipation formulas: reference sheet §7. Typical θJA per package (TO-220 50–65, SOT-223 ≈ 60 with 5 cm² of copper, SOT-23 200–400 °C/W) are common practice, reference sheet §7.",
+        references: "Dissipation formulas: conservation of energy, Tj = Ta + P·θJA (thermal Ohm's law). Typical θJA per package (TO-220 50–65, SOT-223 ≈ 60 with 5 cm² of copper, SOT-23 200–400 °C/W) are common practice.",
     },
     needs_operating_point: true,
     check: check_unrated,
 };
 
-/// Heat a regulator turns out at one point (reference sheet §7): linear
+/// Heat a regulator turns out at one point (energy balance and thermal Ohm's law): linear
 /// P = (Vin − Vout)·Iout + Vin·Iq; switching P = Pout·(1/η − 1).
 fn dissipation(spec: &Regulator, at: &RegulatorPoint) -> Power {
     let zero = Power::new::<watt>(0.0);
@@ -90,7 +90,7 @@ struct Heat {
 
 /// Tj = Ta + P·θJA, and the load current that would put Tj at `tj_max`:
 /// linear (Tj_max − Ta)/(θJA·(Vin − Vout)) ignoring Iq, switching
-/// (Tj_max − Ta)/(θJA·Vout·(1/η − 1)) (reference sheet §7).
+/// (Tj_max − Ta)/(θJA·Vout·(1/η − 1)) (energy balance and thermal Ohm's law).
 fn heat(
     spec: &Regulator,
     at: &RegulatorPoint,

@@ -31,7 +31,7 @@ pub const AMPACITY: Rule = Rule {
         why: "A wire above its ampacity heats until its insulation softens, smokes or melts, and it can start a fire long before any fuse sized for the load reacts.",
         example: "railcheck: 1\nname: lab camera rig\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-3a }\n  buck: { use: regulator/buck-5v-5a }\n  cams: { class: load, pins: { vin: { role: supply-in, draw: 4 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT: [main_fuse.b, buck.vin]\n  5V: { pins: [buck.vout, cams.vin], wire: 24 AWG, length: 0.3 m }   # 4 A > the 3.5 A of 24 AWG\n  GND: [pack.neg, buck.gnd, cams.gnd]",
         fix: "railcheck: 1\nname: lab camera rig\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-3a }\n  buck: { use: regulator/buck-5v-5a }\n  cams: { class: load, pins: { vin: { role: supply-in, draw: 4 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT: [main_fuse.b, buck.vin]\n  5V: { pins: [buck.vout, cams.vin], wire: 22 AWG, length: 0.3 m }   # 22 AWG carries 7 A\n  GND: [pack.neg, buck.gnd, cams.gnd]",
-        references: "Handbook of Electronic Tables and Formulas for American Wire Gauge, chassis wiring column (reference sheet §2.1); 33 CFR 183.425 Table 5 (§2.2); metric sizes by the next smaller AWG (format contract §4); worked examples W6 (22 AWG 7 A) and W7 (16 AWG 105 °C 25 A).",
+        references: "Handbook of Electronic Tables and Formulas for American Wire Gauge, chassis wiring column; 33 CFR 183.425 Table 5; metric sizes by the next smaller AWG (format reference §4); worked examples: 22 AWG carries 7 A on the chassis column, 16 AWG with 105 °C insulation 25 A in Table 5.",
     },
     needs_operating_point: true,
     check: check_ampacity,
@@ -46,7 +46,7 @@ pub const DROP: Rule = Rule {
         why: "Voltage lost in the wiring is heat in the harness and a lower supply at the load: a 3.3 V or 5 V logic rail has little room before the part browns out, and a long thin motor feed robs the motors of torque.",
         example: "railcheck: 1\nname: greenhouse irrigation pump\nparts:\n  pack: { use: battery/lead-acid-12v }   # empty: 10.5 V, 10.4 V at 5 A\n  main_fuse: { use: fuse/blade-7a5 }\n  pump: { class: load, pins: { vin: { role: supply-in, draw: 5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  # 5 A over 3 m out and 3 m back of 18 AWG (20.95 mohm/m): 0.63 V, 6 % > 5 %\n  PUMP+: { pins: [main_fuse.b, pump.vin], wire: 18 AWG, length: 3 m }\n  PUMP-: { pins: [pump.gnd, pack.neg], wire: 18 AWG, length: 3 m }",
         fix: "railcheck: 1\nname: greenhouse irrigation pump\nparts:\n  pack: { use: battery/lead-acid-12v }   # empty: 10.5 V, 10.4 V at 5 A\n  main_fuse: { use: fuse/blade-7a5 }\n  pump: { class: load, pins: { vin: { role: supply-in, draw: 5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  # 5 A over 3 m out and 3 m back of 16 AWG (13.17 mohm/m): 0.40 V, 3.8 %\n  PUMP+: { pins: [main_fuse.b, pump.vin], wire: 16 AWG, length: 3 m }\n  PUMP-: { pins: [pump.gnd, pack.neg], wire: 16 AWG, length: 3 m }",
-        references: "Drop ΔV = I × R_per_m × loop length (reference sheet §9, worked examples W2, W4, W5); copper resistance from the ASTM B258 gauge formula with annealed-copper resistivity (IEC 60028) and IEC 60228 class 5 for metric sizes (§1); 3 % branch / 5 % total are the NEC 210.19(A) Informational Note No. 4 recommendations, and 3 % for electronics is ABYC E-11 (§9).",
+        references: "Drop ΔV = I × R_per_m × loop length (Ohm's law; worked example: 2.0 A over 1 m out and 1 m back of 22 AWG drops 0.212 V, 4.24 % of 5 V); copper resistance from the ASTM B258 gauge formula with annealed-copper resistivity (IEC 60028) and IEC 60228 class 5 for metric sizes; 3 % branch / 5 % total are the NEC 210.19(A) Informational Note No. 4 recommendations, and 3 % for electronics is ABYC E-11.",
     },
     needs_operating_point: true,
     check: check_drop,
@@ -448,7 +448,7 @@ fn check_cable_drop(cx: &Context, out: &mut Vec<Finding>) {
         if matches!(plan.parts[host].class, Class::Battery(_)) {
             continue;
         }
-        // VBUS out and ground back: the wire spec applies to both (contract §5).
+        // VBUS out and ground back: the wire spec applies to both (format reference §5).
         let cable_drop = |p: &OperatingPoint| p.link_current[link_id] * resistance * 2.0;
         let Some((point, share)) = worst_point(cx.points().filter(continuous), |p| {
             let supply = supply_of(cx, p, host).filter(|v| volts(*v) > 0.0)?;

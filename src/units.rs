@@ -1093,68 +1093,52 @@ fn negative(text: &str, term: &Term, expect: &Expect) -> UnitError {
 /// A unit that is not accepted here: either one of another kind, or an unknown spelling.
 fn unit_problem(text: &str, term: &Term, unit_span: Range<usize>, expect: &Expect) -> UnitError {
     let unit = &text[unit_span.clone()];
-    let closest = closest_spelling(unit, &expect.accepted);
+    let accepted = || expect.accepted.iter().copied();
+    // A unit written short (`°C` where `°C/W` is wanted) is not a typo of
+    // the whole, but its intended spelling all the same.
+    let closest = crate::spelling::closest(unit, accepted())
+        .or_else(|| accepted().find(|spelling| !unit.is_empty() && spelling.starts_with(unit)));
     let number = if expect.signed {
         term.number_text
     } else {
         term.number_text.trim_start_matches('-')
     };
-    let suggestion = format!("{} {closest}", excerpt(number));
-    match meaning_elsewhere(unit) {
-        Some(meaning) => problem(
+    let suggestion = |unit: &str| format!("{} {unit}", excerpt(number));
+    match (meaning_elsewhere(unit), closest) {
+        (Some(meaning), _) => problem(
             format!(
                 "`{unit}` is {meaning}, but {} is needed here",
                 expect.wanted
             ),
             format!(
-                "write {}, like `{suggestion}`; accepted units: {}",
-                expect.wanted, expect.summary
+                "write {}, like `{}`; accepted units: {}",
+                expect.wanted,
+                suggestion(closest.unwrap_or(expect.example_unit)),
+                expect.summary
             ),
             unit_span,
         ),
-        None => problem(
+        (None, Some(closest)) => problem(
             format!("unknown unit `{}` for {}", excerpt(unit), expect.wanted),
             format!(
-                "did you mean `{suggestion}`? accepted units: {}",
+                "did you mean `{}`? accepted units: {}",
+                suggestion(closest),
+                expect.summary
+            ),
+            unit_span,
+        ),
+        // Nothing accepted here is a slip away from what was written.
+        (None, None) => problem(
+            format!("unknown unit `{}` for {}", excerpt(unit), expect.wanted),
+            format!(
+                "write {}, like `{}`; accepted units: {}",
+                expect.wanted,
+                suggestion(expect.example_unit),
                 expect.summary
             ),
             unit_span,
         ),
     }
-}
-
-/// The accepted spelling nearest to `unit` by edit distance, where a change of letter case
-/// costs half of any other edit (`mv` is one slip away from `mV`). Ties go to the earlier entry.
-fn closest_spelling<'a>(unit: &str, accepted: &[&'a str]) -> &'a str {
-    accepted
-        .iter()
-        .copied()
-        .min_by_key(|candidate| spelling_distance(unit, candidate))
-        .unwrap_or("")
-}
-
-fn spelling_distance(written: &str, candidate: &str) -> usize {
-    let candidate: Vec<char> = candidate.chars().collect();
-    let mut previous: Vec<usize> = (0..=candidate.len()).map(|j| 2 * j).collect();
-    for (i, w) in written.chars().enumerate() {
-        let mut current = Vec::with_capacity(candidate.len() + 1);
-        current.push(2 * (i + 1));
-        for (j, c) in candidate.iter().enumerate() {
-            let substitution = if w == *c {
-                0
-            } else if w.to_lowercase().eq(c.to_lowercase()) {
-                1
-            } else {
-                2
-            };
-            let best = (previous[j] + substitution)
-                .min(previous[j + 1] + 2)
-                .min(current[j] + 2);
-            current.push(best);
-        }
-        previous = current;
-    }
-    previous[candidate.len()]
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -3,6 +3,8 @@
 //! keep labels apart. Not for escaping (the `svg` crate escapes markup) and
 //! not for measuring real glyphs: the estimate is deliberately generous.
 
+use unicode_width::UnicodeWidthChar;
+
 /// The font the diagram asks for: the generic monospace family, so every
 /// viewer picks its own monospaced face and a label's width stays a matter
 /// of counting characters.
@@ -61,24 +63,16 @@ fn is_dropped(c: char) -> bool {
 }
 
 /// How many character cells a text takes: wide East Asian characters and
-/// emoji take two.
+/// emoji take two, combining marks none (Unicode East Asian Width, via
+/// `unicode-width`). Counted character by character, the measure `textwrap`
+/// wraps by, so a wrapped line never measures wider than its limit.
 pub(crate) fn cells(text: &str) -> usize {
-    text.chars().map(|c| if is_wide(c) { 2 } else { 1 }).sum()
+    text.chars().map(char_cells).sum()
 }
 
-fn is_wide(c: char) -> bool {
-    let code = u32::from(c);
-    matches!(code,
-        0x1100..=0x115f
-        | 0x2e80..=0xa4cf
-        | 0xac00..=0xd7a3
-        | 0xf900..=0xfaff
-        | 0xfe30..=0xfe4f
-        | 0xff00..=0xff60
-        | 0xffe0..=0xffe6
-        | 0x1f300..=0x1f64f
-        | 0x1f900..=0x1f9ff
-        | 0x20000..=0x3fffd)
+fn char_cells(c: char) -> usize {
+    // Control characters have no width; `clean` drops them anyway.
+    UnicodeWidthChar::width(c).unwrap_or(0)
 }
 
 /// Width of a label at a font size.
@@ -94,7 +88,7 @@ pub(crate) fn truncate(text: &str, max_cells: usize) -> String {
     let mut out = String::new();
     let mut used = 0;
     for c in text.chars() {
-        let w = if is_wide(c) { 2 } else { 1 };
+        let w = char_cells(c);
         if used + w + 1 > max_cells {
             break;
         }
@@ -105,59 +99,21 @@ pub(crate) fn truncate(text: &str, max_cells: usize) -> String {
     out
 }
 
-/// The text broken into lines of at most `max_cells` cells, at spaces where
-/// possible; a word longer than a line is cut.
+/// The text broken into lines of at most `max_cells` cells (never fewer than
+/// eight), at spaces where possible; a word longer than a line is cut.
 pub(crate) fn wrap(text: &str, max_cells: usize) -> Vec<String> {
-    let max_cells = max_cells.max(8);
-    let mut lines = Vec::new();
-    let mut line = String::new();
-    for word in text.split(' ').filter(|w| !w.is_empty()) {
-        let mut word = word.to_string();
-        loop {
-            let needed = if line.is_empty() {
-                cells(&word)
-            } else {
-                cells(&line) + 1 + cells(&word)
-            };
-            if needed <= max_cells {
-                if !line.is_empty() {
-                    line.push(' ');
-                }
-                line.push_str(&word);
-                break;
-            }
-            if !line.is_empty() {
-                lines.push(std::mem::take(&mut line));
-                continue;
-            }
-            // A word longer than a whole line: cut it.
-            let (head, tail) = split_at_cells(&word, max_cells);
-            lines.push(head);
-            word = tail;
-            if word.is_empty() {
-                break;
-            }
-        }
-    }
-    if !line.is_empty() {
-        lines.push(line);
-    }
-    if lines.is_empty() {
-        lines.push(String::new());
-    }
-    lines
-}
-
-fn split_at_cells(text: &str, max_cells: usize) -> (String, String) {
-    let mut used = 0;
-    for (i, c) in text.char_indices() {
-        let w = if is_wide(c) { 2 } else { 1 };
-        if used + w > max_cells {
-            return (text[..i].to_string(), text[i..].to_string());
-        }
-        used += w;
-    }
-    (text.to_string(), String::new())
+    // First fit works in time linear in the text, whatever its words; the
+    // optimal fit would weigh every break against every other.
+    let options = textwrap::Options::new(max_cells.max(8))
+        .wrap_algorithm(textwrap::WrapAlgorithm::FirstFit)
+        .word_separator(textwrap::WordSeparator::AsciiSpace)
+        // Breaks only at spaces: `buck-5v-3a` stays one word.
+        .word_splitter(textwrap::WordSplitter::NoHyphenation)
+        .break_words(true);
+    textwrap::wrap(text.trim_start(), options)
+        .into_iter()
+        .map(std::borrow::Cow::into_owned)
+        .collect()
 }
 
 #[cfg(test)]
@@ -187,6 +143,43 @@ mod tests {
         for line in wrap("a fairly long sentence that wraps around twice", 12) {
             assert!(cells(&line) <= 12, "{line}");
         }
+    }
+
+    #[test]
+    fn wrap_counts_wide_characters_as_two_cells() {
+        // Unicode East Asian Width: each ideograph is Wide, so eight fit in
+        // sixteen cells and the ninth starts a new line.
+        let lines = wrap(&"电".repeat(9), 16);
+        assert_eq!(lines, vec!["电".repeat(8), "电".to_string()]);
+    }
+
+    #[test]
+    fn wrap_keeps_the_text_and_drops_only_spaces() {
+        assert_eq!(wrap("", 10), vec![String::new()]);
+        let text = "rail tags show voltage from empty to full battery";
+        let lines = wrap(text, 10);
+        assert_eq!(lines.join(" "), text);
+        assert!(
+            lines
+                .iter()
+                .all(|l| !l.starts_with(' ') && !l.ends_with(' '))
+        );
+        assert_eq!(wrap("  indented", 10), vec!["indented"]);
+        assert_eq!(
+            wrap("part regulator/buck-5v-3a", 20),
+            vec!["part", "regulator/buck-5v-3a"]
+        );
+    }
+
+    #[test]
+    fn wrap_cuts_a_word_of_a_million_letters_into_full_lines() {
+        // 2^20 letters at 40 cells a line: 26,214 full lines and one of 16.
+        let word = "w".repeat(1 << 20);
+        let lines = wrap(&word, 40);
+        assert_eq!(lines.len(), 26_215);
+        assert!(lines[..26_214].iter().all(|l| cells(l) == 40));
+        assert_eq!(cells(&lines[26_214]), 16);
+        assert_eq!(lines.concat(), word);
     }
 
     #[test]

@@ -1299,7 +1299,7 @@ impl Reader<'_> {
             return None;
         }
         let Some(&part) = index.get(part_name) else {
-            let hint = match closest(part_name, index.keys().map(String::as_str)) {
+            let hint = match closest(part_name, parts.iter().map(|p| p.name.as_str())) {
                 Some(s) => format!("did you mean `{s}`?"),
                 None => "declare it under `parts:`".into(),
             };
@@ -1493,7 +1493,7 @@ impl Reader<'_> {
                     continue;
                 }
                 let Some(&part) = index.get(part_name) else {
-                    let hint = match closest(part_name, index.keys().map(String::as_str)) {
+                    let hint = match closest(part_name, parts.iter().map(|p| p.name.as_str())) {
                         Some(s) => format!("did you mean `{s}`?"),
                         None => "declare it under `parts:`".into(),
                     };
@@ -1583,7 +1583,7 @@ impl Reader<'_> {
                     continue;
                 }
                 let Some(&part) = index.get(part_name) else {
-                    let hint = closest(part_name, index.keys().map(String::as_str))
+                    let hint = closest(part_name, parts.iter().map(|p| p.name.as_str()))
                         .map(|s| format!("did you mean `{s}`?"))
                         .unwrap_or_else(|| "name a part declared under `parts:`".into());
                     self.error(
@@ -1763,55 +1763,12 @@ fn list(names: &[&str]) -> String {
         .join(", ")
 }
 
-/// The closest spelling among `candidates`, if it is close enough to be a typo.
-fn closest<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> Option<&'c str> {
-    let limit = (word.chars().count() / 3).max(1);
-    candidates
-        .map(|c| (edit_distance(word, c), c))
-        .filter(|(d, _)| *d <= limit)
-        .min()
-        .map(|(_, c)| c)
-}
-
-/// Edit distance where swapping two neighbouring letters counts as one edit
-/// (optimal string alignment), so `nest` is one step from `nets`.
-fn edit_distance(a: &str, b: &str) -> usize {
-    let a: Vec<char> = a.chars().collect();
-    let b: Vec<char> = b.chars().collect();
-    let mut d = vec![vec![0usize; b.len() + 1]; a.len() + 1];
-    for (i, row) in d.iter_mut().enumerate() {
-        row[0] = i;
-    }
-    for (j, cell) in d[0].iter_mut().enumerate() {
-        *cell = j;
-    }
-    for i in 1..=a.len() {
-        for j in 1..=b.len() {
-            let cost = usize::from(a[i - 1] != b[j - 1]);
-            let mut best = (d[i - 1][j] + 1)
-                .min(d[i][j - 1] + 1)
-                .min(d[i - 1][j - 1] + cost);
-            if i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1] {
-                best = best.min(d[i - 2][j - 2] + 1);
-            }
-            d[i][j] = best;
-        }
-    }
-    d[a.len()][b.len()]
-}
+// The "did you mean" search is shared with the quantity parser.
+use crate::spelling::closest;
 
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn typos_find_their_intended_word() {
-        assert_eq!(
-            closest("capacty", ["capacity", "cells"].into_iter()),
-            Some("capacity")
-        );
-        assert_eq!(closest("zzz", ["capacity", "cells"].into_iter()), None);
-    }
 
     #[test]
     fn connector_contacts_pair_by_number() {

@@ -1,7 +1,9 @@
 //! The power budget as a terminal table or JSON.
 
+use super::HumanStyle;
 use crate::budget::{BatteryBudget, Budget, RailBudget};
 use crate::units::{show_charge, show_current, show_power, show_share, show_voltage};
+use comfy_table::{ColumnConstraint, ContentArrangement, Table, Width, presets};
 use serde_json::{Value, json};
 use uom::si::electric_charge::ampere_hour;
 use uom::si::electric_current::ampere;
@@ -12,29 +14,55 @@ use uom::si::power::watt;
 use uom::si::ratio::ratio;
 use uom::si::time::hour;
 
-fn table(header: &[&str], rows: &[Vec<String>]) -> String {
-    let mut widths: Vec<usize> = header.iter().map(|h| h.chars().count()).collect();
-    for row in rows {
-        for (i, cell) in row.iter().enumerate() {
-            widths[i] = widths[i].max(cell.chars().count());
-        }
+/// Rows under a header as plain aligned columns, no borders and no colour,
+/// so the text reads the same in a file or a pipe. The first `name_columns`
+/// hold names the user chose: where the table is wider than the terminal
+/// report, they wrap inside their cells (keeping at least `NAME_CELLS`).
+/// Figures never wrap: a value torn from its unit misleads.
+fn table(header: &[&str], rows: &[Vec<String>], name_columns: usize) -> String {
+    const NAME_CELLS: u16 = 16;
+    let width = HumanStyle::default().width;
+    let mut table = Table::new();
+    table
+        .load_style(presets::NOTHING)
+        .set_content_arrangement(ContentArrangement::Dynamic)
+        .set_width(u16::try_from(width).unwrap_or(u16::MAX))
+        .set_header(header.to_vec())
+        .add_rows(
+            rows.iter()
+                .map(|row| row.iter().map(|cell| shortened(cell))),
+        );
+    let content_widths = table.column_max_content_widths();
+    let last = header.len().saturating_sub(1);
+    for (i, column) in table.column_iter_mut().enumerate() {
+        // Two spaces before the table and between columns.
+        let left = if i == 0 { 2 } else { 0 };
+        let right = if i == last { 0 } else { 2 };
+        column.set_padding((left, right));
+        column.set_constraint(if i < name_columns {
+            let narrowest = content_widths
+                .get(i)
+                .map_or(NAME_CELLS, |&w| w.min(NAME_CELLS));
+            ColumnConstraint::LowerBoundary(Width::Fixed(narrowest + left + right))
+        } else {
+            ColumnConstraint::ContentWidth
+        });
     }
-    let line = |cells: Vec<String>| {
-        let mut out = String::from("  ");
-        for (i, cell) in cells.iter().enumerate() {
-            out.push_str(cell);
-            if i + 1 < cells.len() {
-                out.push_str(&" ".repeat(widths[i] - cell.chars().count() + 2));
-            }
-        }
-        out.push('\n');
-        out
-    };
-    let mut out = line(header.iter().map(|s| s.to_string()).collect());
-    for row in rows {
-        out.push_str(&line(row.clone()));
-    }
+    let mut out = table.trim_fmt();
+    out.push('\n');
     out
+}
+
+/// A cell cut to `LONGEST_CELL` characters, ending in `…` when cut. Names
+/// and mode names come from the plan and can be any length; the table
+/// crate counts widths in 16 bits, and a name of many lines helps no one
+/// (the JSON budget carries it whole).
+fn shortened(cell: &str) -> String {
+    const LONGEST_CELL: usize = 64;
+    match cell.char_indices().nth(LONGEST_CELL) {
+        Some((cut, _)) => format!("{}…", &cell[..cut]),
+        None => cell.to_string(),
+    }
 }
 
 fn headroom(rail_peak: f64, rating: f64) -> String {
@@ -139,6 +167,7 @@ pub fn budget_table(file: &str, budget: &Budget) -> String {
             "loss",
         ],
         &rails,
+        2,
     ));
     out.push_str("\nBatteries:\n");
     let batteries: Vec<Vec<String>> = budget.batteries.iter().map(battery_row).collect();
@@ -155,6 +184,7 @@ pub fn budget_table(file: &str, budget: &Budget) -> String {
             "runtime",
         ],
         &batteries,
+        2,
     ));
     for b in &budget.batteries {
         if let Some(r) = &b.runtime {

@@ -146,19 +146,20 @@ pub fn render_findings(
     out
 }
 
+/// A caution as a list item wrapped to the terminal width (never under 40
+/// columns), continuation lines indented under its first word. Long words
+/// (a path, a command) stay whole: cut, they could not be copied.
 fn wrap_bullet(text: &str, width: usize) -> String {
-    let mut out = String::new();
-    let mut line = String::from("  - ");
-    for word in text.split_whitespace() {
-        if line.len() + word.len() + 1 > width.max(40) && line.trim().len() > 1 {
-            out.push_str(line.trim_end());
-            out.push('\n');
-            line = String::from("    ");
-        }
-        line.push_str(word);
-        line.push(' ');
-    }
-    out.push_str(line.trim_end());
+    // First fit works in time linear in the text, whatever its words.
+    let options = textwrap::Options::new(width.max(40))
+        .wrap_algorithm(textwrap::WrapAlgorithm::FirstFit)
+        .word_separator(textwrap::WordSeparator::AsciiSpace)
+        // Breaks only at spaces: `buck-5v-3a` stays one word.
+        .word_splitter(textwrap::WordSplitter::NoHyphenation)
+        .break_words(false)
+        .initial_indent("  - ")
+        .subsequent_indent("    ");
+    let mut out = textwrap::fill(text.trim(), options);
     out.push('\n');
     out
 }
@@ -191,4 +192,29 @@ pub fn render_input_errors(sources: &Sources, errors: &[InputError], style: Huma
         if n == 1 { "" } else { "s" }
     ));
     out
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn bullets_wrap_by_columns_not_bytes() {
+        // `°` takes one terminal column (Unicode East Asian Width: Ambiguous,
+        // narrow outside CJK text) but two bytes in UTF-8, so the first line
+        // holds exactly 40 columns.
+        let text = "keep the pack between 0 °C and 45 °C when charging, and let it cool";
+        let wrapped = wrap_bullet(text, 40);
+        let lines: Vec<&str> = wrapped.lines().collect();
+        assert_eq!(lines[0], "  - keep the pack between 0 °C and 45 °C");
+        assert_eq!(lines[1], "    when charging, and let it cool");
+        assert_eq!(lines.len(), 2);
+    }
+
+    #[test]
+    fn a_word_longer_than_the_line_stays_whole() {
+        let path = format!("/{}", "d".repeat(60));
+        let wrapped = wrap_bullet(&format!("see {path} first"), 40);
+        assert!(wrapped.lines().any(|line| line.trim() == path), "{wrapped}");
+    }
 }

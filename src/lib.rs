@@ -15,6 +15,7 @@ pub mod model;
 pub mod report;
 pub mod rules;
 pub mod safety;
+pub mod starter;
 pub mod syntax;
 pub mod units;
 pub mod wire;

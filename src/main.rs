@@ -107,6 +107,17 @@ enum Command {
         /// A rule id.
         id: Option<String>,
     },
+    /// Write a commented starter plan that passes `check`.
+    ///
+    /// Never overwrites an existing file.
+    Init {
+        /// The library battery to start from (`railcheck parts` lists them).
+        #[arg(long, value_name = "ID", default_value = railcheck::starter::DEFAULT_BATTERY)]
+        battery: String,
+        /// The file to write; without it the plan goes to standard output.
+        #[arg(short = 'o', long = "output", value_name = "FILE")]
+        output: Option<PathBuf>,
+    },
     /// Print a shell completion script (`railcheck completions bash > …`).
     Completions {
         /// The shell to complete in.
@@ -147,6 +158,7 @@ fn main() -> ExitCode {
         Command::Draw { plan, output, png } => draw(&run, &plan, output.as_deref(), png.as_deref()),
         Command::Budget { plan, quiet } => budget(&run, &plan, quiet),
         Command::Rules { id } => rules(id.as_deref()),
+        Command::Init { battery, output } => init(&battery, output.as_deref()),
         Command::Completions { shell } => {
             let mut out = Vec::new();
             clap_complete::generate(shell, &mut Cli::command(), "railcheck", &mut out);
@@ -447,6 +459,7 @@ fn write_output(path: &Path, plan: &Path, bytes: &[u8]) -> Result<(), String> {
 #[derive(Clone, Copy, PartialEq, Eq)]
 enum Replace {
     Allowed,
+    Refused,
 }
 
 /// The temporary file is written in the target's folder so the final rename
@@ -470,6 +483,15 @@ fn write_atomically(path: &Path, bytes: &[u8], replace: Replace) -> Result<(), S
     }
     match replace {
         Replace::Allowed => file.persist(path).map(drop).map_err(|e| cannot(e.error)),
+        // Linked into place only if nothing is there: no window in which a
+        // file created meanwhile could be replaced.
+        Replace::Refused => file.persist_noclobber(path).map(drop).map_err(|e| {
+            if e.error.kind() == std::io::ErrorKind::AlreadyExists {
+                refuse_existing(path)
+            } else {
+                cannot(e.error)
+            }
+        }),
     }
 }
 
@@ -522,6 +544,35 @@ fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
     } else {
         ExitCode::from(EXIT_FINDINGS)
     }
+}
+
+fn refuse_existing(path: &Path) -> String {
+    format!(
+        "{} already exists; railcheck init never overwrites a file (choose another name with -o)",
+        path.display()
+    )
+}
+
+fn init(battery: &str, output: Option<&Path>) -> ExitCode {
+    let plan = match railcheck::starter::starter(&Library::builtin(), battery) {
+        Ok(plan) => plan,
+        Err(e) => return fail(&e.message),
+    };
+    match output {
+        None => emit(&plan),
+        Some(path) if is_stdin(path) => emit(&plan),
+        Some(path) => {
+            // Said early, so no temporary file is made for nothing.
+            if path.symlink_metadata().is_ok() {
+                return fail(&refuse_existing(path));
+            }
+            if let Err(message) = write_atomically(path, plan.as_bytes(), Replace::Refused) {
+                return fail(&message);
+            }
+            wrote(path, plan.len());
+        }
+    }
+    ExitCode::SUCCESS
 }
 
 fn rules(id: Option<&str>) -> ExitCode {

@@ -356,7 +356,15 @@ fn usage_errors_exit_2() {
         .code(2);
 }
 
-const SUBCOMMANDS: [&str; 6] = ["check", "draw", "budget", "rules", "completions", "man"];
+const SUBCOMMANDS: [&str; 7] = [
+    "check",
+    "draw",
+    "budget",
+    "rules",
+    "init",
+    "completions",
+    "man",
+];
 
 #[test]
 fn completions_know_every_subcommand() {

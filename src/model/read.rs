@@ -1846,7 +1846,10 @@ fn list(names: &[&str]) -> String {
 }
 
 /// The closest spelling among `candidates`, if it is close enough to be a typo.
-fn closest<'c>(word: &str, candidates: impl Iterator<Item = &'c str>) -> Option<&'c str> {
+pub(super) fn closest<'c>(
+    word: &str,
+    candidates: impl Iterator<Item = &'c str>,
+) -> Option<&'c str> {
     let limit = (word.chars().count() / 3).max(1);
     candidates
         .map(|c| (edit_distance(word, c), c))

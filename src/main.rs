@@ -107,6 +107,15 @@ enum Command {
         /// A rule id.
         id: Option<String>,
     },
+    /// List the parts library, or show one part whole
+    /// (`railcheck parts regulator/buck-5v-3a`).
+    Parts {
+        /// A part id.
+        id: Option<String>,
+        /// A folder of extra part files; its ids shadow built-in ones.
+        #[arg(long, value_name = "DIR")]
+        parts: Option<PathBuf>,
+    },
     /// Write a commented starter plan that passes `check`.
     ///
     /// Never overwrites an existing file.
@@ -158,6 +167,7 @@ fn main() -> ExitCode {
         Command::Draw { plan, output, png } => draw(&run, &plan, output.as_deref(), png.as_deref()),
         Command::Budget { plan, quiet } => budget(&run, &plan, quiet),
         Command::Rules { id } => rules(id.as_deref()),
+        Command::Parts { id, parts } => show_parts(id.as_deref(), parts.as_deref()),
         Command::Init { battery, output } => init(&battery, output.as_deref()),
         Command::Completions { shell } => {
             let mut out = Vec::new();
@@ -571,6 +581,21 @@ fn init(battery: &str, output: Option<&Path>) -> ExitCode {
             }
             wrote(path, plan.len());
         }
+    }
+    ExitCode::SUCCESS
+}
+
+fn show_parts(id: Option<&str>, parts: Option<&Path>) -> ExitCode {
+    let library = match library(parts) {
+        Ok(library) => library,
+        Err(message) => return fail(&message),
+    };
+    match id {
+        None => emit(&report::parts_list(&library)),
+        Some(id) => match report::part_sheet(&library, id) {
+            Ok(sheet) => emit(&sheet),
+            Err(unknown) => return fail(&unknown.message),
+        },
     }
     ExitCode::SUCCESS
 }

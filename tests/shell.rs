@@ -356,12 +356,13 @@ fn usage_errors_exit_2() {
         .code(2);
 }
 
-const SUBCOMMANDS: [&str; 7] = [
+const SUBCOMMANDS: [&str; 8] = [
     "check",
     "draw",
     "budget",
     "rules",
     "init",
+    "parts",
     "completions",
     "man",
 ];

@@ -7,12 +7,14 @@ mod budget;
 mod catalogue;
 mod human;
 mod json;
+mod parts;
 mod quiet;
 
 pub use budget::{budget_json, budget_table};
 pub use catalogue::{rule_explanation, rule_list};
 pub use human::{HumanStyle, render_findings, render_input_errors};
 pub use json::{findings_json, input_errors_json};
+pub use parts::{UnknownPart, part_sheet, parts_list};
 pub use quiet::{quiet_budget, quiet_findings};
 
 use crate::rules::{Finding, Severity};

@@ -16,6 +16,7 @@ pub mod report;
 pub mod rules;
 pub mod safety;
 mod spelling;
+pub mod starter;
 pub mod syntax;
 pub mod units;
 pub mod wire;
@@ -25,6 +26,11 @@ use graph::Circuit;
 use model::{InputError, Library, Plan};
 use rules::{Context, Finding};
 use syntax::{SourceId, Sources};
+
+/// The largest plan (and part file) railcheck reads, in bytes: 64 MiB. A
+/// generated plan of thousands of parts is a few megabytes; anything larger
+/// is refused before it is read into memory.
+pub const MAX_PLAN_BYTES: u64 = 64 * 1024 * 1024;
 
 /// A plan that was read and checked.
 #[derive(Debug)]

@@ -1,29 +1,55 @@
 //! The `railcheck` command: parses arguments, reads files, prints reports and
 //! sets the exit code. Everything else lives in the library.
 
-use clap::{Parser, Subcommand, ValueEnum};
+use clap::{CommandFactory, Parser, Subcommand, ValueEnum};
 use railcheck::model::Library;
 use railcheck::report::{self, HumanStyle};
 use railcheck::rules::Severity;
-use std::io::{IsTerminal, Write};
+use std::io::{IsTerminal, Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
+
+/// Shown under `--help` of the command and of `check`.
+const EXIT_CODES: &str = "\
+Exit codes:
+  0  no errors (warnings and notes allowed unless --strict)
+  1  errors found (or warnings with --strict); for budget, no operating point
+  2  the plan could not be read, a file could not be written, or a usage error";
 
 #[derive(Parser)]
 #[command(
     name = "railcheck",
     version,
-    about = "Checks a robot's wiring plan before first power-on"
+    about = "Checks a robot's wiring plan before first power-on",
+    after_help = EXIT_CODES
 )]
 struct Cli {
+    /// When to colour the report: `auto` colours a terminal unless NO_COLOR is
+    /// set or TERM is `dumb`.
+    #[arg(
+        long,
+        value_enum,
+        global = true,
+        value_name = "WHEN",
+        default_value_t = ColorWhen::Auto
+    )]
+    color: ColorWhen,
     #[command(subcommand)]
     command: Command,
+}
+
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum ColorWhen {
+    Auto,
+    Always,
+    Never,
 }
 
 /// Where a plan comes from and how to read it.
 #[derive(clap::Args)]
 struct PlanArgs {
-    /// The plan (YAML netlist).
+    /// The plan (YAML netlist); `-` reads it from standard input. Plans larger
+    /// than 64 MiB are refused.
     file: PathBuf,
     /// Output format.
     #[arg(long, value_enum, default_value_t = Format::Human)]
@@ -36,27 +62,33 @@ struct PlanArgs {
 #[derive(Subcommand)]
 enum Command {
     /// Check a plan: rails, currents, grounds, ratings.
+    #[command(after_help = EXIT_CODES)]
     Check {
         #[command(flatten)]
         plan: PlanArgs,
         /// Fail on warnings too.
         #[arg(long)]
         strict: bool,
+        /// Print only the summary line of the terminal report; the exit code
+        /// is unchanged.
+        #[arg(short, long)]
+        quiet: bool,
         /// Also write the plan's block diagram to this SVG file.
         #[arg(long, value_name = "OUT.svg")]
         diagram: Option<PathBuf>,
     },
     /// Draw the plan's block diagram as SVG (or PNG) for build notes.
+    ///
+    /// One of `-o/--output` and `--png` is required.
+    #[command(group(
+        clap::ArgGroup::new("target").args(["output", "png"]).required(true).multiple(true)
+    ))]
     Draw {
         #[command(flatten)]
         plan: PlanArgs,
-        /// The SVG file to write.
-        #[arg(
-            short = 'o',
-            long = "output",
-            value_name = "OUT.svg",
-            required_unless_present = "png"
-        )]
+        /// The SVG file to write; `-` writes it to standard output.
+        /// One of -o/--output and --png is required.
+        #[arg(short = 'o', long = "output", value_name = "OUT.svg")]
         output: Option<PathBuf>,
         /// Also (or instead) write the diagram as a PNG picture.
         #[arg(long, value_name = "OUT.png")]
@@ -66,6 +98,9 @@ enum Command {
     Budget {
         #[command(flatten)]
         plan: PlanArgs,
+        /// Print only one summary line per battery.
+        #[arg(short, long)]
+        quiet: bool,
     },
     /// List the rules, or explain one (`railcheck rules fuse/undersized`).
     Rules {
@@ -74,6 +109,33 @@ enum Command {
     },
     /// Print the JSON Schema of the plan format, for YAML editors.
     Schema,
+    /// List the parts library, or show one part whole
+    /// (`railcheck parts regulator/buck-5v-3a`).
+    Parts {
+        /// A part id.
+        id: Option<String>,
+        /// A folder of extra part files; its ids shadow built-in ones.
+        #[arg(long, value_name = "DIR")]
+        parts: Option<PathBuf>,
+    },
+    /// Write a commented starter plan that passes `check`.
+    ///
+    /// Never overwrites an existing file.
+    Init {
+        /// The library battery to start from (`railcheck parts` lists them).
+        #[arg(long, value_name = "ID", default_value = railcheck::starter::DEFAULT_BATTERY)]
+        battery: String,
+        /// The file to write; without it the plan goes to standard output.
+        #[arg(short = 'o', long = "output", value_name = "FILE")]
+        output: Option<PathBuf>,
+    },
+    /// Print a shell completion script (`railcheck completions bash > …`).
+    Completions {
+        /// The shell to complete in.
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff) on standard output.
+    Man,
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -85,20 +147,49 @@ enum Format {
 const EXIT_FINDINGS: u8 = 1;
 const EXIT_INPUT: u8 = 2;
 
+/// The plan path that means standard input, and its name in reports.
+const STDIN_PATH: &str = "-";
+const STDIN_NAME: &str = "<stdin>";
+
+/// How the terminal report is drawn, and what else the run was asked for.
+struct Run {
+    color: ColorWhen,
+}
+
 fn main() -> ExitCode {
     let cli = Cli::parse();
+    let run = Run { color: cli.color };
     match cli.command {
         Command::Check {
             plan,
             strict,
+            quiet,
             diagram,
-        } => check(&plan, strict, diagram.as_deref()),
-        Command::Draw { plan, output, png } => draw(&plan, output.as_deref(), png.as_deref()),
-        Command::Budget { plan } => budget(&plan),
+        } => check(&run, &plan, strict, quiet, diagram.as_deref()),
+        Command::Draw { plan, output, png } => draw(&run, &plan, output.as_deref(), png.as_deref()),
+        Command::Budget { plan, quiet } => budget(&run, &plan, quiet),
         Command::Rules { id } => rules(id.as_deref()),
         Command::Schema => {
             emit(&report::plan_schema_text());
             ExitCode::SUCCESS
+        }
+        Command::Parts { id, parts } => show_parts(id.as_deref(), parts.as_deref()),
+        Command::Init { battery, output } => init(&battery, output.as_deref()),
+        Command::Completions { shell } => {
+            let mut out = Vec::new();
+            clap_complete::generate(shell, &mut Cli::command(), "railcheck", &mut out);
+            emit_bytes(&out);
+            ExitCode::SUCCESS
+        }
+        Command::Man => {
+            let mut out = Vec::new();
+            match clap_mangen::Man::new(Cli::command()).render(&mut out) {
+                Ok(()) => {
+                    emit_bytes(&out);
+                    ExitCode::SUCCESS
+                }
+                Err(e) => fail(&format!("cannot write the manual page: {e}")),
+            }
         }
     }
 }
@@ -109,67 +200,193 @@ fn fail(message: &str) -> ExitCode {
 }
 
 fn emit(text: &str) {
+    emit_bytes(text.as_bytes());
+}
+
+fn emit_bytes(bytes: &[u8]) {
     let mut stdout = std::io::stdout().lock();
     // A closed pipe (`railcheck check x | head`) is not an error worth a panic.
-    let _ = stdout.write_all(text.as_bytes());
+    let _ = stdout.write_all(bytes);
     let _ = stdout.flush();
 }
 
-fn style() -> HumanStyle {
+/// Which stream a report goes to: colour and width are decided per stream.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Stream {
+    Stdout,
+    Stderr,
+}
+
+/// Terminal widths outside this range make the report hard to read.
+const NARROWEST: usize = 60;
+const WIDEST: usize = 160;
+/// Width when the stream is not a terminal: fixed, so piped output and
+/// snapshots do not depend on the window the command ran in.
+const PIPE_WIDTH: usize = 100;
+
+fn style(run: &Run, stream: Stream) -> HumanStyle {
+    // anstream applies the conventions (NO_COLOR non-empty, CLICOLOR,
+    // CLICOLOR_FORCE, a terminal or not); TERM=dumb is refused on top, as
+    // such a terminal shows escape codes as text.
+    let auto = |choice: anstream::ColorChoice| {
+        choice != anstream::ColorChoice::Never
+            && std::env::var_os("TERM").is_none_or(|term| term != "dumb")
+    };
+    let (color, terminal) = match stream {
+        Stream::Stdout => {
+            let out = std::io::stdout();
+            let width = out
+                .is_terminal()
+                .then(|| terminal_size::terminal_size_of(&out))
+                .flatten();
+            (auto(anstream::AutoStream::choice(&out)), width)
+        }
+        Stream::Stderr => {
+            let err = std::io::stderr();
+            let width = err
+                .is_terminal()
+                .then(|| terminal_size::terminal_size_of(&err))
+                .flatten();
+            (auto(anstream::AutoStream::choice(&err)), width)
+        }
+    };
     HumanStyle {
-        color: std::io::stdout().is_terminal() && std::env::var_os("NO_COLOR").is_none(),
-        width: 100,
+        color: match run.color {
+            ColorWhen::Always => true,
+            ColorWhen::Never => false,
+            ColorWhen::Auto => color,
+        },
+        width: terminal.map_or(PIPE_WIDTH, |(terminal_size::Width(w), _)| {
+            usize::from(w).clamp(NARROWEST, WIDEST)
+        }),
     }
 }
 
-/// Reads and checks the plan; on input errors prints them and returns the
-/// exit code to end with.
-fn load(args: &PlanArgs) -> Result<railcheck::Checked, ExitCode> {
-    let bytes = match std::fs::read(&args.file) {
-        Ok(bytes) => bytes,
-        Err(e) => return Err(fail(&format!("cannot read {}: {e}", args.file.display()))),
-    };
-    let name = args.file.display().to_string();
-    let text = railcheck::decode(&name, bytes).map_err(|failure| report_input(args, &failure))?;
-    let mut library = Library::builtin();
-    if let Some(dir) = &args.parts
-        && let Err(message) = add_user_parts(&mut library, dir)
-    {
-        return Err(fail(&message));
+fn is_stdin(path: &Path) -> bool {
+    path.as_os_str() == STDIN_PATH
+}
+
+/// The name a plan goes by in reports.
+fn plan_name(path: &Path) -> String {
+    if is_stdin(path) {
+        STDIN_NAME.to_string()
+    } else {
+        path.display().to_string()
     }
-    railcheck::check(&name, &text, &library).map_err(|failure| report_input(args, &failure))
+}
+
+/// Reads at most `MAX_PLAN_BYTES` from a file or standard input: a larger
+/// input is refused before it can take the memory.
+fn read_bounded(path: &Path) -> Result<Vec<u8>, String> {
+    let name = plan_name(path);
+    let ceiling = railcheck::MAX_PLAN_BYTES;
+    let too_large = || {
+        format!(
+            "{name} is larger than {} MiB, the most railcheck reads; a wiring plan is far smaller",
+            ceiling / (1024 * 1024)
+        )
+    };
+    let cannot = |e: std::io::Error| format!("cannot read {name}: {e}");
+    let mut bytes = Vec::new();
+    if is_stdin(path) {
+        std::io::stdin()
+            .lock()
+            .take(ceiling + 1)
+            .read_to_end(&mut bytes)
+            .map_err(cannot)?;
+    } else {
+        let file = std::fs::File::open(path).map_err(cannot)?;
+        if file.metadata().map_err(cannot)?.len() > ceiling {
+            return Err(too_large());
+        }
+        file.take(ceiling + 1)
+            .read_to_end(&mut bytes)
+            .map_err(cannot)?;
+    }
+    if bytes.len() as u64 > ceiling {
+        return Err(too_large());
+    }
+    Ok(bytes)
+}
+
+/// Reads and checks the plan; on input errors prints them (to `stream`) and
+/// returns the exit code to end with.
+fn load(run: &Run, args: &PlanArgs, stream: Stream) -> Result<railcheck::Checked, ExitCode> {
+    let bytes = read_bounded(&args.file).map_err(|message| fail(&message))?;
+    let name = plan_name(&args.file);
+    let text = railcheck::decode(&name, bytes)
+        .map_err(|failure| report_input(run, args, &failure, stream))?;
+    let library = library(args.parts.as_deref()).map_err(|message| fail(&message))?;
+    railcheck::check(&name, &text, &library)
+        .map_err(|failure| report_input(run, args, &failure, stream))
+}
+
+/// The built-in parts plus a user folder, if given.
+fn library(parts: Option<&Path>) -> Result<Library, String> {
+    let mut library = Library::builtin();
+    if let Some(dir) = parts {
+        add_user_parts(&mut library, dir)?;
+    }
+    Ok(library)
 }
 
 /// Prints input problems in the chosen format; the run ends with exit code 2.
-fn report_input(args: &PlanArgs, failure: &railcheck::InputFailure) -> ExitCode {
+fn report_input(
+    run: &Run,
+    args: &PlanArgs,
+    failure: &railcheck::InputFailure,
+    stream: Stream,
+) -> ExitCode {
     let out = match args.format {
         Format::Json => {
             report::input_errors_json(&failure.sources, failure.plan_source, &failure.errors)
         }
-        Format::Human => report::render_input_errors(&failure.sources, &failure.errors, style()),
+        Format::Human => {
+            report::render_input_errors(&failure.sources, &failure.errors, style(run, stream))
+        }
     };
-    emit(&out);
+    match stream {
+        Stream::Stdout => emit(&out),
+        Stream::Stderr => eprint!("{out}"),
+    }
     ExitCode::from(EXIT_INPUT)
 }
 
-fn check(args: &PlanArgs, strict: bool, diagram: Option<&Path>) -> ExitCode {
-    let checked = match load(args) {
+fn check(
+    run: &Run,
+    args: &PlanArgs,
+    strict: bool,
+    quiet: bool,
+    diagram: Option<&Path>,
+) -> ExitCode {
+    if diagram.is_some_and(is_stdin) {
+        return fail(
+            "`--diagram -` would mix the diagram into the report; use `railcheck draw FILE -o -`",
+        );
+    }
+    let checked = match load(run, args, Stream::Stdout) {
         Ok(c) => c,
         Err(code) => return code,
     };
+    let cautions = railcheck::safety::cautions(&checked.plan);
     let out = match args.format {
+        Format::Human if quiet => report::quiet_findings(
+            checked.sources.name(checked.plan_source),
+            &checked.findings,
+            &cautions,
+        ),
         Format::Json => report::findings_json(
             &checked.sources,
             checked.plan_source,
             &checked.findings,
-            &railcheck::safety::cautions(&checked.plan),
+            &cautions,
         ),
         Format::Human => report::render_findings(
             &checked.sources,
             checked.plan_source,
             &checked.findings,
-            &railcheck::safety::cautions(&checked.plan),
-            style(),
+            &cautions,
+            style(run, Stream::Stdout),
         ),
     };
     emit(&out);
@@ -178,6 +395,7 @@ fn check(args: &PlanArgs, strict: bool, diagram: Option<&Path>) -> ExitCode {
         if let Err(message) = write_output(path, &args.file, svg.as_bytes()) {
             return fail(&message);
         }
+        wrote(path, svg.len());
     }
     let failing = checked
         .findings
@@ -190,14 +408,25 @@ fn check(args: &PlanArgs, strict: bool, diagram: Option<&Path>) -> ExitCode {
     }
 }
 
-fn draw(args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode {
-    let checked = match load(args) {
+fn draw(run: &Run, args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode {
+    let to_stdout = output.is_some_and(is_stdin);
+    if to_stdout && png.is_some_and(is_stdin) {
+        return fail("only one of `-o` and `--png` can be `-` (standard output)");
+    }
+    // With the diagram on standard output, problems go to standard error so
+    // the output stays a clean SVG document.
+    let stream = if to_stdout || png.is_some_and(is_stdin) {
+        Stream::Stderr
+    } else {
+        Stream::Stdout
+    };
+    let checked = match load(run, args, stream) {
         Ok(c) => c,
         Err(code) => return code,
     };
     let svg = railcheck::diagram::draw(&checked);
     if let Some(path) = output
-        && let Err(message) = write_output(path, &args.file, svg.as_bytes())
+        && let Err(message) = deliver(path, &args.file, svg.as_bytes())
     {
         return fail(&message);
     }
@@ -206,12 +435,28 @@ fn draw(args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode 
         options.fontdb_mut().load_system_fonts();
         let written = railcheck::diagram::png(&svg, &options)
             .map_err(|e| e.to_string())
-            .and_then(|bytes| write_output(path, &args.file, &bytes));
+            .and_then(|bytes| deliver(path, &args.file, &bytes));
         if let Err(message) = written {
             return fail(&message);
         }
     }
     ExitCode::SUCCESS
+}
+
+/// Writes `bytes` to standard output for `-`, else to the file (saying so on
+/// standard error).
+fn deliver(path: &Path, plan: &Path, bytes: &[u8]) -> Result<(), String> {
+    if is_stdin(path) {
+        emit_bytes(bytes);
+    } else {
+        write_output(path, plan, bytes)?;
+        wrote(path, bytes.len());
+    }
+    Ok(())
+}
+
+fn wrote(path: &Path, bytes: usize) {
+    eprintln!("wrote {} ({bytes} bytes)", path.display());
 }
 
 /// Writes a file whole or not at all: into a temporary file in the same
@@ -223,11 +468,25 @@ fn write_output(path: &Path, plan: &Path, bytes: &[u8]) -> Result<(), String> {
             plan.display()
         ));
     }
+    write_atomically(path, bytes, Replace::Allowed)
+}
+
+/// Whether an existing file at the target may be replaced.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Replace {
+    Allowed,
+    Refused,
+}
+
+/// The temporary file is written in the target's folder so the final rename
+/// stays on one file system and is atomic. Every message names the target,
+/// never the temporary file.
+fn write_atomically(path: &Path, bytes: &[u8], replace: Replace) -> Result<(), String> {
     let folder = match path.parent() {
         Some(p) if !p.as_os_str().is_empty() => p,
         _ => Path::new("."),
     };
-    let cannot = |e: std::io::Error| format!("cannot write {}: {e}", path.display());
+    let cannot = |e: std::io::Error| format!("cannot write {}: {}", path.display(), reason(&e));
     let mut file = tempfile::NamedTempFile::new_in(folder).map_err(cannot)?;
     file.write_all(bytes).map_err(cannot)?;
     // A temporary file is private to its owner; a diagram is for sharing.
@@ -238,8 +497,32 @@ fn write_output(path: &Path, plan: &Path, bytes: &[u8]) -> Result<(), String> {
             .set_permissions(std::fs::Permissions::from_mode(0o644))
             .map_err(cannot)?;
     }
-    file.persist(path).map_err(|e| cannot(e.error))?;
-    Ok(())
+    match replace {
+        Replace::Allowed => file.persist(path).map(drop).map_err(|e| cannot(e.error)),
+        // Linked into place only if nothing is there: no window in which a
+        // file created meanwhile could be replaced.
+        Replace::Refused => file.persist_noclobber(path).map(drop).map_err(|e| {
+            if e.error.kind() == std::io::ErrorKind::AlreadyExists {
+                refuse_existing(path)
+            } else {
+                cannot(e.error)
+            }
+        }),
+    }
+}
+
+/// The operating system's reason for an I/O error, without the temporary
+/// file's path that `tempfile` appends (`… at path "/x/.tmpAb12"`): that name
+/// means nothing to a user, who asked for the target.
+fn reason(error: &std::io::Error) -> String {
+    if let Some(code) = error.raw_os_error() {
+        return std::io::Error::from_raw_os_error(code).to_string();
+    }
+    let text = error.to_string();
+    match text.find(" at path ") {
+        Some(end) => text[..end].to_string(),
+        None => text,
+    }
 }
 
 /// Whether two paths name one file (through links too). A path that does
@@ -259,14 +542,15 @@ fn is_same_file(a: &Path, b: &Path) -> bool {
     matches!((a.canonicalize(), b.canonicalize()), (Ok(x), Ok(y)) if x == y)
 }
 
-fn budget(args: &PlanArgs) -> ExitCode {
-    let checked = match load(args) {
+fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
+    let checked = match load(run, args, Stream::Stdout) {
         Ok(c) => c,
         Err(code) => return code,
     };
     let budget = railcheck::budget::budget(&checked);
     let name = checked.sources.name(checked.plan_source);
     emit(&match args.format {
+        Format::Human if quiet => report::quiet_budget(name, &budget),
         Format::Json => report::budget_json(name, &budget),
         Format::Human => report::budget_table(name, &budget),
     });
@@ -276,6 +560,50 @@ fn budget(args: &PlanArgs) -> ExitCode {
     } else {
         ExitCode::from(EXIT_FINDINGS)
     }
+}
+
+fn refuse_existing(path: &Path) -> String {
+    format!(
+        "{} already exists; railcheck init never overwrites a file (choose another name with -o)",
+        path.display()
+    )
+}
+
+fn init(battery: &str, output: Option<&Path>) -> ExitCode {
+    let plan = match railcheck::starter::starter(&Library::builtin(), battery) {
+        Ok(plan) => plan,
+        Err(e) => return fail(&e.message),
+    };
+    match output {
+        None => emit(&plan),
+        Some(path) if is_stdin(path) => emit(&plan),
+        Some(path) => {
+            // Said early, so no temporary file is made for nothing.
+            if path.symlink_metadata().is_ok() {
+                return fail(&refuse_existing(path));
+            }
+            if let Err(message) = write_atomically(path, plan.as_bytes(), Replace::Refused) {
+                return fail(&message);
+            }
+            wrote(path, plan.len());
+        }
+    }
+    ExitCode::SUCCESS
+}
+
+fn show_parts(id: Option<&str>, parts: Option<&Path>) -> ExitCode {
+    let library = match library(parts) {
+        Ok(library) => library,
+        Err(message) => return fail(&message),
+    };
+    match id {
+        None => emit(&report::parts_list(&library)),
+        Some(id) => match report::part_sheet(&library, id) {
+            Ok(sheet) => emit(&sheet),
+            Err(unknown) => return fail(&unknown.message),
+        },
+    }
+    ExitCode::SUCCESS
 }
 
 fn rules(id: Option<&str>) -> ExitCode {
@@ -315,8 +643,9 @@ fn add_user_parts(library: &mut Library, dir: &Path) -> Result<(), String> {
     }
     files.sort();
     for path in files {
-        let text = std::fs::read_to_string(&path)
-            .map_err(|e| format!("cannot read {}: {e}", path.display()))?;
+        let bytes = read_bounded(&path)?;
+        let text = String::from_utf8(bytes)
+            .map_err(|_| format!("cannot read {}: the file is not UTF-8 text", path.display()))?;
         let relative = path.strip_prefix(dir).unwrap_or(&path).with_extension("");
         let id = relative
             .components()

@@ -5,6 +5,7 @@
 //! binary and handed in as texts; its ids shadow built-in ones. Files are parsed
 //! only when a plan uses them.
 
+use super::{Part, Plan};
 use crate::syntax::{self, Node, Sources, Span};
 use include_dir::{Dir, include_dir};
 use std::collections::BTreeMap;
@@ -51,6 +52,65 @@ impl Library {
 
     pub fn contains(&self, id: &str) -> bool {
         self.entries.contains_key(id)
+    }
+
+    /// The file a part comes from, as diagnostics name it.
+    pub fn file_name(&self, id: &str) -> Option<&str> {
+        self.entries.get(id).map(|e| e.file_name.as_str())
+    }
+
+    /// The known id closest to a mistyped one, if it is close enough to be a
+    /// typo.
+    pub fn closest_id(&self, id: &str) -> Option<&str> {
+        crate::spelling::closest(id, self.ids())
+    }
+
+    /// A plan holding this one part and no nets, read exactly as a plan's
+    /// `use:` reads it: the values are the ones the checker works with.
+    /// `None` for an unknown id; `Err` with the first problem ("file:line:
+    /// message") for a part file that does not read.
+    pub fn part_plan(&self, id: &str) -> Option<Result<Plan, String>> {
+        if !self.contains(id) {
+            return None;
+        }
+        // A JSON string is a valid YAML double-quoted scalar: any id is safe.
+        let quoted = serde_json::Value::String(id.to_string()).to_string();
+        let text = format!("railcheck: 1\nparts:\n  part: {{ use: {quoted} }}\nnets: {{}}\n");
+        Some(match crate::read("<library>", &text, self) {
+            Ok((_, _, plan)) => Ok(plan),
+            Err(failure) => Err(failure.errors.first().map_or_else(
+                || format!("library part `{id}` could not be read"),
+                |e| {
+                    let (line, _) = failure.sources.line_column(e.span);
+                    format!(
+                        "{}:{line}: {}",
+                        failure.sources.name(e.span.source),
+                        e.message
+                    )
+                },
+            )),
+        })
+    }
+
+    /// A library part as a plan's `use:` reads it (see `part_plan`).
+    pub fn read_part(&self, id: &str) -> Option<Result<Part, String>> {
+        self.part_plan(id).map(|plan| {
+            plan.and_then(|mut plan| {
+                plan.parts
+                    .pop()
+                    .ok_or_else(|| format!("library part `{id}` could not be read"))
+            })
+        })
+    }
+
+    /// The part file's `notes:`, with the folding of the YAML block undone.
+    pub fn notes(&self, id: &str) -> Option<String> {
+        let entry = self.entries.get(id)?;
+        let mut sources = Sources::default();
+        let source = sources.add(entry.file_name.clone(), entry.text.as_str());
+        let root = syntax::parse(source, &entry.text).ok()?;
+        let notes = root.get("notes")?.as_scalar()?;
+        Some(notes.split_whitespace().collect::<Vec<_>>().join(" "))
     }
 
     /// Parses a part's file into `sources`.

@@ -9,6 +9,8 @@ mod human;
 mod json;
 mod reference;
 mod schema;
+mod parts;
+mod quiet;
 
 pub use budget::{budget_json, budget_table};
 pub use catalogue::{rule_explanation, rule_list};
@@ -16,6 +18,8 @@ pub use human::{HumanStyle, render_findings, render_input_errors};
 pub use json::{findings_json, input_errors_json};
 pub use reference::{describe, fill_generated_blocks, format_tables};
 pub use schema::{plan_schema, plan_schema_text};
+pub use parts::{UnknownPart, part_sheet, parts_list};
+pub use quiet::{quiet_budget, quiet_findings};
 
 use crate::rules::{Finding, Severity};
 

@@ -20,6 +20,8 @@ mod thermal;
 mod voltage;
 mod wire;
 
+pub use fuse::minimum_rating;
+
 use crate::analysis::{Analysis, BatteryState, ModeId, OperatingPoint};
 use crate::graph::Circuit;
 use crate::model::{NetId, PartId, PinRef, Plan};

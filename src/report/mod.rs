@@ -7,19 +7,19 @@ mod budget;
 mod catalogue;
 mod human;
 mod json;
-mod reference;
-mod schema;
 mod parts;
 mod quiet;
+mod reference;
+mod schema;
 
 pub use budget::{budget_json, budget_table};
 pub use catalogue::{rule_explanation, rule_list};
 pub use human::{HumanStyle, render_findings, render_input_errors};
 pub use json::{findings_json, input_errors_json};
-pub use reference::{describe, fill_generated_blocks, format_tables};
-pub use schema::{plan_schema, plan_schema_text};
 pub use parts::{UnknownPart, part_sheet, parts_list};
 pub use quiet::{quiet_budget, quiet_findings};
+pub use reference::{describe, fill_generated_blocks, format_tables};
+pub use schema::{plan_schema, plan_schema_text};
 
 use crate::rules::{Finding, Severity};
 

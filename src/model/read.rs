@@ -209,10 +209,12 @@ impl Reader<'_> {
             }
             Some(node) => self.nets(node, &mut parts, &part_index),
         };
+        let mut nets = nets;
         let links = root
             .get("links")
             .map(|n| self.links(n, &parts, &part_index))
             .unwrap_or_default();
+        cable_fed_nets(&links, &mut parts, &mut nets);
         let modes = root
             .get("modes")
             .map(|n| self.modes(n, &parts, &part_index))
@@ -1665,6 +1667,38 @@ impl Reader<'_> {
 }
 
 // ----- helpers -------------------------------------------------------------
+
+/// A cable's VBUS powers the pin its device port `feeds` even where the plan
+/// wires that pin to nothing else (format reference §3, ports): such a pin
+/// gets a net of its own, named after the pin (`brain.vin`; a dot cannot
+/// appear in a net the plan names), so its draw is paid by the cable and its
+/// voltage is the cable's.
+fn cable_fed_nets(links: &[Link], parts: &mut [Part], nets: &mut Vec<Net>) {
+    for link in links {
+        let (device, port) = link.device;
+        let part = &mut parts[device];
+        let PortKind::UsbDevice {
+            feeds: Some(pin), ..
+        } = part.ports[port].kind
+        else {
+            continue;
+        };
+        if part.pins[pin].net.is_some() {
+            continue;
+        }
+        let span = part.ports[port].span;
+        part.pins[pin].net = Some(nets.len());
+        part.pins[pin].net_span = Some(span);
+        nets.push(Net {
+            name: format!("{}.{}", part.name, part.pins[pin].name),
+            span,
+            pins: vec![PinRef { part: device, pin }],
+            wire: None,
+            length: None,
+            insulation: None,
+        });
+    }
+}
 
 fn first_key_span(root: &Node) -> Span {
     root.as_map()

@@ -1029,11 +1029,7 @@ fn spelling_of(
         return fallback.ok_or_else(|| {
             problem(
                 format!("`{}` has no unit", excerpt(term.number_text)),
-                format!(
-                    "write `{} {}`",
-                    excerpt(term.number_text),
-                    kind.example_unit()
-                ),
+                plausible_unit_hint(&excerpt(term.number_text), term.number, kind),
                 term.number_span.clone(),
             )
         });
@@ -1043,6 +1039,47 @@ fn spelling_of(
         .iter()
         .find(|s| s.text == unit)
         .ok_or_else(|| unit_problem(text, term, unit_span, expect))
+}
+
+/// The values a robot's plan usually holds for a kind, in its base unit:
+/// rails of a fraction of a volt to a hundred, currents of a milliampere to
+/// tens of amperes, packs of a tenth to a hundred ampere-hours, wire runs of
+/// a few centimetres to a few metres (common practice for small robots, not
+/// a standard's limit: it only picks the unit a hint suggests).
+fn usual_range(kind: Kind) -> Option<(f64, f64, &'static [&'static str], &'static str)> {
+    match kind {
+        Kind::Voltage => Some((0.5, 100.0, &["V", "mV"], "a robot's rails and ratings")),
+        Kind::Current => Some((0.001, 50.0, &["A", "mA"], "a robot's currents")),
+        // In coulombs: 0.1 Ah to 100 Ah (1 Ah = 3600 C).
+        Kind::Charge => Some((360.0, 360_000.0, &["Ah", "mAh"], "a robot's battery packs")),
+        Kind::Length => Some((0.05, 5.0, &["m", "cm", "mm"], "a robot's wire runs")),
+        _ => None,
+    }
+}
+
+/// "write `30 cm`" for a bare `30` given as a length: the unit that puts the
+/// number where such values usually lie, saying so when it is not the kind's
+/// plain unit.
+fn plausible_unit_hint(written: &str, number: f64, kind: Kind) -> String {
+    let plain = kind.example_unit();
+    let Some((low, high, units, what)) = usual_range(kind) else {
+        return format!("write `{written} {plain}`");
+    };
+    let chosen = units.iter().copied().find(|unit| {
+        kind.spellings()
+            .iter()
+            .find(|s| s.text == *unit)
+            .is_some_and(|s| {
+                let base = number.abs() * s.numerator / s.denominator;
+                (low..=high).contains(&base)
+            })
+    });
+    match chosen {
+        Some(unit) if unit != plain => format!(
+            "write `{written} {unit}`: {what} are rarely {written} {plain} (write `{written} {plain}` if that is meant)"
+        ),
+        _ => format!("write `{written} {plain}`"),
+    }
 }
 
 /// The value of `term` in the kind's base unit, after the sign and range checks.

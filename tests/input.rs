@@ -1294,3 +1294,60 @@ fn impossible_cells_and_temperatures_are_refused() {
     assert_at(&errors[0], 2, 10, "-300 degC");
     assert_at(&errors[1], 4, 45, "4294967295");
 }
+
+/// A value refused for its own mistake is one error: the net is not also
+/// said to lack its length (or its wire).
+#[test]
+fn a_length_without_its_unit_is_one_error_with_a_plausible_unit() {
+    let plan = "railcheck: 1
+parts:
+  pack: { use: battery/lipo-3s }
+  fuse: { use: fuse/blade-5a }
+nets:
+  LEAD: { pins: [pack.pos, fuse.a], wire: 18 AWG, length: 30 }
+";
+    let error = single_error(plan);
+    assert_at(&error, 6, 59, "30");
+    // A robot's wire run is centimetres to metres: 30 is 30 cm, not 30 m.
+    assert_hint(&error, &["30 cm"]);
+}
+
+#[test]
+fn an_impossible_wire_size_is_one_error() {
+    let plan = "railcheck: 1
+parts:
+  pack: { use: battery/lipo-3s }
+  fuse: { use: fuse/blade-5a }
+nets:
+  LEAD: { pins: [pack.pos, fuse.a], wire: 1000 AWG, length: 30 cm }
+";
+    let error = single_error(plan);
+    assert_at(&error, 6, 43, "1000 AWG");
+}
+
+#[test]
+fn bare_numbers_get_the_unit_that_makes_them_plausible() {
+    // (written, field, the unit the hint must suggest): a 2200 capacity is a
+    // 2200 mAh pack, a 7500 draw 7.5 A in mA, a 600 length 600 mm; small
+    // numbers keep the plain unit.
+    for (value, field, unit) in [
+        ("2200", "capacity", "2200 mAh"),
+        ("5", "capacity", "5 Ah"),
+        ("7500", "max_discharge", "7500 A"),
+    ] {
+        let plan = format!(
+            "railcheck: 1\nparts:\n  pack: {{ use: battery/lipo-3s, with: {{ {field}: {value} }} }}\nnets: {{}}\n"
+        );
+        let error = single_error(&plan);
+        assert_hint(&error, &[unit]);
+    }
+    for (value, unit) in [("600", "600 mm"), ("2", "2 m"), ("45", "45 cm")] {
+        let plan = format!(
+            "railcheck: 1\nparts:\n  pack: {{ use: battery/lipo-3s }}\n  fuse: {{ use: fuse/blade-5a }}\n\
+             nets:\n  LEAD: {{ pins: [pack.pos, fuse.a], wire: 18 AWG, length: {value} }}\n"
+        );
+        assert_hint(&single_error(&plan), &[unit]);
+    }
+    let plan = "railcheck: 1\nparts:\n  lamp: { class: load, pins: { vin: { role: supply-in, draw: 120 } } }\nnets: {}\n";
+    assert_hint(&single_error(plan), &["120 mA"]);
+}

@@ -1386,8 +1386,11 @@ impl Reader<'_> {
                     continue;
                 }
             };
-            if wire.is_some() != length.is_some() {
-                let missing = if wire.is_some() { "length" } else { "wire" };
+            // Judged on what is written, not on what read: a value refused for
+            // its own mistake is not also missing.
+            let written = |key: &str| body.as_map().is_some() && body.get(key).is_some();
+            if written("wire") != written("length") {
+                let missing = if written("wire") { "length" } else { "wire" };
                 self.error(
                     key.span,
                     format!("net `{name}` gives a wire size or a length but not both"),

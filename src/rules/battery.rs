@@ -4,7 +4,9 @@
 //! Not for the pack's voltage window (that is `analysis`) nor for runtime
 //! (that is `budget`).
 
-use super::{Context, Finding, Rule, RuleDoc, Severity, exceeds, mode_label, worst_point};
+use super::{
+    Context, Finding, Rule, RuleDoc, Severity, exceeds, mode_label, show_contributors, worst_point,
+};
 use crate::model::Class;
 use crate::units::{DischargeRate, show_charge, show_current};
 use uom::si::electric_charge::ampere_hour;
@@ -71,13 +73,20 @@ fn check_discharge(cx: &Context, out: &mut Vec<Finding>) {
         } else {
             part.span
         };
+        let total = ElectricCurrent::new::<ampere>(peak);
+        let pos_net = part.pin("pos").and_then(|p| part.pins[p].net);
+        let made_of = pos_net
+            .map(|net| cx.loads_below(net, point))
+            .filter(|loads| !loads.is_empty())
+            .map(|loads| format!(": {}", show_contributors(&loads, total)))
+            .unwrap_or_default();
         let mut finding = Finding::new(
             &DISCHARGE,
             span,
             format!(
-                "`{}` delivers {} peak {}; its maximum discharge is {}{how}",
+                "`{}` delivers {} peak {}; its maximum discharge is {}{how}{made_of}",
                 part.name,
-                show_current(ElectricCurrent::new::<ampere>(peak)),
+                show_current(total),
                 mode_label(plan, point.mode, point.battery),
                 show_current(limit)
             ),

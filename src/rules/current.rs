@@ -4,11 +4,12 @@
 //! ratings and the derating limit (format reference §6).
 
 use super::{
-    Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
+    Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, show_contributors,
+    worst_point,
 };
 use crate::analysis::OperatingPoint;
 use crate::graph::{MotorFeed, through_pairs};
-use crate::model::{Class, MotorState, PartId, PinRole, PortKind, Rated};
+use crate::model::{Class, MotorState, NetId, PartId, PinRole, PortKind, Rated};
 use crate::syntax::Span;
 use crate::units::{show_current, show_share};
 use uom::si::electric_current::ampere;
@@ -59,6 +60,18 @@ struct RatedPath<'a> {
     /// Driver channel continuous ratings meet continuous current only.
     continuous_rating: bool,
     current: CurrentAt<'a>,
+    /// What the current is made of, for the message.
+    carries: Carries,
+}
+
+/// Where the loads behind a rated current are found.
+enum Carries {
+    /// Everything on this net and below it.
+    Net(Option<NetId>),
+    /// The devices at the ends of these USB cables.
+    Links(Vec<usize>),
+    /// A driver channel: its motors (named by the channel already).
+    Channel,
 }
 
 fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
@@ -86,6 +99,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                         rating: rating.value,
                         continuous_rating: false,
                         current: Box::new(move |p| p.regulators[part_id].map(|r| r.output_current)),
+                        carries: Carries::Net(vout.and_then(|p| part.pins[p].net)),
                     });
                 }
             }
@@ -147,6 +161,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                                     .find(|(n, _)| *n == number)
                                     .map(|(_, i)| *i)
                             }),
+                            carries: Carries::Channel,
                         });
                     }
                 }
@@ -163,6 +178,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             rating: limit,
                             continuous_rating: false,
                             current: Box::new(move |p| Some(p.pin_current[part_id][pin_id])),
+                            carries: Carries::Net(pin.net),
                         });
                     }
                 }
@@ -198,10 +214,12 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                     rating: limit,
                     continuous_rating: false,
                     current: Box::new(move |p| Some(p.link_current[link])),
+                    carries: Carries::Links(vec![link]),
                 });
             }
         }
         if let (Some(limit), Some(&first)) = (shared_limit, shared_links.first()) {
+            let carries = Carries::Links(shared_links.clone());
             paths.push(RatedPath {
                 subject: format!("the shared USB ports of `{}`", part.name),
                 span: plan.links[first].span,
@@ -218,6 +236,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             }),
                     )
                 }),
+                carries,
             });
         }
     }
@@ -248,6 +267,43 @@ fn through_path<'a>(
         rating: rating.value,
         continuous_rating: false,
         current: Box::new(move |p| downstream.map(|n| p.net_current[n].abs())),
+        carries: Carries::Net(downstream),
+    }
+}
+
+/// The loads that make up a rated current at `point`, and the fix to offer.
+fn contributors(
+    cx: &Context,
+    carries: &Carries,
+    point: &OperatingPoint,
+) -> (Vec<(String, ElectricCurrent)>, String) {
+    const SPLIT: &str = "choose a part with a higher rating, or split the load";
+    match carries {
+        Carries::Net(Some(net)) => (cx.loads_below(*net, point), SPLIT.into()),
+        Carries::Links(links) => {
+            let mut loads: Vec<(String, ElectricCurrent)> = links
+                .iter()
+                .map(|&l| {
+                    let device = cx.plan.links[l].device.0;
+                    (format!("`{}`", cx.part_name(device)), point.link_current[l])
+                })
+                .collect();
+            loads.sort_by(|a, b| {
+                b.1.partial_cmp(&a.1)
+                    .unwrap_or(std::cmp::Ordering::Equal)
+                    .then(a.0.cmp(&b.0))
+            });
+            let hub = crate::model::Library::builtin()
+                .ids()
+                .find(|id| id.starts_with("board/usb-hub"))
+                .map(|id| format!(" (the library has `{id}`)"))
+                .unwrap_or_default();
+            let help = format!(
+                "power the heaviest devices from their own supply, or put them behind a powered USB hub{hub}, which feeds its ports from its own input"
+            );
+            (loads, help)
+        }
+        _ => (Vec::new(), SPLIT.into()),
     }
 }
 
@@ -282,21 +338,52 @@ fn check_ratings(cx: &Context, out: &mut Vec<Finding>) {
             } else {
                 "peak"
             };
-            out.push(
-                base(
-                    &OVER_RATING,
-                    point,
-                    format!(
-                        "{} carries {} {kind} {}; its rating is {}",
-                        path.subject,
-                        show_current(ElectricCurrent::new::<ampere>(current)),
-                        mode_label(cx.plan, point.mode, point.battery),
-                        show_current(path.rating)
-                    ),
-                )
-                .help("choose a part with a higher rating, or split the load")
-                .value("current", current),
-            );
+            let total = ElectricCurrent::new::<ampere>(current);
+            let (loads, help) = contributors(cx, &path.carries, point);
+            let made_of = if loads.is_empty() {
+                String::new()
+            } else {
+                format!(": {}", show_contributors(&loads, total))
+            };
+            let mut finding = base(
+                &OVER_RATING,
+                point,
+                format!(
+                    "{} carries {} {kind} {}; its rating is {}{made_of}",
+                    path.subject,
+                    show_current(total),
+                    mode_label(cx.plan, point.mode, point.battery),
+                    show_current(path.rating)
+                ),
+            )
+            .help(help)
+            .value("current", current);
+            // Point at where the load was added too: the net it flows in, or
+            // the devices on the cables.
+            match &path.carries {
+                Carries::Net(Some(net)) => {
+                    let net = &cx.plan.nets[*net];
+                    finding = finding.label(
+                        net.span,
+                        format!("`{}` carries {}", net.name, show_current(total)),
+                    );
+                }
+                Carries::Links(links) => {
+                    for &link in links {
+                        let device = cx.plan.links[link].device.0;
+                        finding = finding.part(cx.part_name(device)).label(
+                            cx.plan.links[link].span,
+                            format!(
+                                "`{}` draws {}",
+                                cx.part_name(device),
+                                show_current(point.link_current[link])
+                            ),
+                        );
+                    }
+                }
+                _ => {}
+            }
+            out.push(finding);
             continue;
         }
         if let Some((point, current)) = steady

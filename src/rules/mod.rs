@@ -23,10 +23,12 @@ mod wire;
 pub use fuse::minimum_rating;
 
 use crate::analysis::{Analysis, BatteryState, ModeId, OperatingPoint};
-use crate::graph::Circuit;
-use crate::model::{NetId, PartId, PinRef, Plan};
+use crate::graph::{Circuit, MotorFeed};
+use crate::model::{NetId, PartId, PinRef, PinRole, Plan};
 use crate::syntax::Span;
 use std::collections::BTreeMap;
+use uom::si::electric_current::ampere;
+use uom::si::f64::ElectricCurrent;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Severity {
@@ -149,6 +151,44 @@ impl Context<'_> {
         &self.plan.parts[part].name
     }
 
+    /// What draws the current that flows down `net` at `point`: every
+    /// supply input and directly wired motor on `net` and on the nets that
+    /// hang below it, largest first. A converter counts as one load (its
+    /// input current), so a finding names the branch the fix belongs to.
+    pub fn loads_below(
+        &self,
+        net: NetId,
+        point: &OperatingPoint,
+    ) -> Vec<(String, ElectricCurrent)> {
+        let plan = self.plan;
+        let mut loads: Vec<(String, ElectricCurrent)> = Vec::new();
+        let mut stack = vec![net];
+        while let Some(n) = stack.pop() {
+            for &pin_ref in &plan.nets[n].pins {
+                let pin = &plan.parts[pin_ref.part].pins[pin_ref.pin];
+                let current = point.pin_current[pin_ref.part][pin_ref.pin];
+                if pin.role == PinRole::SupplyIn && current.get::<ampere>() > 0.0 {
+                    loads.push((format!("`{}`", self.pin_name(pin_ref)), current));
+                }
+            }
+            for (motor, feed) in self.circuit.motor_feed.iter().enumerate() {
+                if let Some(MotorFeed::Direct { supply, .. }) = feed
+                    && *supply == n
+                    && let Some(m) = point.motors[motor]
+                {
+                    loads.push((format!("`{}`", plan.parts[motor].name), m.current));
+                }
+            }
+            stack.extend(self.circuit.children[n].iter().copied());
+        }
+        loads.sort_by(|a, b| {
+            b.1.partial_cmp(&a.1)
+                .unwrap_or(std::cmp::Ordering::Equal)
+                .then(a.0.cmp(&b.0))
+        });
+        loads
+    }
+
     /// The net on the far side (seen from the source) of a conducting pin
     /// pair `a`/`b` of a fuse, switch or connector: its current is the
     /// current through that pair. `None` when the pair carries no current
@@ -232,6 +272,35 @@ impl Finding {
         self.labels.push((span, text.into()));
         self
     }
+}
+
+/// How many contributors a message names before "and N more".
+const CONTRIBUTORS_SHOWN: usize = 6;
+
+/// `` `brain.vin` 1.8 A (55 %), `cam.vin` 1.5 A (45 %) ``: what makes up a
+/// total, largest first, each with its share of `total`.
+pub fn show_contributors(loads: &[(String, ElectricCurrent)], total: ElectricCurrent) -> String {
+    let mut parts: Vec<String> = loads
+        .iter()
+        .take(CONTRIBUTORS_SHOWN)
+        .map(|(name, current)| {
+            let percent = if total.get::<ampere>() > 0.0 {
+                100.0 * (*current / total).get::<uom::si::ratio::ratio>()
+            } else {
+                f64::NAN
+            };
+            let share = match percent {
+                p if p.is_nan() => String::new(),
+                p if p < 0.5 => " (<1 %)".to_string(),
+                p => format!(" ({p:.0} %)"),
+            };
+            format!("{name} {}{share}", crate::units::show_current(*current))
+        })
+        .collect();
+    if loads.len() > CONTRIBUTORS_SHOWN {
+        parts.push(format!("and {} more", loads.len() - CONTRIBUTORS_SHOWN));
+    }
+    parts.join(", ")
 }
 
 /// A limit is broken only when exceeded by more than 0.1 % (format reference §6).

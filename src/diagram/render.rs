@@ -523,7 +523,7 @@ fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
     let mut rows: Vec<(Sample, &str)> = vec![
         (
             Sample::Line(WireKind::Rail),
-            "supply rail: heavy solid line; its tag gives name, voltage (empty–full battery), current (typical / peak) and wire",
+            "supply rail: heavy solid line; its tag gives name, voltage window (lowest–highest over battery states), current (typical / peak) and wire",
         ),
         (
             Sample::Line(WireKind::MotorLead),

@@ -151,13 +151,16 @@ pub fn budget_table(file: &str, budget: &Budget) -> String {
             budget.unsolved.join("; ")
         ));
     }
-    out.push_str("Rails (voltage at the source, typical mode):\n");
+    out.push_str(
+        "Rails (voltage at the source, typical mode; the window runs from an empty battery with\n\
+         regulators at the low end of their tolerance to a full battery at the high end):\n",
+    );
     let rails: Vec<Vec<String>> = budget.rails.iter().map(rail_row).collect();
     out.push_str(&table(
         &[
             "rail",
             "source",
-            "empty–full",
+            "window",
             "nominal",
             "typical",
             "peak (mode)",

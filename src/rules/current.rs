@@ -221,7 +221,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
         if let (Some(limit), Some(&first)) = (shared_limit, shared_links.first()) {
             let carries = Carries::Links(shared_links.clone());
             paths.push(RatedPath {
-                subject: format!("the shared USB ports of `{}`", part.name),
+                subject: format!("the shared supply of `{}`'s USB ports", part.name),
                 span: plan.links[first].span,
                 part: part_id,
                 net: None,

@@ -78,6 +78,8 @@ enum Command {
 enum Format {
     Human,
     Json,
+    /// SARIF 2.1.0 for code-scanning services (`check` and `draw` only).
+    Sarif,
 }
 
 const EXIT_FINDINGS: u8 = 1;
@@ -102,6 +104,22 @@ fn fail(message: &str) -> ExitCode {
     ExitCode::from(EXIT_INPUT)
 }
 
+/// Like `fail`, and under a machine-readable format also prints the one
+/// document that format promises, as an input error with no position.
+fn fail_as(args: &PlanArgs, message: &str) -> ExitCode {
+    let file = args.file.display().to_string();
+    match args.format {
+        Format::Json => emit(&report::unplaced_input_error_json(&file, message)),
+        Format::Sarif => emit(&report::unplaced_input_error_sarif(
+            &file,
+            railcheck::rules::RULES,
+            message,
+        )),
+        Format::Human => {}
+    }
+    fail(message)
+}
+
 fn emit(text: &str) {
     let mut stdout = std::io::stdout().lock();
     // A closed pipe (`railcheck check x | head`) is not an error worth a panic.
@@ -121,7 +139,10 @@ fn style() -> HumanStyle {
 fn load(args: &PlanArgs) -> Result<railcheck::Checked, ExitCode> {
     let bytes = match std::fs::read(&args.file) {
         Ok(bytes) => bytes,
-        Err(e) => return Err(fail(&format!("cannot read {}: {e}", args.file.display()))),
+        Err(e) => {
+            let message = format!("cannot read {}: {e}", args.file.display());
+            return Err(fail_as(args, &message));
+        }
     };
     let name = args.file.display().to_string();
     let text = railcheck::decode(&name, bytes).map_err(|failure| report_input(args, &failure))?;
@@ -129,7 +150,7 @@ fn load(args: &PlanArgs) -> Result<railcheck::Checked, ExitCode> {
     if let Some(dir) = &args.parts
         && let Err(message) = add_user_parts(&mut library, dir)
     {
-        return Err(fail(&message));
+        return Err(fail_as(args, &message));
     }
     railcheck::check(&name, &text, &library).map_err(|failure| report_input(args, &failure))
 }
@@ -139,6 +160,9 @@ fn report_input(args: &PlanArgs, failure: &railcheck::InputFailure) -> ExitCode 
     let out = match args.format {
         Format::Json => {
             report::input_errors_json(&failure.sources, failure.plan_source, &failure.errors)
+        }
+        Format::Sarif => {
+            report::input_errors_sarif(&failure.sources, railcheck::rules::RULES, &failure.errors)
         }
         Format::Human => report::render_input_errors(&failure.sources, &failure.errors, style()),
     };
@@ -151,7 +175,18 @@ fn check(args: &PlanArgs, strict: bool, diagram: Option<&Path>) -> ExitCode {
         Ok(c) => c,
         Err(code) => return code,
     };
+    // The diagram is written first, so that a failure to write it is the one
+    // document a machine-readable format prints.
+    if let Some(path) = diagram {
+        let svg = railcheck::diagram::draw(&checked);
+        if let Err(message) = write_output(path, &args.file, svg.as_bytes()) {
+            return fail_as(args, &message);
+        }
+    }
     let out = match args.format {
+        Format::Sarif => {
+            report::findings_sarif(&checked.sources, railcheck::rules::RULES, &checked.findings)
+        }
         Format::Json => report::findings_json(
             &checked.sources,
             checked.plan_source,
@@ -167,12 +202,6 @@ fn check(args: &PlanArgs, strict: bool, diagram: Option<&Path>) -> ExitCode {
         ),
     };
     emit(&out);
-    if let Some(path) = diagram {
-        let svg = railcheck::diagram::draw(&checked);
-        if let Err(message) = write_output(path, &args.file, svg.as_bytes()) {
-            return fail(&message);
-        }
-    }
     let failing = checked
         .findings
         .iter()
@@ -193,7 +222,7 @@ fn draw(args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode 
     if let Some(path) = output
         && let Err(message) = write_output(path, &args.file, svg.as_bytes())
     {
-        return fail(&message);
+        return fail_as(args, &message);
     }
     if let Some(path) = png {
         let mut options = resvg::usvg::Options::default();
@@ -202,7 +231,7 @@ fn draw(args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode 
             .map_err(|e| e.to_string())
             .and_then(|bytes| write_output(path, &args.file, &bytes));
         if let Err(message) = written {
-            return fail(&message);
+            return fail_as(args, &message);
         }
     }
     ExitCode::SUCCESS
@@ -254,6 +283,15 @@ fn is_same_file(a: &Path, b: &Path) -> bool {
 }
 
 fn budget(args: &PlanArgs) -> ExitCode {
+    if args.format == Format::Sarif {
+        use clap::CommandFactory;
+        Cli::command()
+            .error(
+                clap::error::ErrorKind::InvalidValue,
+                "`budget` has no SARIF form (SARIF carries findings): use `--format json` or `human`",
+            )
+            .exit();
+    }
     let checked = match load(args) {
         Ok(c) => c,
         Err(code) => return code,
@@ -262,7 +300,7 @@ fn budget(args: &PlanArgs) -> ExitCode {
     let name = checked.sources.name(checked.plan_source);
     emit(&match args.format {
         Format::Json => report::budget_json(name, &budget),
-        Format::Human => report::budget_table(name, &budget),
+        Format::Human | Format::Sarif => report::budget_table(name, &budget),
     });
     // A plan whose operating point could not be solved has no budget.
     if budget.solved {

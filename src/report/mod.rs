@@ -1,4 +1,5 @@
-//! Output formats: the terminal report (via `miette`) and JSON (contract §8).
+//! Output formats: the terminal report (via `miette`), JSON (contract §8,
+//! in one versioned envelope shared by every document) and SARIF 2.1.0.
 //!
 //! The only module that knows how findings and input errors look on the
 //! outside. It returns strings; the binary decides where they go.
@@ -7,11 +8,13 @@ mod budget;
 mod catalogue;
 mod human;
 mod json;
+mod sarif;
 
 pub use budget::{budget_json, budget_table};
 pub use catalogue::{rule_explanation, rule_list};
 pub use human::{HumanStyle, render_findings, render_input_errors};
-pub use json::{findings_json, input_errors_json};
+pub use json::{FORMAT_VERSION, findings_json, input_errors_json, unplaced_input_error_json};
+pub use sarif::{findings_sarif, input_errors_sarif, unplaced_input_error_sarif};
 
 use crate::rules::{Finding, Severity};
 

@@ -184,9 +184,12 @@ fn check(args: &PlanArgs, strict: bool, diagram: Option<&Path>) -> ExitCode {
         }
     }
     let out = match args.format {
-        Format::Sarif => {
-            report::findings_sarif(&checked.sources, railcheck::rules::RULES, &checked.findings)
-        }
+        Format::Sarif => report::findings_sarif(
+            &checked.sources,
+            railcheck::rules::RULES,
+            &checked.findings,
+            &railcheck::safety::cautions(&checked.plan),
+        ),
         Format::Json => report::findings_json(
             &checked.sources,
             checked.plan_source,

@@ -38,6 +38,14 @@ struct Run<'a> {
     /// Absent when the run did not get as far as checking (input errors).
     #[serde(skip_serializing_if = "Option::is_none")]
     results: Option<Vec<ResultItem<'a>>>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    properties: Option<RunProperties<'a>>,
+}
+
+/// The safety cautions that apply to the plan travel with its findings.
+#[derive(Serialize)]
+struct RunProperties<'a> {
+    cautions: &'a [&'a str],
 }
 
 #[derive(Serialize)]
@@ -241,12 +249,13 @@ fn descriptor(rule: &Rule) -> RuleDescriptor<'_> {
         },
         help: Described {
             text: format!(
-                "{}\n\nExample:\n{}\nFix:\n{}\nReferences: {}",
-                doc.why, doc.example, doc.fix, doc.references
+                "Example (the rule fires):\n{}\nFix:\n{}\nReferences: {}",
+                with_newline(doc.example),
+                with_newline(doc.fix),
+                doc.references
             ),
             markdown: format!(
-                "{}\n\n**Example** (the rule fires):\n\n```yaml\n{}```\n\n**Fix:**\n\n```yaml\n{}```\n\n**References:** {}",
-                doc.why,
+                "**Example** (the rule fires):\n\n```yaml\n{}```\n\n**Fix:**\n\n```yaml\n{}```\n\n**References:** {}",
                 with_newline(doc.example),
                 with_newline(doc.fix),
                 doc.references
@@ -330,8 +339,14 @@ fn to_text(log: &Log) -> String {
 }
 
 /// A SARIF log of the findings of a checked plan, with every rule of
-/// `rules` described.
-pub fn findings_sarif(sources: &Sources, rules: &[Rule], findings: &[Finding]) -> String {
+/// `rules` described and the plan's safety cautions in the run's
+/// properties.
+pub fn findings_sarif(
+    sources: &Sources,
+    rules: &[Rule],
+    findings: &[Finding],
+    cautions: &[&str],
+) -> String {
     to_text(&Log {
         schema: SARIF_SCHEMA,
         version: SARIF_VERSION,
@@ -343,6 +358,7 @@ pub fn findings_sarif(sources: &Sources, rules: &[Rule], findings: &[Finding]) -
             }],
             column_kind: "unicodeCodePoints",
             results: Some(findings.iter().map(|f| result(sources, rules, f)).collect()),
+            properties: Some(RunProperties { cautions }),
         }],
     })
 }
@@ -359,6 +375,7 @@ fn failed_run(rules: &[Rule], notifications: Vec<Notification>) -> String {
             }],
             column_kind: "unicodeCodePoints",
             results: None,
+            properties: None,
         }],
     })
 }

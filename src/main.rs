@@ -142,6 +142,8 @@ enum Command {
 enum Format {
     Human,
     Json,
+    /// SARIF 2.1.0 for code-scanning services (`check` and `draw` only).
+    Sarif,
 }
 
 const EXIT_FINDINGS: u8 = 1;
@@ -197,6 +199,22 @@ fn main() -> ExitCode {
 fn fail(message: &str) -> ExitCode {
     eprintln!("railcheck: {message}");
     ExitCode::from(EXIT_INPUT)
+}
+
+/// Like `fail`, and under a machine-readable format also prints the one
+/// document that format promises, as an input error with no position.
+fn fail_as(args: &PlanArgs, message: &str) -> ExitCode {
+    let file = plan_name(&args.file);
+    match args.format {
+        Format::Json => emit(&report::unplaced_input_error_json(&file, message)),
+        Format::Sarif => emit(&report::unplaced_input_error_sarif(
+            &file,
+            railcheck::rules::RULES,
+            message,
+        )),
+        Format::Human => {}
+    }
+    fail(message)
 }
 
 fn emit(text: &str) {
@@ -312,11 +330,11 @@ fn read_bounded(path: &Path) -> Result<Vec<u8>, String> {
 /// Reads and checks the plan; on input errors prints them (to `stream`) and
 /// returns the exit code to end with.
 fn load(run: &Run, args: &PlanArgs, stream: Stream) -> Result<railcheck::Checked, ExitCode> {
-    let bytes = read_bounded(&args.file).map_err(|message| fail(&message))?;
+    let bytes = read_bounded(&args.file).map_err(|message| fail_as(args, &message))?;
     let name = plan_name(&args.file);
     let text = railcheck::decode(&name, bytes)
         .map_err(|failure| report_input(run, args, &failure, stream))?;
-    let library = library(args.parts.as_deref()).map_err(|message| fail(&message))?;
+    let library = library(args.parts.as_deref()).map_err(|message| fail_as(args, &message))?;
     railcheck::check(&name, &text, &library)
         .map_err(|failure| report_input(run, args, &failure, stream))
 }
@@ -340,6 +358,9 @@ fn report_input(
     let out = match args.format {
         Format::Json => {
             report::input_errors_json(&failure.sources, failure.plan_source, &failure.errors)
+        }
+        Format::Sarif => {
+            report::input_errors_sarif(&failure.sources, railcheck::rules::RULES, &failure.errors)
         }
         Format::Human => {
             report::render_input_errors(&failure.sources, &failure.errors, style(run, stream))
@@ -368,8 +389,23 @@ fn check(
         Ok(c) => c,
         Err(code) => return code,
     };
+    // The diagram is written first, so that a failure to write it is the one
+    // document a machine-readable format prints.
+    if let Some(path) = diagram {
+        let svg = railcheck::diagram::draw(&checked);
+        if let Err(message) = write_output(path, &args.file, svg.as_bytes()) {
+            return fail_as(args, &message);
+        }
+        wrote(path, svg.len());
+    }
     let cautions = railcheck::safety::cautions(&checked.plan);
     let out = match args.format {
+        Format::Sarif => report::findings_sarif(
+            &checked.sources,
+            railcheck::rules::RULES,
+            &checked.findings,
+            &cautions,
+        ),
         Format::Human if quiet => report::quiet_findings(
             checked.sources.name(checked.plan_source),
             &checked.findings,
@@ -390,13 +426,6 @@ fn check(
         ),
     };
     emit(&out);
-    if let Some(path) = diagram {
-        let svg = railcheck::diagram::draw(&checked);
-        if let Err(message) = write_output(path, &args.file, svg.as_bytes()) {
-            return fail(&message);
-        }
-        wrote(path, svg.len());
-    }
     let failing = checked
         .findings
         .iter()
@@ -428,7 +457,7 @@ fn draw(run: &Run, args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -
     if let Some(path) = output
         && let Err(message) = deliver(path, &args.file, svg.as_bytes())
     {
-        return fail(&message);
+        return fail_as(args, &message);
     }
     if let Some(path) = png {
         let mut options = resvg::usvg::Options::default();
@@ -437,7 +466,7 @@ fn draw(run: &Run, args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -
             .map_err(|e| e.to_string())
             .and_then(|bytes| deliver(path, &args.file, &bytes));
         if let Err(message) = written {
-            return fail(&message);
+            return fail_as(args, &message);
         }
     }
     ExitCode::SUCCESS
@@ -543,6 +572,15 @@ fn is_same_file(a: &Path, b: &Path) -> bool {
 }
 
 fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
+    if args.format == Format::Sarif {
+        use clap::CommandFactory;
+        Cli::command()
+            .error(
+                clap::error::ErrorKind::InvalidValue,
+                "`budget` has no SARIF form (SARIF carries findings): use `--format json` or `human`",
+            )
+            .exit();
+    }
     let checked = match load(run, args, Stream::Stdout) {
         Ok(c) => c,
         Err(code) => return code,
@@ -552,7 +590,7 @@ fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
     emit(&match args.format {
         Format::Human if quiet => report::quiet_budget(name, &budget),
         Format::Json => report::budget_json(name, &budget),
-        Format::Human => report::budget_table(name, &budget),
+        Format::Human | Format::Sarif => report::budget_table(name, &budget),
     });
     // A plan whose operating point could not be solved has no budget.
     if budget.solved {

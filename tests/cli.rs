@@ -174,11 +174,21 @@ fn assert_findings_document(document: &Value, file: &str, user_modes: &[&str]) {
         .keys()
         .map(String::as_str)
         .collect();
-    // Format reference §8's three keys, plus the safety cautions railcheck adds.
+    // Format reference §8's three keys, plus the safety cautions and the versioned
+    // envelope (`format_version`, `kind`) railcheck adds.
     assert_eq!(
         top,
-        BTreeSet::from(["file", "summary", "findings", "cautions"])
+        BTreeSet::from([
+            "format_version",
+            "kind",
+            "file",
+            "summary",
+            "findings",
+            "cautions"
+        ])
     );
+    assert_eq!(document["format_version"], 1);
+    assert_eq!(document["kind"], "findings");
     assert_eq!(document["file"], file);
     let cautions = document["cautions"].as_array().expect("`cautions` list");
     assert!(
@@ -341,7 +351,12 @@ nets:
         .keys()
         .map(String::as_str)
         .collect();
-    assert_eq!(top, BTreeSet::from(["file", "error", "errors"]));
+    assert_eq!(
+        top,
+        BTreeSet::from(["format_version", "kind", "file", "error", "errors"])
+    );
+    assert_eq!(document["format_version"], 1);
+    assert_eq!(document["kind"], "input-errors");
     assert_eq!(document["file"], path.display().to_string());
     let errors = document["errors"].as_array().expect("`errors` array");
     assert!(errors.len() >= 2, "both problems reported: {document:#}");

@@ -11,6 +11,8 @@
 //!   (`parts`, `nets`, `modes`, `limits`) adds its entries to the base's, replacing entries
 //!   of the same name; any other top-level key (`name`, `ambient`, `links`, `profile`)
 //!   replaces the base's value whole; an empty value removes the key.
+//! - `# railcheck: not a plan (WHAT)` — YAML that is no plan (a CI step, say): it must
+//!   still be valid YAML, and is not run.
 //!
 //! A ```yaml block without a marker fails the test, so no example escapes.
 //!
@@ -25,6 +27,8 @@ use std::path::{Path, PathBuf};
 enum Expectation {
     Plan { exit: i32 },
     Fragment { base: String, exit: i32 },
+    /// Other YAML shown in the docs: only read as YAML.
+    NotAPlan,
 }
 
 #[derive(Debug)]
@@ -108,6 +112,9 @@ fn marker(first_line: &str) -> Result<Expectation, String> {
             )),
         }
     };
+    if rest.starts_with("not a plan") {
+        return Ok(Expectation::NotAPlan);
+    }
     match rest.strip_prefix("fragment of") {
         Some(fragment) => {
             let (base, exit) = fragment
@@ -207,10 +214,12 @@ fn to_yaml(node: &Node, out: &mut String) {
     }
 }
 
-/// The plan text a snippet stands for, and the exit code it must give.
-fn plan_of(snippet: &Snippet) -> Result<(String, i32), String> {
+/// The plan text a snippet stands for, and the exit code it must give;
+/// `None` for YAML that is no plan (once it reads as YAML).
+fn plan_of(snippet: &Snippet) -> Result<Option<(String, i32)>, String> {
     match snippet.expectation.as_ref().map_err(Clone::clone)? {
-        Expectation::Plan { exit } => Ok((snippet.text.clone(), *exit)),
+        Expectation::NotAPlan => parse(&snippet.place, &snippet.text).map(|_| None),
+        Expectation::Plan { exit } => Ok(Some((snippet.text.clone(), *exit))),
         Expectation::Fragment { base, exit } => {
             let base_path = repository().join(base);
             let base_text = std::fs::read_to_string(&base_path)
@@ -221,7 +230,7 @@ fn plan_of(snippet: &Snippet) -> Result<(String, i32), String> {
             )?;
             let mut text = String::new();
             to_yaml(&merged, &mut text);
-            Ok((text + "\n", *exit))
+            Ok(Some((text + "\n", *exit)))
         }
     }
 }
@@ -257,7 +266,8 @@ fn every_yaml_example_in_the_docs_exits_as_declared() {
             .to_string();
         for snippet in yaml_blocks(&name, &markdown) {
             let (plan, expected) = match plan_of(&snippet) {
-                Ok(found) => found,
+                Ok(Some(found)) => found,
+                Ok(None) => continue,
                 Err(problem) => {
                     problems.push(format!("{}: {problem}", snippet.place));
                     continue;

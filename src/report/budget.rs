@@ -1,15 +1,18 @@
-//! The power budget as a terminal table or JSON.
+//! The power budget as a terminal table or a JSON document (the shared
+//! envelope of `json`, `kind: "budget"`).
 
 use super::HumanStyle;
+use super::json::{Envelope, Kind, Rounded};
 use crate::budget::{BatteryBudget, Budget, RailBudget};
 use crate::units::{show_charge, show_current, show_power, show_share, show_voltage};
 use comfy_table::{ColumnConstraint, ContentArrangement, Table, Width, presets};
-use serde_json::{Value, json};
+use serde::Serialize;
+use std::collections::BTreeMap;
 use uom::si::electric_charge::ampere_hour;
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
 use uom::si::energy::watt_hour;
-use uom::si::f64::{Energy, Ratio};
+use uom::si::f64::{ElectricCurrent, ElectricPotential, Energy, Power, Ratio};
 use uom::si::power::watt;
 use uom::si::ratio::ratio;
 use uom::si::time::hour;
@@ -202,66 +205,147 @@ pub fn budget_table(file: &str, budget: &Budget) -> String {
     out
 }
 
-fn num(v: f64) -> Value {
-    let r = (v * 1e6).round() / 1e6;
-    serde_json::Number::from_f64(r).map_or(Value::Null, Value::Number)
+/// The unit of every number in the budget document, by key: rails and
+/// batteries use the same keys in the same units (`voltage` holds `empty`,
+/// `nominal` and `full`, all in volts; `usable` is a fraction of 1).
+const BUDGET_UNITS: [(&str, &str); 12] = [
+    ("voltage", "V"),
+    ("typical_current", "A"),
+    ("peak_current", "A"),
+    ("rating", "A"),
+    ("power", "W"),
+    ("conversion_loss", "W"),
+    ("capacity", "Ah"),
+    ("energy_wh", "Wh"),
+    ("max_discharge", "A"),
+    ("average_current", "A"),
+    ("usable", "1"),
+    ("runtime_h", "h"),
+];
+
+#[derive(Serialize)]
+struct BudgetBody<'a> {
+    solved: bool,
+    unsolved: &'a [String],
+    rails: Vec<RailItem<'a>>,
+    batteries: Vec<BatteryItem<'a>>,
+    units: BTreeMap<&'static str, &'static str>,
 }
 
+#[derive(Serialize)]
+struct RailVoltage {
+    empty: Rounded,
+    nominal: Rounded,
+    full: Rounded,
+}
+
+#[derive(Serialize)]
+struct RailItem<'a> {
+    nets: &'a [String],
+    source: &'a str,
+    voltage: RailVoltage,
+    typical_current: Rounded,
+    peak_current: Rounded,
+    peak_mode: &'a str,
+    rating: Option<Rounded>,
+    power: Rounded,
+    conversion_loss: Option<Rounded>,
+}
+
+#[derive(Serialize)]
+struct BatteryVoltage {
+    full: Rounded,
+    nominal: Rounded,
+    empty: Rounded,
+}
+
+#[derive(Serialize)]
+struct BatteryItem<'a> {
+    name: &'a str,
+    chemistry: &'static str,
+    pack: &'a str,
+    capacity: Option<Rounded>,
+    voltage: BatteryVoltage,
+    energy_wh: Option<Rounded>,
+    typical_current: Rounded,
+    peak_current: Rounded,
+    max_discharge: Option<Rounded>,
+    average_current: Rounded,
+    usable: Rounded,
+    runtime_h: Option<Rounded>,
+    runtime_method: Option<&'a str>,
+}
+
+fn volts(v: ElectricPotential) -> Rounded {
+    Rounded(v.get::<volt>())
+}
+
+fn amps(i: ElectricCurrent) -> Rounded {
+    Rounded(i.get::<ampere>())
+}
+
+fn watts(p: Power) -> Rounded {
+    Rounded(p.get::<watt>())
+}
+
+fn rail_item(r: &RailBudget) -> RailItem<'_> {
+    RailItem {
+        nets: &r.nets,
+        source: &r.source,
+        voltage: RailVoltage {
+            empty: volts(r.voltage_empty),
+            nominal: volts(r.voltage_nominal),
+            full: volts(r.voltage_full),
+        },
+        typical_current: amps(r.typical_current),
+        peak_current: amps(r.peak_current),
+        peak_mode: &r.peak_mode,
+        rating: r.rating.map(amps),
+        power: watts(r.power),
+        conversion_loss: r.conversion_loss.map(watts),
+    }
+}
+
+fn battery_item(b: &BatteryBudget) -> BatteryItem<'_> {
+    BatteryItem {
+        name: &b.name,
+        chemistry: b.chemistry.name(),
+        pack: &b.pack,
+        capacity: b.capacity.map(|c| Rounded(c.get::<ampere_hour>())),
+        voltage: BatteryVoltage {
+            full: volts(b.voltage_full),
+            nominal: volts(b.voltage_nominal),
+            empty: volts(b.voltage_empty),
+        },
+        energy_wh: b.energy.map(|e| Rounded(e.get::<watt_hour>())),
+        typical_current: amps(b.typical_current),
+        peak_current: amps(b.peak_current),
+        max_discharge: b.max_discharge.map(amps),
+        average_current: amps(b.average_current),
+        usable: Rounded(b.usable.get::<ratio>()),
+        runtime_h: b.runtime.as_ref().map(|r| Rounded(r.time.get::<hour>())),
+        runtime_method: b.runtime.as_ref().map(|r| r.method.as_str()),
+    }
+}
+
+/// The budget document: the shared envelope, then the rails and batteries
+/// (empty when the operating point could not be solved) and the `units` of
+/// their numbers.
 pub fn budget_json(file: &str, budget: &Budget) -> String {
-    let rails: Vec<Value> = budget
-        .rails
-        .iter()
-        .map(|r| {
-            json!({
-                "nets": r.nets,
-                "source": r.source,
-                "voltage": {
-                    "empty": num(r.voltage_empty.get::<volt>()),
-                    "nominal": num(r.voltage_nominal.get::<volt>()),
-                    "full": num(r.voltage_full.get::<volt>()),
-                },
-                "typical_current": num(r.typical_current.get::<ampere>()),
-                "peak_current": num(r.peak_current.get::<ampere>()),
-                "peak_mode": r.peak_mode,
-                "rating": r.rating.map(|i| num(i.get::<ampere>())),
-                "power": num(r.power.get::<watt>()),
-                "conversion_loss": r.conversion_loss.map(|p| num(p.get::<watt>())),
-            })
-        })
-        .collect();
-    let batteries: Vec<Value> = budget
-        .batteries
-        .iter()
-        .map(|b| {
-            json!({
-                "name": b.name,
-                "chemistry": b.chemistry.name(),
-                "pack": b.pack,
-                "capacity": b.capacity.map(|c| num(c.get::<ampere_hour>())),
-                "voltage": {
-                    "full": num(b.voltage_full.get::<volt>()),
-                    "nominal": num(b.voltage_nominal.get::<volt>()),
-                    "empty": num(b.voltage_empty.get::<volt>()),
-                },
-                "energy_wh": b.energy.map(|e| num(e.get::<watt_hour>())),
-                "typical_current": num(b.typical_current.get::<ampere>()),
-                "peak_current": num(b.peak_current.get::<ampere>()),
-                "max_discharge": b.max_discharge.map(|i| num(i.get::<ampere>())),
-                "average_current": num(b.average_current.get::<ampere>()),
-                "usable": num(b.usable.get::<ratio>()),
-                "runtime_h": b.runtime.as_ref().map(|r| num(r.time.get::<hour>())),
-                "runtime_method": b.runtime.as_ref().map(|r| r.method.clone()),
-            })
-        })
-        .collect();
-    let mut text = serde_json::to_string_pretty(&json!({
-        "file": file,
-        "solved": budget.solved,
-        "unsolved": budget.unsolved,
-        "rails": if budget.solved { rails } else { Vec::new() },
-        "batteries": if budget.solved { batteries } else { Vec::new() },
-    }))
-    .unwrap_or_default();
-    text.push('\n');
-    text
+    let (rails, batteries) = if budget.solved {
+        (
+            budget.rails.iter().map(rail_item).collect(),
+            budget.batteries.iter().map(battery_item).collect(),
+        )
+    } else {
+        (Vec::new(), Vec::new())
+    };
+    let body = BudgetBody {
+        solved: budget.solved,
+        unsolved: &budget.unsolved,
+        rails,
+        batteries,
+        units: BUDGET_UNITS.into_iter().collect(),
+    };
+    Envelope::new(Kind::Budget, file, body).to_text()
 }

@@ -1,31 +1,152 @@
-//! The JSON outputs of the format reference §8.
+//! The JSON outputs of the format reference §8, as typed documents.
+//!
+//! Every document shares one envelope: `format_version` (an integer, bumped
+//! only when a key is renamed, dropped or changes meaning), `kind` (which
+//! document follows) and `file` (the plan as given). Within a version keys
+//! are only ever added. `docs/report.schema.json` describes every kind.
+//!
+//! Not for: the terminal report (`human`) or SARIF (`sarif`).
 
 use super::Summary;
 use crate::model::InputError;
 use crate::rules::Finding;
 use crate::syntax::{SourceId, Sources};
-use serde_json::{Map, Value, json};
+use serde::{Serialize, Serializer};
+use std::collections::BTreeMap;
 
-/// Numbers in `values` are rounded so output is reproducible across
-/// platforms and float noise.
-fn rounded(value: f64) -> Value {
-    if !value.is_finite() {
-        return Value::Null;
+/// The version of the JSON output format; it changes only when a key is
+/// renamed, dropped or changes meaning.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// Which document an envelope holds.
+#[derive(Clone, Copy, Debug, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub(super) enum Kind {
+    Findings,
+    InputErrors,
+    Budget,
+}
+
+/// The keys every JSON document starts with.
+#[derive(Serialize)]
+pub(super) struct Envelope<'a, Body: Serialize> {
+    format_version: u32,
+    kind: Kind,
+    file: &'a str,
+    #[serde(flatten)]
+    body: Body,
+}
+
+impl<'a, Body: Serialize> Envelope<'a, Body> {
+    pub(super) fn new(kind: Kind, file: &'a str, body: Body) -> Self {
+        Envelope {
+            format_version: FORMAT_VERSION,
+            kind,
+            file,
+            body,
+        }
     }
-    let magnitude = value.abs();
-    let decimals = if magnitude == 0.0 {
-        0
-    } else {
-        // Six significant figures.
-        (5 - magnitude.log10().floor() as i32).clamp(0, 12)
-    };
-    let factor = 10f64.powi(decimals);
-    let r = (value * factor).round() / factor;
-    serde_json::Number::from_f64(r).map_or(Value::Null, Value::Number)
+
+    /// Pretty-printed, one trailing newline.
+    pub(super) fn to_text(&self) -> String {
+        pretty(self)
+    }
+}
+
+/// A number rounded to six significant figures, so output is reproducible
+/// across platforms and float noise; not a number or infinite is `null`.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub(super) struct Rounded(pub f64);
+
+impl Rounded {
+    fn value(self) -> Option<f64> {
+        let value = self.0;
+        if !value.is_finite() {
+            return None;
+        }
+        let magnitude = value.abs();
+        let decimals = if magnitude == 0.0 {
+            0
+        } else {
+            (5 - magnitude.log10().floor() as i32).clamp(0, 12)
+        };
+        let factor = 10f64.powi(decimals);
+        Some((value * factor).round() / factor)
+    }
+}
+
+impl Serialize for Rounded {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        self.value().serialize(serializer)
+    }
+}
+
+#[derive(Serialize)]
+struct Counts {
+    errors: usize,
+    warnings: usize,
+    notes: usize,
+}
+
+#[derive(Serialize)]
+struct FindingsBody<'a> {
+    summary: Counts,
+    findings: Vec<FindingItem<'a>>,
+    /// Safety cautions that apply to the plan.
+    cautions: &'a [&'a str],
+}
+
+#[derive(Serialize)]
+struct FindingItem<'a> {
+    rule: &'a str,
+    severity: &'static str,
+    message: &'a str,
+    line: usize,
+    column: usize,
+    parts: &'a [String],
+    nets: &'a [String],
+    #[serde(skip_serializing_if = "Option::is_none")]
+    mode: Option<&'a str>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    battery: Option<&'static str>,
+    /// Contract v1: plain numbers in V, A, W, ohm, Ah, m, degC.
+    values: BTreeMap<&'a str, Rounded>,
+    /// The unit of each number in `values`, under the same key.
+    units: BTreeMap<&'a str, &'static str>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    help: Option<&'a str>,
+}
+
+impl<'a> FindingItem<'a> {
+    fn new(sources: &Sources, finding: &'a Finding) -> FindingItem<'a> {
+        let (line, column) = sources.line_column(finding.span);
+        FindingItem {
+            rule: finding.rule,
+            severity: finding.severity.name(),
+            message: &finding.message,
+            line,
+            column,
+            parts: &finding.parts,
+            nets: &finding.nets,
+            mode: finding.mode.as_deref(),
+            battery: finding.battery.map(|b| b.name()),
+            values: finding
+                .values
+                .iter()
+                .map(|(key, value)| (key.as_str(), Rounded(*value)))
+                .collect(),
+            units: finding
+                .units
+                .iter()
+                .map(|(key, unit)| (key.as_str(), unit.symbol()))
+                .collect(),
+            help: finding.help.as_deref(),
+        }
+    }
 }
 
 /// The findings document of format reference §8, plus the safety `cautions` that
-/// apply to the plan (an added key).
+/// apply to the plan and the `units` of each finding's values (added keys).
 pub fn findings_json(
     sources: &Sources,
     plan_source: SourceId,
@@ -33,81 +154,96 @@ pub fn findings_json(
     cautions: &[&str],
 ) -> String {
     let summary = Summary::of(findings);
-    let items: Vec<Value> = findings
-        .iter()
-        .map(|f| {
-            let (line, column) = sources.line_column(f.span);
-            let mut object = Map::new();
-            object.insert("rule".into(), json!(f.rule));
-            object.insert("severity".into(), json!(f.severity.name()));
-            object.insert("message".into(), json!(f.message));
-            object.insert("line".into(), json!(line));
-            object.insert("column".into(), json!(column));
-            object.insert("parts".into(), json!(f.parts));
-            object.insert("nets".into(), json!(f.nets));
-            if let Some(mode) = &f.mode {
-                object.insert("mode".into(), json!(mode));
-            }
-            if let Some(battery) = f.battery {
-                object.insert("battery".into(), json!(battery.name()));
-            }
-            let values: Map<String, Value> = f
-                .values
-                .iter()
-                .map(|(k, v)| (k.clone(), rounded(*v)))
-                .collect();
-            object.insert("values".into(), Value::Object(values));
-            if let Some(help) = &f.help {
-                object.insert("help".into(), json!(help));
-            }
-            Value::Object(object)
-        })
-        .collect();
-    let document = json!({
-        "file": sources.name(plan_source),
-        "summary": {
-            "errors": summary.errors,
-            "warnings": summary.warnings,
-            "notes": summary.notes,
+    let body = FindingsBody {
+        summary: Counts {
+            errors: summary.errors,
+            warnings: summary.warnings,
+            notes: summary.notes,
         },
-        "findings": items,
-        "cautions": cautions,
-    });
-    pretty(&document)
+        findings: findings
+            .iter()
+            .map(|f| FindingItem::new(sources, f))
+            .collect(),
+        cautions,
+    };
+    Envelope::new(Kind::Findings, sources.name(plan_source), body).to_text()
 }
 
+#[derive(Clone, Serialize)]
+struct InputErrorItem<'a> {
+    message: &'a str,
+    /// Absent when the problem has no place in a file (a file that cannot
+    /// be read at all); then `column` is absent too.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    line: Option<usize>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    column: Option<usize>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    hint: Option<&'a str>,
+    /// The file the problem is in, when it is not the plan (a part file).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    source: Option<&'a str>,
+}
+
+#[derive(Serialize)]
+struct InputErrorsBody<'a> {
+    /// The first of `errors`.
+    error: Option<InputErrorItem<'a>>,
+    errors: Vec<InputErrorItem<'a>>,
+}
+
+impl<'a> InputErrorsBody<'a> {
+    fn new(errors: Vec<InputErrorItem<'a>>) -> Self {
+        InputErrorsBody {
+            error: errors.first().cloned(),
+            errors,
+        }
+    }
+}
+
+/// The input-errors document of contract §8 (exit code 2).
 pub fn input_errors_json(
     sources: &Sources,
     plan_source: SourceId,
     errors: &[InputError],
 ) -> String {
-    let items: Vec<Value> = errors
+    let items = errors
         .iter()
         .map(|e| {
             let (line, column) = sources.line_column(e.span);
-            let mut object = Map::new();
-            object.insert("message".into(), json!(e.message));
-            object.insert("line".into(), json!(line));
-            object.insert("column".into(), json!(column));
-            if let Some(hint) = &e.hint {
-                object.insert("hint".into(), json!(hint));
+            InputErrorItem {
+                message: &e.message,
+                line: Some(line),
+                column: Some(column),
+                hint: e.hint.as_deref(),
+                source: (e.span.source != plan_source).then(|| sources.name(e.span.source)),
             }
-            if e.span.source != plan_source {
-                object.insert("source".into(), json!(sources.name(e.span.source)));
-            }
-            Value::Object(object)
         })
         .collect();
-    let document = json!({
-        "file": sources.name(plan_source),
-        "error": items.first().cloned().unwrap_or(Value::Null),
-        "errors": items,
-    });
-    pretty(&document)
+    Envelope::new(
+        Kind::InputErrors,
+        sources.name(plan_source),
+        InputErrorsBody::new(items),
+    )
+    .to_text()
 }
 
-fn pretty(value: &Value) -> String {
-    let mut text = serde_json::to_string_pretty(value).unwrap_or_else(|_| value.to_string());
+/// An input-errors document for a problem with no place in any file, such
+/// as a plan or parts folder that cannot be read: no `line` or `column`.
+pub fn unplaced_input_error_json(file: &str, message: &str) -> String {
+    let item = InputErrorItem {
+        message,
+        line: None,
+        column: None,
+        hint: None,
+        source: None,
+    };
+    Envelope::new(Kind::InputErrors, file, InputErrorsBody::new(vec![item])).to_text()
+}
+
+fn pretty(value: &impl Serialize) -> String {
+    // Serializing these documents cannot fail: every map key is a string.
+    let mut text = serde_json::to_string_pretty(value).unwrap_or_default();
     text.push('\n');
     text
 }
@@ -115,12 +251,32 @@ fn pretty(value: &Value) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use serde_json::json;
+
+    fn rounded(value: f64) -> serde_json::Value {
+        serde_json::to_value(Rounded(value)).expect("a number serializes")
+    }
 
     #[test]
     fn values_keep_six_significant_figures() {
         assert_eq!(rounded(12.599999999), json!(12.6));
         assert_eq!(rounded(0.0794111), json!(0.0794111));
         assert_eq!(rounded(474.0000001), json!(474.0));
-        assert_eq!(rounded(f64::NAN), Value::Null);
+        assert_eq!(rounded(123456.7), json!(123457.0));
+        assert_eq!(rounded(f64::NAN), json!(null));
+        assert_eq!(rounded(f64::INFINITY), json!(null));
+    }
+
+    #[test]
+    fn an_unplaced_error_has_no_position() {
+        let text = unplaced_input_error_json("plan.yaml", "cannot read plan.yaml");
+        let document: serde_json::Value = serde_json::from_str(&text).expect("JSON");
+        assert_eq!(document["format_version"], json!(1));
+        assert_eq!(document["kind"], json!("input-errors"));
+        assert_eq!(
+            document["error"],
+            json!({ "message": "cannot read plan.yaml" })
+        );
+        assert_eq!(document["errors"], json!([document["error"]]));
     }
 }

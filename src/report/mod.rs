@@ -1,4 +1,5 @@
-//! Output formats: the terminal report (via `miette`) and JSON (format reference §8).
+//! Output formats: the terminal report (via `miette`), JSON (format reference §8,
+//! in one versioned envelope shared by every document) and SARIF 2.1.0.
 //!
 //! The only module that knows how findings and input errors look on the
 //! outside. It returns strings; the binary decides where they go.
@@ -10,15 +11,17 @@ mod json;
 mod parts;
 mod quiet;
 mod reference;
+mod sarif;
 mod schema;
 
 pub use budget::{budget_json, budget_table};
 pub use catalogue::{rule_explanation, rule_list};
 pub use human::{HumanStyle, render_findings, render_input_errors};
-pub use json::{findings_json, input_errors_json};
+pub use json::{FORMAT_VERSION, findings_json, input_errors_json, unplaced_input_error_json};
 pub use parts::{UnknownPart, part_sheet, parts_list};
 pub use quiet::{quiet_budget, quiet_findings};
 pub use reference::{describe, fill_generated_blocks, format_tables};
+pub use sarif::{findings_sarif, input_errors_sarif, unplaced_input_error_sarif};
 pub use schema::{plan_schema, plan_schema_text};
 
 use crate::rules::{Finding, Severity};

@@ -17,10 +17,12 @@ mod power;
 mod regulator;
 mod safety;
 mod thermal;
+mod unit;
 mod voltage;
 mod wire;
 
 pub use fuse::minimum_rating;
+pub use unit::{Reading, Unit, declared_unit};
 
 use crate::analysis::{Analysis, BatteryState, ModeId, OperatingPoint};
 use crate::graph::{Circuit, MotorFeed};
@@ -219,6 +221,8 @@ pub struct Finding {
     pub battery: Option<BatteryState>,
     /// Computed numbers, in V, A, W, ohm, Ah, m and degC.
     pub values: BTreeMap<String, f64>,
+    /// The unit of each number in `values`, under the same key.
+    pub units: BTreeMap<String, Unit>,
 }
 
 impl Finding {
@@ -235,6 +239,7 @@ impl Finding {
             mode: None,
             battery: None,
             values: BTreeMap::new(),
+            units: BTreeMap::new(),
         }
     }
 
@@ -263,8 +268,18 @@ impl Finding {
         self
     }
 
-    pub fn value(mut self, key: &str, value: f64) -> Finding {
-        self.values.insert(key.to_string(), value);
+    /// Records a computed number: a typed quantity brings its unit, a bare
+    /// number takes the unit declared for its key.
+    pub fn value(mut self, key: &str, value: impl Into<Reading>) -> Finding {
+        let (number, unit) = match value.into() {
+            Reading::In(number, unit) => (number, Some(unit)),
+            Reading::Bare(number) => (number, declared_unit(self.rule, key)),
+        };
+        self.values.insert(key.to_string(), number);
+        match unit {
+            Some(unit) => self.units.insert(key.to_string(), unit),
+            None => self.units.remove(key),
+        };
         self
     }
 

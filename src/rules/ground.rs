@@ -158,7 +158,7 @@ pub const OFFSET: Rule = Rule {
     severity: Severity::Warning,
     summary: "return current through a shared ground wire shifts a logic receiver's ground by more than half the link's noise margin",
     doc: RuleDoc {
-        what: "For each logic signal, the difference between the driver's ground and the receiver's ground — the drop that return current makes on the ground nets between them — against half the smaller noise margin of the link (NMH = driver VOH − receiver VIH, NML = receiver VIL − driver VOL, from the pins' families at the rails' voltages, or their explicit levels). Checked in every mode, `worst` included, at every battery state: a logic input misreads during a motor's start-up surge as readily as in steady running. Parts on one ground net sit at the same point of the model (the net's far end), so the offset shows between grounds on different ground nets: draw the motor return and the logic return as the separate wires they are, joined where they meet (a connector contact or terminal block at the battery negative).",
+        what: "For each logic signal, the difference between the driver's ground and the receiver's ground — the drop that return current makes on the ground nets between them — against half the smaller noise margin of the link (NMH = driver VOH − receiver VIH, NML = receiver VIL − driver VOL, from the pins' families at the rails' voltages, or their explicit levels; an open-drain driver's VOH is the rail its pull-up goes to). The margins are the static ones, with no offset in them: the offset is weighed against them once. Checked in every mode, `worst` included, at every battery state: a logic input misreads during a motor's start-up surge as readily as in steady running. Parts on one ground net sit at the same point of the model (the net's far end), so the offset shows between grounds on different ground nets: draw the motor return and the logic return as the separate wires they are, joined where they meet (a connector contact or terminal block at the battery negative).",
         why: "A logic level is a voltage against the receiver's own ground. When motor current returns through a wire that also carries the logic ground, the receiver's ground lifts by I × R and eats into the noise margin: encoder counts are lost, a driver input sees a phantom edge, a controller resets.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-2a }\n  term: { use: connector/header-2pin-3a }   # the two returns meet at the battery negative\n  pump: { class: load, pins: { vin: { role: supply-in, draw: 1.5 A }, gnd: { role: ground } } }\n  ctrl: { class: board, pins: { gnd: { role: ground }, out: { role: logic-out, family: ttl5 } } }\n  flow: { class: sensor, pins: { gnd: { role: ground }, in: { role: logic-in, family: ttl5 } } }\nnets:\n  BATT+:     [pack.pos, fuse.a]\n  VBAT:      [fuse.b, pump.vin]\n  BATT-:     [pack.neg, term.a1, term.a2]\n  LOGIC_GND: [term.b1, ctrl.gnd]\n  PUMP_GND:  { pins: [term.b2, pump.gnd, flow.gnd], wire: 26 AWG, length: 1.5 m }   # 1.5 A × 0.20 ohm = 0.30 V\n  SIG:       [ctrl.out, flow.in]   # TTL to TTL: half the 0.4 V margin is 0.2 V",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-2a }\n  term: { use: connector/header-2pin-3a }   # the two returns meet at the battery negative\n  pump: { class: load, pins: { vin: { role: supply-in, draw: 1.5 A }, gnd: { role: ground } } }\n  ctrl: { class: board, pins: { gnd: { role: ground }, out: { role: logic-out, family: ttl5 } } }\n  flow: { class: sensor, pins: { gnd: { role: ground }, in: { role: logic-in, family: ttl5 } } }\nnets:\n  BATT+:     [pack.pos, fuse.a]\n  VBAT:      [fuse.b, pump.vin]\n  BATT-:     [pack.neg, term.a1, term.a2]\n  LOGIC_GND: [term.b1, ctrl.gnd, flow.gnd]   # the sensor's ground on the logic return\n  PUMP_GND:  { pins: [term.b2, pump.gnd], wire: 26 AWG, length: 1.5 m }\n  SIG:       [ctrl.out, flow.in]",
@@ -287,10 +287,10 @@ fn shift_at(
     let mut out = pin_levels(cx, point, driver)?;
     let input = pin_levels(cx, point, receiver)?;
     if cx.plan.parts[driver.part].pins[driver.pin].role == PinRole::OpenDrain {
-        // Its high level is the pull-up's rail, seen from the driver's ground.
-        out.voh = pull_up
-            .and_then(|rail| point.net_potential[rail])
-            .map(|rail| rail - driver_ground);
+        // Its high level is the pull-up's rail as that rail's own source makes
+        // it: the static margin, with no ground offset in it (the offset is
+        // weighed against the margin once, below).
+        out.voh = pull_up.and_then(|rail| rail_level(cx, point, rail));
     }
     let difference = |a: Option<ElectricPotential>, b: Option<ElectricPotential>| Some(a? - b?);
     Some(Shift {
@@ -298,6 +298,17 @@ fn shift_at(
         nmh: difference(out.voh, input.vih),
         nml: difference(input.vil, out.vol),
     })
+}
+
+/// A rail's voltage above the ground of the part that makes it (a battery's
+/// negative is 0 V); above 0 V when no part on the plan feeds it.
+fn rail_level(cx: &Context, point: &OperatingPoint, rail: NetId) -> Option<ElectricPotential> {
+    let potential = point.net_potential[rail]?;
+    let source = cx.circuit.source[cx.circuit.node_of_net[rail]];
+    let ground = source
+        .and_then(|pin| ground_at(cx, point, pin.part))
+        .map_or(ElectricPotential::new::<volt>(0.0), |(_, g)| g);
+    Some(potential - ground)
 }
 
 fn ground_name(cx: &Context, part: PartId) -> String {

@@ -131,6 +131,17 @@ impl PinRole {
         }
     }
 
+    /// Reads a logic level: an input or a bidirectional pin.
+    pub fn is_input(self) -> bool {
+        matches!(self, PinRole::LogicIn | PinRole::LogicIo)
+    }
+
+    /// Can take a signal high by itself (a push-pull output); an open-drain
+    /// pin only pulls low and leaves the high level to its pull-up.
+    pub fn drives_high(self) -> bool {
+        matches!(self, PinRole::LogicOut | PinRole::LogicIo)
+    }
+
     pub fn is_logic(self) -> bool {
         matches!(
             self,

@@ -14,6 +14,9 @@
 //! for signals between parts with separate grounds (`ground/not-shared`
 //! reports those; their levels are not judged here).
 
+mod unpowered;
+pub use unpowered::UNPOWERED_INPUT;
+
 use super::{
     Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label,
     show_voltages_apart,

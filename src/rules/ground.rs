@@ -286,7 +286,10 @@ fn shift_at(
     }
     let mut out = pin_levels(cx, point, driver)?;
     let input = pin_levels(cx, point, receiver)?;
-    if cx.plan.parts[driver.part].pins[driver.pin].role == PinRole::OpenDrain {
+    if cx.plan.parts[driver.part].pins[driver.pin]
+        .role
+        .is_open_drain()
+    {
         // Its high level is the pull-up's rail as that rail's own source makes
         // it: the static margin, with no ground offset in it (the offset is
         // weighed against the margin once, below).
@@ -322,15 +325,15 @@ fn check_offset(cx: &Context, out: &mut Vec<Finding>) {
     let plan = cx.plan;
     let pull_ups = super::logic::pull_up_rails(cx);
     for (net_id, net) in plan.nets.iter().enumerate() {
-        let logic = |roles: &[PinRole]| -> Vec<PinRef> {
+        let logic = |keep: fn(PinRole) -> bool| -> Vec<PinRef> {
             net.pins
                 .iter()
                 .copied()
-                .filter(|p| roles.contains(&plan.parts[p.part].pins[p.pin].role))
+                .filter(|p| keep(plan.parts[p.part].pins[p.pin].role))
                 .collect()
         };
-        let drivers = logic(&[PinRole::LogicOut, PinRole::OpenDrain, PinRole::LogicIo]);
-        let receivers = logic(&[PinRole::LogicIn, PinRole::LogicIo]);
+        let drivers = logic(PinRole::is_output);
+        let receivers = logic(PinRole::is_input);
         // One finding per pair of parts on a net: the worse direction.
         let mut worst: Vec<(PinRef, PinRef, &OperatingPoint, f64)> = Vec::new();
         for &driver in &drivers {

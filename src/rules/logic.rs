@@ -49,7 +49,7 @@ pub const HIGH_MARGIN: Rule = Rule {
     severity: Severity::Error,
     summary: "driver's minimum high level below receiver's high threshold",
     doc: RuleDoc {
-        what: "For every driver–receiver pair on a signal, the driver's lowest high level VOH — its family's VOH at its rail's minimum, or for an open-drain output the lowest rail its pull-ups go to — against the receiver's high threshold VIH at its rail's maximum (point by point when both follow one rail). The finding gives both noise margins, NMH = VOH − VIH and NML = VIL − VOL.",
+        what: "For every driver–receiver pair on a signal, the driver's lowest high level VOH — its family's VOH at its rail's minimum, or for an open-drain pin (`open-drain`, `open-drain-io`) the lowest rail its pull-ups go to — against the receiver's high threshold VIH at its rail's maximum (point by point when both follow one rail). The finding gives both noise margins, NMH = VOH − VIH and NML = VIL − VOL.",
         why: "Below VIH the receiver is not guaranteed to read a high: the link works on the bench and fails with a warm part, a low battery or a little noise.",
         example: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-1a }\n  buck:  { use: regulator/buck-5v-3a }\n  mcu:   { use: board/mcu-3v3 }   # tx VOH = 3.3 V × 0.97 − 0.2 V = 3.0 V at its lowest\n  valve: { class: load, pins: { vcc: { role: supply-in, draw: 10 mA }, gnd: { role: ground }, open: { role: logic-in, ref: vcc, family: cmos5 } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin, valve.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, valve.gnd]\n  VALVE: [mcu.tx, valve.open]   # greenhouse valve driver, HC-type input: VIH = 0.7 × 5.1 V = 3.57 V",
         fix: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-1a }\n  buck:  { use: regulator/buck-5v-3a }\n  mcu:   { use: board/mcu-3v3 }   # tx VOH = 3.3 V × 0.97 − 0.2 V = 3.0 V at its lowest\n  valve: { class: load, pins: { vcc: { role: supply-in, draw: 10 mA }, gnd: { role: ground }, open: { role: logic-in, ref: vcc, family: ttl5 } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin, valve.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, valve.gnd]\n  VALVE: [mcu.tx, valve.open]   # its HCT-type (TTL-level) version: VIH = 2.0 V",
@@ -79,7 +79,7 @@ pub const CONTENTION: Rule = Rule {
     severity: Severity::Error,
     summary: "two push-pull outputs on one net",
     doc: RuleDoc {
-        what: "Whether two or more push-pull outputs (`logic-out`) sit on one net (nets joined by connector contacts count as one). Bidirectional `logic-io` pins are not counted: their direction is set by firmware, and a shared bus of them (I2C data) is normal.",
+        what: "Whether two or more push-pull outputs (`logic-out`) sit on one net (nets joined by connector contacts count as one). Bidirectional `logic-io` pins are not counted: their direction is set by firmware. Open-drain pins (`open-drain`, `open-drain-io`) only pull low and never contend: a shared I2C bus of `open-drain-io` pins is normal.",
         why: "When two push-pull outputs drive opposite levels, each shorts the other's rail to ground through its output transistors: tens of milliamperes that heat and eventually kill both pins. A serial link wired TX to TX is the common way to get there.",
         example: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-2a }\n  buck:  { use: regulator/buck-5v-5a }\n  brain: { use: board/sbc-5v }\n  mcu:   { use: board/mcu-3v3 }\nnets:\n  BATT+:  [pack.pos, fuse.a]\n  VBAT:   [fuse.b, buck.vin]\n  5V:     [buck.vout, brain.vin, mcu.vin]\n  GND:    [pack.neg, buck.gnd, brain.gnd, mcu.gnd]\n  UART_A: [brain.tx, mcu.tx]   # transmit wired to transmit\n  UART_B: [brain.rx, mcu.rx]",
         fix: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-2a }\n  buck:  { use: regulator/buck-5v-5a }\n  brain: { use: board/sbc-5v }\n  mcu:   { use: board/mcu-3v3 }\nnets:\n  BATT+:  [pack.pos, fuse.a]\n  VBAT:   [fuse.b, buck.vin]\n  5V:     [buck.vout, brain.vin, mcu.vin]\n  GND:    [pack.neg, buck.gnd, brain.gnd, mcu.gnd]\n  UART_A: [brain.tx, mcu.rx]   # each transmit pin to the other's receive pin\n  UART_B: [mcu.tx, brain.rx]",
@@ -94,7 +94,7 @@ pub const UNDRIVEN: Rule = Rule {
     severity: Severity::Warning,
     summary: "an input on a net with no output and no pull resistor",
     doc: RuleDoc {
-        what: "Whether the inputs on a signal have something that sets their level: an output (`logic-out`, `logic-io`, `open-drain`), a pull-up or pull-down resistor, or a rail or ground the net is tied to. Series resistors are followed to the nets on their far side. A signal whose only outputs are open-drain needs a pull-up: without one nothing takes it high.",
+        what: "Whether the inputs on a signal have something that sets their level: an output (`logic-out`, `logic-io`, `open-drain`), a pull-up or pull-down resistor, or a rail or ground the net is tied to. Series resistors are followed to the nets on their far side. A signal whose only outputs are open-drain needs a pull-up: without one nothing takes it high. An `open-drain-io` pin is an input too, so a bus of them with no pull-up (I2C data and clock drawn without their resistors) is reported.",
         why: "A CMOS input left floating picks up noise, reads random levels and can sit half-way, drawing current through both input transistors. A serial link wired RX to RX leaves both inputs floating.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  cart: { use: board/mcu-8bit-5v }\n  enc:  { use: sensor/encoder-optical-oc }   # warehouse cart wheel: open-collector, only pulls low\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, cart.vin]\n  5V:    [cart.5v, enc.vcc]\n  GND:   [pack.neg, cart.gnd, enc.gnd]\n  ENC_A: [enc.a, cart.enc1a]   # nothing takes it high",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  cart: { use: board/mcu-8bit-5v }\n  enc:  { use: sensor/encoder-optical-oc }   # warehouse cart wheel: open-collector, only pulls low\n  pull: { use: resistor/pullup-10k }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, cart.vin]\n  5V:    [cart.5v, enc.vcc, pull.a]\n  GND:   [pack.neg, cart.gnd, enc.gnd]\n  ENC_A: [enc.a, cart.enc1a, pull.b]   # the pull-up takes it high",
@@ -581,7 +581,7 @@ fn driver_side<'p>(
     receiver: PartId,
 ) -> Option<DriverSide<'p>> {
     match source {
-        Source::Pin(pin) if role_of(cx, pin) == PinRole::OpenDrain => {
+        Source::Pin(pin) if role_of(cx, pin).is_open_drain() => {
             let lowest = pull_ups
                 .iter()
                 .filter_map(|&(resistor, net)| Some((resistor, net_rail(cx, net, receiver)?)))
@@ -640,7 +640,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
             highest,
         };
     };
-    if role_of(cx, pin) == PinRole::OpenDrain {
+    if role_of(cx, pin).is_open_drain() {
         // Every family's VOL is a fixed voltage (format reference §3), so the
         // nominal VDD serves when the pin's own rail is not at hand.
         let vol = written_vol.or_else(|| {
@@ -849,22 +849,17 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
         if !shares_ground(cx, &signal.pins) {
             continue;
         }
-        let receivers = signal
-            .pins
-            .iter()
-            .filter(|&&p| matches!(role_of(cx, p), PinRole::LogicIn | PinRole::LogicIo));
+        let receivers = signal.pins.iter().filter(|&&p| role_of(cx, p).is_input());
         for &receiver in receivers {
             let (Some(net), Some(receiving)) = (net_of(cx, receiver), receiver_side(cx, receiver))
             else {
                 continue;
             };
-            let pins = signal.pins.iter().copied().filter(|&p| {
-                p != receiver
-                    && matches!(
-                        role_of(cx, p),
-                        PinRole::LogicOut | PinRole::LogicIo | PinRole::OpenDrain
-                    )
-            });
+            let pins = signal
+                .pins
+                .iter()
+                .copied()
+                .filter(|&p| p != receiver && role_of(cx, p).is_output());
             let sources: Vec<Source> = pins
                 .map(Source::Pin)
                 .chain(
@@ -888,9 +883,7 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
             continue;
         }
         for &receiver in &net.pins {
-            if !matches!(role_of(cx, receiver), PinRole::LogicIn | PinRole::LogicIo)
-                || !shares_ground(cx, &[receiver])
-            {
+            if !role_of(cx, receiver).is_input() || !shares_ground(cx, &[receiver]) {
                 continue;
             }
             let (Some(driving), Some(receiving)) = (
@@ -1147,7 +1140,7 @@ fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
             .pins
             .iter()
             .copied()
-            .filter(|&p| role_of(cx, p) == PinRole::LogicIn)
+            .filter(|&p| matches!(role_of(cx, p), PinRole::LogicIn | PinRole::OpenDrainIo))
             .collect();
         let Some(&first) = inputs.first() else {
             continue;
@@ -1164,7 +1157,7 @@ fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
             .pins
             .iter()
             .copied()
-            .filter(|&p| role_of(cx, p) == PinRole::OpenDrain)
+            .filter(|&p| role_of(cx, p).is_open_drain())
             .collect();
         let pulled = !signal.pull_ups.is_empty() || !signal.pull_downs.is_empty();
         let names: Vec<String> = inputs.iter().map(|&p| cx.pin_name(p)).collect();
@@ -1190,19 +1183,31 @@ fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
                 quoted(&nets),
             )
         } else if signal.pull_ups.is_empty() {
-            let drivers: Vec<String> = open_drain.iter().map(|&p| cx.pin_name(p)).collect();
-            format!(
-                "{} on {} {} driven only by open-drain {} and nothing pulls the line high: {} whenever the output lets go",
-                quoted(&names),
-                quoted(&nets),
-                if inputs.len() == 1 { "is" } else { "are" },
-                quoted(&drivers),
-                if inputs.len() == 1 {
-                    "it floats"
-                } else {
-                    "they float"
-                },
-            )
+            let drivers: Vec<String> = open_drain
+                .iter()
+                .filter(|p| !inputs.contains(p))
+                .map(|&p| cx.pin_name(p))
+                .collect();
+            if drivers.is_empty() {
+                format!(
+                    "open-drain bus {} ({}) has no pull-up: every pin on it only pulls low, so nothing takes the line high and it floats whenever they let go",
+                    quoted(&nets),
+                    quoted(&names),
+                )
+            } else {
+                format!(
+                    "{} on {} {} driven only by open-drain {} and nothing pulls the line high: {} whenever the output lets go",
+                    quoted(&names),
+                    quoted(&nets),
+                    if inputs.len() == 1 { "is" } else { "are" },
+                    quoted(&drivers),
+                    if inputs.len() == 1 {
+                        "it floats"
+                    } else {
+                        "they float"
+                    },
+                )
+            }
         } else {
             continue;
         };
@@ -1214,6 +1219,7 @@ fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
             },
         );
         for &p in inputs.iter().chain(&open_drain) {
+            // `part` skips names already listed.
             finding = finding.part(cx.part_name(p.part));
         }
         for net in &nets {

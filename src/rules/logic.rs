@@ -34,7 +34,7 @@ pub const OVERVOLTAGE: Rule = Rule {
     severity: Severity::Error,
     summary: "a driver's high level exceeds a receiver's absolute maximum input",
     doc: RuleDoc {
-        what: "For every input on a signal, the highest level anything on that signal can put on it — a push-pull output at its rail's maximum, a pull-up resistor's rail at its maximum, or the rail the input is tied to — against the input's ceiling at its own rail's minimum (when both follow one rail they are compared at each operating point instead, since a rail is never at its top and its bottom at once). The ceiling is the pin's `max` when written; else VDD + 0.3 V; `tolerant: 5 V` raises it to 5.5 V (a V-tolerant pin is taken to withstand V + 10 %).",
+        what: "For every input on a signal, the highest level anything on that signal can put on it — a push-pull output at its rail's maximum, a pull-up resistor's rail at its maximum, or the rail the input is tied to — against the input's ceiling at its own rail's minimum (when both follow one rail they are compared at each operating point instead, since a rail is never at its top and its bottom at once). The ceiling is the pin's `max` when written; else VDD + 0.3 V; `tolerant: 5 V` raises it to 5.5 V (a V-tolerant pin is taken to withstand V + 10 %). One finding per signal, written from its worst pair and naming every driver and input that fails.",
         why: "An input driven above its supply conducts through its protection diode into its own rail: the part is back-powered through the signal, latches up or is slowly destroyed. A 5 V output straight into a 3.3 V controller pin is the classic case.",
         example: "railcheck: 1\nparts:\n  pack:   { use: battery/nimh-8cell }\n  fuse:   { use: fuse/blade-1a }\n  buck:   { use: regulator/buck-5v-3a }\n  ranger: { use: sensor/rangefinder-5v }   # echo swings to its rail: up to 5 V + 2 % = 5.1 V\n  mcu:    { use: board/mcu-3v3 }           # rx ceiling: 3.3 V × 0.97 + 0.3 V = 3.5 V\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, ranger.vcc, mcu.vin]\n  GND:   [pack.neg, buck.gnd, ranger.gnd, mcu.gnd]\n  ECHO:  [ranger.echo, mcu.rx]",
         fix: "railcheck: 1\nparts:\n  pack:    { use: battery/nimh-8cell }\n  fuse:    { use: fuse/blade-1a }\n  buck:    { use: regulator/buck-5v-3a }\n  ranger:  { use: sensor/rangefinder-5v }\n  mcu:     { use: board/mcu-3v3 }\n  shifter: { use: shifter/bidir-4ch }   # 5 V side b1, 3.3 V side a1\nnets:\n  BATT+:    [pack.pos, fuse.a]\n  VBAT:     [fuse.b, buck.vin]\n  5V:       [buck.vout, ranger.vcc, mcu.vin, shifter.hv]\n  3V3:      [mcu.3v3, shifter.lv]\n  GND:      [pack.neg, buck.gnd, ranger.gnd, mcu.gnd, shifter.gnd]\n  ECHO:     [ranger.echo, shifter.b1]\n  ECHO_3V3: [shifter.a1, mcu.rx]",
@@ -49,7 +49,7 @@ pub const HIGH_MARGIN: Rule = Rule {
     severity: Severity::Error,
     summary: "driver's minimum high level below receiver's high threshold",
     doc: RuleDoc {
-        what: "For every driver–receiver pair on a signal, the driver's lowest high level VOH — its family's VOH at its rail's minimum, or for an open-drain pin (`open-drain`, `open-drain-io`) the lowest rail its pull-ups go to — against the receiver's high threshold VIH at its rail's maximum (point by point when both follow one rail). The finding gives both noise margins, NMH = VOH − VIH and NML = VIL − VOL.",
+        what: "For every driver–receiver pair on a signal, the driver's lowest high level VOH — its family's VOH at its rail's minimum, or for an open-drain pin (`open-drain`, `open-drain-io`) the lowest rail its pull-ups go to — against the receiver's high threshold VIH at its rail's maximum (point by point when both follow one rail). The finding gives both noise margins, NMH = VOH − VIH and NML = VIL − VOL; one finding per signal, written from its worst pair and naming every pair that fails.",
         why: "Below VIH the receiver is not guaranteed to read a high: the link works on the bench and fails with a warm part, a low battery or a little noise.",
         example: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-1a }\n  buck:  { use: regulator/buck-5v-3a }\n  mcu:   { use: board/mcu-3v3 }   # tx VOH = 3.3 V × 0.97 − 0.2 V = 3.0 V at its lowest\n  valve: { class: load, pins: { vcc: { role: supply-in, draw: 10 mA }, gnd: { role: ground }, open: { role: logic-in, ref: vcc, family: cmos5 } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin, valve.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, valve.gnd]\n  VALVE: [mcu.tx, valve.open]   # greenhouse valve driver, HC-type input: VIH = 0.7 × 5.1 V = 3.57 V",
         fix: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-1a }\n  buck:  { use: regulator/buck-5v-3a }\n  mcu:   { use: board/mcu-3v3 }   # tx VOH = 3.3 V × 0.97 − 0.2 V = 3.0 V at its lowest\n  valve: { class: load, pins: { vcc: { role: supply-in, draw: 10 mA }, gnd: { role: ground }, open: { role: logic-in, ref: vcc, family: ttl5 } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin, valve.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, valve.gnd]\n  VALVE: [mcu.tx, valve.open]   # its HCT-type (TTL-level) version: VIH = 2.0 V",
@@ -64,7 +64,7 @@ pub const LOW_MARGIN: Rule = Rule {
     severity: Severity::Error,
     summary: "driver's maximum low level above receiver's low threshold",
     doc: RuleDoc {
-        what: "For every driver–receiver pair on a signal, the driver's highest low level VOL against the receiver's low threshold VIL, taken at the receiver's rail minimum where the family scales with it. The finding gives both noise margins.",
+        what: "For every driver–receiver pair on a signal, the driver's highest low level VOL against the receiver's low threshold VIL, taken at the receiver's rail minimum where the family scales with it. The finding gives both noise margins; one finding per signal, written from its worst pair and naming every pair that fails.",
         why: "Above VIL the receiver is not guaranteed to read a low: an open-collector sensor that only pulls down to 0.4 V cannot be read by an input that needs 0.3 V.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  buck: { use: regulator/buck-5v-3a }\n  mcu:  { use: board/mcu-3v3 }   # rx: lvcmos33, VIL = 0.8 V\n  beam: { class: sensor, pins: { vcc: { role: supply-in, draw: 5 mA }, gnd: { role: ground }, out: { role: logic-out, ref: vcc, family: lvcmos33, vol: 1.0 V } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin]\n  3V3:   [mcu.3v3, beam.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, beam.gnd]\n  DOOR:  [beam.out, mcu.rx]   # warehouse door beam that pulls down only to 1.0 V",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  buck: { use: regulator/buck-5v-3a }\n  mcu:  { use: board/mcu-3v3 }   # rx: lvcmos33, VIL = 0.8 V\n  beam: { class: sensor, pins: { vcc: { role: supply-in, draw: 5 mA }, gnd: { role: ground }, out: { role: logic-out, ref: vcc, family: lvcmos33, vol: 0.4 V } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin]\n  3V3:   [mcu.3v3, beam.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, beam.gnd]\n  DOOR:  [beam.out, mcu.rx]   # a beam sensor that pulls down to 0.4 V",
@@ -842,13 +842,16 @@ fn shares_ground(cx: &Context, pins: &[PinRef]) -> bool {
     cx.circuit.grounded_groups[first] && groups.all(|g| g == Some(first))
 }
 
-/// Every driver–receiver pair, each with its comparisons.
-fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
-    let mut found = Vec::new();
+/// Every driver–receiver pair, each with its comparisons, grouped by signal
+/// (and, for inputs wired straight onto a rail, by that rail's net): a rule
+/// reports each group once, however many pairs in it fail.
+fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Vec<Link<'p>>>> {
+    let mut groups = Vec::new();
     for signal in signals(cx) {
         if !shares_ground(cx, &signal.pins) {
             continue;
         }
+        let mut found = Vec::new();
         let receivers = signal.pins.iter().filter(|&&p| role_of(cx, p).is_input());
         for &receiver in receivers {
             let (Some(net), Some(receiving)) = (net_of(cx, receiver), receiver_side(cx, receiver))
@@ -875,6 +878,7 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
                 }
             }
         }
+        groups.push(found);
     }
     // Inputs wired straight onto a rail.
     for (net_id, net) in cx.plan.nets.iter().enumerate() {
@@ -882,6 +886,7 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
         if !is_power_node(cx, node) || cx.circuit.nodes[node].is_ground() {
             continue;
         }
+        let mut found = Vec::new();
         for &receiver in &net.pins {
             if !role_of(cx, receiver).is_input() || !shares_ground(cx, &[receiver]) {
                 continue;
@@ -894,8 +899,9 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
             };
             found.push(compare(cx, &driving, &receiving, net_id));
         }
+        groups.push(found);
     }
-    found
+    groups
 }
 
 /// The comparison of a pair where `badness` is greatest, if it is anywhere
@@ -913,6 +919,106 @@ fn worst<'a, 'p>(
         }
     }
     found.map(|(link, _)| link)
+}
+
+/// The failing pairs of one group: each pair's worst comparison, and the
+/// worst of them all, which the finding is written from.
+struct Failures<'a, 'p> {
+    worst: &'a Link<'p>,
+    pairs: Vec<&'a Link<'p>>,
+}
+
+fn failures<'a, 'p>(
+    group: &'a [Vec<Link<'p>>],
+    badness: impl Fn(&Link) -> Option<f64>,
+) -> Option<Failures<'a, 'p>> {
+    let pairs: Vec<&Link> = group
+        .iter()
+        .filter_map(|pair| worst(pair, &badness))
+        .collect();
+    let mut found: Option<(&Link, f64)> = None;
+    for &link in &pairs {
+        if let Some(b) = badness(link)
+            && found.is_none_or(|(_, f)| b > f + 1e-12)
+        {
+            found = Some((link, b));
+        }
+    }
+    found.map(|(worst, _)| Failures { worst, pairs })
+}
+
+impl<'p> Failures<'_, 'p> {
+    /// Every failing driver and receiver, each named once, when more than
+    /// the worst pair fails: one finding speaks for the whole signal.
+    fn in_all_text(&self, cx: &Context) -> String {
+        if self.pairs.len() < 2 {
+            return String::new();
+        }
+        let mut drivers: Vec<String> = Vec::new();
+        let mut receivers: Vec<String> = Vec::new();
+        for link in &self.pairs {
+            let driver = link.driver_name(cx);
+            if !drivers.contains(&driver) {
+                drivers.push(driver);
+            }
+            let receiver = format!("`{}`", cx.pin_name(link.sense.pin));
+            if !receivers.contains(&receiver) {
+                receivers.push(receiver);
+            }
+        }
+        format!(
+            "; {} pairs on this signal fail in all, from {} into {}",
+            self.pairs.len(),
+            joined(&drivers),
+            joined(&receivers),
+        )
+    }
+
+    /// The worst pair's finding, with every other failing pin labelled.
+    fn finding(
+        &self,
+        cx: &Context,
+        rule: &Rule,
+        message: String,
+        point: Option<&OperatingPoint>,
+    ) -> Finding {
+        let mut finding = self.worst.finding(cx, rule, message, point);
+        let mut labelled = vec![self.worst.sense.pin];
+        if let Source::Pin(pin) = self.worst.drive.source {
+            labelled.push(pin);
+        }
+        for link in &self.pairs {
+            let receiver = link.sense.pin;
+            if !labelled.contains(&receiver) {
+                labelled.push(receiver);
+                finding = finding
+                    .label(cx.pin_span(receiver), "also fails")
+                    .part(cx.part_name(receiver.part));
+            }
+            match link.drive.source {
+                Source::Pin(pin) if !labelled.contains(&pin) => {
+                    labelled.push(pin);
+                    finding = finding
+                        .label(cx.pin_span(pin), "driver")
+                        .part(cx.part_name(pin.part));
+                }
+                Source::PullUp { resistor, rail } => {
+                    finding = finding.part(cx.part_name(resistor)).net(cx.net_name(rail));
+                }
+                _ => {}
+            }
+        }
+        finding
+    }
+}
+
+/// Names already quoted, joined as prose: `a`, `b` and `c`.
+pub(super) fn joined(names: &[String]) -> String {
+    match names {
+        [] => String::new(),
+        [one] => one.clone(),
+        [init @ .., last] => format!("{} and {last}", init.join(", ")),
+    }
 }
 
 impl Link<'_> {
@@ -994,8 +1100,8 @@ fn at_text(cx: &Context, point: Option<&OperatingPoint>) -> String {
 }
 
 fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
-    for pair in pairs(cx) {
-        let Some(link) = worst(&pair, |l| {
+    for group in pairs(cx) {
+        let Some(failed) = failures(&group, |l| {
             let (high, ceiling) = (l.drive.highest.as_ref()?, l.sense.ceiling.as_ref()?);
             l.verdict
                 .over_ceiling
@@ -1003,6 +1109,7 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
+        let link = failed.worst;
         let (Some(high), Some(ceiling)) = (&link.drive.highest, &link.sense.ceiling) else {
             continue;
         };
@@ -1029,27 +1136,29 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
         if !margins.is_empty() {
             message = format!("{message}; {margins}");
         }
+        message.push_str(&failed.in_all_text(cx));
         out.push(
-            link.finding(cx, &OVERVOLTAGE, message, point)
+            failed.finding(cx, &OVERVOLTAGE, message, point)
                 .help("put a level shifter between them, power the driver (or pull-up) from the receiver's rail, or use an input rated for the higher level (`tolerant: 5 V`)"),
         );
     }
 }
 
 fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
-    for pair in pairs(cx) {
-        let Some(link) = worst(&pair, |l| {
+    for group in pairs(cx) {
+        let Some(failed) = failures(&group, |l| {
             l.verdict.high_fails.then_some(-v(l.verdict.high_margin?))
         }) else {
             continue;
         };
+        let link = failed.worst;
         let (Some(voh), Some(vih)) = (&link.drive.voh, &link.sense.vih) else {
             continue;
         };
         let point = voh.point.or(vih.point);
         let (shown, limit) = show_voltages_apart(voh.value, vih.value);
         let message = format!(
-            "{} drives `{}` high to as little as {shown} ({}){}, below the {limit} `{}` needs to read a high ({}): {}",
+            "{} drives `{}` high to as little as {shown} ({}){}, below the {limit} `{}` needs to read a high ({}): {}{}",
             link.driver_name(cx),
             cx.net_name(link.net),
             voh.basis,
@@ -1057,28 +1166,30 @@ fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
             cx.pin_name(link.sense.pin),
             vih.basis,
             link.margins_text(),
+            failed.in_all_text(cx),
         );
         out.push(
-            link.finding(cx, &HIGH_MARGIN, message, point)
+            failed.finding(cx, &HIGH_MARGIN, message, point)
                 .help("use a level shifter, a receiver with TTL-level inputs (VIH 2.0 V), or a driver on the receiver's rail; for an open-drain output, pull up to the receiver's rail"),
         );
     }
 }
 
 fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
-    for pair in pairs(cx) {
-        let Some(link) = worst(&pair, |l| {
+    for group in pairs(cx) {
+        let Some(failed) = failures(&group, |l| {
             l.verdict.low_fails.then_some(-v(l.verdict.low_margin?))
         }) else {
             continue;
         };
+        let link = failed.worst;
         let (Some(vol), Some(vil)) = (&link.drive.vol, &link.sense.vil) else {
             continue;
         };
         let point = vil.point.or(vol.point);
         let (shown, limit) = show_voltages_apart(vol.value, vil.value);
         let message = format!(
-            "{} drives `{}` low to as much as {shown} ({}), above the {limit} `{}` still reads as a low ({}){}: {}",
+            "{} drives `{}` low to as much as {shown} ({}), above the {limit} `{}` still reads as a low ({}){}: {}{}",
             link.driver_name(cx),
             cx.net_name(link.net),
             vol.basis,
@@ -1086,9 +1197,10 @@ fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
             vil.basis,
             at_text(cx, point),
             link.margins_text(),
+            failed.in_all_text(cx),
         );
         out.push(
-            link.finding(cx, &LOW_MARGIN, message, point)
+            failed.finding(cx, &LOW_MARGIN, message, point)
                 .help("use a driver that pulls lower, a receiver with a higher low threshold, or a level shifter"),
         );
     }

@@ -77,15 +77,6 @@ struct Back<'p> {
     worst: Option<(Level<'p>, PinRef, ElectricPotential, &'p OperatingPoint)>,
 }
 
-/// Names already quoted, joined as prose: `a`, `b` and `c`.
-fn listed(names: &[String]) -> String {
-    match names {
-        [] => String::new(),
-        [one] => one.clone(),
-        [init @ .., last] => format!("{} and {last}", init.join(", ")),
-    }
-}
-
 fn source_name(cx: &Context, source: Source) -> String {
     match source {
         Source::Pin(pin) => format!("`{}`", cx.pin_name(pin)),
@@ -241,7 +232,7 @@ fn finding(cx: &Context, back: &Back) -> Option<Finding> {
         if inputs.len() == 1 { "input" } else { "inputs" },
         quoted(&inputs),
         if inputs.len() == 1 { "is" } else { "are" },
-        listed(&drivers),
+        super::joined(&drivers),
         show_voltage(level.value),
         level.basis,
         mode_label(cx.plan, point.mode, point.battery),

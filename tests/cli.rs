@@ -44,6 +44,7 @@ const CONTRACT_RULES: &[(&str, &[&str])] = &[
     ("logic/low-margin", &["error"]),
     ("logic/contention", &["error"]),
     ("logic/undriven", &["warning"]),
+    ("logic/unpowered-input", &["error"]),
     ("fuse/missing", &["error"]),
     ("fuse/undersized", &["warning"]),
     ("fuse/oversized", &["error"]),

@@ -47,6 +47,7 @@ const CONTRACT_RULES: &[(&str, Severity)] = &[
     ("logic/low-margin", Severity::Error),
     ("logic/contention", Severity::Error),
     ("logic/undriven", Severity::Warning),
+    ("logic/unpowered-input", Severity::Error),
     ("fuse/missing", Severity::Error),
     ("fuse/undersized", Severity::Warning),
     ("fuse/oversized", Severity::Error),

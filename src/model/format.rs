@@ -427,7 +427,7 @@ pub struct RoleSpec {
     pub meaning: &'static str,
 }
 
-const ROLE_NAMES: [&str; 10] = [
+const ROLE_NAMES: [&str; 11] = [
     "supply-out",
     "supply-in",
     "ground",
@@ -438,6 +438,7 @@ const ROLE_NAMES: [&str; 10] = [
     "open-drain",
     "logic-in",
     "logic-io",
+    "open-drain-io",
 ];
 
 const FAMILY_NAMES: [&str; 6] = [
@@ -506,6 +507,12 @@ pub const ROLES: &[RoleSpec] = &[
             "ref", "family", "voh", "vol", "vih", "vil", "max", "tolerant",
         ],
         meaning: "a bidirectional logic pin: an output and an input",
+    },
+    RoleSpec {
+        role: PinRole::OpenDrainIo,
+        name: "open-drain-io",
+        keys: &["ref", "family", "vol", "vih", "vil", "max", "tolerant"],
+        meaning: "a pin of an open-drain bus (I2C data and clock): an input that only ever pulls the line low; the pull-up resistor's rail sets the high level",
     },
 ];
 

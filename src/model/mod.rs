@@ -103,12 +103,15 @@ pub enum PinRole {
     OpenDrain,
     LogicIn,
     LogicIo,
+    /// A bidirectional pin of an open-drain bus (I2C data and clock): it
+    /// reads the line and only ever pulls it low.
+    OpenDrainIo,
     /// A resistor terminal: conducts through the resistance, never a rail.
     Passive,
 }
 
 impl PinRole {
-    pub const WRITTEN: [(&'static str, PinRole); 10] = [
+    pub const WRITTEN: [(&'static str, PinRole); 11] = [
         ("supply-out", PinRole::SupplyOut),
         ("supply-in", PinRole::SupplyIn),
         ("ground", PinRole::Ground),
@@ -119,6 +122,7 @@ impl PinRole {
         ("open-drain", PinRole::OpenDrain),
         ("logic-in", PinRole::LogicIn),
         ("logic-io", PinRole::LogicIo),
+        ("open-drain-io", PinRole::OpenDrainIo),
     ];
 
     pub fn name(self) -> &'static str {
@@ -131,10 +135,38 @@ impl PinRole {
         }
     }
 
+    /// Reads a logic level: an input or a bidirectional pin.
+    pub fn is_input(self) -> bool {
+        matches!(
+            self,
+            PinRole::LogicIn | PinRole::LogicIo | PinRole::OpenDrainIo
+        )
+    }
+
+    /// Sets a signal's level: a push-pull or an open-drain output.
+    pub fn is_output(self) -> bool {
+        self.drives_high() || self.is_open_drain()
+    }
+
+    /// Only pulls the signal low; a pull-up resistor's rail sets its high.
+    pub fn is_open_drain(self) -> bool {
+        matches!(self, PinRole::OpenDrain | PinRole::OpenDrainIo)
+    }
+
+    /// Can take a signal high by itself (a push-pull output); an open-drain
+    /// pin only pulls low and leaves the high level to its pull-up.
+    pub fn drives_high(self) -> bool {
+        matches!(self, PinRole::LogicOut | PinRole::LogicIo)
+    }
+
     pub fn is_logic(self) -> bool {
         matches!(
             self,
-            PinRole::LogicOut | PinRole::OpenDrain | PinRole::LogicIn | PinRole::LogicIo
+            PinRole::LogicOut
+                | PinRole::OpenDrain
+                | PinRole::LogicIn
+                | PinRole::LogicIo
+                | PinRole::OpenDrainIo
         )
     }
 }

@@ -158,7 +158,7 @@ pub const OFFSET: Rule = Rule {
     severity: Severity::Warning,
     summary: "return current through a shared ground wire shifts a logic receiver's ground by more than half the link's noise margin",
     doc: RuleDoc {
-        what: "For each logic signal, the difference between the driver's ground and the receiver's ground — the drop that return current makes on the ground nets between them — against half the smaller noise margin of the link (NMH = driver VOH − receiver VIH, NML = receiver VIL − driver VOL, from the pins' families at the rails' voltages, or their explicit levels). Checked in every mode, `worst` included, at every battery state: a logic input misreads during a motor's start-up surge as readily as in steady running. Parts on one ground net sit at the same point of the model (the net's far end), so the offset shows between grounds on different ground nets: draw the motor return and the logic return as the separate wires they are, joined where they meet (a connector contact or terminal block at the battery negative).",
+        what: "For each logic signal, the difference between the driver's ground and the receiver's ground — the drop that return current makes on the ground nets between them — against half the smaller noise margin of the link (NMH = driver VOH − receiver VIH, NML = receiver VIL − driver VOL, from the pins' families at the rails' voltages, or their explicit levels; an open-drain driver's VOH is the rail its pull-up goes to). The margins are the static ones, with no offset in them: the offset is weighed against them once. One finding per net, written from its worst pair and naming every pair that exceeds. Checked in every mode, `worst` included, at every battery state: a logic input misreads during a motor's start-up surge as readily as in steady running. Parts on one ground net sit at the same point of the model (the net's far end), so the offset shows between grounds on different ground nets: draw the motor return and the logic return as the separate wires they are, joined where they meet (a connector contact or terminal block at the battery negative).",
         why: "A logic level is a voltage against the receiver's own ground. When motor current returns through a wire that also carries the logic ground, the receiver's ground lifts by I × R and eats into the noise margin: encoder counts are lost, a driver input sees a phantom edge, a controller resets.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-2a }\n  term: { use: connector/header-2pin-3a }   # the two returns meet at the battery negative\n  pump: { class: load, pins: { vin: { role: supply-in, draw: 1.5 A }, gnd: { role: ground } } }\n  ctrl: { class: board, pins: { gnd: { role: ground }, out: { role: logic-out, family: ttl5 } } }\n  flow: { class: sensor, pins: { gnd: { role: ground }, in: { role: logic-in, family: ttl5 } } }\nnets:\n  BATT+:     [pack.pos, fuse.a]\n  VBAT:      [fuse.b, pump.vin]\n  BATT-:     [pack.neg, term.a1, term.a2]\n  LOGIC_GND: [term.b1, ctrl.gnd]\n  PUMP_GND:  { pins: [term.b2, pump.gnd, flow.gnd], wire: 26 AWG, length: 1.5 m }   # 1.5 A × 0.20 ohm = 0.30 V\n  SIG:       [ctrl.out, flow.in]   # TTL to TTL: half the 0.4 V margin is 0.2 V",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/lead-acid-12v }\n  fuse: { use: fuse/blade-2a }\n  term: { use: connector/header-2pin-3a }   # the two returns meet at the battery negative\n  pump: { class: load, pins: { vin: { role: supply-in, draw: 1.5 A }, gnd: { role: ground } } }\n  ctrl: { class: board, pins: { gnd: { role: ground }, out: { role: logic-out, family: ttl5 } } }\n  flow: { class: sensor, pins: { gnd: { role: ground }, in: { role: logic-in, family: ttl5 } } }\nnets:\n  BATT+:     [pack.pos, fuse.a]\n  VBAT:      [fuse.b, pump.vin]\n  BATT-:     [pack.neg, term.a1, term.a2]\n  LOGIC_GND: [term.b1, ctrl.gnd, flow.gnd]   # the sensor's ground on the logic return\n  PUMP_GND:  { pins: [term.b2, pump.gnd], wire: 26 AWG, length: 1.5 m }\n  SIG:       [ctrl.out, flow.in]",
@@ -286,11 +286,14 @@ fn shift_at(
     }
     let mut out = pin_levels(cx, point, driver)?;
     let input = pin_levels(cx, point, receiver)?;
-    if cx.plan.parts[driver.part].pins[driver.pin].role == PinRole::OpenDrain {
-        // Its high level is the pull-up's rail, seen from the driver's ground.
-        out.voh = pull_up
-            .and_then(|rail| point.net_potential[rail])
-            .map(|rail| rail - driver_ground);
+    if cx.plan.parts[driver.part].pins[driver.pin]
+        .role
+        .is_open_drain()
+    {
+        // Its high level is the pull-up's rail as that rail's own source makes
+        // it: the static margin, with no ground offset in it (the offset is
+        // weighed against the margin once, below).
+        out.voh = pull_up.and_then(|rail| rail_level(cx, point, rail));
     }
     let difference = |a: Option<ElectricPotential>, b: Option<ElectricPotential>| Some(a? - b?);
     Some(Shift {
@@ -298,6 +301,41 @@ fn shift_at(
         nmh: difference(out.voh, input.vih),
         nml: difference(input.vil, out.vol),
     })
+}
+
+/// A rail's voltage above the ground of the part that makes it (a battery's
+/// negative is 0 V); above 0 V when no part on the plan feeds it.
+fn rail_level(cx: &Context, point: &OperatingPoint, rail: NetId) -> Option<ElectricPotential> {
+    let potential = point.net_potential[rail]?;
+    let source = cx.circuit.source[cx.circuit.node_of_net[rail]];
+    let ground = source
+        .and_then(|pin| ground_at(cx, point, pin.part))
+        .map_or(ElectricPotential::new::<volt>(0.0), |(_, g)| g);
+    Some(potential - ground)
+}
+
+/// Every failing driver and receiver, each named once, when more than one
+/// pair on the net fails.
+fn in_all_text(cx: &Context, failing: &[(PinRef, PinRef, &OperatingPoint, f64)]) -> String {
+    if failing.len() < 2 {
+        return String::new();
+    }
+    let mut drivers: Vec<String> = Vec::new();
+    let mut receivers: Vec<String> = Vec::new();
+    for &(driver, receiver, _, _) in failing {
+        for (pin, names) in [(driver, &mut drivers), (receiver, &mut receivers)] {
+            let name = format!("`{}`", cx.pin_name(pin));
+            if !names.contains(&name) {
+                names.push(name);
+            }
+        }
+    }
+    format!(
+        "; {} pairs on this net exceed it in all, from {} into {}",
+        failing.len(),
+        super::logic::joined(&drivers),
+        super::logic::joined(&receivers)
+    )
 }
 
 fn ground_name(cx: &Context, part: PartId) -> String {
@@ -311,17 +349,18 @@ fn check_offset(cx: &Context, out: &mut Vec<Finding>) {
     let plan = cx.plan;
     let pull_ups = super::logic::pull_up_rails(cx);
     for (net_id, net) in plan.nets.iter().enumerate() {
-        let logic = |roles: &[PinRole]| -> Vec<PinRef> {
+        let logic = |keep: fn(PinRole) -> bool| -> Vec<PinRef> {
             net.pins
                 .iter()
                 .copied()
-                .filter(|p| roles.contains(&plan.parts[p.part].pins[p.pin].role))
+                .filter(|p| keep(plan.parts[p.part].pins[p.pin].role))
                 .collect()
         };
-        let drivers = logic(&[PinRole::LogicOut, PinRole::OpenDrain, PinRole::LogicIo]);
-        let receivers = logic(&[PinRole::LogicIn, PinRole::LogicIo]);
-        // One finding per pair of parts on a net: the worse direction.
-        let mut worst: Vec<(PinRef, PinRef, &OperatingPoint, f64)> = Vec::new();
+        let drivers = logic(PinRole::is_output);
+        let receivers = logic(PinRole::is_input);
+        // One finding per net, written from its worst pair, naming every pair
+        // whose offset exceeds half its margin: one root cause, one finding.
+        let mut failing: Vec<(PinRef, PinRef, &OperatingPoint, f64)> = Vec::new();
         for &driver in &drivers {
             for &receiver in &receivers {
                 if driver.part == receiver.part {
@@ -332,23 +371,27 @@ fn check_offset(cx: &Context, out: &mut Vec<Finding>) {
                 }) else {
                     continue;
                 };
-                let key = (
-                    driver.part.min(receiver.part),
-                    driver.part.max(receiver.part),
-                );
-                match worst
-                    .iter_mut()
-                    .find(|(d, r, _, _)| (d.part.min(r.part), d.part.max(r.part)) == key)
-                {
-                    Some(entry) if entry.3 + 1e-12 < severity => {
-                        *entry = (driver, receiver, point, severity);
-                    }
-                    Some(_) => {}
-                    None => worst.push((driver, receiver, point, severity)),
+                let Some(shift) = shift_at(cx, point, pull_ups[net_id], driver, receiver) else {
+                    continue;
+                };
+                let Some(margin) = shift.margin() else {
+                    continue;
+                };
+                if exceeds(
+                    shift.offset.get::<volt>().abs(),
+                    (margin / 2.0).get::<volt>(),
+                ) {
+                    failing.push((driver, receiver, point, severity));
                 }
             }
         }
-        for (driver, receiver, point, _) in worst {
+        let mut worst: Option<(PinRef, PinRef, &OperatingPoint, f64)> = None;
+        for &entry in &failing {
+            if worst.is_none_or(|w| entry.3 > w.3 + 1e-12) {
+                worst = Some(entry);
+            }
+        }
+        if let Some((driver, receiver, point, _)) = worst {
             let Some(shift) = shift_at(cx, point, pull_ups[net_id], driver, receiver) else {
                 continue;
             };
@@ -357,15 +400,12 @@ fn check_offset(cx: &Context, out: &mut Vec<Finding>) {
             };
             let half = margin / 2.0;
             let offset = shift.offset.get::<volt>();
-            if !exceeds(offset.abs(), half.get::<volt>()) {
-                continue;
-            }
             let show = |v: Option<ElectricPotential>| v.map_or("—".to_string(), show_voltage);
             let mut finding = Finding::new(
                 &OFFSET,
                 cx.pin_span(receiver),
                 format!(
-                    "the ground of `{}` ({}) sits {} {} that of `{}` ({}) {}: more than half the {} noise margin of `{}` → `{}` (NMH {}, NML {})",
+                    "the ground of `{}` ({}) sits {} {} that of `{}` ({}) {}: more than half the {} noise margin of `{}` → `{}` (NMH {}, NML {}){}",
                     cx.part_name(receiver.part),
                     ground_name(cx, receiver.part),
                     show_voltage(shift.offset.abs()),
@@ -378,6 +418,7 @@ fn check_offset(cx: &Context, out: &mut Vec<Finding>) {
                     cx.pin_name(receiver),
                     show(shift.nmh),
                     show(shift.nml),
+                    in_all_text(cx, &failing),
                 ),
             )
             .at_point(plan, point)
@@ -395,9 +436,12 @@ fn check_offset(cx: &Context, out: &mut Vec<Finding>) {
             if let Some(l) = shift.nml {
                 finding = finding.value("nml", l.get::<volt>());
             }
-            for part in [receiver.part, driver.part] {
-                if let Some(g) = cx.circuit.ground_net[part] {
-                    finding = finding.net(cx.net_name(g));
+            for &(d, r, _, _) in &failing {
+                for part in [r.part, d.part] {
+                    finding = finding.part(cx.part_name(part));
+                    if let Some(g) = cx.circuit.ground_net[part] {
+                        finding = finding.net(cx.net_name(g));
+                    }
                 }
             }
             out.push(finding);

@@ -14,6 +14,9 @@
 //! for signals between parts with separate grounds (`ground/not-shared`
 //! reports those; their levels are not judged here).
 
+mod unpowered;
+pub use unpowered::UNPOWERED_INPUT;
+
 use super::{
     Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label,
     show_voltages_apart,
@@ -31,7 +34,7 @@ pub const OVERVOLTAGE: Rule = Rule {
     severity: Severity::Error,
     summary: "a driver's high level exceeds a receiver's absolute maximum input",
     doc: RuleDoc {
-        what: "For every input on a signal, the highest level anything on that signal can put on it — a push-pull output at its rail's maximum, a pull-up resistor's rail at its maximum, or the rail the input is tied to — against the input's ceiling at its own rail's minimum (when both follow one rail they are compared at each operating point instead, since a rail is never at its top and its bottom at once). The ceiling is the pin's `max` when written; else VDD + 0.3 V; `tolerant: 5 V` raises it to 5.5 V (a V-tolerant pin is taken to withstand V + 10 %).",
+        what: "For every input on a signal, the highest level anything on that signal can put on it — a push-pull output at its rail's maximum, a pull-up resistor's rail at its maximum, or the rail the input is tied to — against the input's ceiling at its own rail's minimum (when both follow one rail they are compared at each operating point instead, since a rail is never at its top and its bottom at once). The ceiling is the pin's `max` when written; else VDD + 0.3 V; `tolerant: 5 V` raises it to 5.5 V (a V-tolerant pin is taken to withstand V + 10 %). One finding per signal, written from its worst pair and naming every driver and input that fails.",
         why: "An input driven above its supply conducts through its protection diode into its own rail: the part is back-powered through the signal, latches up or is slowly destroyed. A 5 V output straight into a 3.3 V controller pin is the classic case.",
         example: "railcheck: 1\nparts:\n  pack:   { use: battery/nimh-8cell }\n  fuse:   { use: fuse/blade-1a }\n  buck:   { use: regulator/buck-5v-3a }\n  ranger: { use: sensor/rangefinder-5v }   # echo swings to its rail: up to 5 V + 2 % = 5.1 V\n  mcu:    { use: board/mcu-3v3 }           # rx ceiling: 3.3 V × 0.97 + 0.3 V = 3.5 V\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, ranger.vcc, mcu.vin]\n  GND:   [pack.neg, buck.gnd, ranger.gnd, mcu.gnd]\n  ECHO:  [ranger.echo, mcu.rx]",
         fix: "railcheck: 1\nparts:\n  pack:    { use: battery/nimh-8cell }\n  fuse:    { use: fuse/blade-1a }\n  buck:    { use: regulator/buck-5v-3a }\n  ranger:  { use: sensor/rangefinder-5v }\n  mcu:     { use: board/mcu-3v3 }\n  shifter: { use: shifter/bidir-4ch }   # 5 V side b1, 3.3 V side a1\nnets:\n  BATT+:    [pack.pos, fuse.a]\n  VBAT:     [fuse.b, buck.vin]\n  5V:       [buck.vout, ranger.vcc, mcu.vin, shifter.hv]\n  3V3:      [mcu.3v3, shifter.lv]\n  GND:      [pack.neg, buck.gnd, ranger.gnd, mcu.gnd, shifter.gnd]\n  ECHO:     [ranger.echo, shifter.b1]\n  ECHO_3V3: [shifter.a1, mcu.rx]",
@@ -46,7 +49,7 @@ pub const HIGH_MARGIN: Rule = Rule {
     severity: Severity::Error,
     summary: "driver's minimum high level below receiver's high threshold",
     doc: RuleDoc {
-        what: "For every driver–receiver pair on a signal, the driver's lowest high level VOH — its family's VOH at its rail's minimum, or for an open-drain output the lowest rail its pull-ups go to — against the receiver's high threshold VIH at its rail's maximum (point by point when both follow one rail). The finding gives both noise margins, NMH = VOH − VIH and NML = VIL − VOL.",
+        what: "For every driver–receiver pair on a signal, the driver's lowest high level VOH — its family's VOH at its rail's minimum, or for an open-drain pin (`open-drain`, `open-drain-io`) the lowest rail its pull-ups go to — against the receiver's high threshold VIH at its rail's maximum (point by point when both follow one rail). The finding gives both noise margins, NMH = VOH − VIH and NML = VIL − VOL; one finding per signal, written from its worst pair and naming every pair that fails.",
         why: "Below VIH the receiver is not guaranteed to read a high: the link works on the bench and fails with a warm part, a low battery or a little noise.",
         example: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-1a }\n  buck:  { use: regulator/buck-5v-3a }\n  mcu:   { use: board/mcu-3v3 }   # tx VOH = 3.3 V × 0.97 − 0.2 V = 3.0 V at its lowest\n  valve: { class: load, pins: { vcc: { role: supply-in, draw: 10 mA }, gnd: { role: ground }, open: { role: logic-in, ref: vcc, family: cmos5 } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin, valve.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, valve.gnd]\n  VALVE: [mcu.tx, valve.open]   # greenhouse valve driver, HC-type input: VIH = 0.7 × 5.1 V = 3.57 V",
         fix: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-1a }\n  buck:  { use: regulator/buck-5v-3a }\n  mcu:   { use: board/mcu-3v3 }   # tx VOH = 3.3 V × 0.97 − 0.2 V = 3.0 V at its lowest\n  valve: { class: load, pins: { vcc: { role: supply-in, draw: 10 mA }, gnd: { role: ground }, open: { role: logic-in, ref: vcc, family: ttl5 } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin, valve.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, valve.gnd]\n  VALVE: [mcu.tx, valve.open]   # its HCT-type (TTL-level) version: VIH = 2.0 V",
@@ -61,7 +64,7 @@ pub const LOW_MARGIN: Rule = Rule {
     severity: Severity::Error,
     summary: "driver's maximum low level above receiver's low threshold",
     doc: RuleDoc {
-        what: "For every driver–receiver pair on a signal, the driver's highest low level VOL against the receiver's low threshold VIL, taken at the receiver's rail minimum where the family scales with it. The finding gives both noise margins.",
+        what: "For every driver–receiver pair on a signal, the driver's highest low level VOL against the receiver's low threshold VIL, taken at the receiver's rail minimum where the family scales with it. The finding gives both noise margins; one finding per signal, written from its worst pair and naming every pair that fails.",
         why: "Above VIL the receiver is not guaranteed to read a low: an open-collector sensor that only pulls down to 0.4 V cannot be read by an input that needs 0.3 V.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  buck: { use: regulator/buck-5v-3a }\n  mcu:  { use: board/mcu-3v3 }   # rx: lvcmos33, VIL = 0.8 V\n  beam: { class: sensor, pins: { vcc: { role: supply-in, draw: 5 mA }, gnd: { role: ground }, out: { role: logic-out, ref: vcc, family: lvcmos33, vol: 1.0 V } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin]\n  3V3:   [mcu.3v3, beam.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, beam.gnd]\n  DOOR:  [beam.out, mcu.rx]   # warehouse door beam that pulls down only to 1.0 V",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  buck: { use: regulator/buck-5v-3a }\n  mcu:  { use: board/mcu-3v3 }   # rx: lvcmos33, VIL = 0.8 V\n  beam: { class: sensor, pins: { vcc: { role: supply-in, draw: 5 mA }, gnd: { role: ground }, out: { role: logic-out, ref: vcc, family: lvcmos33, vol: 0.4 V } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, mcu.vin]\n  3V3:   [mcu.3v3, beam.vcc]\n  GND:   [pack.neg, buck.gnd, mcu.gnd, beam.gnd]\n  DOOR:  [beam.out, mcu.rx]   # a beam sensor that pulls down to 0.4 V",
@@ -76,7 +79,7 @@ pub const CONTENTION: Rule = Rule {
     severity: Severity::Error,
     summary: "two push-pull outputs on one net",
     doc: RuleDoc {
-        what: "Whether two or more push-pull outputs (`logic-out`) sit on one net (nets joined by connector contacts count as one). Bidirectional `logic-io` pins are not counted: their direction is set by firmware, and a shared bus of them (I2C data) is normal.",
+        what: "Whether two or more push-pull outputs (`logic-out`) sit on one net (nets joined by connector contacts count as one). Bidirectional `logic-io` pins are not counted: their direction is set by firmware. Open-drain pins (`open-drain`, `open-drain-io`) only pull low and never contend: a shared I2C bus of `open-drain-io` pins is normal.",
         why: "When two push-pull outputs drive opposite levels, each shorts the other's rail to ground through its output transistors: tens of milliamperes that heat and eventually kill both pins. A serial link wired TX to TX is the common way to get there.",
         example: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-2a }\n  buck:  { use: regulator/buck-5v-5a }\n  brain: { use: board/sbc-5v }\n  mcu:   { use: board/mcu-3v3 }\nnets:\n  BATT+:  [pack.pos, fuse.a]\n  VBAT:   [fuse.b, buck.vin]\n  5V:     [buck.vout, brain.vin, mcu.vin]\n  GND:    [pack.neg, buck.gnd, brain.gnd, mcu.gnd]\n  UART_A: [brain.tx, mcu.tx]   # transmit wired to transmit\n  UART_B: [brain.rx, mcu.rx]",
         fix: "railcheck: 1\nparts:\n  pack:  { use: battery/nimh-8cell }\n  fuse:  { use: fuse/blade-2a }\n  buck:  { use: regulator/buck-5v-5a }\n  brain: { use: board/sbc-5v }\n  mcu:   { use: board/mcu-3v3 }\nnets:\n  BATT+:  [pack.pos, fuse.a]\n  VBAT:   [fuse.b, buck.vin]\n  5V:     [buck.vout, brain.vin, mcu.vin]\n  GND:    [pack.neg, buck.gnd, brain.gnd, mcu.gnd]\n  UART_A: [brain.tx, mcu.rx]   # each transmit pin to the other's receive pin\n  UART_B: [mcu.tx, brain.rx]",
@@ -91,7 +94,7 @@ pub const UNDRIVEN: Rule = Rule {
     severity: Severity::Warning,
     summary: "an input on a net with no output and no pull resistor",
     doc: RuleDoc {
-        what: "Whether the inputs on a signal have something that sets their level: an output (`logic-out`, `logic-io`, `open-drain`), a pull-up or pull-down resistor, or a rail or ground the net is tied to. Series resistors are followed to the nets on their far side. A signal whose only outputs are open-drain needs a pull-up: without one nothing takes it high.",
+        what: "Whether the inputs on a signal have something that sets their level: an output (`logic-out`, `logic-io`, `open-drain`), a pull-up or pull-down resistor, or a rail or ground the net is tied to. Series resistors are followed to the nets on their far side. A signal whose only outputs are open-drain needs a pull-up: without one nothing takes it high. An `open-drain-io` pin is an input too, so a bus of them with no pull-up (I2C data and clock drawn without their resistors) is reported.",
         why: "A CMOS input left floating picks up noise, reads random levels and can sit half-way, drawing current through both input transistors. A serial link wired RX to RX leaves both inputs floating.",
         example: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  cart: { use: board/mcu-8bit-5v }\n  enc:  { use: sensor/encoder-optical-oc }   # warehouse cart wheel: open-collector, only pulls low\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, cart.vin]\n  5V:    [cart.5v, enc.vcc]\n  GND:   [pack.neg, cart.gnd, enc.gnd]\n  ENC_A: [enc.a, cart.enc1a]   # nothing takes it high",
         fix: "railcheck: 1\nparts:\n  pack: { use: battery/nimh-8cell }\n  fuse: { use: fuse/blade-1a }\n  cart: { use: board/mcu-8bit-5v }\n  enc:  { use: sensor/encoder-optical-oc }   # warehouse cart wheel: open-collector, only pulls low\n  pull: { use: resistor/pullup-10k }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, cart.vin]\n  5V:    [cart.5v, enc.vcc, pull.a]\n  GND:   [pack.neg, cart.gnd, enc.gnd]\n  ENC_A: [enc.a, cart.enc1a, pull.b]   # the pull-up takes it high",
@@ -578,7 +581,7 @@ fn driver_side<'p>(
     receiver: PartId,
 ) -> Option<DriverSide<'p>> {
     match source {
-        Source::Pin(pin) if role_of(cx, pin) == PinRole::OpenDrain => {
+        Source::Pin(pin) if role_of(cx, pin).is_open_drain() => {
             let lowest = pull_ups
                 .iter()
                 .filter_map(|&(resistor, net)| Some((resistor, net_rail(cx, net, receiver)?)))
@@ -637,7 +640,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
             highest,
         };
     };
-    if role_of(cx, pin) == PinRole::OpenDrain {
+    if role_of(cx, pin).is_open_drain() {
         // Every family's VOL is a fixed voltage (format reference §3), so the
         // nominal VDD serves when the pin's own rail is not at hand.
         let vol = written_vol.or_else(|| {
@@ -839,29 +842,27 @@ fn shares_ground(cx: &Context, pins: &[PinRef]) -> bool {
     cx.circuit.grounded_groups[first] && groups.all(|g| g == Some(first))
 }
 
-/// Every driver–receiver pair, each with its comparisons.
-fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
-    let mut found = Vec::new();
+/// Every driver–receiver pair, each with its comparisons, grouped by signal
+/// (and, for inputs wired straight onto a rail, by that rail's net): a rule
+/// reports each group once, however many pairs in it fail.
+fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Vec<Link<'p>>>> {
+    let mut groups = Vec::new();
     for signal in signals(cx) {
         if !shares_ground(cx, &signal.pins) {
             continue;
         }
-        let receivers = signal
-            .pins
-            .iter()
-            .filter(|&&p| matches!(role_of(cx, p), PinRole::LogicIn | PinRole::LogicIo));
+        let mut found = Vec::new();
+        let receivers = signal.pins.iter().filter(|&&p| role_of(cx, p).is_input());
         for &receiver in receivers {
             let (Some(net), Some(receiving)) = (net_of(cx, receiver), receiver_side(cx, receiver))
             else {
                 continue;
             };
-            let pins = signal.pins.iter().copied().filter(|&p| {
-                p != receiver
-                    && matches!(
-                        role_of(cx, p),
-                        PinRole::LogicOut | PinRole::LogicIo | PinRole::OpenDrain
-                    )
-            });
+            let pins = signal
+                .pins
+                .iter()
+                .copied()
+                .filter(|&p| p != receiver && role_of(cx, p).is_output());
             let sources: Vec<Source> = pins
                 .map(Source::Pin)
                 .chain(
@@ -877,6 +878,7 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
                 }
             }
         }
+        groups.push(found);
     }
     // Inputs wired straight onto a rail.
     for (net_id, net) in cx.plan.nets.iter().enumerate() {
@@ -884,10 +886,9 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
         if !is_power_node(cx, node) || cx.circuit.nodes[node].is_ground() {
             continue;
         }
+        let mut found = Vec::new();
         for &receiver in &net.pins {
-            if !matches!(role_of(cx, receiver), PinRole::LogicIn | PinRole::LogicIo)
-                || !shares_ground(cx, &[receiver])
-            {
+            if !role_of(cx, receiver).is_input() || !shares_ground(cx, &[receiver]) {
                 continue;
             }
             let (Some(driving), Some(receiving)) = (
@@ -898,8 +899,9 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Link<'p>>> {
             };
             found.push(compare(cx, &driving, &receiving, net_id));
         }
+        groups.push(found);
     }
-    found
+    groups
 }
 
 /// The comparison of a pair where `badness` is greatest, if it is anywhere
@@ -917,6 +919,106 @@ fn worst<'a, 'p>(
         }
     }
     found.map(|(link, _)| link)
+}
+
+/// The failing pairs of one group: each pair's worst comparison, and the
+/// worst of them all, which the finding is written from.
+struct Failures<'a, 'p> {
+    worst: &'a Link<'p>,
+    pairs: Vec<&'a Link<'p>>,
+}
+
+fn failures<'a, 'p>(
+    group: &'a [Vec<Link<'p>>],
+    badness: impl Fn(&Link) -> Option<f64>,
+) -> Option<Failures<'a, 'p>> {
+    let pairs: Vec<&Link> = group
+        .iter()
+        .filter_map(|pair| worst(pair, &badness))
+        .collect();
+    let mut found: Option<(&Link, f64)> = None;
+    for &link in &pairs {
+        if let Some(b) = badness(link)
+            && found.is_none_or(|(_, f)| b > f + 1e-12)
+        {
+            found = Some((link, b));
+        }
+    }
+    found.map(|(worst, _)| Failures { worst, pairs })
+}
+
+impl<'p> Failures<'_, 'p> {
+    /// Every failing driver and receiver, each named once, when more than
+    /// the worst pair fails: one finding speaks for the whole signal.
+    fn in_all_text(&self, cx: &Context) -> String {
+        if self.pairs.len() < 2 {
+            return String::new();
+        }
+        let mut drivers: Vec<String> = Vec::new();
+        let mut receivers: Vec<String> = Vec::new();
+        for link in &self.pairs {
+            let driver = link.driver_name(cx);
+            if !drivers.contains(&driver) {
+                drivers.push(driver);
+            }
+            let receiver = format!("`{}`", cx.pin_name(link.sense.pin));
+            if !receivers.contains(&receiver) {
+                receivers.push(receiver);
+            }
+        }
+        format!(
+            "; {} pairs on this signal fail in all, from {} into {}",
+            self.pairs.len(),
+            joined(&drivers),
+            joined(&receivers),
+        )
+    }
+
+    /// The worst pair's finding, with every other failing pin labelled.
+    fn finding(
+        &self,
+        cx: &Context,
+        rule: &Rule,
+        message: String,
+        point: Option<&OperatingPoint>,
+    ) -> Finding {
+        let mut finding = self.worst.finding(cx, rule, message, point);
+        let mut labelled = vec![self.worst.sense.pin];
+        if let Source::Pin(pin) = self.worst.drive.source {
+            labelled.push(pin);
+        }
+        for link in &self.pairs {
+            let receiver = link.sense.pin;
+            if !labelled.contains(&receiver) {
+                labelled.push(receiver);
+                finding = finding
+                    .label(cx.pin_span(receiver), "also fails")
+                    .part(cx.part_name(receiver.part));
+            }
+            match link.drive.source {
+                Source::Pin(pin) if !labelled.contains(&pin) => {
+                    labelled.push(pin);
+                    finding = finding
+                        .label(cx.pin_span(pin), "driver")
+                        .part(cx.part_name(pin.part));
+                }
+                Source::PullUp { resistor, rail } => {
+                    finding = finding.part(cx.part_name(resistor)).net(cx.net_name(rail));
+                }
+                _ => {}
+            }
+        }
+        finding
+    }
+}
+
+/// Names already quoted, joined as prose: `a`, `b` and `c`.
+pub(super) fn joined(names: &[String]) -> String {
+    match names {
+        [] => String::new(),
+        [one] => one.clone(),
+        [init @ .., last] => format!("{} and {last}", init.join(", ")),
+    }
 }
 
 impl Link<'_> {
@@ -998,8 +1100,8 @@ fn at_text(cx: &Context, point: Option<&OperatingPoint>) -> String {
 }
 
 fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
-    for pair in pairs(cx) {
-        let Some(link) = worst(&pair, |l| {
+    for group in pairs(cx) {
+        let Some(failed) = failures(&group, |l| {
             let (high, ceiling) = (l.drive.highest.as_ref()?, l.sense.ceiling.as_ref()?);
             l.verdict
                 .over_ceiling
@@ -1007,6 +1109,7 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
+        let link = failed.worst;
         let (Some(high), Some(ceiling)) = (&link.drive.highest, &link.sense.ceiling) else {
             continue;
         };
@@ -1033,27 +1136,29 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
         if !margins.is_empty() {
             message = format!("{message}; {margins}");
         }
+        message.push_str(&failed.in_all_text(cx));
         out.push(
-            link.finding(cx, &OVERVOLTAGE, message, point)
+            failed.finding(cx, &OVERVOLTAGE, message, point)
                 .help("put a level shifter between them, power the driver (or pull-up) from the receiver's rail, or use an input rated for the higher level (`tolerant: 5 V`)"),
         );
     }
 }
 
 fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
-    for pair in pairs(cx) {
-        let Some(link) = worst(&pair, |l| {
+    for group in pairs(cx) {
+        let Some(failed) = failures(&group, |l| {
             l.verdict.high_fails.then_some(-v(l.verdict.high_margin?))
         }) else {
             continue;
         };
+        let link = failed.worst;
         let (Some(voh), Some(vih)) = (&link.drive.voh, &link.sense.vih) else {
             continue;
         };
         let point = voh.point.or(vih.point);
         let (shown, limit) = show_voltages_apart(voh.value, vih.value);
         let message = format!(
-            "{} drives `{}` high to as little as {shown} ({}){}, below the {limit} `{}` needs to read a high ({}): {}",
+            "{} drives `{}` high to as little as {shown} ({}){}, below the {limit} `{}` needs to read a high ({}): {}{}",
             link.driver_name(cx),
             cx.net_name(link.net),
             voh.basis,
@@ -1061,28 +1166,30 @@ fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
             cx.pin_name(link.sense.pin),
             vih.basis,
             link.margins_text(),
+            failed.in_all_text(cx),
         );
         out.push(
-            link.finding(cx, &HIGH_MARGIN, message, point)
+            failed.finding(cx, &HIGH_MARGIN, message, point)
                 .help("use a level shifter, a receiver with TTL-level inputs (VIH 2.0 V), or a driver on the receiver's rail; for an open-drain output, pull up to the receiver's rail"),
         );
     }
 }
 
 fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
-    for pair in pairs(cx) {
-        let Some(link) = worst(&pair, |l| {
+    for group in pairs(cx) {
+        let Some(failed) = failures(&group, |l| {
             l.verdict.low_fails.then_some(-v(l.verdict.low_margin?))
         }) else {
             continue;
         };
+        let link = failed.worst;
         let (Some(vol), Some(vil)) = (&link.drive.vol, &link.sense.vil) else {
             continue;
         };
         let point = vil.point.or(vol.point);
         let (shown, limit) = show_voltages_apart(vol.value, vil.value);
         let message = format!(
-            "{} drives `{}` low to as much as {shown} ({}), above the {limit} `{}` still reads as a low ({}){}: {}",
+            "{} drives `{}` low to as much as {shown} ({}), above the {limit} `{}` still reads as a low ({}){}: {}{}",
             link.driver_name(cx),
             cx.net_name(link.net),
             vol.basis,
@@ -1090,9 +1197,10 @@ fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
             vil.basis,
             at_text(cx, point),
             link.margins_text(),
+            failed.in_all_text(cx),
         );
         out.push(
-            link.finding(cx, &LOW_MARGIN, message, point)
+            failed.finding(cx, &LOW_MARGIN, message, point)
                 .help("use a driver that pulls lower, a receiver with a higher low threshold, or a level shifter"),
         );
     }
@@ -1144,7 +1252,7 @@ fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
             .pins
             .iter()
             .copied()
-            .filter(|&p| role_of(cx, p) == PinRole::LogicIn)
+            .filter(|&p| matches!(role_of(cx, p), PinRole::LogicIn | PinRole::OpenDrainIo))
             .collect();
         let Some(&first) = inputs.first() else {
             continue;
@@ -1161,7 +1269,7 @@ fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
             .pins
             .iter()
             .copied()
-            .filter(|&p| role_of(cx, p) == PinRole::OpenDrain)
+            .filter(|&p| role_of(cx, p).is_open_drain())
             .collect();
         let pulled = !signal.pull_ups.is_empty() || !signal.pull_downs.is_empty();
         let names: Vec<String> = inputs.iter().map(|&p| cx.pin_name(p)).collect();
@@ -1187,19 +1295,31 @@ fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
                 quoted(&nets),
             )
         } else if signal.pull_ups.is_empty() {
-            let drivers: Vec<String> = open_drain.iter().map(|&p| cx.pin_name(p)).collect();
-            format!(
-                "{} on {} {} driven only by open-drain {} and nothing pulls the line high: {} whenever the output lets go",
-                quoted(&names),
-                quoted(&nets),
-                if inputs.len() == 1 { "is" } else { "are" },
-                quoted(&drivers),
-                if inputs.len() == 1 {
-                    "it floats"
-                } else {
-                    "they float"
-                },
-            )
+            let drivers: Vec<String> = open_drain
+                .iter()
+                .filter(|p| !inputs.contains(p))
+                .map(|&p| cx.pin_name(p))
+                .collect();
+            if drivers.is_empty() {
+                format!(
+                    "open-drain bus {} ({}) has no pull-up: every pin on it only pulls low, so nothing takes the line high and it floats whenever they let go",
+                    quoted(&nets),
+                    quoted(&names),
+                )
+            } else {
+                format!(
+                    "{} on {} {} driven only by open-drain {} and nothing pulls the line high: {} whenever the output lets go",
+                    quoted(&names),
+                    quoted(&nets),
+                    if inputs.len() == 1 { "is" } else { "are" },
+                    quoted(&drivers),
+                    if inputs.len() == 1 {
+                        "it floats"
+                    } else {
+                        "they float"
+                    },
+                )
+            }
         } else {
             continue;
         };
@@ -1211,6 +1331,7 @@ fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
             },
         );
         for &p in inputs.iter().chain(&open_drain) {
+            // `part` skips names already listed.
             finding = finding.part(cx.part_name(p.part));
         }
         for net in &nets {

@@ -103,6 +103,7 @@ pub static RULES: &[Rule] = &[
     logic::LOW_MARGIN,
     logic::CONTENTION,
     logic::UNDRIVEN,
+    logic::UNPOWERED_INPUT,
     fuse::MISSING,
     fuse::UNDERSIZED,
     fuse::OVERSIZED,

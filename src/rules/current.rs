@@ -56,8 +56,11 @@ struct RatedPath<'a> {
     part: PartId,
     net: Option<String>,
     rating: ElectricCurrent,
-    /// Driver channel continuous ratings meet continuous current only.
+    /// Continuous ratings (driver channels, switch and connector contacts)
+    /// meet continuous current only.
     continuous_rating: bool,
+    /// A surge rating meets brief peaks and is not derated.
+    surge: bool,
     current: CurrentAt<'a>,
 }
 
@@ -85,33 +88,33 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             .map(|n| cx.net_name(n).to_string()),
                         rating: rating.value,
                         continuous_rating: false,
+                        surge: false,
                         current: Box::new(move |p| p.regulators[part_id].map(|r| r.output_current)),
                     });
                 }
             }
             Class::Switch(switch) => {
-                if let Some(rating) = switch.rating {
-                    for (a, b) in through_pairs(plan, part_id) {
-                        paths.push(through_path(
-                            cx,
-                            part_id,
-                            a,
-                            b,
-                            rating,
-                            format!("switch `{}`", part.name),
-                        ));
-                    }
+                for (a, b) in through_pairs(plan, part_id) {
+                    let subject = format!("switch `{}`", part.name);
+                    contact_paths(cx, part_id, (a, b), switch.rating, switch.surge, subject)
+                        .for_each(|p| paths.push(p));
                 }
             }
             Class::Connector(connector) => {
-                if let Some(rating) = connector.rating {
-                    for (a, b) in through_pairs(plan, part_id) {
-                        let subject = format!(
-                            "contact `{}.{}`/`{}`",
-                            part.name, part.pins[a].name, part.pins[b].name
-                        );
-                        paths.push(through_path(cx, part_id, a, b, rating, subject));
-                    }
+                for (a, b) in through_pairs(plan, part_id) {
+                    let subject = format!(
+                        "contact `{}.{}`/`{}`",
+                        part.name, part.pins[a].name, part.pins[b].name
+                    );
+                    contact_paths(
+                        cx,
+                        part_id,
+                        (a, b),
+                        connector.rating,
+                        connector.surge,
+                        subject,
+                    )
+                    .for_each(|p| paths.push(p));
                 }
             }
             Class::Driver(driver) => {
@@ -127,6 +130,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                                 .map(|n| cx.net_name(n).to_string()),
                             rating: rating.value,
                             continuous_rating: true,
+                            surge: false,
                             // The continuous rating meets the channel with its
                             // motors running (format reference §6); a stall meets the
                             // peak rating, in `driver/stall`.
@@ -162,6 +166,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             net: pin.net.map(|n| cx.net_name(n).to_string()),
                             rating: limit,
                             continuous_rating: false,
+                            surge: false,
                             current: Box::new(move |p| Some(p.pin_current[part_id][pin_id])),
                         });
                     }
@@ -197,6 +202,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                     net: None,
                     rating: limit,
                     continuous_rating: false,
+                    surge: false,
                     current: Box::new(move |p| Some(p.link_current[link])),
                 });
             }
@@ -209,6 +215,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                 net: None,
                 rating: limit,
                 continuous_rating: false,
+                surge: false,
                 current: Box::new(move |p| {
                     Some(
                         shared_links
@@ -222,6 +229,28 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
         }
     }
     paths
+}
+
+/// A switch's or connector contact's ratings: its `rating` is continuous
+/// (contacts heat with time), met by the continuous current; its `surge`,
+/// when given, meets every peak, `worst` and brief modes included.
+fn contact_paths<'a>(
+    cx: &'a Context,
+    part: PartId,
+    (a, b): (usize, usize),
+    rating: Option<Rated<ElectricCurrent>>,
+    surge: Option<Rated<ElectricCurrent>>,
+    subject: String,
+) -> impl Iterator<Item = RatedPath<'a>> {
+    let continuous = rating.map(|r| RatedPath {
+        continuous_rating: true,
+        ..through_path(cx, part, a, b, r, subject.clone())
+    });
+    let surge = surge.map(|r| RatedPath {
+        surge: true,
+        ..through_path(cx, part, a, b, r, format!("{subject} (surge rating)"))
+    });
+    continuous.into_iter().chain(surge)
 }
 
 fn through_path<'a>(
@@ -247,6 +276,7 @@ fn through_path<'a>(
         net: downstream.map(|n| cx.net_name(n).to_string()),
         rating: rating.value,
         continuous_rating: false,
+        surge: false,
         current: Box::new(move |p| downstream.map(|n| p.net_current[n].abs())),
     }
 }
@@ -297,6 +327,9 @@ fn check_ratings(cx: &Context, out: &mut Vec<Finding>) {
                 .help("choose a part with a higher rating, or split the load")
                 .value("current", current),
             );
+            continue;
+        }
+        if path.surge {
             continue;
         }
         if let Some((point, current)) = steady

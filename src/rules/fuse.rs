@@ -28,15 +28,17 @@
 use super::{
     Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
 };
-use crate::analysis::{BatteryState, OperatingPoint, battery_voltage};
+use crate::analysis::{BatteryState, ModeId, OperatingPoint, battery_voltage};
 use crate::graph::{MotorFeed, through_pairs};
-use crate::model::{Class, Fuse, FuseSpeed, NetId, PartId, PinRef, PinRole, Rated};
+use crate::model::{Class, Fuse, FuseSpeed, MotorState, NetId, PartId, PinRef, PinRole, Rated};
 use crate::syntax::Span;
-use crate::units::{WireSize, show_current, show_voltage};
-use crate::wire::{AmpacityTable, ampacity};
+use crate::units::{WireSize, show_current, show_duration, show_share, show_voltage};
+use crate::wire::{AmpacityTable, ampacity_at};
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
-use uom::si::f64::{ElectricCurrent, ElectricPotential, ThermodynamicTemperature};
+use uom::si::f64::{ElectricCurrent, ElectricPotential, Ratio, ThermodynamicTemperature, Time};
+use uom::si::ratio::ratio;
+use uom::si::time::second;
 
 pub const MISSING: Rule = Rule {
     id: "fuse/missing",
@@ -127,6 +129,7 @@ const BLADE_VOLTAGES: [f64; 2] = [32.0, 58.0];
 /// The smallest standard blade rating that carries `minimum` and stays
 /// within `ceiling` (the protected wire's ampacity), both with the format reference's
 /// 0.1 % tolerance. `None` when no blade rating fits.
+#[cfg(test)]
 pub fn blade_rating_for(
     minimum: ElectricCurrent,
     ceiling: Option<ElectricCurrent>,
@@ -165,6 +168,8 @@ struct WireLimit {
     ampacity: ElectricCurrent,
     table: AmpacityTable,
     insulation: Option<ThermodynamicTemperature>,
+    /// The air its ampacity is corrected for (`None`: the table's own).
+    ambient: Option<ThermodynamicTemperature>,
     conductor: Conductor,
 }
 
@@ -195,8 +200,9 @@ fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
             return false;
         }
         let n = &plan.nets[net];
+        let ambient = plan.conductor_ambient(net);
         if let Some(wire) = n.wire
-            && let Some((limit, table)) = ampacity(wire.value, n.insulation)
+            && let Some((limit, table)) = ampacity_at(wire.value, n.insulation, ambient)
         {
             wires.push(WireLimit {
                 net,
@@ -204,6 +210,7 @@ fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
                 ampacity: limit,
                 table,
                 insulation: n.insulation,
+                ambient,
                 conductor,
             });
         }
@@ -289,20 +296,125 @@ fn weakest(wires: &[WireLimit]) -> Option<WireLimit> {
 fn thinnest_wire_for(
     current: ElectricCurrent,
     insulation: Option<ThermodynamicTemperature>,
+    ambient: Option<ThermodynamicTemperature>,
 ) -> Option<(WireSize, ElectricCurrent)> {
     (8..=30)
         .rev()
         .step_by(2)
         .map(WireSize::Awg)
-        .filter_map(|size| ampacity(size, insulation).map(|(i, _)| (size, i)))
+        .filter_map(|size| ampacity_at(size, insulation, ambient).map(|(i, _)| (size, i)))
         .find(|(_, i)| !exceeds(amps(current), amps(*i)))
 }
 
-/// What a fuse at one place should be rated: from the continuous current it
-/// carries (when the operating point is known) and the wires it protects.
+/// A brief peak a fuse must ride through: the highest current through it
+/// in one brief mode, and how long that mode lasts.
+#[derive(Clone, Copy, Debug)]
+struct BriefPeak {
+    current: ElectricCurrent,
+    lasts: Time,
+    mode: ModeId,
+}
+
+/// A fuse rating that satisfies every fuse rule at once, and the speed it
+/// must have (`None`: either speed fits).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Suggestion {
+    pub rating: ElectricCurrent,
+    pub speed: Option<FuseSpeed>,
+}
+
+impl Suggestion {
+    /// "a 7.5 A fuse", or "a 10 A fuse, time-delay (`speed: slow`)".
+    fn describe(self) -> String {
+        match self.speed {
+            None => format!("a {} fuse", show_current(self.rating)),
+            Some(FuseSpeed::Slow) => format!(
+                "a {} fuse, time-delay (`speed: slow`)",
+                show_current(self.rating)
+            ),
+            Some(FuseSpeed::Fast) => {
+                format!("a {} fuse, fast (`speed: fast`)", show_current(self.rating))
+            }
+        }
+    }
+}
+
+/// ISO 8820-3 blade fuse-links (types C, E, F), from memory: carrying up to
+/// each multiple of its rating, a blade fuse does not open sooner than the
+/// time beside it (110 %: at least 100 h; 135 %: 0.75 s; 200 %: 0.15 s;
+/// 350 %: 0.08 s; 600 %: 0.02 s). A fuse's opening time falls as its
+/// current rises, so below a listed multiple the next listed time is a
+/// bound too.
+const BLADE_LEAST_OPENING: [(f64, f64); 5] = [
+    (1.10, 360_000.0),
+    (1.35, 0.75),
+    (2.0, 0.15),
+    (3.5, 0.08),
+    (6.0, 0.02),
+];
+
+/// IEC 60127-2 standard sheet 3, time-lag (T) fuse-links, from memory: the
+/// least pre-arcing times (150 %: at least 1 h; 275 %: 0.2 s; 400 %: 0.04 s;
+/// 1000 %: 0.01 s). Taken for every `speed: slow` fuse; a time-delay fuse's
+/// own published curve governs where it is slower.
+const TIME_LAG_LEAST_OPENING: [(f64, f64); 4] =
+    [(1.5, 3_600.0), (2.75, 0.2), (4.0, 0.04), (10.0, 0.01)];
+
+fn least_opening_table(speed: FuseSpeed) -> &'static [(f64, f64)] {
+    match speed {
+        FuseSpeed::Fast => &BLADE_LEAST_OPENING,
+        FuseSpeed::Slow => &TIME_LAG_LEAST_OPENING,
+    }
+}
+
+/// The shortest time in which a fuse of `speed` may open while carrying
+/// `multiple` × its rating; `None` past the table, where it may open at once.
+pub fn least_opening_time(speed: FuseSpeed, multiple: f64) -> Option<Time> {
+    least_opening_table(speed)
+        .iter()
+        .find(|(m, _)| !exceeds(multiple, *m))
+        .map(|(_, t)| Time::new::<second>(*t))
+}
+
+/// Whether a fuse rated `rating` may open while carrying `current` for `lasts`.
+pub fn may_open(
+    speed: FuseSpeed,
+    rating: ElectricCurrent,
+    current: ElectricCurrent,
+    lasts: Time,
+) -> bool {
+    let multiple = amps(current) / amps(rating).max(f64::MIN_POSITIVE);
+    least_opening_time(speed, multiple).is_none_or(|least| lasts >= least)
+}
+
+fn other_speed(speed: FuseSpeed) -> FuseSpeed {
+    match speed {
+        FuseSpeed::Fast => FuseSpeed::Slow,
+        FuseSpeed::Slow => FuseSpeed::Fast,
+    }
+}
+
+fn speed_words(speed: FuseSpeed) -> &'static str {
+    match speed {
+        FuseSpeed::Fast => "fast",
+        FuseSpeed::Slow => "time-delay (`speed: slow`)",
+    }
+}
+
+/// What a fuse at one place must satisfy, from the currents it carries
+/// (when the operating point is known) and the wires it protects: one
+/// window every fuse rule agrees with.
 struct Sizing {
+    /// Highest current over the continuous points: the rating carries 125 % of it.
     continuous: Option<ElectricCurrent>,
+    /// Highest current over the points that are not brief (`worst` among
+    /// them): a fast fuse is rated at least this, or a motor start blows it.
+    peak: Option<(ElectricCurrent, ModeId)>,
+    /// Each brief mode's peak: the fuse must not open within its duration.
+    brief: Vec<BriefPeak>,
     wire: Option<WireLimit>,
+    /// The speed tried first: the fuse's own.
+    preferred: FuseSpeed,
 }
 
 impl Sizing {
@@ -310,21 +422,58 @@ impl Sizing {
         self.continuous.map(minimum_rating)
     }
 
-    /// The standard rating that fits both the load and the wire.
-    fn suggested(&self) -> Option<ElectricCurrent> {
-        match self.minimum() {
-            Some(minimum) => blade_rating_for(minimum, self.wire.map(|w| w.ampacity)),
-            // Load unknown: the largest rating the wire allows.
-            None => {
-                let ceiling = self.wire?.ampacity;
-                BLADE_SERIES
-                    .iter()
-                    .rev()
-                    .copied()
-                    .find(|&r| !exceeds(r, amps(ceiling)))
-                    .map(ElectricCurrent::new::<ampere>)
-            }
+    /// Whether a fuse of `rating` and `speed` satisfies the load side of the
+    /// window (and the wire, when `within_wire`).
+    fn fits(&self, rating: f64, speed: FuseSpeed, within_wire: bool) -> bool {
+        let rated = ElectricCurrent::new::<ampere>(rating);
+        self.minimum().is_none_or(|m| !exceeds(amps(m), rating))
+            && (!within_wire || self.wire.is_none_or(|w| !exceeds(rating, amps(w.ampacity))))
+            && (speed == FuseSpeed::Slow
+                || self.peak.is_none_or(|(p, _)| !exceeds(amps(p), rating)))
+            && self
+                .brief
+                .iter()
+                .all(|b| !may_open(speed, rated, b.current, b.lasts))
+    }
+
+    fn speeds(&self) -> [FuseSpeed; 2] {
+        match self.preferred {
+            FuseSpeed::Fast => [FuseSpeed::Fast, FuseSpeed::Slow],
+            FuseSpeed::Slow => [FuseSpeed::Slow, FuseSpeed::Fast],
         }
+    }
+
+    fn first_fit(&self, within_wire: bool) -> Option<Suggestion> {
+        self.speeds().into_iter().find_map(|speed| {
+            BLADE_SERIES
+                .iter()
+                .copied()
+                .find(|&r| self.fits(r, speed, within_wire))
+                .map(|r| Suggestion {
+                    rating: ElectricCurrent::new::<ampere>(r),
+                    speed: (!self.fits(r, other_speed(speed), within_wire)).then_some(speed),
+                })
+        })
+    }
+
+    /// The standard blade fuse that every fuse rule accepts: the smallest
+    /// rating of the fuse's own speed that fits the window, else of the
+    /// other speed.
+    fn suggested(&self) -> Option<Suggestion> {
+        if self.continuous.is_none() {
+            // Load unknown: the largest rating the wire allows.
+            let ceiling = self.wire?.ampacity;
+            return BLADE_SERIES
+                .iter()
+                .rev()
+                .copied()
+                .find(|&r| !exceeds(r, amps(ceiling)))
+                .map(|r| Suggestion {
+                    rating: ElectricCurrent::new::<ampere>(r),
+                    speed: None,
+                });
+        }
+        self.first_fit(true)
     }
 
     fn describe_wire(&self, cx: &Context, wire: &WireLimit) -> String {
@@ -337,44 +486,86 @@ impl Sizing {
         )
     }
 
+    /// What the load side asks of the fuse, in words.
+    fn load_needs(&self, cx: &Context, speed: Option<FuseSpeed>) -> String {
+        let Some(continuous) = self.continuous else {
+            return String::new();
+        };
+        let mut needs = vec![format!(
+            "carries 125 % of the {} continuous current ({})",
+            show_current(continuous),
+            show_current(minimum_rating(continuous))
+        )];
+        for b in &self.brief {
+            needs.push(format!(
+                "rides through {} for {} in mode `{}`",
+                show_current(b.current),
+                show_duration(b.lasts),
+                b.mode.name(cx.plan)
+            ));
+        }
+        if speed == Some(FuseSpeed::Fast)
+            && let Some((peak, mode)) = self.peak
+            && exceeds(amps(peak), amps(minimum_rating(continuous)))
+        {
+            needs.push(format!(
+                "is not below the {} peak of mode `{}`",
+                show_current(peak),
+                mode.name(cx.plan)
+            ));
+        }
+        match needs.len() {
+            1 => needs.remove(0),
+            _ => {
+                let last = needs.pop().unwrap_or_default();
+                format!("{}, {last}", needs.join(", "))
+            }
+        }
+    }
+
     /// The sentence every fuse finding ends with.
     fn advice(&self, cx: &Context) -> String {
-        let Some(continuous) = self.continuous else {
+        if self.continuous.is_none() {
             return self.advice_without_load(cx);
-        };
-        let minimum = minimum_rating(continuous);
-        let load = format!(
-            "125 % of the {} continuous current ({})",
-            show_current(continuous),
-            show_current(minimum)
-        );
-        match (self.wire, self.suggested()) {
-            (Some(wire), Some(s)) => format!(
-                "the smallest standard blade rating that carries {load} and stays within {} is {}",
-                self.describe_wire(cx, &wire),
-                show_current(s)
-            ),
-            (None, Some(s)) => format!(
-                "the smallest standard blade rating that carries {load} is {}",
-                show_current(s)
-            ),
-            (wire, None) => match (wire, blade_rating_for(minimum, None)) {
-                (Some(wire), Some(load_fuse)) => {
-                    let heavier = thinnest_wire_for(load_fuse, wire.insulation)
-                        .map_or(String::new(), |(size, i)| {
-                            format!(" ({size} carries {})", show_current(i))
-                        });
-                    format!(
-                        "no standard blade rating both carries {load} and stays within {}: a heavier wire is needed{heavier}, protected by a {} fuse",
-                        self.describe_wire(cx, &wire),
-                        show_current(load_fuse)
-                    )
-                }
-                _ => format!(
-                    "{load} is above the largest standard blade rating ({}): use a higher-current fuse type, and wire that carries its rating",
-                    show_current(ElectricCurrent::new::<ampere>(BLADE_SERIES[12]))
+        }
+        if let Some(s) = self.suggested() {
+            let needs = self.load_needs(cx, s.speed);
+            return match self.wire {
+                Some(wire) => format!(
+                    "the smallest standard blade fuse that {needs} and stays within {} is {}",
+                    self.describe_wire(cx, &wire),
+                    s.describe()
                 ),
-            },
+                None => format!(
+                    "the smallest standard blade fuse that {needs} is {}",
+                    s.describe()
+                ),
+            };
+        }
+        match (self.wire, self.first_fit(false)) {
+            (Some(wire), Some(load_fuse)) => {
+                let needs = self.load_needs(cx, load_fuse.speed);
+                let heavier = thinnest_wire_for(load_fuse.rating, wire.insulation, wire.ambient)
+                    .map_or(String::new(), |(size, i)| {
+                        format!(
+                            " (run {} in {size}, which carries {})",
+                            wire.named(cx),
+                            show_current(i)
+                        )
+                    });
+                format!(
+                    "no standard blade fuse both {needs} and stays within {}: a heavier wire is needed{heavier}, protected by {}",
+                    self.describe_wire(cx, &wire),
+                    load_fuse.describe()
+                )
+            }
+            _ => format!(
+                "no standard blade fuse {}: the largest is {}; use a higher-current fuse type, and wire that carries its rating",
+                self.load_needs(cx, Some(FuseSpeed::Slow)),
+                show_current(ElectricCurrent::new::<ampere>(
+                    BLADE_SERIES[BLADE_SERIES.len() - 1]
+                ))
+            ),
         }
     }
 
@@ -385,7 +576,7 @@ impl Sizing {
             (Some(wire), Some(s)) => format!(
                 "rate it no higher than {}: at most a {} blade, and at least 125 % of the continuous current it carries",
                 self.describe_wire(cx, &wire),
-                show_current(s)
+                show_current(s.rating)
             ),
             (Some(wire), None) => format!(
                 "no standard blade rating stays within {}: a heavier wire is needed",
@@ -405,7 +596,14 @@ impl Sizing {
             finding = finding.value("ampacity", amps(w.ampacity));
         }
         if let Some(s) = self.suggested() {
-            finding = finding.value("suggested_rating", amps(s));
+            finding = finding.value("suggested_rating", amps(s.rating));
+            // Present only when the suggestion holds for one speed alone.
+            if let Some(speed) = s.speed {
+                finding = finding.value(
+                    "suggested_time_delay",
+                    if speed == FuseSpeed::Slow { 1.0 } else { 0.0 },
+                );
+            }
         }
         finding
     }
@@ -453,11 +651,74 @@ fn continuous_through<'p>(cx: &'p Context, net: NetId) -> Option<(&'p OperatingP
     })
 }
 
-fn sizing_at(cx: &Context, net: NetId) -> Sizing {
+fn sizing_at(cx: &Context, net: NetId, speed: FuseSpeed) -> Sizing {
+    let through = |p: &OperatingPoint| Some(amps(p.net_current[net]).abs());
     Sizing {
         continuous: continuous_through(cx, net).map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
+        peak: peak_through(cx, through),
+        brief: brief_peaks(cx, through),
         wire: weakest(&protected_wires(cx, net)),
+        preferred: speed,
     }
+}
+
+/// The highest current over the points that are not brief, with its mode.
+fn peak_through(
+    cx: &Context,
+    measure: impl Fn(&OperatingPoint) -> Option<f64>,
+) -> Option<(ElectricCurrent, ModeId)> {
+    worst_point(cx.points().filter(|p| p.brief.is_none()), measure)
+        .map(|(p, i)| (ElectricCurrent::new::<ampere>(i), p.mode))
+}
+
+/// Each brief mode's highest current, with how long the mode lasts.
+fn brief_peaks(cx: &Context, measure: impl Fn(&OperatingPoint) -> Option<f64>) -> Vec<BriefPeak> {
+    let mut peaks: Vec<BriefPeak> = Vec::new();
+    for mode in ModeId::all(cx.plan) {
+        let found = worst_point(
+            cx.points().filter(|p| p.mode == mode && p.brief.is_some()),
+            &measure,
+        );
+        if let Some((point, current)) = found
+            && let Some(lasts) = point.brief
+            && current > 0.0
+        {
+            peaks.push(BriefPeak {
+                current: ElectricCurrent::new::<ampere>(current),
+                lasts,
+                mode,
+            });
+        }
+    }
+    peaks
+}
+
+/// The motors whose current runs through `net`: fed straight from a net
+/// below it, or through a driver whose motor supply is below it.
+fn motors_below(cx: &Context, net: NetId) -> Vec<PartId> {
+    let plan = cx.plan;
+    let mut below = vec![false; plan.nets.len()];
+    let mut stack = vec![net];
+    while let Some(n) = stack.pop() {
+        if std::mem::replace(&mut below[n], true) {
+            continue;
+        }
+        stack.extend(cx.circuit.children[n].iter().copied());
+    }
+    cx.circuit
+        .motor_feed
+        .iter()
+        .enumerate()
+        .filter(|(_, feed)| match feed {
+            Some(MotorFeed::Direct { supply, .. }) => below[*supply],
+            Some(MotorFeed::Driver { driver, .. }) => plan.parts[*driver]
+                .pin("vm")
+                .and_then(|p| plan.parts[*driver].pins[p].net)
+                .is_some_and(|n| below[n]),
+            None => false,
+        })
+        .map(|(m, _)| m)
+        .collect()
 }
 
 // ----- fuse/missing ----------------------------------------------------------
@@ -703,12 +964,14 @@ fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
                 }
                 _ => "make a fuse the first element on the battery positive".to_string(),
             };
+            let from_battery = |p: &OperatingPoint| p.batteries[part_id].map(|b| amps(b.current));
             let sizing = Sizing {
-                continuous: worst_point(cx.points().filter(continuous), |p| {
-                    p.batteries[part_id].map(|b| amps(b.current))
-                })
-                .map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
+                continuous: worst_point(cx.points().filter(continuous), from_battery)
+                    .map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
+                peak: peak_through(cx, from_battery),
+                brief: brief_peaks(cx, from_battery),
                 wire: weakest(&wires),
+                preferred: FuseSpeed::Fast,
             };
             let finding = Finding::new(&MISSING, cx.pin_span(terminal), message)
                 .label(marked, label)
@@ -737,24 +1000,40 @@ fn check_undersized(cx: &Context, out: &mut Vec<Finding>) {
         if !exceeds(amps(minimum), amps(rating.value)) {
             continue;
         }
-        let sizing = sizing_at(cx, net);
-        let finding = Finding::new(
-            &UNDERSIZED,
-            rated_span(cx, &rating, fuse.part),
+        let sizing = sizing_at(cx, net, fuse.spec.speed);
+        let steady = ElectricCurrent::new::<ampere>(current);
+        // Below the steady current itself the fuse blows in normal work:
+        // an error, not a thin margin.
+        let blows = exceeds(current, amps(rating.value));
+        let message = if blows {
+            format!(
+                "`{}` is rated {} and carries {} continuous {}: above its rating, it blows in normal work; at 125 % it needs a rating of {}",
+                fuse.name,
+                show_current(rating.value),
+                show_current(steady),
+                mode_label(cx.plan, point.mode, point.battery),
+                show_current(minimum)
+            )
+        } else {
             format!(
                 "`{}` carries {} continuous {}; at 125 % it needs a rating of {}, and it is rated {}",
                 fuse.name,
-                show_current(ElectricCurrent::new::<ampere>(current)),
+                show_current(steady),
                 mode_label(cx.plan, point.mode, point.battery),
                 show_current(minimum),
                 show_current(rating.value)
-            ),
-        )
-        .at_point(cx.plan, point)
-        .help(sizing.advice(cx))
-        .part(fuse.name)
-        .net(cx.net_name(net))
-        .value("rating", amps(rating.value));
+            )
+        };
+        let mut finding = Finding::new(&UNDERSIZED, rated_span(cx, &rating, fuse.part), message);
+        if blows {
+            finding.severity = Severity::Error;
+        }
+        let finding = finding
+            .at_point(cx.plan, point)
+            .help(sizing.advice(cx))
+            .part(fuse.name)
+            .net(cx.net_name(net))
+            .value("rating", amps(rating.value));
         out.push(sizing.values(finding));
     }
 }
@@ -773,7 +1052,7 @@ fn check_oversized(cx: &Context, out: &mut Vec<Finding>) {
         let Some(thinnest) = weakest(&over) else {
             continue;
         };
-        let sizing = sizing_at(cx, net);
+        let sizing = sizing_at(cx, net, fuse.spec.speed);
         let mut finding = Finding::new(
             &OVERSIZED,
             rated_span(cx, &rating, fuse.part),
@@ -877,7 +1156,9 @@ fn check_voltage(cx: &Context, out: &mut Vec<Finding>) {
                 show_voltage(circuit)
             ),
         };
-        let sizing = fuse.downstream.map(|net| sizing_at(cx, net));
+        let sizing = fuse
+            .downstream
+            .map(|net| sizing_at(cx, net, fuse.spec.speed));
         let advice = sizing
             .as_ref()
             .map_or(String::new(), |s| format!("; {}", s.advice(cx)));
@@ -910,47 +1191,110 @@ fn check_voltage(cx: &Context, out: &mut Vec<Finding>) {
 
 fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
     for fuse in fuses(cx) {
-        if fuse.spec.speed != FuseSpeed::Fast {
-            continue;
-        }
         let (Some(rating), Some(net)) = (fuse.spec.rating, fuse.downstream) else {
             continue;
         };
-        let Some((point, peak)) =
-            worst_point(cx.points(), |p| Some(amps(p.net_current[net]).abs()))
-        else {
+        let speed = fuse.spec.speed;
+        let motors = motors_below(cx, net);
+        // Name the motors behind this fuse that stall at the point; with
+        // none, the peak is a load's, not a motor start.
+        let cause = |point: &OperatingPoint| {
+            let stalled: Vec<String> = motors
+                .iter()
+                .filter(|&&m| point.motors[m].is_some_and(|m| m.state == MotorState::Stall))
+                .map(|&m| format!("`{}`", cx.part_name(m)))
+                .collect();
+            (!stalled.is_empty()).then(|| stalled.join(" and "))
+        };
+        let sizing = sizing_at(cx, net, speed);
+        let through = |p: &OperatingPoint| amps(p.net_current[net]).abs();
+
+        // A brief mode: the fuse must not open within the time it lasts.
+        let opening = cx
+            .points()
+            .filter_map(|p| p.brief.map(|lasts| (p, lasts)))
+            .filter(|(p, lasts)| {
+                may_open(
+                    speed,
+                    rating.value,
+                    ElectricCurrent::new::<ampere>(through(p)),
+                    *lasts,
+                )
+            })
+            .max_by(|(a, _), (b, _)| through(a).total_cmp(&through(b)));
+        if let Some((point, lasts)) = opening {
+            let current = ElectricCurrent::new::<ampere>(through(point));
+            let multiple = amps(current) / amps(rating.value);
+            let band = match least_opening_time(speed, multiple) {
+                Some(least) => format!(
+                    "{} lets a {} fuse open from {} at that multiple",
+                    match speed {
+                        FuseSpeed::Fast => "ISO 8820-3",
+                        FuseSpeed::Slow => "IEC 60127-2 (time-lag)",
+                    },
+                    match speed {
+                        FuseSpeed::Fast => "blade",
+                        FuseSpeed::Slow => "time-delay",
+                    },
+                    show_duration(least)
+                ),
+                None => "past the published bands it may open at once".to_string(),
+            };
+            let what = match cause(point) {
+                Some(stalled) => format!("while {stalled} stall"),
+                None => "at that peak".to_string(),
+            };
+            let finding = Finding::new(
+                &NUISANCE,
+                rated_span(cx, &rating, fuse.part),
+                format!(
+                    "`{}` is a {} fuse rated {} and carries {} ({} of its rating) for {} {}: {band}, so it may blow {what}",
+                    fuse.name,
+                    speed_words(speed),
+                    show_current(rating.value),
+                    show_current(current),
+                    show_share(Ratio::new::<ratio>(multiple)),
+                    show_duration(lasts),
+                    mode_label(cx.plan, point.mode, point.battery)
+                ),
+            )
+            .at_point(cx.plan, point)
+            .help(sizing.advice(cx))
+            .part(fuse.name)
+            .net(cx.net_name(net))
+            .value("rating", amps(rating.value))
+            .value("peak", amps(current))
+            .value("lasts", lasts.get::<second>());
+            out.push(sizing.values(finding));
+            continue;
+        }
+
+        // Every other peak, `worst` among them, for a fast fuse: a motor
+        // start lasts tens of milliseconds at the stall current.
+        if speed != FuseSpeed::Fast {
+            continue;
+        }
+        let Some((point, peak)) = worst_point(cx.points().filter(|p| p.brief.is_none()), |p| {
+            Some(through(p))
+        }) else {
             continue;
         };
         if !exceeds(peak, amps(rating.value)) {
             continue;
         }
-        let stalled: Vec<String> = point
-            .motors
-            .iter()
-            .enumerate()
-            .filter(|(_, m)| m.is_some_and(|m| m.state == crate::model::MotorState::Stall))
-            .map(|(m, _)| format!("`{}`", cx.part_name(m)))
-            .collect();
-        let cause = if stalled.is_empty() {
-            String::new()
-        } else {
-            format!(" with {} stalled", stalled.join(" and "))
-        };
-        let sizing = sizing_at(cx, net);
         let peak_current = ElectricCurrent::new::<ampere>(peak);
-        let fast_alternative = blade_rating_for(peak_current, sizing.wire.map(|w| w.ampacity))
-            .filter(|&r| sizing.minimum().is_none_or(|m| !exceeds(amps(m), amps(r))))
-            .map_or(String::new(), |r| {
-                format!(
-                    ", or a fast fuse of {}, above that peak and within the wire's ampacity",
-                    show_current(r)
-                )
-            });
+        let (cause, risk) = match cause(point) {
+            Some(stalled) => (
+                format!(" with {stalled} stalled"),
+                "it may blow at motor start",
+            ),
+            None => (String::new(), "it may blow at that peak"),
+        };
         let finding = Finding::new(
             &NUISANCE,
             rated_span(cx, &rating, fuse.part),
             format!(
-                "`{}` is a fast fuse rated {} and carries {} peak{cause} {}: it may blow at motor start",
+                "`{}` is a fast fuse rated {} and carries {} peak{cause} {}: {risk}",
                 fuse.name,
                 show_current(rating.value),
                 show_current(peak_current),
@@ -958,10 +1302,7 @@ fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
             ),
         )
         .at_point(cx.plan, point)
-        .help(format!(
-            "use a time-delay (`speed: slow`) fuse{fast_alternative}; {}",
-            sizing.advice(cx)
-        ))
+        .help(sizing.advice(cx))
         .part(fuse.name)
         .net(cx.net_name(net))
         .value("rating", amps(rating.value))
@@ -1005,14 +1346,14 @@ mod tests {
     #[test]
     fn thinnest_even_gauge_for_a_fifteen_amp_fuse() {
         // Handbook chassis column: 20 AWG 11 A is too thin, 18 AWG 16 A carries 15 A.
-        let (size, limit) = thinnest_wire_for(a(15.0), None).unwrap();
+        let (size, limit) = thinnest_wire_for(a(15.0), None, None).unwrap();
         assert_eq!(size, WireSize::Awg(18));
         assert_eq!(amps(limit), 16.0);
         // 33 CFR Table 5 at 60 °C: 18 AWG 10 A, 16 AWG 15 A.
         let sixty = ThermodynamicTemperature::new::<
             uom::si::thermodynamic_temperature::degree_celsius,
         >(60.0);
-        let (size, _) = thinnest_wire_for(a(15.0), Some(sixty)).unwrap();
+        let (size, _) = thinnest_wire_for(a(15.0), Some(sixty), None).unwrap();
         assert_eq!(size, WireSize::Awg(16));
     }
 }

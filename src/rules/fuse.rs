@@ -60,7 +60,7 @@ pub const UNDERSIZED: Rule = Rule {
     severity: Severity::Warning,
     summary: "rating below 125 % of the continuous current through it",
     doc: RuleDoc {
-        what: "The continuous current through each fuse (the highest over `typical` and the user's modes, never `worst`) against its rating: the rating must be at least 125 % of it (continuous load at most 80 % of the rating).",
+        what: "The continuous current through each fuse (the highest over `typical` and the user's modes that are not brief, never `worst`) against its rating: the rating must be at least 125 % of it (continuous load at most 80 % of the rating). Below 125 % it is a warning; below the continuous current itself (the fuse blows in normal work) an error.",
         why: "A fuse carrying close to its rating for hours runs hot and ages; it blows on an ordinary day's work, stopping the robot in the field, and a fuse that blows for no fault tempts its owner to fit a bigger one than the wire allows.",
         example: "railcheck: 1\nname: warehouse cart heater\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-5a }   # 4.5 A continuous needs 1.25 x 4.5 A = 5.625 A\n  heater: { class: load, pins: { vin: { role: supply-in, draw: 4.5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  HEAT: { pins: [main_fuse.b, heater.vin], wire: 18 AWG, length: 1 m }   # 18 AWG carries 16 A\n  GND: { pins: [pack.neg, heater.gnd], wire: 18 AWG, length: 1 m }",
         fix: "railcheck: 1\nname: warehouse cart heater\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-7a5 }   # 5.625 A <= 7.5 A <= the 16 A of 18 AWG\n  heater: { class: load, pins: { vin: { role: supply-in, draw: 4.5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  HEAT: { pins: [main_fuse.b, heater.vin], wire: 18 AWG, length: 1 m }   # 18 AWG carries 16 A\n  GND: { pins: [pack.neg, heater.gnd], wire: 18 AWG, length: 1 m }",
@@ -103,13 +103,13 @@ pub const VOLTAGE: Rule = Rule {
 pub const NUISANCE: Rule = Rule {
     id: "fuse/nuisance",
     severity: Severity::Warning,
-    summary: "a fast fuse rated below the peak (stall) current it carries",
+    summary: "a fuse that a motor start or a brief mode may blow",
     doc: RuleDoc {
-        what: "Each `speed: fast` fuse's rating against the highest current through it over every mode, `worst` included (every motor stalled, every load at its peak).",
+        what: "Each fuse against the peaks it carries. In a brief mode (`lasts` 5 s or less): the current as a multiple of the rating against the shortest time the fuse may take to open at that multiple (ISO 8820-3 blade bands for `fast`, the IEC 60127-2 time-lag sheet for `slow`); if the mode lasts that long, the fuse may blow. Over the other modes, `worst` included (every motor stalled, or `limits.stall_at_once` of them): a `fast` fuse rated below the peak, or a `slow` fuse that may open within a 100 ms motor start. A motor start is named only when a motor behind the fuse stalls at that moment.",
         why: "Every motor start is a stall for tens of milliseconds; a fast fuse rated below that current blows at start-up or the first time a wheel jams, though nothing is wrong with the wiring.",
         example: "railcheck: 1\nname: greenhouse vent opener\nparts:\n  pack: { use: battery/lead-acid-12v }   # 13.8 V full\n  vent_fuse: { use: fuse/blade-5a }   # fast; stall: 13.8 V / (2.4 + 0.025) ohm = 5.69 A\n  stop: { use: switch/estop-20a }\n  vent: { use: motor/gearmotor-medium }   # 12 V, 5 A stall: 2.4 ohm\nnets:\n  BATT+: [pack.pos, vent_fuse.a]\n  FUSED: [vent_fuse.b, stop.a]\n  VENT: [stop.b, vent.a]\n  GND: [pack.neg, vent.b]",
         fix: "railcheck: 1\nname: greenhouse vent opener\nparts:\n  pack: { use: battery/lead-acid-12v }   # 13.8 V full\n  vent_fuse: { use: fuse/blade-5a, with: { speed: slow } }   # time-delay: rides through the stall\n  stop: { use: switch/estop-20a }\n  vent: { use: motor/gearmotor-medium }   # 12 V, 5 A stall: 2.4 ohm\nnets:\n  BATT+: [pack.pos, vent_fuse.a]\n  FUSED: [vent_fuse.b, stop.a]\n  VENT: [stop.b, vent.a]\n  GND: [pack.neg, vent.b]",
-        references: "Motor circuits take time-delay fuses that ride through the start-up inrush, equal to the stall current for 10–100 ms (IEC 60127 'T' characteristic, NEC Art. 430, common practice); stall current I = V / R_winding (brushed DC motor equation).",
+        references: "Motor circuits take time-delay fuses that ride through the start-up inrush, equal to the stall current for 10–100 ms (IEC 60127 'T' characteristic, NEC Art. 430, common practice); opening-time bands per multiple of rating: ISO 8820-3 (blade fuse-links) and IEC 60127-2 standard sheet 3 (time-lag), both from memory; stall current I = V / R_winding (brushed DC motor equation).",
     },
     needs_operating_point: true,
     check: check_nuisance,
@@ -360,6 +360,22 @@ const BLADE_LEAST_OPENING: [(f64, f64); 5] = [
 const TIME_LAG_LEAST_OPENING: [(f64, f64); 4] =
     [(1.5, 3_600.0), (2.75, 0.2), (4.0, 0.04), (10.0, 0.01)];
 
+/// How long the peaks of `worst` last for a time-delay fuse: a motor start,
+/// stall current for 10–100 ms (common practice); the longer end is taken.
+pub fn motor_start() -> Time {
+    Time::new::<second>(0.1)
+}
+
+/// Whether a peak outside any brief mode may open the fuse: a fast fuse
+/// must be rated at least the peak (it may blow at every motor start); a
+/// time-delay fuse must not open within a motor start.
+fn peak_may_open(speed: FuseSpeed, rating: ElectricCurrent, peak: ElectricCurrent) -> bool {
+    match speed {
+        FuseSpeed::Fast => exceeds(amps(peak), amps(rating)),
+        FuseSpeed::Slow => may_open(speed, rating, peak, motor_start()),
+    }
+}
+
 fn least_opening_table(speed: FuseSpeed) -> &'static [(f64, f64)] {
     match speed {
         FuseSpeed::Fast => &BLADE_LEAST_OPENING,
@@ -428,8 +444,9 @@ impl Sizing {
         let rated = ElectricCurrent::new::<ampere>(rating);
         self.minimum().is_none_or(|m| !exceeds(amps(m), rating))
             && (!within_wire || self.wire.is_none_or(|w| !exceeds(rating, amps(w.ampacity))))
-            && (speed == FuseSpeed::Slow
-                || self.peak.is_none_or(|(p, _)| !exceeds(amps(p), rating)))
+            && self
+                .peak
+                .is_none_or(|(p, _)| !peak_may_open(speed, rated, p))
             && self
                 .brief
                 .iter()
@@ -454,6 +471,26 @@ impl Sizing {
                     speed: (!self.fits(r, other_speed(speed), within_wire)).then_some(speed),
                 })
         })
+    }
+
+    /// When no fuse fits the wire: the smallest rating of either speed that
+    /// fits the load, which needs the thinnest heavier wire.
+    fn smallest_ignoring_wire(&self) -> Option<Suggestion> {
+        let mut best: Option<Suggestion> = None;
+        for speed in self.speeds() {
+            if let Some(r) = BLADE_SERIES
+                .iter()
+                .copied()
+                .find(|&r| self.fits(r, speed, false))
+                && best.is_none_or(|b| r < amps(b.rating))
+            {
+                best = Some(Suggestion {
+                    rating: ElectricCurrent::new::<ampere>(r),
+                    speed: (!self.fits(r, other_speed(speed), false)).then_some(speed),
+                });
+            }
+        }
+        best
     }
 
     /// The standard blade fuse that every fuse rule accepts: the smallest
@@ -504,15 +541,22 @@ impl Sizing {
                 b.mode.name(cx.plan)
             ));
         }
-        if speed == Some(FuseSpeed::Fast)
-            && let Some((peak, mode)) = self.peak
+        if let Some((peak, mode)) = self.peak
             && exceeds(amps(peak), amps(minimum_rating(continuous)))
         {
-            needs.push(format!(
-                "is not below the {} peak of mode `{}`",
-                show_current(peak),
-                mode.name(cx.plan)
-            ));
+            needs.push(match speed {
+                Some(FuseSpeed::Fast) => format!(
+                    "is not below the {} peak of mode `{}`",
+                    show_current(peak),
+                    mode.name(cx.plan)
+                ),
+                _ => format!(
+                    "rides through the {} peak of mode `{}` for a motor start ({})",
+                    show_current(peak),
+                    mode.name(cx.plan),
+                    show_duration(motor_start())
+                ),
+            });
         }
         match needs.len() {
             1 => needs.remove(0),
@@ -542,7 +586,7 @@ impl Sizing {
                 ),
             };
         }
-        match (self.wire, self.first_fit(false)) {
+        match (self.wire, self.smallest_ignoring_wire()) {
             (Some(wire), Some(load_fuse)) => {
                 let needs = self.load_needs(cx, load_fuse.speed);
                 let heavier = thinnest_wire_for(load_fuse.rating, wire.insulation, wire.ambient)
@@ -1269,20 +1313,17 @@ fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
             continue;
         }
 
-        // Every other peak, `worst` among them, for a fast fuse: a motor
-        // start lasts tens of milliseconds at the stall current.
-        if speed != FuseSpeed::Fast {
-            continue;
-        }
+        // Every other peak, `worst` among them: a motor start lasts tens of
+        // milliseconds at the stall current.
         let Some((point, peak)) = worst_point(cx.points().filter(|p| p.brief.is_none()), |p| {
             Some(through(p))
         }) else {
             continue;
         };
-        if !exceeds(peak, amps(rating.value)) {
+        let peak_current = ElectricCurrent::new::<ampere>(peak);
+        if !peak_may_open(speed, rating.value, peak_current) {
             continue;
         }
-        let peak_current = ElectricCurrent::new::<ampere>(peak);
         let (cause, risk) = match cause(point) {
             Some(stalled) => (
                 format!(" with {stalled} stalled"),
@@ -1290,12 +1331,21 @@ fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
             ),
             None => (String::new(), "it may blow at that peak"),
         };
+        let how = match speed {
+            FuseSpeed::Fast => String::new(),
+            FuseSpeed::Slow => format!(
+                " ({} of its rating, where IEC 60127-2 (time-lag) lets it open within a {} motor start)",
+                show_share(Ratio::new::<ratio>(peak / amps(rating.value))),
+                show_duration(motor_start())
+            ),
+        };
         let finding = Finding::new(
             &NUISANCE,
             rated_span(cx, &rating, fuse.part),
             format!(
-                "`{}` is a fast fuse rated {} and carries {} peak{cause} {}: {risk}",
+                "`{}` is a {} fuse rated {} and carries {} peak{cause} {}{how}: {risk}",
                 fuse.name,
+                speed_words(speed),
                 show_current(rating.value),
                 show_current(peak_current),
                 mode_label(cx.plan, point.mode, point.battery)

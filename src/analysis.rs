@@ -19,7 +19,7 @@ use crate::units::{WireSize, show_power};
 use crate::wire;
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
-use uom::si::f64::{ElectricCurrent, ElectricPotential, ElectricalResistance, Power};
+use uom::si::f64::{ElectricCurrent, ElectricPotential, ElectricalResistance, Power, Time};
 use uom::si::power::watt;
 use uom::si::ratio::ratio;
 
@@ -177,6 +177,17 @@ pub struct OperatingPoint {
     pub batteries: Vec<Option<BatteryPoint>>,
     /// Per USB link: current over its VBUS conductor.
     pub link_current: Vec<ElectricCurrent>,
+    /// How long the point lasts when its mode is a brief peak (`lasts:` of
+    /// 5 s or less); `None` for `typical`, `worst` and longer modes.
+    pub brief: Option<Time>,
+}
+
+impl OperatingPoint {
+    /// Whether the point meets continuous ratings: not `worst`, and not a
+    /// brief peak (format reference §6).
+    pub fn is_continuous(&self) -> bool {
+        self.mode.is_continuous() && self.brief.is_none()
+    }
 }
 
 /// Every operating point of a plan.
@@ -188,10 +199,19 @@ pub struct Analysis {
 impl Analysis {
     pub fn solve(plan: &Plan, circuit: &Circuit) -> Analysis {
         let mut points = Vec::new();
+        let groups = stall_groups(plan, circuit);
         for mode in ModeId::all(plan) {
-            for battery in BatteryState::ALL {
-                for corner in [Corner::Low, Corner::High] {
-                    points.push(solve_point(plan, circuit, mode, battery, corner));
+            let stall_sets: Vec<Option<&[PartId]>> = match (mode, &groups) {
+                (ModeId::WORST, Some(groups)) => {
+                    groups.iter().map(|g| Some(g.as_slice())).collect()
+                }
+                _ => vec![None],
+            };
+            for stalled in stall_sets {
+                for battery in BatteryState::ALL {
+                    for corner in [Corner::Low, Corner::High] {
+                        points.push(solve_point(plan, circuit, mode, battery, corner, stalled));
+                    }
                 }
             }
         }
@@ -201,6 +221,51 @@ impl Analysis {
     pub fn settled(&self) -> impl Iterator<Item = &OperatingPoint> {
         self.points.iter().filter(|p| p.unsettled.is_none())
     }
+}
+
+/// The most groups of motors `worst` is solved for: past it, every motor
+/// stalls at once, as without `stall_at_once` (the answer stays on the safe side).
+const MAX_STALL_GROUPS: usize = 64;
+
+/// The groups of motors that may stall together in `worst` when the plan
+/// bounds how many stall at once (`limits.stall_at_once`): every choice of
+/// that many of its motors, each solved as its own `worst` point, so each
+/// rating meets the heaviest group it carries. `None` when every motor
+/// stalls at once.
+pub fn stall_groups(plan: &Plan, circuit: &Circuit) -> Option<Vec<Vec<PartId>>> {
+    let at_once = plan.limits.stall_at_once?.value as usize;
+    let motors: Vec<PartId> = (0..plan.parts.len())
+        .filter(|&p| {
+            matches!(plan.parts[p].class, Class::Motor(_)) && circuit.motor_feed[p].is_some()
+        })
+        .collect();
+    if at_once >= motors.len() {
+        return None;
+    }
+    let mut groups = Vec::new();
+    let mut chosen = Vec::with_capacity(at_once);
+    fn choose(
+        motors: &[PartId],
+        from: usize,
+        left: usize,
+        chosen: &mut Vec<PartId>,
+        groups: &mut Vec<Vec<PartId>>,
+    ) -> bool {
+        if left == 0 {
+            groups.push(chosen.clone());
+            return groups.len() <= MAX_STALL_GROUPS;
+        }
+        for i in from..=motors.len() - left {
+            chosen.push(motors[i]);
+            let more = choose(motors, i + 1, left - 1, chosen, groups);
+            chosen.pop();
+            if !more {
+                return false;
+            }
+        }
+        true
+    }
+    choose(&motors, 0, at_once, &mut chosen, &mut groups).then_some(groups)
 }
 
 /// What state a mode puts a part in.
@@ -247,17 +312,24 @@ fn zero_voltage() -> ElectricPotential {
 }
 
 /// Resistance of a net's conductor, if it has a wire and a length.
+/// Its copper at the net's ambient when the plan gives one, else at 20 °C
+/// (format reference §4).
 pub fn net_resistance(plan: &Plan, net: NetId) -> Option<ElectricalResistance> {
     let n = &plan.nets[net];
     let (wire, length) = (n.wire?, n.length?);
-    Some(wire::resistance(wire.value, length.value))
+    Some(wire::resistance_at(
+        wire.value,
+        length.value,
+        plan.conductor_ambient(net),
+    ))
 }
 
 fn link_resistance(
+    plan: &Plan,
     wire: Option<WireSize>,
     length: Option<uom::si::f64::Length>,
 ) -> Option<ElectricalResistance> {
-    Some(wire::resistance(wire?, length?))
+    Some(wire::resistance_at(wire?, length?, plan.cable_ambient()))
 }
 
 struct Solver<'a> {
@@ -266,15 +338,19 @@ struct Solver<'a> {
     mode: ModeId,
     battery: BatteryState,
     corner: Corner,
+    /// In a bounded `worst`: the motors that stall at this point (the
+    /// others run).
+    stalled: Option<&'a [PartId]>,
     resistance: Vec<Option<ElectricalResistance>>,
 }
 
-fn solve_point(
-    plan: &Plan,
-    circuit: &Circuit,
+fn solve_point<'a>(
+    plan: &'a Plan,
+    circuit: &'a Circuit,
     mode: ModeId,
     battery: BatteryState,
     corner: Corner,
+    stalled: Option<&'a [PartId]>,
 ) -> OperatingPoint {
     let solver = Solver {
         plan,
@@ -282,6 +358,7 @@ fn solve_point(
         mode,
         battery,
         corner,
+        stalled,
         resistance: (0..plan.nets.len())
             .map(|n| net_resistance(plan, n))
             .collect(),
@@ -314,6 +391,10 @@ impl Solver<'_> {
             channels: vec![Vec::new(); plan.parts.len()],
             batteries: vec![None; plan.parts.len()],
             link_current: vec![zero_current(); plan.links.len()],
+            brief: match self.mode.0 {
+                0 | 1 => None,
+                n => plan.modes[n - 2].brief(),
+            },
         }
     }
 
@@ -624,9 +705,10 @@ impl Solver<'_> {
             let Class::Motor(motor) = &plan.parts[part_id].class else {
                 continue;
             };
-            let state = match part_state(plan, self.mode, part_id) {
-                PartState::Motor(s) => s,
-                PartState::Load(_) => MotorState::Running,
+            let state = match (self.stalled, part_state(plan, self.mode, part_id)) {
+                (Some(group), _) if !group.contains(&part_id) => MotorState::Running,
+                (_, PartState::Motor(s)) => s,
+                (_, PartState::Load(_)) => MotorState::Running,
             };
             let (supply_voltage, drop) = match feed {
                 Some(MotorFeed::Driver { driver, .. }) => {
@@ -942,5 +1024,5 @@ impl Solver<'_> {
 /// Link resistance of a USB cable's VBUS conductor, for the wire rules.
 pub fn usb_link_resistance(plan: &Plan, link: usize) -> Option<ElectricalResistance> {
     let l = &plan.links[link];
-    link_resistance(l.wire.map(|w| w.value), l.length.map(|l| l.value))
+    link_resistance(plan, l.wire.map(|w| w.value), l.length.map(|l| l.value))
 }

@@ -20,7 +20,7 @@ use uom::si::electric_potential::volt;
 use uom::si::electrical_resistance::ohm;
 use uom::si::f64::{
     Area, ElectricCharge, ElectricCurrent, ElectricPotential, ElectricalResistance, Length, Power,
-    Ratio, ThermalResistance, ThermodynamicTemperature,
+    Ratio, ThermalResistance, ThermodynamicTemperature, Time,
 };
 use uom::si::length::meter;
 use uom::si::power::watt;
@@ -138,6 +138,11 @@ pub fn thermal_resistance(text: &str) -> Result<ThermalResistance, UnitError> {
 /// A length: `0.6 m`, `60 cm`, `600 mm`, `24 in`, `2 ft`.
 pub fn length(text: &str) -> Result<Length, UnitError> {
     single_value(text, Kind::Length).map(Length::new::<meter>)
+}
+
+/// A duration: `2 s`, `500 ms`, `1.5 min`.
+pub fn duration(text: &str) -> Result<Time, UnitError> {
+    single_value(text, Kind::Duration).map(Time::new::<uom::si::time::second>)
 }
 
 /// A wire size: `18 AWG`, `4/0 AWG` (also `0000 AWG`), `0.75 mm2`, `0.75 mm²`.
@@ -287,11 +292,13 @@ pub enum Quantity {
     Share,
     /// A current or a C-rate `25C`.
     DischargeRate,
+    /// How long something lasts: `2 s`, `500 ms`, `1 min`.
+    Duration,
 }
 
 impl Quantity {
     /// Every kind, in the order the format reference lists them.
-    pub const ALL: [Quantity; 12] = [
+    pub const ALL: [Quantity; 13] = [
         Quantity::Voltage,
         Quantity::VoltageBand,
         Quantity::Current,
@@ -304,6 +311,7 @@ impl Quantity {
         Quantity::WireSize,
         Quantity::Share,
         Quantity::DischargeRate,
+        Quantity::Duration,
     ];
 
     /// What the format reference calls it.
@@ -321,6 +329,7 @@ impl Quantity {
             Quantity::WireSize => "wire size",
             Quantity::Share => "share",
             Quantity::DischargeRate => "discharge rate",
+            Quantity::Duration => "duration",
         }
     }
 
@@ -339,6 +348,7 @@ impl Quantity {
             Quantity::WireSize => wire_size(text).map(drop),
             Quantity::Share => share(text).map(drop),
             Quantity::DischargeRate => discharge_rate(text).map(drop),
+            Quantity::Duration => duration(text).map(drop),
         }
     }
 
@@ -354,6 +364,7 @@ impl Quantity {
             Quantity::Temperature => of(Kind::Temperature),
             Quantity::ThermalResistance => of(Kind::ThermalResistance),
             Quantity::Length => of(Kind::Length),
+            Quantity::Duration => of(Kind::Duration),
             Quantity::WireSize => WIRE_UNITS.to_vec(),
             Quantity::Share => vec!["%"],
             Quantity::DischargeRate => {
@@ -417,6 +428,11 @@ pub fn show_length(l: Length) -> String {
     show_scaled(l.get::<meter>(), METERS)
 }
 
+/// `2 s`, `100 ms`.
+pub fn show_duration(t: Time) -> String {
+    show_scaled(t.get::<uom::si::time::second>(), SECONDS)
+}
+
 /// `80 %`, `4.24 %`.
 pub fn show_share(r: Ratio) -> String {
     show_scaled(r.get::<ratio>() * 100.0, PERCENT)
@@ -436,9 +452,10 @@ enum Kind {
     Temperature,
     ThermalResistance,
     Length,
+    Duration,
 }
 
-const ALL_KINDS: [Kind; 8] = [
+const ALL_KINDS: [Kind; 9] = [
     Kind::Voltage,
     Kind::Current,
     Kind::Charge,
@@ -447,6 +464,7 @@ const ALL_KINDS: [Kind; 8] = [
     Kind::Temperature,
     Kind::ThermalResistance,
     Kind::Length,
+    Kind::Duration,
 ];
 
 /// One accepted spelling of a unit. In the kind's base unit (V, A, C, W, Ω, K, K/W, m) a number
@@ -559,6 +577,13 @@ const LENGTH_UNITS: &[Spelling] = &[
     scaled("ft", 3048.0, 1e4),
 ];
 
+/// A minute is 60 s exactly.
+const DURATION_UNITS: &[Spelling] = &[
+    scaled("s", 1.0, 1.0),
+    scaled("ms", 1.0, 1e3),
+    scaled("min", 60.0, 1.0),
+];
+
 const WIRE_UNITS: [&str; 3] = ["AWG", "mm2", "mm\u{b2}"];
 
 /// The thickest gauge: ASTM B258 runs from No. 0000 (4/0).
@@ -579,6 +604,7 @@ impl Kind {
             Kind::Temperature => TEMPERATURE_UNITS,
             Kind::ThermalResistance => THERMAL_RESISTANCE_UNITS,
             Kind::Length => LENGTH_UNITS,
+            Kind::Duration => DURATION_UNITS,
         }
     }
 
@@ -592,6 +618,7 @@ impl Kind {
             Kind::Temperature => "temperature",
             Kind::ThermalResistance => "thermal resistance",
             Kind::Length => "length",
+            Kind::Duration => "duration",
         }
     }
 
@@ -605,6 +632,7 @@ impl Kind {
             Kind::Temperature => "a temperature",
             Kind::ThermalResistance => "a thermal resistance",
             Kind::Length => "a length",
+            Kind::Duration => "a duration",
         }
     }
 
@@ -619,6 +647,7 @@ impl Kind {
             Kind::Temperature => "degC",
             Kind::ThermalResistance => "degC/W",
             Kind::Length => "m",
+            Kind::Duration => "s",
         }
     }
 
@@ -635,6 +664,7 @@ impl Kind {
             Kind::Temperature => "`degC`, `\u{b0}C` or `K`",
             Kind::ThermalResistance => "`degC/W`, `\u{b0}C/W` or `K/W`",
             Kind::Length => "`m`, `cm`, `mm`, `in` or `ft`",
+            Kind::Duration => "`s`, `ms` or `min`",
         }
     }
 
@@ -1536,6 +1566,7 @@ const DEGREES_CELSIUS_PER_WATT: &[Prefix] = &[prefix(i32::MIN, 0, "\u{b0}C/W")];
 const AMPERE_HOURS: &[Prefix] = &[prefix(0, 0, "Ah"), prefix(-3, -3, "mAh")];
 // Lengths in a plan read best in metres (`0.8 m`); millimetres only below a centimetre.
 const METERS: &[Prefix] = &[prefix(-2, 0, "m"), prefix(-3, -3, "mm")];
+const SECONDS: &[Prefix] = &[prefix(0, 0, "s"), prefix(-3, -3, "ms")];
 const PERCENT: &[Prefix] = &[prefix(i32::MIN, 0, "%")];
 const SQUARE_MILLIMETERS: &[Prefix] = &[prefix(i32::MIN, 0, "mm\u{b2}")];
 
@@ -1651,6 +1682,25 @@ mod tests {
 
     fn ohms(text: &str) -> f64 {
         resistance(text).expect(text).get::<ohm>()
+    }
+
+    #[test]
+    fn durations_in_seconds_milliseconds_and_minutes() {
+        // SI second; a minute is 60 s.
+        let seconds = |text: &str| duration(text).expect(text).get::<uom::si::time::second>();
+        assert_close(seconds("2 s"), 2.0);
+        assert_close(seconds("500 ms"), 0.5);
+        assert_close(seconds("1.5 min"), 90.0);
+        let wrong = duration("2 A").unwrap_err();
+        assert!(wrong.message.contains("duration"), "{}", wrong.message);
+        assert_eq!(
+            show_duration(Time::new::<uom::si::time::second>(0.1)),
+            "100 ms"
+        );
+        assert_eq!(
+            show_duration(Time::new::<uom::si::time::second>(2.0)),
+            "2 s"
+        );
     }
 
     fn meters(text: &str) -> f64 {

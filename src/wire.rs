@@ -2,9 +2,12 @@
 //!
 //! AWG sizes follow the ASTM B258 diameter formula with annealed-copper
 //! resistivity (IACS, IEC 60028); metric sizes take the IEC 60228 class 5
-//! (flexible) maximum resistance. All at 20 °C, as the format reference fixes.
-//! Ampacity follows the tables the format reference names (§4). The wire rules live
-//! in `rules`, not here.
+//! (flexible) maximum resistance, all at 20 °C; a conductor in warmer air
+//! takes copper's temperature coefficient (IEC 60028, 0.00393 /K at 20 °C).
+//! Ampacity follows the tables the format reference names (§4), corrected for
+//! a hot ambient where the table states the ambient it holds at; and the
+//! adiabatic short-time limit I²t ≤ k²S² (IEC 60364-4-43) for brief peaks.
+//! The wire rules live in `rules`, not here.
 
 use crate::units::WireSize;
 use uom::si::area::square_millimeter;
@@ -43,7 +46,38 @@ pub fn awg_area(gauge: i32) -> Area {
     Area::new::<square_millimeter>(std::f64::consts::PI * d * d / 4.0)
 }
 
-/// Resistance of one conductor per metre.
+/// Temperature coefficient of annealed copper's resistance at 20 °C, per
+/// kelvin (IEC 60028; IACS): R(T) = R20 × (1 + α20 × (T − 20 °C)).
+pub const COPPER_ALPHA_20: f64 = 0.00393;
+
+/// The temperature the resistance tables hold at.
+fn reference_temperature() -> ThermodynamicTemperature {
+    ThermodynamicTemperature::new::<degree_celsius>(20.0)
+}
+
+/// Resistance of one conductor per metre with its copper at `temperature`
+/// (`None`: the 20 °C of the tables).
+pub fn resistance_per_meter_at(
+    size: WireSize,
+    temperature: Option<ThermodynamicTemperature>,
+) -> ElectricalResistance {
+    let rise = temperature.map_or(0.0, |t| {
+        t.get::<degree_celsius>() - reference_temperature().get::<degree_celsius>()
+    });
+    resistance_per_meter(size) * (1.0 + COPPER_ALPHA_20 * rise)
+}
+
+/// Resistance of one conductor of the given length with its copper at
+/// `temperature` (`None`: 20 °C).
+pub fn resistance_at(
+    size: WireSize,
+    length: Length,
+    temperature: Option<ThermodynamicTemperature>,
+) -> ElectricalResistance {
+    resistance_per_meter_at(size, temperature) * length.get::<meter>()
+}
+
+/// Resistance of one conductor per metre at 20 °C.
 pub fn resistance_per_meter(size: WireSize) -> ElectricalResistance {
     match size {
         WireSize::Awg(gauge) => ElectricalResistance::new::<ohm>(
@@ -62,7 +96,7 @@ pub fn resistance_per_meter(size: WireSize) -> ElectricalResistance {
     }
 }
 
-/// Resistance of one conductor of the given length.
+/// Resistance of one conductor of the given length at 20 °C.
 pub fn resistance(size: WireSize, length: Length) -> ElectricalResistance {
     resistance_per_meter(size) * length.get::<meter>()
 }
@@ -143,6 +177,60 @@ pub fn rated_gauge(size: WireSize) -> i32 {
     }
 }
 
+/// The ambient 33 CFR 183.425 Table 5 holds at: 30 °C outside engine spaces.
+const CFR_TABLE_5_AMBIENT_C: f64 = 30.0;
+
+/// The factor an ampacity from `table` takes in air at `ambient`. Table 5
+/// holds at 30 °C: above it, the NEC 310.15(B) ambient correction
+/// √((Tc − Ta′)/(Tc − Ta)) with Tc the insulation's rating (it reproduces the
+/// 0.85 ABYC E-11 gives 105 °C wire at 50 °C); never above 1, so a cool day
+/// does not raise a table value. The Handbook chassis column states no
+/// ambient, so no correction is published for it and none is applied.
+pub fn ambient_factor(table: AmpacityTable, ambient: Option<ThermodynamicTemperature>) -> f64 {
+    match (table, ambient) {
+        (AmpacityTable::CfrTable5 { column }, Some(ambient)) => {
+            let air = ambient.get::<degree_celsius>();
+            if air <= CFR_TABLE_5_AMBIENT_C {
+                1.0
+            } else if air >= column {
+                0.0
+            } else {
+                ((column - air) / (column - CFR_TABLE_5_AMBIENT_C)).sqrt()
+            }
+        }
+        _ => 1.0,
+    }
+}
+
+/// Continuous current a wire may carry in air at `ambient` (`None`: the
+/// table's own conditions), and the table it came from.
+pub fn ampacity_at(
+    size: WireSize,
+    insulation: Option<ThermodynamicTemperature>,
+    ambient: Option<ThermodynamicTemperature>,
+) -> Option<(ElectricCurrent, AmpacityTable)> {
+    ampacity(size, insulation).map(|(i, table)| (i * ambient_factor(table, ambient), table))
+}
+
+/// IEC 60364-4-43 Table 43A: k for PVC-insulated copper (≤ 300 mm²), in
+/// A·√s/mm². Used for every wire: the smallest of the common insulations
+/// (XLPE/EPR 143), so the limit never flatters an unknown insulation.
+pub const ADIABATIC_K_PVC_COPPER: f64 = 115.0;
+
+/// The largest current a conductor may carry for `duration` without its
+/// insulation being damaged, heating adiabatically (IEC 60364-4-43
+/// §434.5.2: t = (k·S / I)², so I = k·S / √t). Meant for t ≤ 5 s.
+pub fn adiabatic_limit(size: WireSize, duration: uom::si::f64::Time) -> ElectricCurrent {
+    let area = match size {
+        WireSize::Awg(gauge) => awg_area(gauge),
+        WireSize::Metric(area) => area,
+    };
+    let seconds = duration.get::<uom::si::time::second>().max(1e-6);
+    ElectricCurrent::new::<ampere>(
+        ADIABATIC_K_PVC_COPPER * area.get::<square_millimeter>() / seconds.sqrt(),
+    )
+}
+
 /// Continuous current a wire may carry, and the table it came from: 33 CFR
 /// Table 5 when the insulation rating is given and the size is 8–18 AWG,
 /// else the Handbook chassis column for 10–30 AWG (format reference §4). `None` when
@@ -194,6 +282,59 @@ mod tests {
         assert!((awg_diameter(18).get::<millimeter>() - 1.02).abs() < 0.005);
         assert!((awg_area(18).get::<square_millimeter>() - 0.823).abs() < 0.001);
         assert!((milliohm_per_meter(WireSize::Awg(18)) - 20.9).abs() / 20.9 < 0.005);
+    }
+
+    #[test]
+    fn awg_18_at_60_and_90_degrees_worked_example_w3() {
+        // IEC 60028 α20 = 0.00393 /K: 18 AWG at 60 °C is 20.95 × 1.157 =
+        // 24.2 mΩ/m, at 90 °C 26.7 mΩ/m (worked example, within 1 %).
+        let at = |c: f64| {
+            resistance_per_meter_at(
+                WireSize::Awg(18),
+                Some(ThermodynamicTemperature::new::<degree_celsius>(c)),
+            )
+            .get::<ohm>()
+                * 1000.0
+        };
+        assert!((at(60.0) - 24.2).abs() / 24.2 < 0.01, "{}", at(60.0));
+        assert!((at(90.0) - 26.7).abs() / 26.7 < 0.01, "{}", at(90.0));
+        // At 20 °C, and with no temperature given, the tables' own value.
+        assert_eq!(at(20.0), milliohm_per_meter(WireSize::Awg(18)));
+        assert_eq!(
+            resistance_per_meter_at(WireSize::Awg(18), None),
+            resistance_per_meter(WireSize::Awg(18))
+        );
+    }
+
+    #[test]
+    fn table_5_ambient_correction_reproduces_the_engine_space_factor() {
+        // ABYC E-11: 105 °C wire in a 50 °C engine space takes 0.85 of its
+        // Table 5 value; NEC 310.15(B): √((105 − 50)/(105 − 30)) = 0.856.
+        let fifty = Some(ThermodynamicTemperature::new::<degree_celsius>(50.0));
+        let factor = ambient_factor(AmpacityTable::CfrTable5 { column: 105.0 }, fifty);
+        assert!((factor - 0.85).abs() / 0.85 < 0.01, "{factor}");
+        // 90 °C wire at 50 °C: √(40/60) = 0.816 (NEC table 0.82).
+        let factor = ambient_factor(AmpacityTable::CfrTable5 { column: 90.0 }, fifty);
+        assert!((factor - 0.82).abs() / 0.82 < 0.01, "{factor}");
+        // No correction is published for the Handbook chassis column.
+        assert_eq!(ambient_factor(AmpacityTable::HandbookChassis, fifty), 1.0);
+        // At or below the table's 30 °C, the table value.
+        let cool = Some(ThermodynamicTemperature::new::<degree_celsius>(25.0));
+        assert_eq!(
+            ambient_factor(AmpacityTable::CfrTable5 { column: 105.0 }, cool),
+            1.0
+        );
+    }
+
+    #[test]
+    fn adiabatic_limit_of_18_awg() {
+        // IEC 60364-4-43 §434.5.2, k = 115 (PVC copper): 0.823 mm² for 2 s
+        // carries 115 × 0.823 / √2 = 66.9 A.
+        let i = adiabatic_limit(
+            WireSize::Awg(18),
+            uom::si::f64::Time::new::<uom::si::time::second>(2.0),
+        );
+        assert!((i.get::<ampere>() - 66.9).abs() / 66.9 < 0.005, "{i:?}");
     }
 
     #[test]

@@ -25,8 +25,13 @@ use std::path::{Path, PathBuf};
 /// What a block declares about itself.
 #[derive(Debug, PartialEq)]
 enum Expectation {
-    Plan { exit: i32 },
-    Fragment { base: String, exit: i32 },
+    Plan {
+        exit: i32,
+    },
+    Fragment {
+        base: String,
+        exit: i32,
+    },
     /// Other YAML shown in the docs: only read as YAML.
     NotAPlan,
 }

@@ -24,6 +24,8 @@ pub enum Value {
     Flag,
     /// A whole number of cells in series, 1 to 1000.
     Cells,
+    /// A whole number of things, 0 to 1000.
+    Count,
     /// The format version: `1`.
     Version,
     /// Free text.
@@ -201,6 +203,13 @@ pub const LIMITS: &[Field] = &[
         "the share of a continuous rating that a continuous load may use",
     )
     .or_else("80 %"),
+    field(
+        "stall_at_once",
+        Value::Count,
+        "1",
+        "how many motors may stall at the same moment in `worst`; `worst` then stalls each such group in turn, the rest running",
+    )
+    .or_else("every motor"),
 ];
 
 /// A net written as a mapping (the short form is a list of pins).
@@ -230,7 +239,21 @@ pub const NET: &[Field] = &[
         "105 degC",
         "the insulation's temperature rating; selects the 33 CFR 183.425 ampacity table (8–18 AWG)",
     ),
+    field(
+        "ambient",
+        Qty(Q::Temperature),
+        "60 degC",
+        "the air around this run (a hot enclosure), instead of the plan's `ambient`: sets the copper's resistance and the ampacity correction",
+    ),
 ];
+
+/// Reserved keys inside a mode (every other key names a part).
+pub const MODE: &[Field] = &[field(
+    "lasts",
+    Qty(Q::Duration),
+    "2 s",
+    "how long the mode lasts at a time; a mode of 5 s or less is a brief peak, checked against peak and short-time ratings instead of continuous ones",
+)];
 
 /// An entry of `links:`.
 pub const LINK: &[Field] = &[
@@ -589,6 +612,13 @@ const RATING_VOLTAGE: Field = field(
     "its DC voltage rating: the highest voltage it may interrupt",
 );
 
+const SURGE: Field = field(
+    "surge",
+    Qty(Q::Current),
+    "60 A",
+    "the current its contacts may carry for a moment (motor start, a brief mode, `worst`); without it brief peaks are not checked against the contacts",
+);
+
 pub const CLASSES: &[ClassSpec] = &[
     ClassSpec {
         name: "battery",
@@ -620,7 +650,8 @@ pub const CLASSES: &[ClassSpec] = &[
         meaning: "a switch, or an emergency stop",
         fixed_pins: &[("a", PinRole::Through), ("b", PinRole::Through)],
         fields: &[
-            field("rating", Qty(Q::Current), "20 A", "its contacts' rated current"),
+            field("rating", Qty(Q::Current), "20 A", "its contacts' continuous current rating"),
+            SURGE,
             RATING_VOLTAGE,
             field("stop", Value::Flag, "true", "an emergency stop or kill switch").or_else("false"),
         ],
@@ -629,7 +660,10 @@ pub const CLASSES: &[ClassSpec] = &[
         name: "connector",
         meaning: "a connector: pins in pairs `a1`/`b1`, `a2`/`b2`, … (declare them with `role: through`)",
         fixed_pins: &[],
-        fields: &[field("rating", Qty(Q::Current), "3 A", "the rated current of each contact")],
+        fields: &[
+            field("rating", Qty(Q::Current), "3 A", "the continuous current rating of each contact"),
+            SURGE,
+        ],
     },
     ClassSpec {
         name: "regulator",

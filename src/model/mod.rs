@@ -18,7 +18,7 @@ use crate::syntax::Span;
 use crate::units::{Band, DischargeRate, WireSize};
 use uom::si::f64::{
     ElectricCharge, ElectricCurrent, ElectricPotential, ElectricalResistance, Length, Power, Ratio,
-    ThermalResistance, ThermodynamicTemperature,
+    ThermalResistance, ThermodynamicTemperature, Time,
 };
 
 /// An input problem: the plan cannot be read as written.
@@ -45,6 +45,9 @@ pub struct PinRef {
 pub struct Plan {
     pub name: Option<String>,
     pub ambient: ThermodynamicTemperature,
+    /// Whether the plan writes `ambient`: only then do wires take its
+    /// temperature (format reference §4); else copper is taken at 20 °C.
+    pub ambient_given: bool,
     pub limits: Limits,
     pub parts: Vec<Part>,
     pub nets: Vec<Net>,
@@ -60,6 +63,9 @@ pub struct Plan {
 pub struct Limits {
     pub wire_drop: Ratio,
     pub derate: Ratio,
+    /// How many motors may stall at the same moment in `worst`; `None`
+    /// stalls them all (format reference §6).
+    pub stall_at_once: Option<Rated<u32>>,
 }
 
 #[derive(Clone, Debug)]
@@ -415,15 +421,20 @@ pub struct Fuse {
 
 #[derive(Clone, Debug)]
 pub struct Switch {
+    /// Its contacts' continuous rating.
     pub rating: Option<Rated<ElectricCurrent>>,
+    /// The current its contacts may carry for a moment (motor start, stall).
+    pub surge: Option<Rated<ElectricCurrent>>,
     pub voltage: Option<Rated<ElectricPotential>>,
     pub stop: bool,
 }
 
 #[derive(Clone, Debug)]
 pub struct Connector {
-    /// Per contact.
+    /// Per contact, continuous.
     pub rating: Option<Rated<ElectricCurrent>>,
+    /// Per contact, for a moment (motor start, stall).
+    pub surge: Option<Rated<ElectricCurrent>>,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -509,6 +520,24 @@ pub struct Net {
     pub wire: Option<Rated<WireSize>>,
     pub length: Option<Rated<Length>>,
     pub insulation: Option<ThermodynamicTemperature>,
+    /// The air around this run (a hot enclosure), over the plan's `ambient`.
+    pub ambient: Option<ThermodynamicTemperature>,
+}
+
+impl Plan {
+    /// The temperature a net's copper is taken at: its own `ambient`, else
+    /// the plan's when written; `None` means the 20 °C reference of the
+    /// resistance and ampacity tables (format reference §4).
+    pub fn conductor_ambient(&self, net: NetId) -> Option<ThermodynamicTemperature> {
+        self.nets[net]
+            .ambient
+            .or(self.ambient_given.then_some(self.ambient))
+    }
+
+    /// The temperature a USB cable's copper is taken at (no per-cable ambient).
+    pub fn cable_ambient(&self) -> Option<ThermodynamicTemperature> {
+        self.ambient_given.then_some(self.ambient)
+    }
 }
 
 #[derive(Clone, Debug)]
@@ -547,6 +576,25 @@ pub struct Mode {
     pub name: String,
     pub span: Span,
     pub states: Vec<(PartId, PartState)>,
+    /// How long the mode lasts at a time (`lasts:`); `None` is as long as
+    /// the robot runs.
+    pub lasts: Option<Rated<Time>>,
+}
+
+/// A mode that lasts no longer than this is a brief peak: it meets peak
+/// ratings and short-time checks, not continuous ratings (format reference
+/// §6). 5 s is the longest duration for which IEC 60364-4-43 §434.5.2 lets a
+/// conductor's heating be taken as adiabatic (I²t ≤ k²S²); beyond it the wire
+/// sheds heat while it warms and its continuous ampacity governs.
+pub fn brief_limit() -> Time {
+    Time::new::<uom::si::time::second>(5.0)
+}
+
+impl Mode {
+    /// How long it lasts when that is brief enough for short-time checks.
+    pub fn brief(&self) -> Option<Time> {
+        self.lasts.map(|l| l.value).filter(|&t| t <= brief_limit())
+    }
 }
 
 #[derive(Clone, Debug)]

@@ -46,6 +46,8 @@ fn default_ambient() -> ThermodynamicTemperature {
 const DEFAULT_WIRE_DROP: f64 = 0.05;
 const DEFAULT_DERATE: f64 = 0.80;
 const MAX_CELLS: u32 = 1000;
+/// Not a standard's limit: more motors than any robot has, so a typo is caught.
+const MAX_STALL_AT_ONCE: u32 = 1000;
 
 /// Reads a whole plan. `root` is the parsed plan; library parts it uses are
 /// parsed into `sources` as they are met.
@@ -227,6 +229,7 @@ impl Reader<'_> {
         Some(Plan {
             name,
             ambient,
+            ambient_given: root.get("ambient").is_some(),
             limits,
             parts,
             nets,
@@ -425,6 +428,7 @@ impl Reader<'_> {
         let mut limits = Limits {
             wire_drop: Ratio::new::<ratio>(DEFAULT_WIRE_DROP),
             derate: Ratio::new::<ratio>(DEFAULT_DERATE),
+            stall_at_once: None,
         };
         let Some(node) = node else {
             return limits;
@@ -438,6 +442,23 @@ impl Reader<'_> {
         }
         if let Some(v) = self.quantity(node, "derate", units::share) {
             limits.derate = v;
+        }
+        if let Some(n) = node.get("stall_at_once") {
+            match n.as_scalar().and_then(|s| s.trim().parse::<u32>().ok()) {
+                Some(count) if count <= MAX_STALL_AT_ONCE => {
+                    limits.stall_at_once = Some(Rated {
+                        value: count,
+                        span: n.span,
+                    });
+                }
+                _ => self.error(
+                    n.span,
+                    format!(
+                        "`stall_at_once` takes a whole number of motors, from 0 to {MAX_STALL_AT_ONCE}"
+                    ),
+                    Some("write `stall_at_once: 1` when no two motors stall at the same moment".into()),
+                ),
+            }
         }
         limits
     }
@@ -954,6 +975,7 @@ impl Reader<'_> {
             }),
             "switch" => Class::Switch(Switch {
                 rating: self.rated(body, "rating", units::current, at),
+                surge: self.rated(body, "surge", units::current, at),
                 voltage: self.rated(body, "voltage", units::voltage, at),
                 stop: body
                     .get("stop")
@@ -975,6 +997,7 @@ impl Reader<'_> {
                 }
                 Class::Connector(Connector {
                     rating: self.rated(body, "rating", units::current, at),
+                    surge: self.rated(body, "surge", units::current, at),
                 })
             }
             "regulator" => self.regulator(&what, at, body, pins)?,
@@ -1344,8 +1367,8 @@ impl Reader<'_> {
                 continue;
             };
             let net_id = nets.len();
-            let (pin_nodes, wire, length, insulation) = match &body.kind {
-                NodeKind::Seq(items) => (items.as_slice(), None, None, None),
+            let (pin_nodes, wire, length, insulation, ambient) = match &body.kind {
+                NodeKind::Seq(items) => (items.as_slice(), None, None, None, None),
                 NodeKind::Map(_) => {
                     let context = format!("net `{name}`");
                     self.check_keys(body, &format::keys(format::NET), &context);
@@ -1375,6 +1398,7 @@ impl Reader<'_> {
                         self.rated(body, "wire", units::wire_size, key.span),
                         self.rated(body, "length", units::length, key.span),
                         self.quantity(body, "insulation", plausible_temperature),
+                        self.quantity(body, "ambient", plausible_temperature),
                     )
                 }
                 _ => {
@@ -1442,6 +1466,7 @@ impl Reader<'_> {
                 wire,
                 length,
                 insulation,
+                ambient,
             });
         }
         nets
@@ -1581,9 +1606,31 @@ impl Reader<'_> {
                 name,
                 span: key.span,
                 states: Vec::new(),
+                lasts: None,
             };
             for (part_node, state_node) in states {
                 let part_name = part_node.as_scalar().unwrap_or("");
+                // `lasts` is the mode's own key, never a part (format reference §6).
+                if part_name == "lasts" {
+                    if let Some(t) = self.scalar_quantity(state_node, units::duration) {
+                        if t.get::<uom::si::time::second>() > 0.0 {
+                            mode.lasts = Some(Rated {
+                                value: t,
+                                span: state_node.span,
+                            });
+                        } else {
+                            self.error(
+                                state_node.span,
+                                format!("mode `{}` must last longer than zero", mode.name),
+                                Some(
+                                    "write how long the mode lasts at a time, e.g. `lasts: 2 s`"
+                                        .into(),
+                                ),
+                            );
+                        }
+                    }
+                    continue;
+                }
                 if self.refused_parts.contains(part_name) {
                     continue;
                 }
@@ -1699,6 +1746,7 @@ fn cable_fed_nets(links: &[Link], parts: &mut [Part], nets: &mut Vec<Net>) {
             wire: None,
             length: None,
             insulation: None,
+            ambient: None,
         });
     }
 }

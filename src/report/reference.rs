@@ -23,6 +23,7 @@ pub fn format_tables(rules: &[Rule]) -> Vec<(String, String)> {
         ("pin-roles".to_string(), roles_table()),
         ("pin-fields".to_string(), pin_fields_table()),
         ("mode-states".to_string(), states_table()),
+        ("mode".to_string(), fields_table(format::MODE)),
         ("rules".to_string(), rules_table(rules)),
     ];
     for class in CLASSES {
@@ -38,6 +39,7 @@ pub fn describe(value: Value) -> String {
         Value::Choice(words) => format!("one of {}", code_list(words)),
         Value::Flag => "`true` or `false`".into(),
         Value::Cells => "whole number, 1 to 1000".into(),
+        Value::Count => "whole number, 0 to 1000".into(),
         Value::Version => "`1`".into(),
         Value::Text => "text".into(),
         Value::PinOfPart => "a pin of the same part".into(),

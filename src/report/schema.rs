@@ -143,7 +143,7 @@ fn property(field: &Field) -> Value {
 /// flags as JSON numbers and booleans, everything else as text.
 fn example(field: &Field) -> Value {
     match field.value {
-        Kind::Version | Kind::Cells => field
+        Kind::Version | Kind::Cells | Kind::Count => field
             .example
             .parse::<u64>()
             .map_or_else(|_| json!(field.example), |n| json!(n)),
@@ -158,6 +158,7 @@ fn value(kind: Kind) -> Value {
         Kind::Choice(words) => json!({ "enum": words }),
         Kind::Flag => json!({ "type": "boolean" }),
         Kind::Cells => json!({ "type": "integer", "minimum": 1, "maximum": 1000 }),
+        Kind::Count => json!({ "type": "integer", "minimum": 0, "maximum": 1000 }),
         Kind::Version => json!({ "const": 1 }),
         Kind::Text => json!({ "type": ["string", "number", "boolean"] }),
         Kind::PinOfPart => json!({ "$ref": "#/$defs/name" }),
@@ -254,6 +255,10 @@ fn section(section: Section) -> Value {
                 "additionalProperties": {
                     "type": ["object", "null"],
                     "propertyNames": { "$ref": "#/$defs/name" },
+                    "properties": format::MODE
+                        .iter()
+                        .map(|f| (f.key.to_string(), property(f)))
+                        .collect::<Map<String, Value>>(),
                     "additionalProperties": { "enum": states },
                 },
             })

@@ -21,7 +21,7 @@ pub const OVER_RATING: Rule = Rule {
     severity: Severity::Error,
     summary: "a current exceeds a rating",
     doc: RuleDoc {
-        what: "The highest current over all modes (`worst` included) through each regulator output, onboard supply output, switch, connector contact and USB host port against its rating; and the continuous current of each driver channel (motors running) against `channel_current`.",
+        what: "The highest current over all modes (`worst` included) through each regulator output, onboard supply output and USB host port against its rating; the continuous current (never `worst` nor a brief mode) through each switch and connector contact against its `rating`, and every peak against its `surge` rating when one is given; and the continuous current of each driver channel (motors running) against `channel_current`.",
         why: "A regulator past its rating folds back or overheats, a switch or contact past its rating burns its contacts, a driver past its continuous rating shuts down or fails — and the robot stops or smokes.",
         example: "railcheck: 1\nname: orchard scout, 5 V rail\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-3a }\n  buck:  { use: regulator/buck-5v-3a }   # brain 1.8 A + camera 1.5 A = 3.3 A peak > 3 A\n  brain: { use: board/sbc-5v }\n  cam:   { class: load, pins: { vin: { role: supply-in, range: 4.75 V..5.25 V, draw: { typical: 0.5 A, peak: 1.5 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, brain.vin, cam.vin]\n  GND:   [pack.neg, buck.gnd, brain.gnd, cam.gnd]\n",
         fix: "railcheck: 1\nname: orchard scout, 5 V rail\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-3a }\n  buck:  { use: regulator/buck-5v-5a }   # 3.3 A peak ≤ 5 A\n  brain: { use: board/sbc-5v }\n  cam:   { class: load, pins: { vin: { role: supply-in, range: 4.75 V..5.25 V, draw: { typical: 0.5 A, peak: 1.5 A } }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, brain.vin, cam.vin]\n  GND:   [pack.neg, buck.gnd, brain.gnd, cam.gnd]\n",
@@ -57,8 +57,11 @@ struct RatedPath<'a> {
     part: PartId,
     net: Option<String>,
     rating: ElectricCurrent,
-    /// Driver channel continuous ratings meet continuous current only.
+    /// Continuous ratings (driver channels, switch and connector contacts)
+    /// meet continuous current only.
     continuous_rating: bool,
+    /// A surge rating meets brief peaks and is not derated.
+    surge: bool,
     current: CurrentAt<'a>,
     /// What the current is made of, for the message.
     carries: Carries,
@@ -98,34 +101,34 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             .map(|n| cx.net_name(n).to_string()),
                         rating: rating.value,
                         continuous_rating: false,
+                        surge: false,
                         current: Box::new(move |p| p.regulators[part_id].map(|r| r.output_current)),
                         carries: Carries::Net(vout.and_then(|p| part.pins[p].net)),
                     });
                 }
             }
             Class::Switch(switch) => {
-                if let Some(rating) = switch.rating {
-                    for (a, b) in through_pairs(plan, part_id) {
-                        paths.push(through_path(
-                            cx,
-                            part_id,
-                            a,
-                            b,
-                            rating,
-                            format!("switch `{}`", part.name),
-                        ));
-                    }
+                for (a, b) in through_pairs(plan, part_id) {
+                    let subject = format!("switch `{}`", part.name);
+                    contact_paths(cx, part_id, (a, b), switch.rating, switch.surge, subject)
+                        .for_each(|p| paths.push(p));
                 }
             }
             Class::Connector(connector) => {
-                if let Some(rating) = connector.rating {
-                    for (a, b) in through_pairs(plan, part_id) {
-                        let subject = format!(
-                            "contact `{}.{}`/`{}`",
-                            part.name, part.pins[a].name, part.pins[b].name
-                        );
-                        paths.push(through_path(cx, part_id, a, b, rating, subject));
-                    }
+                for (a, b) in through_pairs(plan, part_id) {
+                    let subject = format!(
+                        "contact `{}.{}`/`{}`",
+                        part.name, part.pins[a].name, part.pins[b].name
+                    );
+                    contact_paths(
+                        cx,
+                        part_id,
+                        (a, b),
+                        connector.rating,
+                        connector.surge,
+                        subject,
+                    )
+                    .for_each(|p| paths.push(p));
                 }
             }
             Class::Driver(driver) => {
@@ -141,6 +144,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                                 .map(|n| cx.net_name(n).to_string()),
                             rating: rating.value,
                             continuous_rating: true,
+                            surge: false,
                             // The continuous rating meets the channel with its
                             // motors running (format reference §6); a stall meets the
                             // peak rating, in `driver/stall`.
@@ -177,6 +181,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             net: pin.net.map(|n| cx.net_name(n).to_string()),
                             rating: limit,
                             continuous_rating: false,
+                            surge: false,
                             current: Box::new(move |p| Some(p.pin_current[part_id][pin_id])),
                             carries: Carries::Net(pin.net),
                         });
@@ -213,6 +218,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                     net: None,
                     rating: limit,
                     continuous_rating: false,
+                    surge: false,
                     current: Box::new(move |p| Some(p.link_current[link])),
                     carries: Carries::Links(vec![link]),
                 });
@@ -227,6 +233,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                 net: None,
                 rating: limit,
                 continuous_rating: false,
+                surge: false,
                 current: Box::new(move |p| {
                     Some(
                         shared_links
@@ -241,6 +248,28 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
         }
     }
     paths
+}
+
+/// A switch's or connector contact's ratings: its `rating` is continuous
+/// (contacts heat with time), met by the continuous current; its `surge`,
+/// when given, meets every peak, `worst` and brief modes included.
+fn contact_paths<'a>(
+    cx: &'a Context,
+    part: PartId,
+    (a, b): (usize, usize),
+    rating: Option<Rated<ElectricCurrent>>,
+    surge: Option<Rated<ElectricCurrent>>,
+    subject: String,
+) -> impl Iterator<Item = RatedPath<'a>> {
+    let continuous = rating.map(|r| RatedPath {
+        continuous_rating: true,
+        ..through_path(cx, part, a, b, r, subject.clone())
+    });
+    let surge = surge.map(|r| RatedPath {
+        surge: true,
+        ..through_path(cx, part, a, b, r, format!("{subject} (surge rating)"))
+    });
+    continuous.into_iter().chain(surge)
 }
 
 fn through_path<'a>(
@@ -266,6 +295,7 @@ fn through_path<'a>(
         net: downstream.map(|n| cx.net_name(n).to_string()),
         rating: rating.value,
         continuous_rating: false,
+        surge: false,
         current: Box::new(move |p| downstream.map(|n| p.net_current[n].abs())),
         carries: Carries::Net(downstream),
     }
@@ -384,6 +414,9 @@ fn check_ratings(cx: &Context, out: &mut Vec<Finding>) {
                 _ => {}
             }
             out.push(finding);
+            continue;
+        }
+        if path.surge {
             continue;
         }
         if let Some((point, current)) = steady

@@ -28,15 +28,17 @@
 use super::{
     Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
 };
-use crate::analysis::{BatteryState, OperatingPoint, battery_voltage};
+use crate::analysis::{BatteryState, ModeId, OperatingPoint, battery_voltage};
 use crate::graph::{MotorFeed, through_pairs};
-use crate::model::{Class, Fuse, FuseSpeed, NetId, PartId, PinRef, PinRole, Rated};
+use crate::model::{Class, Fuse, FuseSpeed, MotorState, NetId, PartId, PinRef, PinRole, Rated};
 use crate::syntax::Span;
-use crate::units::{WireSize, show_current, show_voltage};
-use crate::wire::{AmpacityTable, ampacity};
+use crate::units::{WireSize, show_current, show_duration, show_share, show_voltage};
+use crate::wire::{AmpacityTable, ampacity_at};
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
-use uom::si::f64::{ElectricCurrent, ElectricPotential, ThermodynamicTemperature};
+use uom::si::f64::{ElectricCurrent, ElectricPotential, Ratio, ThermodynamicTemperature, Time};
+use uom::si::ratio::ratio;
+use uom::si::time::second;
 
 pub const MISSING: Rule = Rule {
     id: "fuse/missing",
@@ -58,7 +60,7 @@ pub const UNDERSIZED: Rule = Rule {
     severity: Severity::Warning,
     summary: "rating below 125 % of the continuous current through it",
     doc: RuleDoc {
-        what: "The continuous current through each fuse (the highest over `typical` and the user's modes, never `worst`) against its rating: the rating must be at least 125 % of it (continuous load at most 80 % of the rating).",
+        what: "The continuous current through each fuse (the highest over `typical` and the user's modes that are not brief, never `worst`) against its rating: the rating must be at least 125 % of it (continuous load at most 80 % of the rating). Below 125 % it is a warning; below the continuous current itself (the fuse blows in normal work) an error.",
         why: "A fuse carrying close to its rating for hours runs hot and ages; it blows on an ordinary day's work, stopping the robot in the field, and a fuse that blows for no fault tempts its owner to fit a bigger one than the wire allows.",
         example: "railcheck: 1\nname: warehouse cart heater\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-5a }   # 4.5 A continuous needs 1.25 x 4.5 A = 5.625 A\n  heater: { class: load, pins: { vin: { role: supply-in, draw: 4.5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  HEAT: { pins: [main_fuse.b, heater.vin], wire: 18 AWG, length: 1 m }   # 18 AWG carries 16 A\n  GND: { pins: [pack.neg, heater.gnd], wire: 18 AWG, length: 1 m }",
         fix: "railcheck: 1\nname: warehouse cart heater\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-7a5 }   # 5.625 A <= 7.5 A <= the 16 A of 18 AWG\n  heater: { class: load, pins: { vin: { role: supply-in, draw: 4.5 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  HEAT: { pins: [main_fuse.b, heater.vin], wire: 18 AWG, length: 1 m }   # 18 AWG carries 16 A\n  GND: { pins: [pack.neg, heater.gnd], wire: 18 AWG, length: 1 m }",
@@ -101,13 +103,13 @@ pub const VOLTAGE: Rule = Rule {
 pub const NUISANCE: Rule = Rule {
     id: "fuse/nuisance",
     severity: Severity::Warning,
-    summary: "a fast fuse rated below the peak (stall) current it carries",
+    summary: "a fuse that a motor start or a brief mode may blow",
     doc: RuleDoc {
-        what: "Each `speed: fast` fuse's rating against the highest current through it over every mode, `worst` included (every motor stalled, every load at its peak).",
+        what: "Each fuse against the peaks it carries. In a brief mode (`lasts` 5 s or less): the current as a multiple of the rating against the shortest time the fuse may take to open at that multiple (ISO 8820-3 blade bands for `fast`, the IEC 60127-2 time-lag sheet for `slow`); if the mode lasts that long, the fuse may blow. Over the other modes, `worst` included (every motor stalled, or `limits.stall_at_once` of them): a `fast` fuse rated below the peak, or a `slow` fuse that may open within a 100 ms motor start. A motor start is named only when a motor behind the fuse stalls at that moment.",
         why: "Every motor start is a stall for tens of milliseconds; a fast fuse rated below that current blows at start-up or the first time a wheel jams, though nothing is wrong with the wiring.",
         example: "railcheck: 1\nname: greenhouse vent opener\nparts:\n  pack: { use: battery/lead-acid-12v }   # 13.8 V full\n  vent_fuse: { use: fuse/blade-5a }   # fast; stall: 13.8 V / (2.4 + 0.025) ohm = 5.69 A\n  stop: { use: switch/estop-20a }\n  vent: { use: motor/gearmotor-medium }   # 12 V, 5 A stall: 2.4 ohm\nnets:\n  BATT+: [pack.pos, vent_fuse.a]\n  FUSED: [vent_fuse.b, stop.a]\n  VENT: [stop.b, vent.a]\n  GND: [pack.neg, vent.b]",
         fix: "railcheck: 1\nname: greenhouse vent opener\nparts:\n  pack: { use: battery/lead-acid-12v }   # 13.8 V full\n  vent_fuse: { use: fuse/blade-5a, with: { speed: slow } }   # time-delay: rides through the stall\n  stop: { use: switch/estop-20a }\n  vent: { use: motor/gearmotor-medium }   # 12 V, 5 A stall: 2.4 ohm\nnets:\n  BATT+: [pack.pos, vent_fuse.a]\n  FUSED: [vent_fuse.b, stop.a]\n  VENT: [stop.b, vent.a]\n  GND: [pack.neg, vent.b]",
-        references: "Motor circuits take time-delay fuses that ride through the start-up inrush, equal to the stall current for 10–100 ms (IEC 60127 'T' characteristic, NEC Art. 430, common practice); stall current I = V / R_winding (brushed DC motor equation).",
+        references: "Motor circuits take time-delay fuses that ride through the start-up inrush, equal to the stall current for 10–100 ms (IEC 60127 'T' characteristic, NEC Art. 430, common practice); opening-time bands per multiple of rating: ISO 8820-3 (blade fuse-links) and IEC 60127-2 standard sheet 3 (time-lag), both from memory; stall current I = V / R_winding (brushed DC motor equation).",
     },
     needs_operating_point: true,
     check: check_nuisance,
@@ -127,6 +129,7 @@ const BLADE_VOLTAGES: [f64; 2] = [32.0, 58.0];
 /// The smallest standard blade rating that carries `minimum` and stays
 /// within `ceiling` (the protected wire's ampacity), both with the format reference's
 /// 0.1 % tolerance. `None` when no blade rating fits.
+#[cfg(test)]
 pub fn blade_rating_for(
     minimum: ElectricCurrent,
     ceiling: Option<ElectricCurrent>,
@@ -165,6 +168,8 @@ struct WireLimit {
     ampacity: ElectricCurrent,
     table: AmpacityTable,
     insulation: Option<ThermodynamicTemperature>,
+    /// The air its ampacity is corrected for (`None`: the table's own).
+    ambient: Option<ThermodynamicTemperature>,
     conductor: Conductor,
 }
 
@@ -195,8 +200,9 @@ fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
             return false;
         }
         let n = &plan.nets[net];
+        let ambient = plan.conductor_ambient(net);
         if let Some(wire) = n.wire
-            && let Some((limit, table)) = ampacity(wire.value, n.insulation)
+            && let Some((limit, table)) = ampacity_at(wire.value, n.insulation, ambient)
         {
             wires.push(WireLimit {
                 net,
@@ -204,6 +210,7 @@ fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
                 ampacity: limit,
                 table,
                 insulation: n.insulation,
+                ambient,
                 conductor,
             });
         }
@@ -289,20 +296,141 @@ fn weakest(wires: &[WireLimit]) -> Option<WireLimit> {
 fn thinnest_wire_for(
     current: ElectricCurrent,
     insulation: Option<ThermodynamicTemperature>,
+    ambient: Option<ThermodynamicTemperature>,
 ) -> Option<(WireSize, ElectricCurrent)> {
     (8..=30)
         .rev()
         .step_by(2)
         .map(WireSize::Awg)
-        .filter_map(|size| ampacity(size, insulation).map(|(i, _)| (size, i)))
+        .filter_map(|size| ampacity_at(size, insulation, ambient).map(|(i, _)| (size, i)))
         .find(|(_, i)| !exceeds(amps(current), amps(*i)))
 }
 
-/// What a fuse at one place should be rated: from the continuous current it
-/// carries (when the operating point is known) and the wires it protects.
+/// A brief peak a fuse must ride through: the highest current through it
+/// in one brief mode, and how long that mode lasts.
+#[derive(Clone, Copy, Debug)]
+struct BriefPeak {
+    current: ElectricCurrent,
+    lasts: Time,
+    mode: ModeId,
+}
+
+/// A fuse rating that satisfies every fuse rule at once, and the speed it
+/// must have (`None`: either speed fits).
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Suggestion {
+    pub rating: ElectricCurrent,
+    pub speed: Option<FuseSpeed>,
+}
+
+impl Suggestion {
+    /// "a 7.5 A fuse", or "a 10 A fuse, time-delay (`speed: slow`)".
+    fn describe(self) -> String {
+        match self.speed {
+            None => format!("a {} fuse", show_current(self.rating)),
+            Some(FuseSpeed::Slow) => format!(
+                "a {} fuse, time-delay (`speed: slow`)",
+                show_current(self.rating)
+            ),
+            Some(FuseSpeed::Fast) => {
+                format!("a {} fuse, fast (`speed: fast`)", show_current(self.rating))
+            }
+        }
+    }
+}
+
+/// ISO 8820-3 blade fuse-links (types C, E, F), from memory: carrying up to
+/// each multiple of its rating, a blade fuse does not open sooner than the
+/// time beside it (110 %: at least 100 h; 135 %: 0.75 s; 200 %: 0.15 s;
+/// 350 %: 0.08 s; 600 %: 0.02 s). A fuse's opening time falls as its
+/// current rises, so below a listed multiple the next listed time is a
+/// bound too.
+const BLADE_LEAST_OPENING: [(f64, f64); 5] = [
+    (1.10, 360_000.0),
+    (1.35, 0.75),
+    (2.0, 0.15),
+    (3.5, 0.08),
+    (6.0, 0.02),
+];
+
+/// IEC 60127-2 standard sheet 3, time-lag (T) fuse-links, from memory: the
+/// least pre-arcing times (150 %: at least 1 h; 275 %: 0.2 s; 400 %: 0.04 s;
+/// 1000 %: 0.01 s). Taken for every `speed: slow` fuse; a time-delay fuse's
+/// own published curve governs where it is slower.
+const TIME_LAG_LEAST_OPENING: [(f64, f64); 4] =
+    [(1.5, 3_600.0), (2.75, 0.2), (4.0, 0.04), (10.0, 0.01)];
+
+/// How long the peaks of `worst` last for a time-delay fuse: a motor start,
+/// stall current for 10–100 ms (common practice); the longer end is taken.
+pub fn motor_start() -> Time {
+    Time::new::<second>(0.1)
+}
+
+/// Whether a peak outside any brief mode may open the fuse: a fast fuse
+/// must be rated at least the peak (it may blow at every motor start); a
+/// time-delay fuse must not open within a motor start.
+fn peak_may_open(speed: FuseSpeed, rating: ElectricCurrent, peak: ElectricCurrent) -> bool {
+    match speed {
+        FuseSpeed::Fast => exceeds(amps(peak), amps(rating)),
+        FuseSpeed::Slow => may_open(speed, rating, peak, motor_start()),
+    }
+}
+
+fn least_opening_table(speed: FuseSpeed) -> &'static [(f64, f64)] {
+    match speed {
+        FuseSpeed::Fast => &BLADE_LEAST_OPENING,
+        FuseSpeed::Slow => &TIME_LAG_LEAST_OPENING,
+    }
+}
+
+/// The shortest time in which a fuse of `speed` may open while carrying
+/// `multiple` × its rating; `None` past the table, where it may open at once.
+pub fn least_opening_time(speed: FuseSpeed, multiple: f64) -> Option<Time> {
+    least_opening_table(speed)
+        .iter()
+        .find(|(m, _)| !exceeds(multiple, *m))
+        .map(|(_, t)| Time::new::<second>(*t))
+}
+
+/// Whether a fuse rated `rating` may open while carrying `current` for `lasts`.
+pub fn may_open(
+    speed: FuseSpeed,
+    rating: ElectricCurrent,
+    current: ElectricCurrent,
+    lasts: Time,
+) -> bool {
+    let multiple = amps(current) / amps(rating).max(f64::MIN_POSITIVE);
+    least_opening_time(speed, multiple).is_none_or(|least| lasts >= least)
+}
+
+fn other_speed(speed: FuseSpeed) -> FuseSpeed {
+    match speed {
+        FuseSpeed::Fast => FuseSpeed::Slow,
+        FuseSpeed::Slow => FuseSpeed::Fast,
+    }
+}
+
+fn speed_words(speed: FuseSpeed) -> &'static str {
+    match speed {
+        FuseSpeed::Fast => "fast",
+        FuseSpeed::Slow => "time-delay (`speed: slow`)",
+    }
+}
+
+/// What a fuse at one place must satisfy, from the currents it carries
+/// (when the operating point is known) and the wires it protects: one
+/// window every fuse rule agrees with.
 struct Sizing {
+    /// Highest current over the continuous points: the rating carries 125 % of it.
     continuous: Option<ElectricCurrent>,
+    /// Highest current over the points that are not brief (`worst` among
+    /// them): a fast fuse is rated at least this, or a motor start blows it.
+    peak: Option<(ElectricCurrent, ModeId)>,
+    /// Each brief mode's peak: the fuse must not open within its duration.
+    brief: Vec<BriefPeak>,
     wire: Option<WireLimit>,
+    /// The speed tried first: the fuse's own.
+    preferred: FuseSpeed,
 }
 
 impl Sizing {
@@ -310,21 +438,79 @@ impl Sizing {
         self.continuous.map(minimum_rating)
     }
 
-    /// The standard rating that fits both the load and the wire.
-    fn suggested(&self) -> Option<ElectricCurrent> {
-        match self.minimum() {
-            Some(minimum) => blade_rating_for(minimum, self.wire.map(|w| w.ampacity)),
-            // Load unknown: the largest rating the wire allows.
-            None => {
-                let ceiling = self.wire?.ampacity;
-                BLADE_SERIES
-                    .iter()
-                    .rev()
-                    .copied()
-                    .find(|&r| !exceeds(r, amps(ceiling)))
-                    .map(ElectricCurrent::new::<ampere>)
+    /// Whether a fuse of `rating` and `speed` satisfies the load side of the
+    /// window (and the wire, when `within_wire`).
+    fn fits(&self, rating: f64, speed: FuseSpeed, within_wire: bool) -> bool {
+        let rated = ElectricCurrent::new::<ampere>(rating);
+        self.minimum().is_none_or(|m| !exceeds(amps(m), rating))
+            && (!within_wire || self.wire.is_none_or(|w| !exceeds(rating, amps(w.ampacity))))
+            && self
+                .peak
+                .is_none_or(|(p, _)| !peak_may_open(speed, rated, p))
+            && self
+                .brief
+                .iter()
+                .all(|b| !may_open(speed, rated, b.current, b.lasts))
+    }
+
+    fn speeds(&self) -> [FuseSpeed; 2] {
+        match self.preferred {
+            FuseSpeed::Fast => [FuseSpeed::Fast, FuseSpeed::Slow],
+            FuseSpeed::Slow => [FuseSpeed::Slow, FuseSpeed::Fast],
+        }
+    }
+
+    fn first_fit(&self, within_wire: bool) -> Option<Suggestion> {
+        self.speeds().into_iter().find_map(|speed| {
+            BLADE_SERIES
+                .iter()
+                .copied()
+                .find(|&r| self.fits(r, speed, within_wire))
+                .map(|r| Suggestion {
+                    rating: ElectricCurrent::new::<ampere>(r),
+                    speed: (!self.fits(r, other_speed(speed), within_wire)).then_some(speed),
+                })
+        })
+    }
+
+    /// When no fuse fits the wire: the smallest rating of either speed that
+    /// fits the load, which needs the thinnest heavier wire.
+    fn smallest_ignoring_wire(&self) -> Option<Suggestion> {
+        let mut best: Option<Suggestion> = None;
+        for speed in self.speeds() {
+            if let Some(r) = BLADE_SERIES
+                .iter()
+                .copied()
+                .find(|&r| self.fits(r, speed, false))
+                && best.is_none_or(|b| r < amps(b.rating))
+            {
+                best = Some(Suggestion {
+                    rating: ElectricCurrent::new::<ampere>(r),
+                    speed: (!self.fits(r, other_speed(speed), false)).then_some(speed),
+                });
             }
         }
+        best
+    }
+
+    /// The standard blade fuse that every fuse rule accepts: the smallest
+    /// rating of the fuse's own speed that fits the window, else of the
+    /// other speed.
+    fn suggested(&self) -> Option<Suggestion> {
+        if self.continuous.is_none() {
+            // Load unknown: the largest rating the wire allows.
+            let ceiling = self.wire?.ampacity;
+            return BLADE_SERIES
+                .iter()
+                .rev()
+                .copied()
+                .find(|&r| !exceeds(r, amps(ceiling)))
+                .map(|r| Suggestion {
+                    rating: ElectricCurrent::new::<ampere>(r),
+                    speed: None,
+                });
+        }
+        self.first_fit(true)
     }
 
     fn describe_wire(&self, cx: &Context, wire: &WireLimit) -> String {
@@ -337,44 +523,93 @@ impl Sizing {
         )
     }
 
+    /// What the load side asks of the fuse, in words.
+    fn load_needs(&self, cx: &Context, speed: Option<FuseSpeed>) -> String {
+        let Some(continuous) = self.continuous else {
+            return String::new();
+        };
+        let mut needs = vec![format!(
+            "carries 125 % of the {} continuous current ({})",
+            show_current(continuous),
+            show_current(minimum_rating(continuous))
+        )];
+        for b in &self.brief {
+            needs.push(format!(
+                "rides through {} for {} in mode `{}`",
+                show_current(b.current),
+                show_duration(b.lasts),
+                b.mode.name(cx.plan)
+            ));
+        }
+        if let Some((peak, mode)) = self.peak
+            && exceeds(amps(peak), amps(minimum_rating(continuous)))
+        {
+            needs.push(match speed {
+                Some(FuseSpeed::Fast) => format!(
+                    "is not below the {} peak of mode `{}`",
+                    show_current(peak),
+                    mode.name(cx.plan)
+                ),
+                _ => format!(
+                    "rides through the {} peak of mode `{}` for a motor start ({})",
+                    show_current(peak),
+                    mode.name(cx.plan),
+                    show_duration(motor_start())
+                ),
+            });
+        }
+        match needs.len() {
+            1 => needs.remove(0),
+            _ => {
+                let last = needs.pop().unwrap_or_default();
+                format!("{}, {last}", needs.join(", "))
+            }
+        }
+    }
+
     /// The sentence every fuse finding ends with.
     fn advice(&self, cx: &Context) -> String {
-        let Some(continuous) = self.continuous else {
+        if self.continuous.is_none() {
             return self.advice_without_load(cx);
-        };
-        let minimum = minimum_rating(continuous);
-        let load = format!(
-            "125 % of the {} continuous current ({})",
-            show_current(continuous),
-            show_current(minimum)
-        );
-        match (self.wire, self.suggested()) {
-            (Some(wire), Some(s)) => format!(
-                "the smallest standard blade rating that carries {load} and stays within {} is {}",
-                self.describe_wire(cx, &wire),
-                show_current(s)
-            ),
-            (None, Some(s)) => format!(
-                "the smallest standard blade rating that carries {load} is {}",
-                show_current(s)
-            ),
-            (wire, None) => match (wire, blade_rating_for(minimum, None)) {
-                (Some(wire), Some(load_fuse)) => {
-                    let heavier = thinnest_wire_for(load_fuse, wire.insulation)
-                        .map_or(String::new(), |(size, i)| {
-                            format!(" ({size} carries {})", show_current(i))
-                        });
-                    format!(
-                        "no standard blade rating both carries {load} and stays within {}: a heavier wire is needed{heavier}, protected by a {} fuse",
-                        self.describe_wire(cx, &wire),
-                        show_current(load_fuse)
-                    )
-                }
-                _ => format!(
-                    "{load} is above the largest standard blade rating ({}): use a higher-current fuse type, and wire that carries its rating",
-                    show_current(ElectricCurrent::new::<ampere>(BLADE_SERIES[12]))
+        }
+        if let Some(s) = self.suggested() {
+            let needs = self.load_needs(cx, s.speed);
+            return match self.wire {
+                Some(wire) => format!(
+                    "the smallest standard blade fuse that {needs} and stays within {} is {}",
+                    self.describe_wire(cx, &wire),
+                    s.describe()
                 ),
-            },
+                None => format!(
+                    "the smallest standard blade fuse that {needs} is {}",
+                    s.describe()
+                ),
+            };
+        }
+        match (self.wire, self.smallest_ignoring_wire()) {
+            (Some(wire), Some(load_fuse)) => {
+                let needs = self.load_needs(cx, load_fuse.speed);
+                let heavier = thinnest_wire_for(load_fuse.rating, wire.insulation, wire.ambient)
+                    .map_or(String::new(), |(size, i)| {
+                        format!(
+                            " (run {} in {size}, which carries {})",
+                            wire.named(cx),
+                            show_current(i)
+                        )
+                    });
+                format!(
+                    "no standard blade fuse both {needs} and stays within {}: a heavier wire is needed{heavier}, protected by {}",
+                    self.describe_wire(cx, &wire),
+                    load_fuse.describe()
+                )
+            }
+            _ => format!(
+                "no standard blade fuse {}: the largest is {}; use a higher-current fuse type, and wire that carries its rating",
+                self.load_needs(cx, Some(FuseSpeed::Slow)),
+                show_current(ElectricCurrent::new::<ampere>(
+                    BLADE_SERIES[BLADE_SERIES.len() - 1]
+                ))
+            ),
         }
     }
 
@@ -385,7 +620,7 @@ impl Sizing {
             (Some(wire), Some(s)) => format!(
                 "rate it no higher than {}: at most a {} blade, and at least 125 % of the continuous current it carries",
                 self.describe_wire(cx, &wire),
-                show_current(s)
+                show_current(s.rating)
             ),
             (Some(wire), None) => format!(
                 "no standard blade rating stays within {}: a heavier wire is needed",
@@ -405,7 +640,14 @@ impl Sizing {
             finding = finding.value("ampacity", amps(w.ampacity));
         }
         if let Some(s) = self.suggested() {
-            finding = finding.value("suggested_rating", amps(s));
+            finding = finding.value("suggested_rating", amps(s.rating));
+            // Present only when the suggestion holds for one speed alone.
+            if let Some(speed) = s.speed {
+                finding = finding.value(
+                    "suggested_time_delay",
+                    if speed == FuseSpeed::Slow { 1.0 } else { 0.0 },
+                );
+            }
         }
         finding
     }
@@ -453,11 +695,74 @@ fn continuous_through<'p>(cx: &'p Context, net: NetId) -> Option<(&'p OperatingP
     })
 }
 
-fn sizing_at(cx: &Context, net: NetId) -> Sizing {
+fn sizing_at(cx: &Context, net: NetId, speed: FuseSpeed) -> Sizing {
+    let through = |p: &OperatingPoint| Some(amps(p.net_current[net]).abs());
     Sizing {
         continuous: continuous_through(cx, net).map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
+        peak: peak_through(cx, through),
+        brief: brief_peaks(cx, through),
         wire: weakest(&protected_wires(cx, net)),
+        preferred: speed,
     }
+}
+
+/// The highest current over the points that are not brief, with its mode.
+fn peak_through(
+    cx: &Context,
+    measure: impl Fn(&OperatingPoint) -> Option<f64>,
+) -> Option<(ElectricCurrent, ModeId)> {
+    worst_point(cx.points().filter(|p| p.brief.is_none()), measure)
+        .map(|(p, i)| (ElectricCurrent::new::<ampere>(i), p.mode))
+}
+
+/// Each brief mode's highest current, with how long the mode lasts.
+fn brief_peaks(cx: &Context, measure: impl Fn(&OperatingPoint) -> Option<f64>) -> Vec<BriefPeak> {
+    let mut peaks: Vec<BriefPeak> = Vec::new();
+    for mode in ModeId::all(cx.plan) {
+        let found = worst_point(
+            cx.points().filter(|p| p.mode == mode && p.brief.is_some()),
+            &measure,
+        );
+        if let Some((point, current)) = found
+            && let Some(lasts) = point.brief
+            && current > 0.0
+        {
+            peaks.push(BriefPeak {
+                current: ElectricCurrent::new::<ampere>(current),
+                lasts,
+                mode,
+            });
+        }
+    }
+    peaks
+}
+
+/// The motors whose current runs through `net`: fed straight from a net
+/// below it, or through a driver whose motor supply is below it.
+fn motors_below(cx: &Context, net: NetId) -> Vec<PartId> {
+    let plan = cx.plan;
+    let mut below = vec![false; plan.nets.len()];
+    let mut stack = vec![net];
+    while let Some(n) = stack.pop() {
+        if std::mem::replace(&mut below[n], true) {
+            continue;
+        }
+        stack.extend(cx.circuit.children[n].iter().copied());
+    }
+    cx.circuit
+        .motor_feed
+        .iter()
+        .enumerate()
+        .filter(|(_, feed)| match feed {
+            Some(MotorFeed::Direct { supply, .. }) => below[*supply],
+            Some(MotorFeed::Driver { driver, .. }) => plan.parts[*driver]
+                .pin("vm")
+                .and_then(|p| plan.parts[*driver].pins[p].net)
+                .is_some_and(|n| below[n]),
+            None => false,
+        })
+        .map(|(m, _)| m)
+        .collect()
 }
 
 // ----- fuse/missing ----------------------------------------------------------
@@ -703,12 +1008,14 @@ fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
                 }
                 _ => "make a fuse the first element on the battery positive".to_string(),
             };
+            let from_battery = |p: &OperatingPoint| p.batteries[part_id].map(|b| amps(b.current));
             let sizing = Sizing {
-                continuous: worst_point(cx.points().filter(continuous), |p| {
-                    p.batteries[part_id].map(|b| amps(b.current))
-                })
-                .map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
+                continuous: worst_point(cx.points().filter(continuous), from_battery)
+                    .map(|(_, i)| ElectricCurrent::new::<ampere>(i)),
+                peak: peak_through(cx, from_battery),
+                brief: brief_peaks(cx, from_battery),
                 wire: weakest(&wires),
+                preferred: FuseSpeed::Fast,
             };
             let finding = Finding::new(&MISSING, cx.pin_span(terminal), message)
                 .label(marked, label)
@@ -737,24 +1044,40 @@ fn check_undersized(cx: &Context, out: &mut Vec<Finding>) {
         if !exceeds(amps(minimum), amps(rating.value)) {
             continue;
         }
-        let sizing = sizing_at(cx, net);
-        let finding = Finding::new(
-            &UNDERSIZED,
-            rated_span(cx, &rating, fuse.part),
+        let sizing = sizing_at(cx, net, fuse.spec.speed);
+        let steady = ElectricCurrent::new::<ampere>(current);
+        // Below the steady current itself the fuse blows in normal work:
+        // an error, not a thin margin.
+        let blows = exceeds(current, amps(rating.value));
+        let message = if blows {
+            format!(
+                "`{}` is rated {} and carries {} continuous {}: above its rating, it blows in normal work; at 125 % it needs a rating of {}",
+                fuse.name,
+                show_current(rating.value),
+                show_current(steady),
+                mode_label(cx.plan, point.mode, point.battery),
+                show_current(minimum)
+            )
+        } else {
             format!(
                 "`{}` carries {} continuous {}; at 125 % it needs a rating of {}, and it is rated {}",
                 fuse.name,
-                show_current(ElectricCurrent::new::<ampere>(current)),
+                show_current(steady),
                 mode_label(cx.plan, point.mode, point.battery),
                 show_current(minimum),
                 show_current(rating.value)
-            ),
-        )
-        .at_point(cx.plan, point)
-        .help(sizing.advice(cx))
-        .part(fuse.name)
-        .net(cx.net_name(net))
-        .value("rating", amps(rating.value));
+            )
+        };
+        let mut finding = Finding::new(&UNDERSIZED, rated_span(cx, &rating, fuse.part), message);
+        if blows {
+            finding.severity = Severity::Error;
+        }
+        let finding = finding
+            .at_point(cx.plan, point)
+            .help(sizing.advice(cx))
+            .part(fuse.name)
+            .net(cx.net_name(net))
+            .value("rating", amps(rating.value));
         out.push(sizing.values(finding));
     }
 }
@@ -773,7 +1096,7 @@ fn check_oversized(cx: &Context, out: &mut Vec<Finding>) {
         let Some(thinnest) = weakest(&over) else {
             continue;
         };
-        let sizing = sizing_at(cx, net);
+        let sizing = sizing_at(cx, net, fuse.spec.speed);
         let mut finding = Finding::new(
             &OVERSIZED,
             rated_span(cx, &rating, fuse.part),
@@ -877,7 +1200,9 @@ fn check_voltage(cx: &Context, out: &mut Vec<Finding>) {
                 show_voltage(circuit)
             ),
         };
-        let sizing = fuse.downstream.map(|net| sizing_at(cx, net));
+        let sizing = fuse
+            .downstream
+            .map(|net| sizing_at(cx, net, fuse.spec.speed));
         let advice = sizing
             .as_ref()
             .map_or(String::new(), |s| format!("; {}", s.advice(cx)));
@@ -910,58 +1235,124 @@ fn check_voltage(cx: &Context, out: &mut Vec<Finding>) {
 
 fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
     for fuse in fuses(cx) {
-        if fuse.spec.speed != FuseSpeed::Fast {
-            continue;
-        }
         let (Some(rating), Some(net)) = (fuse.spec.rating, fuse.downstream) else {
             continue;
         };
-        let Some((point, peak)) =
-            worst_point(cx.points(), |p| Some(amps(p.net_current[net]).abs()))
-        else {
-            continue;
+        let speed = fuse.spec.speed;
+        let motors = motors_below(cx, net);
+        // Name the motors behind this fuse that stall at the point; with
+        // none, the peak is a load's, not a motor start.
+        let cause = |point: &OperatingPoint| {
+            let stalled: Vec<String> = motors
+                .iter()
+                .filter(|&&m| point.motors[m].is_some_and(|m| m.state == MotorState::Stall))
+                .map(|&m| format!("`{}`", cx.part_name(m)))
+                .collect();
+            (!stalled.is_empty()).then(|| stalled.join(" and "))
         };
-        if !exceeds(peak, amps(rating.value)) {
+        let sizing = sizing_at(cx, net, speed);
+        let through = |p: &OperatingPoint| amps(p.net_current[net]).abs();
+
+        // A brief mode: the fuse must not open within the time it lasts.
+        let opening = cx
+            .points()
+            .filter_map(|p| p.brief.map(|lasts| (p, lasts)))
+            .filter(|(p, lasts)| {
+                may_open(
+                    speed,
+                    rating.value,
+                    ElectricCurrent::new::<ampere>(through(p)),
+                    *lasts,
+                )
+            })
+            .max_by(|(a, _), (b, _)| through(a).total_cmp(&through(b)));
+        if let Some((point, lasts)) = opening {
+            let current = ElectricCurrent::new::<ampere>(through(point));
+            let multiple = amps(current) / amps(rating.value);
+            let band = match least_opening_time(speed, multiple) {
+                Some(least) => format!(
+                    "{} lets a {} fuse open from {} at that multiple",
+                    match speed {
+                        FuseSpeed::Fast => "ISO 8820-3",
+                        FuseSpeed::Slow => "IEC 60127-2 (time-lag)",
+                    },
+                    match speed {
+                        FuseSpeed::Fast => "blade",
+                        FuseSpeed::Slow => "time-delay",
+                    },
+                    show_duration(least)
+                ),
+                None => "past the published bands it may open at once".to_string(),
+            };
+            let what = match cause(point) {
+                Some(stalled) => format!("while {stalled} stall"),
+                None => "at that peak".to_string(),
+            };
+            let finding = Finding::new(
+                &NUISANCE,
+                rated_span(cx, &rating, fuse.part),
+                format!(
+                    "`{}` is a {} fuse rated {} and carries {} ({} of its rating) for {} {}: {band}, so it may blow {what}",
+                    fuse.name,
+                    speed_words(speed),
+                    show_current(rating.value),
+                    show_current(current),
+                    show_share(Ratio::new::<ratio>(multiple)),
+                    show_duration(lasts),
+                    mode_label(cx.plan, point.mode, point.battery)
+                ),
+            )
+            .at_point(cx.plan, point)
+            .help(sizing.advice(cx))
+            .part(fuse.name)
+            .net(cx.net_name(net))
+            .value("rating", amps(rating.value))
+            .value("peak", amps(current))
+            .value("lasts", lasts.get::<second>());
+            out.push(sizing.values(finding));
             continue;
         }
-        let stalled: Vec<String> = point
-            .motors
-            .iter()
-            .enumerate()
-            .filter(|(_, m)| m.is_some_and(|m| m.state == crate::model::MotorState::Stall))
-            .map(|(m, _)| format!("`{}`", cx.part_name(m)))
-            .collect();
-        let cause = if stalled.is_empty() {
-            String::new()
-        } else {
-            format!(" with {} stalled", stalled.join(" and "))
+
+        // Every other peak, `worst` among them: a motor start lasts tens of
+        // milliseconds at the stall current.
+        let Some((point, peak)) = worst_point(cx.points().filter(|p| p.brief.is_none()), |p| {
+            Some(through(p))
+        }) else {
+            continue;
         };
-        let sizing = sizing_at(cx, net);
         let peak_current = ElectricCurrent::new::<ampere>(peak);
-        let fast_alternative = blade_rating_for(peak_current, sizing.wire.map(|w| w.ampacity))
-            .filter(|&r| sizing.minimum().is_none_or(|m| !exceeds(amps(m), amps(r))))
-            .map_or(String::new(), |r| {
-                format!(
-                    ", or a fast fuse of {}, above that peak and within the wire's ampacity",
-                    show_current(r)
-                )
-            });
+        if !peak_may_open(speed, rating.value, peak_current) {
+            continue;
+        }
+        let (cause, risk) = match cause(point) {
+            Some(stalled) => (
+                format!(" with {stalled} stalled"),
+                "it may blow at motor start",
+            ),
+            None => (String::new(), "it may blow at that peak"),
+        };
+        let how = match speed {
+            FuseSpeed::Fast => String::new(),
+            FuseSpeed::Slow => format!(
+                " ({} of its rating, where IEC 60127-2 (time-lag) lets it open within a {} motor start)",
+                show_share(Ratio::new::<ratio>(peak / amps(rating.value))),
+                show_duration(motor_start())
+            ),
+        };
         let finding = Finding::new(
             &NUISANCE,
             rated_span(cx, &rating, fuse.part),
             format!(
-                "`{}` is a fast fuse rated {} and carries {} peak{cause} {}: it may blow at motor start",
+                "`{}` is a {} fuse rated {} and carries {} peak{cause} {}{how}: {risk}",
                 fuse.name,
+                speed_words(speed),
                 show_current(rating.value),
                 show_current(peak_current),
                 mode_label(cx.plan, point.mode, point.battery)
             ),
         )
         .at_point(cx.plan, point)
-        .help(format!(
-            "use a time-delay (`speed: slow`) fuse{fast_alternative}; {}",
-            sizing.advice(cx)
-        ))
+        .help(sizing.advice(cx))
         .part(fuse.name)
         .net(cx.net_name(net))
         .value("rating", amps(rating.value))
@@ -1005,14 +1396,14 @@ mod tests {
     #[test]
     fn thinnest_even_gauge_for_a_fifteen_amp_fuse() {
         // Handbook chassis column: 20 AWG 11 A is too thin, 18 AWG 16 A carries 15 A.
-        let (size, limit) = thinnest_wire_for(a(15.0), None).unwrap();
+        let (size, limit) = thinnest_wire_for(a(15.0), None, None).unwrap();
         assert_eq!(size, WireSize::Awg(18));
         assert_eq!(amps(limit), 16.0);
         // 33 CFR Table 5 at 60 °C: 18 AWG 10 A, 16 AWG 15 A.
         let sixty = ThermodynamicTemperature::new::<
             uom::si::thermodynamic_temperature::degree_celsius,
         >(60.0);
-        let (size, _) = thinnest_wire_for(a(15.0), Some(sixty)).unwrap();
+        let (size, _) = thinnest_wire_for(a(15.0), Some(sixty), None).unwrap();
         assert_eq!(size, WireSize::Awg(16));
     }
 }

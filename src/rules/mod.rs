@@ -370,9 +370,10 @@ pub fn worst_point<'p>(
     best
 }
 
-/// Mode filter for continuous ratings (format reference §6: never `worst`).
+/// Filter for continuous ratings (format reference §6: never `worst`, never
+/// a brief mode).
 pub fn continuous(point: &&OperatingPoint) -> bool {
-    point.mode.is_continuous()
+    point.is_continuous()
 }
 
 pub fn mode_label(plan: &Plan, mode: ModeId, battery: BatteryState) -> String {

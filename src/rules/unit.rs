@@ -35,6 +35,8 @@ pub enum Unit {
     DegreeCelsius,
     /// A temperature difference (a margin or a rise), not a temperature.
     Kelvin,
+    /// A duration, such as how long a brief mode lasts.
+    Second,
     /// A dimensionless count, such as solver iterations.
     Count,
 }
@@ -51,12 +53,13 @@ impl Unit {
             Unit::Metre => "m",
             Unit::DegreeCelsius => "degC",
             Unit::Kelvin => "K",
+            Unit::Second => "s",
             Unit::Count => "1",
         }
     }
 
     /// Every unit, for documentation and schema checks.
-    pub const ALL: [Unit; 9] = [
+    pub const ALL: [Unit; 10] = [
         Unit::Volt,
         Unit::Ampere,
         Unit::Watt,
@@ -65,6 +68,7 @@ impl Unit {
         Unit::Metre,
         Unit::DegreeCelsius,
         Unit::Kelvin,
+        Unit::Second,
         Unit::Count,
     ];
 }
@@ -126,6 +130,7 @@ const DECLARED: &[(Option<&str>, &str, Unit)] = &[
     (None, "input_voltage", Unit::Volt),
     (None, "iterations", Unit::Count),
     (None, "junction", Unit::DegreeCelsius),
+    (None, "lasts", Unit::Second),
     (None, "limit", Unit::Volt),
     (None, "margin", Unit::Volt),
     (None, "max", Unit::Volt),
@@ -142,9 +147,11 @@ const DECLARED: &[(Option<&str>, &str, Unit)] = &[
     (None, "range_min", Unit::Volt),
     (None, "rating", Unit::Ampere),
     (None, "return_drop", Unit::Volt),
+    (None, "short_time_limit", Unit::Ampere),
     (None, "source_voltage", Unit::Volt),
     (None, "stall_current", Unit::Ampere),
     (None, "suggested_rating", Unit::Ampere),
+    (None, "suggested_time_delay", Unit::Count),
     (None, "supply_drop", Unit::Volt),
     (None, "tj_max", Unit::DegreeCelsius),
     (None, "vih", Unit::Volt),

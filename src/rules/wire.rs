@@ -13,8 +13,9 @@ use crate::analysis::{OperatingPoint, net_resistance, usb_link_resistance};
 use crate::graph::MotorFeed;
 use crate::model::{Class, NetId, PartId, PinRef, PinRole};
 use crate::syntax::Span;
+use crate::units::show_duration;
 use crate::units::{WireSize, show_current, show_length, show_share, show_voltage};
-use crate::wire::{AmpacityTable, ampacity};
+use crate::wire::{AmpacityTable, adiabatic_limit, ampacity_at};
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
 use uom::si::f64::{
@@ -27,11 +28,11 @@ pub const AMPACITY: Rule = Rule {
     severity: Severity::Error,
     summary: "a net's current exceeds its wire's ampacity",
     doc: RuleDoc {
-        what: "The continuous current (the `typical` mode and the user's modes, never `worst`) through each net that names a `wire`, and through each USB cable that names one, against that wire's ampacity: the Handbook \"chassis wiring\" column (single wire in free air) for 10–30 AWG, or 33 CFR 183.425 Table 5 at the net's `insulation` rating for 8–18 AWG; a metric size is rated as the next smaller AWG by area. A motor lead carries its motor's current. The table in force is named in the finding.",
+        what: "The continuous current (the `typical` mode and the user's modes that are not brief, never `worst`) through each net that names a `wire`, and through each USB cable that names one, against that wire's ampacity: the Handbook \"chassis wiring\" column (single wire in free air) for 10–30 AWG, or 33 CFR 183.425 Table 5 at the net's `insulation` rating for 8–18 AWG, corrected for a written `ambient` above its 30 °C by the NEC 310.15(B) formula; a metric size is rated as the next smaller AWG by area. A brief mode's current (`lasts` 5 s or less) meets the adiabatic short-time limit instead: I²t ≤ k²S², k = 115 for PVC-insulated copper. A motor lead carries its motor's current. The table in force is named in the finding.",
         why: "A wire above its ampacity heats until its insulation softens, smokes or melts, and it can start a fire long before any fuse sized for the load reacts.",
         example: "railcheck: 1\nname: lab camera rig\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-3a }\n  buck: { use: regulator/buck-5v-5a }\n  cams: { class: load, pins: { vin: { role: supply-in, draw: 4 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT: [main_fuse.b, buck.vin]\n  5V: { pins: [buck.vout, cams.vin], wire: 24 AWG, length: 0.3 m }   # 4 A > the 3.5 A of 24 AWG\n  GND: [pack.neg, buck.gnd, cams.gnd]",
         fix: "railcheck: 1\nname: lab camera rig\nparts:\n  pack: { use: battery/lead-acid-12v }\n  main_fuse: { use: fuse/blade-3a }\n  buck: { use: regulator/buck-5v-5a }\n  cams: { class: load, pins: { vin: { role: supply-in, draw: 4 A }, gnd: { role: ground } } }\nnets:\n  BATT+: [pack.pos, main_fuse.a]\n  VBAT: [main_fuse.b, buck.vin]\n  5V: { pins: [buck.vout, cams.vin], wire: 22 AWG, length: 0.3 m }   # 22 AWG carries 7 A\n  GND: [pack.neg, buck.gnd, cams.gnd]",
-        references: "Handbook of Electronic Tables and Formulas for American Wire Gauge, chassis wiring column; 33 CFR 183.425 Table 5; metric sizes by the next smaller AWG (format reference §4); worked examples: 22 AWG carries 7 A on the chassis column, 16 AWG with 105 °C insulation 25 A in Table 5.",
+        references: "Handbook of Electronic Tables and Formulas for American Wire Gauge, chassis wiring column; 33 CFR 183.425 Table 5 with the NEC 310.15(B) ambient correction; IEC 60364-4-43 §434.5.2 and Table 43A (k = 115) for brief peaks; metric sizes by the next smaller AWG (format reference §4); worked examples: 22 AWG carries 7 A on the chassis column, 16 AWG with 105 °C insulation 25 A in Table 5.",
     },
     needs_operating_point: true,
     check: check_ampacity,
@@ -69,6 +70,8 @@ struct Conductor<'a> {
     span: Span,
     size: WireSize,
     insulation: Option<ThermodynamicTemperature>,
+    /// The air around it when the plan gives one (ampacity correction).
+    ambient: Option<ThermodynamicTemperature>,
     nets: Vec<String>,
     parts: Vec<String>,
     current: CurrentAt<'a>,
@@ -106,6 +109,7 @@ fn conductors<'a>(cx: &'a Context) -> Vec<Conductor<'a>> {
             span: wire.span,
             size: wire.value,
             insulation: net.insulation,
+            ambient: plan.conductor_ambient(net_id),
             nets: vec![net.name.clone()],
             parts: motors.iter().map(|&m| plan.parts[m].name.clone()).collect(),
             current: Box::new(move |p| {
@@ -131,6 +135,7 @@ fn conductors<'a>(cx: &'a Context) -> Vec<Conductor<'a>> {
             span: link.span,
             size: wire.value,
             insulation: None,
+            ambient: plan.cable_ambient(),
             nets: Vec::new(),
             parts: vec![
                 plan.parts[host].name.clone(),
@@ -147,10 +152,11 @@ fn conductors<'a>(cx: &'a Context) -> Vec<Conductor<'a>> {
 fn thinnest_carrying(
     current: ElectricCurrent,
     insulation: Option<ThermodynamicTemperature>,
+    ambient: Option<ThermodynamicTemperature>,
 ) -> Option<(WireSize, ElectricCurrent, AmpacityTable)> {
     (8..=30).rev().find_map(|gauge| {
         let size = WireSize::Awg(gauge);
-        ampacity(size, insulation)
+        ampacity_at(size, insulation, ambient)
             .filter(|(rating, _)| !exceeds(amps(current), amps(*rating)))
             .map(|(rating, table)| (size, rating, table))
     })
@@ -158,7 +164,10 @@ fn thinnest_carrying(
 
 fn check_ampacity(cx: &Context, out: &mut Vec<Finding>) {
     for conductor in conductors(cx) {
-        let Some((rating, table)) = ampacity(conductor.size, conductor.insulation) else {
+        check_brief_peaks(cx, &conductor, out);
+        let Some((rating, table)) =
+            ampacity_at(conductor.size, conductor.insulation, conductor.ambient)
+        else {
             continue;
         };
         let Some((point, current)) = worst_point(cx.points().filter(continuous), |p| {
@@ -170,7 +179,7 @@ fn check_ampacity(cx: &Context, out: &mut Vec<Finding>) {
             continue;
         }
         let current_q = ElectricCurrent::new::<ampere>(current);
-        let help = match thinnest_carrying(current_q, conductor.insulation) {
+        let help = match thinnest_carrying(current_q, conductor.insulation, conductor.ambient) {
             Some((size, carries, _)) => format!(
                 "use {size} or heavier ({} by the same table), or split the load over more conductors",
                 show_current(carries)
@@ -181,13 +190,14 @@ fn check_ampacity(cx: &Context, out: &mut Vec<Finding>) {
             &AMPACITY,
             conductor.span,
             format!(
-                "{} carries {} continuous {}; its {} wire is rated {} ({})",
+                "{} carries {} continuous {}; its {} wire is rated {} ({}{})",
                 conductor.subject,
                 show_current(current_q),
                 mode_label(cx.plan, point.mode, point.battery),
                 conductor.size,
                 show_current(rating),
-                table.describe()
+                table.describe(),
+                ambient_note(&conductor, table)
             ),
         )
         .at_point(cx.plan, point)
@@ -202,6 +212,59 @@ fn check_ampacity(cx: &Context, out: &mut Vec<Finding>) {
         }
         out.push(finding);
     }
+}
+
+/// How a finding names the air an ampacity was corrected for.
+fn ambient_note(conductor: &Conductor, table: AmpacityTable) -> String {
+    match conductor.ambient {
+        Some(air) if crate::wire::ambient_factor(table, Some(air)) < 1.0 => format!(
+            ", corrected to {} air by the NEC 310.15(B) ambient formula",
+            crate::units::show_temperature(air)
+        ),
+        _ => String::new(),
+    }
+}
+
+/// A brief mode's current against the wire's adiabatic short-time limit
+/// (IEC 60364-4-43 §434.5.2: I²t ≤ k²S², k = 115 for PVC-insulated copper):
+/// a peak that lasts a few seconds heats the copper with no time to shed it.
+fn check_brief_peaks(cx: &Context, conductor: &Conductor, out: &mut Vec<Finding>) {
+    let over = cx
+        .points()
+        .filter_map(|p| p.brief.map(|lasts| (p, lasts)))
+        .map(|(p, lasts)| {
+            let current = (conductor.current)(p);
+            (p, lasts, current, adiabatic_limit(conductor.size, lasts))
+        })
+        .filter(|(_, _, current, limit)| exceeds(amps(*current), amps(*limit)))
+        .max_by(|a, b| (amps(a.2) / amps(a.3)).total_cmp(&(amps(b.2) / amps(b.3))));
+    let Some((point, lasts, current, limit)) = over else {
+        return;
+    };
+    let mut finding = Finding::new(
+        &AMPACITY,
+        conductor.span,
+        format!(
+            "{} carries {} for {} {}; its {} wire may carry {} for that long (IEC 60364-4-43 adiabatic limit, k = 115)",
+            conductor.subject,
+            show_current(current),
+            show_duration(lasts),
+            mode_label(cx.plan, point.mode, point.battery),
+            conductor.size,
+            show_current(limit)
+        ),
+    )
+    .at_point(cx.plan, point)
+    .help("use a heavier wire, or shorten the peak (a current limit in the driver)")
+    .value("current", amps(current))
+    .value("short_time_limit", amps(limit));
+    for net in &conductor.nets {
+        finding = finding.net(net);
+    }
+    for part in &conductor.parts {
+        finding = finding.part(part);
+    }
+    out.push(finding);
 }
 
 /// Voltage lost along a net's path to the root of its tree (I·R per net,

@@ -50,6 +50,7 @@ const CONTRACT_RULES: &[(&str, &[&str])] = &[
     ("fuse/oversized", &["error"]),
     ("fuse/voltage", &["error"]),
     ("fuse/nuisance", &["warning"]),
+    ("switch/voltage", &["error"]),
     ("wire/ampacity", &["error"]),
     ("wire/drop", &["warning"]),
     ("safety/no-stop", &["warning"]),

@@ -53,6 +53,7 @@ const CONTRACT_RULES: &[(&str, Severity)] = &[
     ("fuse/oversized", Severity::Error),
     ("fuse/voltage", Severity::Error),
     ("fuse/nuisance", Severity::Warning),
+    ("switch/voltage", Severity::Error),
     ("wire/ampacity", Severity::Error),
     ("wire/drop", Severity::Warning),
     ("safety/no-stop", Severity::Warning),

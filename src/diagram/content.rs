@@ -508,9 +508,12 @@ fn stage(class: &Class) -> Stage {
         Class::Battery(_) => Stage::Source,
         Class::Fuse(_) | Class::Switch(_) | Class::Connector(_) => Stage::Protection,
         Class::Regulator(_) | Class::Driver(_) | Class::Shifter => Stage::Conversion,
-        Class::Motor(_) | Class::Resistor(_) | Class::Board | Class::Sensor | Class::Load => {
-            Stage::Load
-        }
+        Class::Motor(_)
+        | Class::Resistor(_)
+        | Class::Board
+        | Class::Sensor
+        | Class::Load
+        | Class::Servo => Stage::Load,
     }
 }
 
@@ -580,7 +583,7 @@ fn rating(plan: &Plan, part_id: PartId) -> Option<String> {
             }
             s
         }
-        Class::Board | Class::Sensor | Class::Load => {
+        Class::Board | Class::Sensor | Class::Load | Class::Servo => {
             let pin_draw = part
                 .pins
                 .iter()

@@ -729,14 +729,26 @@ pub const CLASSES: &[ClassSpec] = &[
     },
     ClassSpec {
         name: "load",
-        meaning: "any other load (lamp, fan, heater): declare all its pins",
+        meaning: "any other load (lamp, fan, heater, pump): declare all its pins",
         fixed_pins: &[],
-        fields: &[],
+        fields: &[field(
+            "moves",
+            Value::Flag,
+            "true",
+            "it moves something (a pump, a linear actuator, a gripper): the stop switch must cut its power",
+        )
+        .or_else("false")],
     },
     ClassSpec {
         name: "shifter",
         meaning: "a level translator: each logic pin names its own `ref` side",
         fixed_pins: &[],
+        fields: &[],
+    },
+    ClassSpec {
+        name: "servo",
+        meaning: "a hobby servo: a geared motor with its own driver, commanded by pulses on a logic input; it moves, so the stop switch must cut its power. Give `vin` its `draw` (peak = stalled) and declare the signal pin",
+        fixed_pins: &[("vin", PinRole::SupplyIn), ("gnd", PinRole::Ground)],
         fields: &[],
     },
 ];

@@ -78,6 +78,9 @@ pub struct Part {
     pub class: Class,
     pub pins: Vec<Pin>,
     pub ports: Vec<Port>,
+    /// It moves something (a motor, a servo, a `load` with `moves: true`):
+    /// a stop switch must be able to cut its power.
+    pub actuator: bool,
 }
 
 impl Part {
@@ -290,10 +293,12 @@ pub enum Class {
     Sensor,
     Load,
     Shifter,
+    /// A hobby servo: a geared motor with its own driver, commanded by pulses.
+    Servo,
 }
 
 impl Class {
-    pub const NAMES: [&'static str; 12] = [
+    pub const NAMES: [&'static str; 13] = [
         "battery",
         "fuse",
         "switch",
@@ -306,6 +311,7 @@ impl Class {
         "sensor",
         "load",
         "shifter",
+        "servo",
     ];
 
     pub fn name(&self) -> &'static str {
@@ -321,6 +327,7 @@ impl Class {
             Class::Board => "board",
             Class::Sensor => "sensor",
             Class::Load => "load",
+            Class::Servo => "servo",
             Class::Shifter => "shifter",
         }
     }

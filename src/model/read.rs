@@ -645,6 +645,11 @@ impl Reader<'_> {
             .map(|n| self.ports(&name, n, &pins, name_span))
             .unwrap_or_default();
         let class = self.class(&class_name, &name, name_span, body, &mut pins)?;
+        let moves = body
+            .get("moves")
+            .and_then(|n| self.boolean(n))
+            .unwrap_or(false);
+        let actuator = moves || matches!(class, Class::Motor(_) | Class::Servo);
         Some(Part {
             name,
             span: name_span,
@@ -652,6 +657,7 @@ impl Reader<'_> {
             class,
             pins,
             ports,
+            actuator,
         })
     }
 
@@ -1056,6 +1062,7 @@ impl Reader<'_> {
             "board" => Class::Board,
             "sensor" => Class::Sensor,
             "load" => Class::Load,
+            "servo" => Class::Servo,
             _ => Class::Shifter,
         })
     }

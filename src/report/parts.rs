@@ -222,7 +222,7 @@ fn key_ratings(part: &Part) -> String {
             out.extend(r.power.map(show_power));
             out.join(", ")
         }
-        Class::Board | Class::Sensor | Class::Load | Class::Shifter => {
+        Class::Board | Class::Sensor | Class::Load | Class::Shifter | Class::Servo => {
             let mut out = Vec::new();
             for pin in part.pins.iter() {
                 match pin.role {
@@ -325,7 +325,7 @@ fn class_fields(class: &Class) -> Vec<(&'static str, String)> {
             put("value", Some(show_resistance(r.value)));
             put("power", r.power.map(show_power));
         }
-        Class::Board | Class::Sensor | Class::Load | Class::Shifter => {}
+        Class::Board | Class::Sensor | Class::Load | Class::Shifter | Class::Servo => {}
     }
     out
 }

@@ -1137,7 +1137,7 @@ fn check_oversized(cx: &Context, out: &mut Vec<Finding>) {
 
 /// The highest voltage a fuse's circuit can put across it when it opens,
 /// and what sets it.
-fn circuit_voltage(cx: &Context, fuse: PartId) -> Option<(ElectricPotential, String)> {
+pub(super) fn circuit_voltage(cx: &Context, fuse: PartId) -> Option<(ElectricPotential, String)> {
     let plan = cx.plan;
     let net = plan.parts[fuse].pins.iter().find_map(|p| p.net)?;
     let node = &cx.circuit.nodes[cx.circuit.node_of_net[net]];

@@ -16,6 +16,7 @@ mod logic;
 mod power;
 mod regulator;
 mod safety;
+mod switch;
 mod thermal;
 mod unit;
 mod voltage;
@@ -109,6 +110,7 @@ pub static RULES: &[Rule] = &[
     fuse::OVERSIZED,
     fuse::VOLTAGE,
     fuse::NUISANCE,
+    switch::VOLTAGE,
     wire::AMPACITY,
     wire::DROP,
     safety::NO_STOP,

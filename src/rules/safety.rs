@@ -1,7 +1,9 @@
-//! Safety: every motor's supply path passes through a stop switch.
+//! Safety: every actuator's supply path passes through a stop switch.
 //!
-//! The path is traced from the motor's driver `vm` pin (or the rail a motor
-//! sits on directly) back to every battery that can power it: up its net
+//! Actuators are motors, servos and loads marked `moves: true`. The path is
+//! traced from the motor's driver `vm` pin (or the rail a motor sits on
+//! directly; a servo's or moving load's own supply input) back to every
+//! battery that can power it: up its net
 //! tree to the rail's source, and through converters (regulators, boards,
 //! USB hosts) to their own inputs. A `stop: true` switch anywhere on a path
 //! clears it; every path must be cleared. Only the supply side counts: a
@@ -15,9 +17,9 @@ use crate::model::{Class, NetId, PartId, PinRef, PinRole};
 pub const NO_STOP: Rule = Rule {
     id: "safety/no-stop",
     severity: Severity::Warning,
-    summary: "motors with no stop switch in their supply path",
+    summary: "motors, servos or other actuators with no stop switch in their supply path",
     doc: RuleDoc {
-        what: "Traces each motor's supply — its driver's `vm` pin, or the rail it sits on directly — back through the net wiring and any converters to every battery that powers it, and looks for a switch marked `stop: true` on the way. Every such path must pass one.",
+        what: "Traces each actuator's supply — a motor's driver `vm` pin or the rail it sits on directly, a servo's or a `moves: true` load's own supply input — back through the net wiring and any converters to every battery that powers it, and looks for a switch marked `stop: true` on the way. Every such path must pass one.",
         why: "A robot that runs away, pins a hand or drives off a bench must be stoppable at once, whatever the software is doing; a stop switch that cuts the motors' power is the one control that does not depend on the firmware.",
         example: "railcheck: 1\nname: warehouse tug\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-15a }\n  buck:  { use: regulator/buck-5v-3a }\n  drive: { use: driver/mosfet-dual-hbridge }\n  left:  { use: motor/gearmotor-medium }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin, drive.vm]   # nothing but the fuse between the pack and the motor\n  5V:    [buck.vout, drive.vlogic]\n  GND:   [pack.neg, buck.gnd, drive.gnd]\n  LA:    [drive.out1a, left.a]\n  LB:    [drive.out1b, left.b]\n",
         fix: "railcheck: 1\nname: warehouse tug\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-15a }\n  estop: { use: switch/estop-20a }\n  buck:  { use: regulator/buck-5v-3a }\n  drive: { use: driver/mosfet-dual-hbridge }\n  left:  { use: motor/gearmotor-medium }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, estop.a, buck.vin]\n  VMOT:  [estop.b, drive.vm]   # the stop cuts the motor; the electronics stay up\n  5V:    [buck.vout, drive.vlogic]\n  GND:   [pack.neg, buck.gnd, drive.gnd]\n  LA:    [drive.out1a, left.a]\n  LB:    [drive.out1b, left.b]\n",
@@ -128,11 +130,23 @@ fn unstopped_part(cx: &Context, part: PartId, visited: &mut Vec<PartId>) -> Opti
     None
 }
 
-/// Where a motor's power enters: the driver and its supply pin, or the
-/// motor's own pin on the rail.
+/// Where an actuator's power enters: a motor's driver and its supply pin,
+/// or the motor's own pin on the rail; a servo's or moving load's own
+/// supply input.
 fn supply_entries(cx: &Context) -> Vec<(PinRef, Vec<PartId>)> {
     let plan = cx.plan;
     let mut entries: Vec<(PinRef, Vec<PartId>)> = Vec::new();
+    for (part_id, part) in plan.parts.iter().enumerate() {
+        if !part.actuator || matches!(part.class, Class::Motor(_)) {
+            continue;
+        }
+        if let Some((pin, _)) = part
+            .pins_with_role(PinRole::SupplyIn)
+            .find(|(_, p)| p.net.is_some())
+        {
+            entries.push((PinRef { part: part_id, pin }, vec![part_id]));
+        }
+    }
     for (motor, feed) in cx.circuit.motor_feed.iter().enumerate() {
         let entry = match *feed {
             Some(MotorFeed::Driver { driver, .. }) => {
@@ -173,8 +187,13 @@ fn check_no_stop(cx: &Context, out: &mut Vec<Finding>) {
             .iter()
             .map(|&m| format!("`{}`", cx.part_name(m)))
             .collect();
+        let noun = |part: PartId| match plan.parts[part].class {
+            Class::Motor(_) => "motor",
+            Class::Servo => "servo",
+            _ => "actuator",
+        };
         let (who, verb, them) = match names.as_slice() {
-            [one] => (format!("motor {one}"), "takes", "it"),
+            [one] => (format!("{} {one}", noun(motors[0])), "takes", "it"),
             _ => (format!("motors {}", names.join(" and ")), "take", "them"),
         };
         let through = if motors.contains(&entry.part) {
@@ -190,7 +209,11 @@ fn check_no_stop(cx: &Context, out: &mut Vec<Finding>) {
                 cx.part_name(battery)
             ),
         )
-        .help("put a latching stop switch (`stop: true`) in the motors' supply, between the battery's fuse and the driver, rated for the motors' stall current")
+        .help(if motors.iter().all(|&m| matches!(plan.parts[m].class, Class::Motor(_))) {
+            "put a latching stop switch (`stop: true`) in the motors' supply, between the battery's fuse and the driver, rated for the motors' stall current"
+        } else {
+            "put a latching stop switch (`stop: true`) in its supply, between the battery's fuse and the actuator (or its regulator), rated for its stall current"
+        })
         .part(cx.part_name(battery))
         .net(cx.net_name(net));
         for &m in &motors {

@@ -192,6 +192,33 @@ struct Rail<'p> {
     high: AtPoint<'p>,
     /// The supply pin or net it is read at; `None` for a nominal VDD.
     named: Option<String>,
+    /// It is the same in every mode at each battery state and tolerance
+    /// corner (a regulated rail): a finding on it names no mode.
+    mode_free: bool,
+    /// It is the same at every battery state (a regulated rail out of
+    /// dropout): a finding on it names no battery state.
+    battery_free: bool,
+}
+
+/// Whether samples that share the rest of their operating point agree (to
+/// 1 µV) whatever `varies` picks out of it: then that coordinate is no part
+/// of a finding.
+fn agrees_across<K: PartialEq>(samples: &[AtPoint], rest: impl Fn(&OperatingPoint) -> K) -> bool {
+    let mut seen: Vec<(K, f64, f64)> = Vec::new();
+    for sample in samples {
+        let Some(point) = sample.point else {
+            continue;
+        };
+        let (key, value) = (rest(point), v(sample.voltage));
+        match seen.iter_mut().find(|(k, ..)| *k == key) {
+            Some((_, low, high)) => {
+                *low = low.min(value);
+                *high = high.max(value);
+            }
+            None => seen.push((key, value, value)),
+        }
+    }
+    seen.iter().all(|(_, low, high)| high - low <= 1e-6)
 }
 
 /// A rail's lowest and highest voltage in one comparison.
@@ -207,6 +234,10 @@ impl<'p> Rail<'p> {
         named: Option<String>,
     ) -> Option<Rail<'p>> {
         let first = *samples.first()?;
+        // The same at each battery state and corner whatever the mode; the
+        // same in each mode and corner whatever the battery state.
+        let mode_free = agrees_across(&samples, |p| (p.battery, p.corner));
+        let battery_free = agrees_across(&samples, |p| (p.mode, p.corner));
         let (mut low, mut high) = (first, first);
         for sample in &samples[1..] {
             if v(sample.voltage) < v(low.voltage) - 1e-12 {
@@ -222,6 +253,8 @@ impl<'p> Rail<'p> {
             low,
             high,
             named,
+            mode_free,
+            battery_free,
         })
     }
 
@@ -236,6 +269,8 @@ impl<'p> Rail<'p> {
             low: at,
             high: at,
             named: None,
+            mode_free: true,
+            battery_free: true,
         }
     }
 
@@ -779,6 +814,12 @@ struct Link<'p> {
     sense: Sense<'p>,
     verdict: Verdict,
     net: NetId,
+    /// Both sides' rails are the same in every mode: the finding names no
+    /// mode.
+    mode_free: bool,
+    /// Both sides' rails are the same at every battery state: the finding
+    /// names no battery state.
+    battery_free: bool,
 }
 
 /// Every comparison one driver–receiver pair needs: a single one at each
@@ -808,6 +849,12 @@ fn compare<'p>(
             sense,
             verdict,
             net,
+            mode_free: [&driver.rail, &receiver.rail]
+                .iter()
+                .all(|r| r.as_ref().is_none_or(|r| r.mode_free)),
+            battery_free: [&driver.rail, &receiver.rail]
+                .iter()
+                .all(|r| r.as_ref().is_none_or(|r| r.battery_free)),
         }
     };
     if let (Some(d), Some(r)) = (&driver.rail, &receiver.rail)
@@ -1068,7 +1115,11 @@ impl Link<'_> {
             Source::Tied(_) => {}
         }
         if let Some(point) = point {
-            finding = finding.at_point(cx.plan, point);
+            finding = match (self.mode_free, self.battery_free) {
+                (true, true) => finding,
+                (true, false) => finding.at_battery(point.battery),
+                _ => finding.at_point(cx.plan, point),
+            };
         }
         let levels = [
             ("voh", &self.drive.voh),
@@ -1093,9 +1144,16 @@ impl Link<'_> {
     }
 }
 
-fn at_text(cx: &Context, point: Option<&OperatingPoint>) -> String {
+/// Where a comparison fails: its mode and battery state, or only the parts
+/// of them it depends on (a regulated rail fails the same in every mode and
+/// at every battery state).
+fn at_text(cx: &Context, point: Option<&OperatingPoint>, link: &Link) -> String {
     point.map_or(String::new(), |p| {
-        format!(" {}", mode_label(cx.plan, p.mode, p.battery))
+        match (link.mode_free, link.battery_free) {
+            (true, true) => " in every mode and battery state".to_string(),
+            (true, false) => format!(" at {} battery (in every mode)", p.battery.name()),
+            _ => format!(" {}", mode_label(cx.plan, p.mode, p.battery)),
+        }
     })
 }
 
@@ -1120,7 +1178,7 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
             Source::Tied(net) => format!(
                 "`{receiver}` is wired straight to rail `{}`, which reaches {shown}{}, above its {limit} input ceiling ({})",
                 cx.net_name(net),
-                at_text(cx, point),
+                at_text(cx, point, link),
                 ceiling.basis,
             ),
             _ => format!(
@@ -1128,7 +1186,7 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
                 link.driver_name(cx),
                 cx.net_name(link.net),
                 high.basis,
-                at_text(cx, point),
+                at_text(cx, point, link),
                 ceiling.basis,
             ),
         };
@@ -1162,7 +1220,7 @@ fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
             link.driver_name(cx),
             cx.net_name(link.net),
             voh.basis,
-            at_text(cx, point),
+            at_text(cx, point, link),
             cx.pin_name(link.sense.pin),
             vih.basis,
             link.margins_text(),
@@ -1195,7 +1253,7 @@ fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
             vol.basis,
             cx.pin_name(link.sense.pin),
             vil.basis,
-            at_text(cx, point),
+            at_text(cx, point, link),
             link.margins_text(),
             failed.in_all_text(cx),
         );

@@ -252,6 +252,13 @@ impl Finding {
         self
     }
 
+    /// For a finding that depends on the battery state but not on the mode.
+    pub fn at_battery(mut self, battery: BatteryState) -> Finding {
+        self.mode = None;
+        self.battery = Some(battery);
+        self
+    }
+
     pub fn help(mut self, help: impl Into<String>) -> Finding {
         self.help = Some(help.into());
         self

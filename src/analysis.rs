@@ -26,11 +26,11 @@ use uom::si::ratio::ratio;
 /// Battery state of charge at which a point is solved.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum BatteryState {
-    /// Fully charged: the top of the cell window (4.20 V a lithium-polymer cell).
+    /// Fully charged: the top of the cell window (4.20 V for a lithium-polymer cell).
     Full,
-    /// The rated voltage (3.70 V a lithium-polymer cell).
+    /// The rated voltage (3.70 V for a lithium-polymer cell).
     Nominal,
-    /// Discharged to its end voltage (3.00 V a lithium-polymer cell).
+    /// Discharged to its end voltage (3.00 V for a lithium-polymer cell).
     Empty,
 }
 

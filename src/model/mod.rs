@@ -614,7 +614,7 @@ pub struct Regulator {
     /// output + dropout the output follows the input less the dropout.
     pub dropout: ElectricPotential,
     /// A switching converter's efficiency: input power = output power / efficiency
-    /// (85 % when left out).
+    /// (85 % when a switching converter leaves it out).
     pub efficiency: Ratio,
     /// True when the efficiency is the assumed default, not written.
     pub efficiency_assumed: bool,

@@ -45,8 +45,9 @@ use uom::si::f64::ElectricCurrent;
 pub enum Severity {
     /// The plan would damage a part or fail as wired; `railcheck check` exits 1.
     Error,
-    /// Works on paper but with no margin, or a protection is missing; fails the
-    /// check only under `--strict`.
+    /// A risk rather than a certain fault: too little margin, a protection
+    /// missing, a part outside its operating range; fails the check only under
+    /// `--strict`.
     Warning,
     /// Worth knowing; never fails the check.
     Note,

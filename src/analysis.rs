@@ -26,18 +26,23 @@ use uom::si::ratio::ratio;
 /// Battery state of charge at which a point is solved.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum BatteryState {
+    /// Fully charged: the top of the cell window (4.20 V for a lithium-polymer cell).
     Full,
+    /// The rated voltage (3.70 V for a lithium-polymer cell).
     Nominal,
+    /// Discharged to its end voltage (3.00 V for a lithium-polymer cell).
     Empty,
 }
 
 impl BatteryState {
+    /// Every state, full first.
     pub const ALL: [BatteryState; 3] = [
         BatteryState::Full,
         BatteryState::Nominal,
         BatteryState::Empty,
     ];
 
+    /// The state as reports write it (`full`, `nominal`, `empty`).
     pub fn name(self) -> &'static str {
         match self {
             BatteryState::Full => "full",
@@ -50,7 +55,9 @@ impl BatteryState {
 /// Where regulator outputs sit inside their tolerance.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Corner {
+    /// Every regulator output at the bottom of its tolerance.
     Low,
+    /// Every regulator output at the top of its tolerance.
     High,
 }
 
@@ -59,9 +66,13 @@ pub enum Corner {
 pub struct ModeId(pub usize);
 
 impl ModeId {
+    /// `typical`: every motor running, every load at its typical draw.
     pub const TYPICAL: ModeId = ModeId(0);
+    /// `worst`: every motor stalled and every load at its peak (the stalls bounded
+    /// by `limits.stall_at_once`).
     pub const WORST: ModeId = ModeId(1);
 
+    /// The mode's name as the plan and reports write it.
     pub fn name(self, plan: &Plan) -> &str {
         match self.0 {
             0 => "typical",
@@ -76,6 +87,7 @@ impl ModeId {
         self != ModeId::WORST
     }
 
+    /// Every mode of the plan: `typical`, `worst`, then the plan's own.
     pub fn all(plan: &Plan) -> impl Iterator<Item = ModeId> {
         (0..plan.modes.len() + 2).map(ModeId)
     }
@@ -121,44 +133,63 @@ pub fn battery_voltage(
 /// Why a point did not settle.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Unsettled {
+    /// The part that kept it from settling, when one did (a source collapsing
+    /// under its load).
     pub part: Option<PartId>,
+    /// What went wrong, for the report.
     pub reason: String,
+    /// How many passes ran before it gave up (0 when it stopped at once).
     pub iterations: usize,
 }
 
+/// A regulator at one operating point.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct RegulatorPoint {
     /// Across the regulator: its input pin minus its ground.
     pub input_voltage: ElectricPotential,
+    /// The voltage it gives, between its output and its ground.
     pub output_voltage: ElectricPotential,
+    /// The current it takes from its input rail.
     pub input_current: ElectricCurrent,
+    /// The current it delivers to its output rail.
     pub output_current: ElectricCurrent,
     /// The output could not be held (linear/buck below output + dropout,
     /// boost above its output).
     pub out_of_regulation: bool,
 }
 
+/// A motor at one operating point.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct MotorPoint {
+    /// The state its mode sets it to.
     pub state: MotorState,
     /// Across the winding.
     pub voltage: ElectricPotential,
+    /// The current through the winding.
     pub current: ElectricCurrent,
 }
 
+/// A battery at one operating point.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct BatteryPoint {
+    /// Its voltage with no load, at the point's battery state.
     pub open_circuit: ElectricPotential,
+    /// Its voltage at the terminals: open circuit less current × internal resistance.
     pub terminal: ElectricPotential,
+    /// The current it delivers.
     pub current: ElectricCurrent,
 }
 
 /// One solved point: a mode, a battery state and a tolerance corner.
 #[derive(Clone, Debug)]
 pub struct OperatingPoint {
+    /// The mode solved.
     pub mode: ModeId,
+    /// The battery state solved.
     pub battery: BatteryState,
+    /// Where the regulator outputs sit in their tolerance.
     pub corner: Corner,
+    /// Why the point did not settle; `None` when it did and its numbers hold.
     pub unsettled: Option<Unsettled>,
     /// Per net: current carried by its conductor.
     pub net_current: Vec<ElectricCurrent>,
@@ -170,10 +201,13 @@ pub struct OperatingPoint {
     pub pin_voltage: Vec<Vec<Option<ElectricPotential>>>,
     /// Per part and pin: current into a supply-in pin or out of a supply-out pin.
     pub pin_current: Vec<Vec<ElectricCurrent>>,
+    /// Per part: the regulator's point, `None` for any other part.
     pub regulators: Vec<Option<RegulatorPoint>>,
+    /// Per part: the motor's point, `None` for any other part.
     pub motors: Vec<Option<MotorPoint>>,
     /// Per driver part: (channel number, current).
     pub channels: Vec<Vec<(u32, ElectricCurrent)>>,
+    /// Per part: the battery's point, `None` for any other part.
     pub batteries: Vec<Option<BatteryPoint>>,
     /// Per USB link: current over its VBUS conductor.
     pub link_current: Vec<ElectricCurrent>,
@@ -193,10 +227,15 @@ impl OperatingPoint {
 /// Every operating point of a plan.
 #[derive(Clone, Debug)]
 pub struct Analysis {
+    /// The points, mode by mode, then battery state, then tolerance corner.
     pub points: Vec<OperatingPoint>,
 }
 
 impl Analysis {
+    /// Solves every operating point of the plan: each mode (`worst` once per group
+    /// of motors that may stall together) at each battery state and tolerance
+    /// corner. A point that does not settle is kept, marked
+    /// [`unsettled`](OperatingPoint::unsettled).
     pub fn solve(plan: &Plan, circuit: &Circuit) -> Analysis {
         let mut points = Vec::new();
         let groups = stall_groups(plan, circuit);
@@ -218,6 +257,7 @@ impl Analysis {
         Analysis { points }
     }
 
+    /// The points that settled, whose numbers the rules judge.
     pub fn settled(&self) -> impl Iterator<Item = &OperatingPoint> {
         self.points.iter().filter(|p| p.unsettled.is_none())
     }

@@ -24,9 +24,12 @@ pub fn lead_acid_rated_time() -> Time {
     Time::new::<hour>(20.0)
 }
 
+/// The power budget of a checked plan: one entry per rail and per battery.
 #[derive(Clone, Debug)]
 pub struct Budget {
+    /// Every rail fed by a source, in the order of the plan's graph.
     pub rails: Vec<RailBudget>,
+    /// Every battery, in file order.
     pub batteries: Vec<BatteryBudget>,
     /// False when shorts or power loops kept the operating point from being
     /// solved: then no current or voltage figure means anything.
@@ -36,6 +39,8 @@ pub struct Budget {
     pub unsolved: Vec<String>,
 }
 
+/// What one rail carries: its voltage window, currents against its source's
+/// rating, power and the loss in the converter feeding it.
 #[derive(Clone, Debug)]
 pub struct RailBudget {
     /// The rail's net names, source side first.
@@ -44,12 +49,16 @@ pub struct RailBudget {
     pub source: String,
     /// At the source, typical mode: lowest at empty battery, nominal, highest at full.
     pub voltage_empty: ElectricPotential,
+    /// At the source, typical mode, nominal battery (the mean over the
+    /// regulators' tolerance corners).
     pub voltage_nominal: ElectricPotential,
+    /// At the source, typical mode: the highest, at full battery.
     pub voltage_full: ElectricPotential,
     /// Typical mode at nominal battery.
     pub typical_current: ElectricCurrent,
     /// The highest over every mode and battery state, `worst` included.
     pub peak_current: ElectricCurrent,
+    /// The mode the peak current is drawn in.
     pub peak_mode: String,
     /// The source's current rating, if it has one.
     pub rating: Option<ElectricCurrent>,
@@ -59,28 +68,46 @@ pub struct RailBudget {
     pub conversion_loss: Option<Power>,
 }
 
+/// What one battery delivers: its voltage window, energy, currents against
+/// its discharge rating, and how long it lasts.
 #[derive(Clone, Debug)]
 pub struct BatteryBudget {
+    /// The battery part's name (`pack`).
     pub name: String,
+    /// Its cell chemistry.
     pub chemistry: Chemistry,
     /// `3S lipo`, or the chemistry alone for a pack given by its window.
     pub pack: String,
+    /// Its rated capacity, when written.
     pub capacity: Option<ElectricCharge>,
+    /// Open-circuit voltage when full.
     pub voltage_full: ElectricPotential,
+    /// Open-circuit voltage at its nominal state.
     pub voltage_nominal: ElectricPotential,
+    /// Open-circuit voltage when empty.
     pub voltage_empty: ElectricPotential,
+    /// The energy it stores: nominal voltage × capacity.
     pub energy: Option<Energy>,
+    /// The current it delivers in typical mode at nominal battery.
     pub typical_current: ElectricCurrent,
+    /// The highest current it delivers over every mode and battery state,
+    /// `worst` included.
     pub peak_current: ElectricCurrent,
+    /// Its continuous discharge rating, a C-rate worked out to amperes.
     pub max_discharge: Option<ElectricCurrent>,
     /// Profile-weighted mean current at nominal battery.
     pub average_current: ElectricCurrent,
+    /// The share of its capacity the runtime uses.
     pub usable: Ratio,
+    /// How long it lasts at the average current; `None` without a capacity or
+    /// with no current drawn.
     pub runtime: Option<Runtime>,
 }
 
+/// A battery's estimated runtime.
 #[derive(Clone, Debug)]
 pub struct Runtime {
+    /// How long the battery lasts.
     pub time: Time,
     /// How it was estimated, for the reader (e.g. Peukert's law and its exponent).
     pub method: String,
@@ -136,6 +163,52 @@ where
     Some(sum / values.len() as f64)
 }
 
+/// Adds up a checked plan's operating points into its power budget.
+///
+/// When the operating point could not be solved ([`Budget::solved`] is
+/// false), the currents, powers and rail voltages are zero and mean nothing.
+///
+/// ```
+/// use railcheck::model::Library;
+/// use uom::si::electric_current::ampere;
+/// use uom::si::electric_potential::volt;
+/// use uom::si::energy::watt_hour;
+/// use uom::si::time::hour;
+///
+/// // A lab lamp on a 3S lithium-polymer pack (5 Ah, 15 mohm internal).
+/// let plan = "\
+/// railcheck: 1
+/// parts:
+///   pack: { use: battery/lipo-3s }
+///   lamp:
+///     class: load
+///     pins:
+///       vin: { role: supply-in, range: 9 V..13 V, max: 14 V, draw: 0.5 A }
+///       gnd: { role: ground }
+/// nets:
+///   BATT+: [pack.pos, lamp.vin]
+///   GND: [pack.neg, lamp.gnd]
+/// ";
+/// let checked = railcheck::check("lamp.yaml", plan, &Library::builtin()).expect("the plan reads");
+/// let budget = railcheck::budget::budget(&checked);
+/// assert!(budget.solved);
+///
+/// let pack = &budget.batteries[0];
+/// assert_eq!(pack.pack, "3S lipo");
+/// assert!((pack.typical_current.get::<ampere>() - 0.5).abs() < 1e-9);
+/// // Energy: 3 × 3.70 V nominal × 5 Ah = 55.5 Wh (Linden & Reddy, Handbook of
+/// // Batteries, lithium-polymer cell window).
+/// assert!((pack.energy.unwrap().get::<watt_hour>() - 55.5).abs() < 1e-6);
+/// // Runtime: usable capacity over mean current, 5 Ah / 0.5 A = 10 h.
+/// let runtime = pack.runtime.as_ref().expect("a capacity and a current");
+/// assert!((runtime.time.get::<hour>() - 10.0).abs() < 1e-6);
+///
+/// // The rail at full battery: 3 × 4.20 V less the sag, 0.5 A × 0.015 ohm
+/// // (Ohm's law), = 12.6 V − 7.5 mV = 12.5925 V.
+/// let rail = &budget.rails[0];
+/// assert_eq!(rail.source, "pack.pos");
+/// assert!((rail.voltage_full.get::<volt>() - 12.5925).abs() < 1e-6);
+/// ```
 pub fn budget(checked: &Checked) -> Budget {
     let plan = &checked.plan;
     let circuit = &checked.circuit;

@@ -13,13 +13,18 @@ use std::collections::VecDeque;
 /// Nets joined by `through` pins (fuses, switches, connector contacts).
 #[derive(Clone, Debug, Default)]
 pub struct ElectricalNode {
+    /// Its nets, in file order.
     pub nets: Vec<NetId>,
+    /// The supply-out pins on it: what may feed it.
     pub supply_outs: Vec<PinRef>,
+    /// The supply-in pins on it: what it feeds.
     pub supply_ins: Vec<PinRef>,
+    /// The ground pins on it.
     pub grounds: Vec<PinRef>,
 }
 
 impl ElectricalNode {
+    /// A ground node: any ground pin is on it.
     pub fn is_ground(&self) -> bool {
         !self.grounds.is_empty()
     }
@@ -28,10 +33,13 @@ impl ElectricalNode {
 /// How a net hangs below the source-side net of its electrical node.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub struct Parent {
+    /// The net above it, toward the source.
     pub net: NetId,
     /// The conducting part and its two pins (source side, load side).
     pub part: PartId,
+    /// The part's pin on the source side.
     pub upstream_pin: PinIndex,
+    /// The part's pin on the load side.
     pub downstream_pin: PinIndex,
 }
 
@@ -39,9 +47,19 @@ pub struct Parent {
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum MotorFeed {
     /// Across two bridge outputs of a driver channel.
-    Driver { driver: PartId, channel: u32 },
+    Driver {
+        /// The driver part.
+        driver: PartId,
+        /// The channel's number in the driver's `channels:`.
+        channel: u32,
+    },
     /// Straight across a rail and a ground.
-    Direct { supply: NetId, ground: NetId },
+    Direct {
+        /// The rail's net.
+        supply: NetId,
+        /// The ground's net.
+        ground: NetId,
+    },
 }
 
 /// A stage of power conversion in the flow graph.
@@ -53,9 +71,14 @@ pub enum Stage {
     Converter(PartId),
 }
 
+/// The plan's graph: electrical nodes, how each net hangs below its source,
+/// which way power flows, where each part's ground goes. Indices are
+/// [`NetId`]s, [`PartId`]s and positions in [`Circuit::nodes`].
 #[derive(Clone, Debug)]
 pub struct Circuit {
+    /// The electrical nodes: nets joined by `through` pins.
     pub nodes: Vec<ElectricalNode>,
+    /// Per net: the electrical node it belongs to.
     pub node_of_net: Vec<usize>,
     /// Per net: where it hangs in its node's tree, `None` for the root.
     pub parent: Vec<Option<Parent>>,
@@ -83,13 +106,23 @@ pub struct Circuit {
     pub ground_group: Vec<Option<usize>>,
     /// Ground groups that contain a battery negative.
     pub grounded_groups: Vec<bool>,
+    /// Per part: how the motor is powered; `None` for a motor wired to neither
+    /// a driver channel nor a rail and ground, and for any other part.
     pub motor_feed: Vec<Option<MotorFeed>>,
+    /// Rails and converters, with edges the way power flows: rail → converter
+    /// input, converter → the rail its output feeds, USB host → device.
     pub flow: StableDiGraph<Stage, ()>,
+    /// Per electrical node: its stage in [`flow`](Circuit::flow); `None` for a
+    /// ground node.
     pub rail_stage: Vec<Option<NodeIndex>>,
+    /// Per part: its stage in [`flow`](Circuit::flow); `None` for a part that
+    /// gives no power on (a load, a battery).
     pub converter_stage: Vec<Option<NodeIndex>>,
 }
 
 impl Circuit {
+    /// Builds the graph of a plan. It never fails: shorts, loops and floating
+    /// grounds are left in the graph for the rules to find.
     pub fn build(plan: &Plan) -> Circuit {
         let net_count = plan.nets.len();
         let mut joined = UnionFind::<usize>::new(net_count);

@@ -7,6 +7,8 @@
 //! library does no I/O and never prints: the binary reads files and writes
 //! output.
 
+#![warn(missing_docs)]
+
 pub mod analysis;
 pub mod budget;
 pub mod diagram;
@@ -35,20 +37,58 @@ pub const MAX_PLAN_BYTES: u64 = 64 * 1024 * 1024;
 /// A plan that was read and checked.
 #[derive(Debug)]
 pub struct Checked {
+    /// Every text read: the plan and the library part files it uses, for
+    /// turning spans into lines and snippets.
     pub sources: Sources,
+    /// The plan's own text among [`Checked::sources`].
     pub plan_source: SourceId,
+    /// The plan as read.
     pub plan: Plan,
+    /// The plan's graph: nodes, power flow, grounds.
     pub circuit: Circuit,
     /// `None` when shorts or power loops made the operating point meaningless.
     pub analysis: Option<Analysis>,
+    /// Every problem found, sorted by place in the plan, then severity and rule.
     pub findings: Vec<Finding>,
 }
 
 /// A plan that could not be read: every input problem found.
+///
+/// Each error points at the exact place of the mistake; [`Sources::line_column`]
+/// turns it into the line and column the user is shown.
+///
+/// ```
+/// use railcheck::model::Library;
+///
+/// // A greenhouse fan whose pin gives a current where a voltage range belongs.
+/// let plan = "\
+/// railcheck: 1
+/// parts:
+///   pack: { use: battery/lipo-3s }
+///   fan:
+///     class: load
+///     pins:
+///       vin: { role: supply-in, range: 2 A, draw: 0.3 A }
+///       gnd: { role: ground }
+/// nets:
+///   BATT+: [pack.pos, fan.vin]
+///   GND: [pack.neg, fan.gnd]
+/// ";
+/// let failure = railcheck::check("fan.yaml", plan, &Library::builtin()).unwrap_err();
+/// assert_eq!(failure.errors.len(), 1);
+/// let error = &failure.errors[0];
+/// // Line 7, the `A` of `2 A`: column 40.
+/// assert_eq!(failure.sources.line_column(error.span), (7, 40));
+/// assert_eq!(&plan[error.span.start..error.span.end], "A");
+/// assert!(error.hint.is_some());
+/// ```
 #[derive(Debug)]
 pub struct InputFailure {
+    /// The texts read before the failure, for turning spans into lines.
     pub sources: Sources,
+    /// The plan's own text among [`InputFailure::sources`].
     pub plan_source: SourceId,
+    /// Every input problem, in the order found; never empty.
     pub errors: Vec<InputError>,
 }
 
@@ -75,6 +115,36 @@ pub fn decode(file_name: &str, bytes: Vec<u8>) -> Result<String, InputFailure> {
 }
 
 /// Reads a plan from text, without checking it.
+///
+/// `file_name` is the name reports show for the text. Parts named with `use:`
+/// come from `library`. Returns the texts read, the plan's id among them and
+/// the plan; fails with every input problem found (bad YAML stops at the first).
+///
+/// ```
+/// use railcheck::model::{Class, Library};
+/// use uom::si::electric_charge::ampere_hour;
+///
+/// let plan = "\
+/// railcheck: 1
+/// parts:
+///   pack: { use: battery/lipo-3s, with: { capacity: 2200 mAh } }
+///   lamp:
+///     class: load
+///     pins:
+///       vin: { role: supply-in, range: 10 V..13 V, draw: 0.4 A }
+///       gnd: { role: ground }
+/// nets:
+///   BATT+: [pack.pos, lamp.vin]
+///   GND: [pack.neg, lamp.gnd]
+/// ";
+/// let (_sources, _id, plan) = railcheck::read("lamp.yaml", plan, &Library::builtin()).unwrap();
+/// assert_eq!(plan.parts.len(), 2);
+/// let Class::Battery(pack) = &plan.parts[0].class else { panic!("pack is a battery") };
+/// assert_eq!(pack.cells, Some(3));
+/// // `with:` lays 2200 mAh over the library's capacity: 2.2 Ah.
+/// assert!((pack.capacity.unwrap().value.get::<ampere_hour>() - 2.2).abs() < 1e-9);
+/// assert_eq!(plan.nets[0].name, "BATT+");
+/// ```
 pub fn read(
     file_name: &str,
     text: &str,
@@ -107,6 +177,42 @@ pub fn read(
 }
 
 /// Reads and checks a plan: the main job.
+///
+/// Builds the plan's graph, solves its operating points (unless shorts or
+/// power loops make them meaningless) and runs every rule. Fails only when the
+/// plan cannot be read ([`InputFailure`]); problems in a plan that reads are
+/// [`Finding`]s.
+///
+/// ```
+/// use railcheck::model::Library;
+///
+/// // A lab bench logger: an IMU rated 4 V at most put on the 5 V rail.
+/// let plan = "\
+/// railcheck: 1
+/// name: Bench logger
+/// parts:
+///   pack: { use: battery/lipo-3s }
+///   buck: { use: regulator/buck-5v-3a }
+///   imu: { use: sensor/imu-3v3 }
+/// nets:
+///   BATT+: [pack.pos, buck.vin]
+///   5V: [buck.vout, imu.vcc]
+///   GND: [pack.neg, buck.gnd, imu.gnd]
+/// ";
+/// let checked = railcheck::check("logger.yaml", plan, &Library::builtin()).unwrap();
+/// assert!(checked.analysis.is_some());
+/// let over = checked
+///     .findings
+///     .iter()
+///     .find(|f| f.rule == "voltage/over-max")
+///     .expect("the 5 V rail is over the IMU's 4 V");
+/// assert_eq!(over.parts, ["imu"]);
+/// // The buck is `5 V ±2%`: at the top of its tolerance 5 V + 2 % = 5.1 V.
+/// assert!((over.values["voltage"] - 5.1).abs() < 1e-9);
+/// assert!((over.values["max"] - 4.0).abs() < 1e-9);
+/// // No fuse between the pack and the buck is an error of its own.
+/// assert!(checked.findings.iter().any(|f| f.rule == "fuse/missing"));
+/// ```
 pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, InputFailure> {
     let (sources, plan_source, plan) = read(file_name, text, library)?;
     let circuit = Circuit::build(&plan);

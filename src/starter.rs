@@ -38,6 +38,7 @@ const POWER_GAUGES: [i32; 7] = [22, 20, 18, 16, 14, 12, 10];
 /// Why no starter plan could be written.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct StarterError {
+    /// What kept the plan from being written, for the user.
     pub message: String,
 }
 

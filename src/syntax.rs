@@ -18,12 +18,17 @@ pub struct SourceId(pub u32);
 /// A byte range in one source text.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub struct Span {
+    /// The text it points into.
     pub source: SourceId,
+    /// The byte offset of its first byte.
     pub start: usize,
+    /// The byte offset just past its last byte.
     pub end: usize,
 }
 
 impl Span {
+    /// The span of bytes `start..end` of a source; an `end` before `start` is taken
+    /// as `start` (an empty span).
     pub fn new(source: SourceId, start: usize, end: usize) -> Self {
         Span {
             source,
@@ -47,15 +52,19 @@ pub struct Sources {
 }
 
 impl Sources {
+    /// Keeps a text under the name reports show for it (the plan's file name, a
+    /// part's `parts/…` path) and returns its id.
     pub fn add(&mut self, name: impl Into<String>, text: impl Into<Arc<str>>) -> SourceId {
         self.entries.push((name.into(), text.into()));
         SourceId(self.entries.len() as u32 - 1)
     }
 
+    /// The name a text was added under. Panics for an id from another `Sources`.
     pub fn name(&self, id: SourceId) -> &str {
         &self.entries[id.0 as usize].0
     }
 
+    /// The text itself. Panics for an id from another `Sources`.
     pub fn text(&self, id: SourceId) -> &Arc<str> {
         &self.entries[id.0 as usize].1
     }
@@ -76,6 +85,8 @@ pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
     (line, column)
 }
 
+/// The largest offset at or before `offset` (clamped into the text) that falls
+/// on a character boundary, so a byte offset can always slice the text.
 pub fn floor_char_boundary(text: &str, mut offset: usize) -> usize {
     offset = offset.min(text.len());
     while !text.is_char_boundary(offset) {
@@ -87,20 +98,27 @@ pub fn floor_char_boundary(text: &str, mut offset: usize) -> usize {
 /// A YAML node with its span.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Node {
+    /// What value it holds.
     pub kind: NodeKind,
+    /// Where it is written.
     pub span: Span,
 }
 
+/// The kinds of YAML value.
 #[derive(Clone, Debug, PartialEq)]
 pub enum NodeKind {
+    /// An empty value (`key:` with nothing after it).
     Null,
     /// The scalar as written (quotes removed for quoted scalars).
     Scalar(String),
+    /// A list, in file order.
     Seq(Vec<Node>),
+    /// A mapping's key-value pairs, in file order.
     Map(Vec<(Node, Node)>),
 }
 
 impl Node {
+    /// The text of a scalar; `None` for any other kind.
     pub fn as_scalar(&self) -> Option<&str> {
         match &self.kind {
             NodeKind::Scalar(s) => Some(s),
@@ -108,6 +126,7 @@ impl Node {
         }
     }
 
+    /// The entries of a mapping; `None` for any other kind.
     pub fn as_map(&self) -> Option<&[(Node, Node)]> {
         match &self.kind {
             NodeKind::Map(entries) => Some(entries),
@@ -115,6 +134,7 @@ impl Node {
         }
     }
 
+    /// The items of a list; `None` for any other kind.
     pub fn as_seq(&self) -> Option<&[Node]> {
         match &self.kind {
             NodeKind::Seq(items) => Some(items),
@@ -144,7 +164,9 @@ impl Node {
 /// A YAML syntax error: the text is not YAML, so nothing further can be read.
 #[derive(Clone, Debug, PartialEq)]
 pub struct SyntaxError {
+    /// What is wrong, from the YAML reader.
     pub message: String,
+    /// Where the reader stopped.
     pub span: Span,
 }
 

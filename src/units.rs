@@ -32,8 +32,11 @@ use uom::si::thermodynamic_temperature::{degree_celsius, kelvin};
 /// (the caller shifts it into the file). `hint` tells how to fix it, e.g. "write `5 Ah`".
 #[derive(Debug, Clone, PartialEq)]
 pub struct UnitError {
+    /// What is wrong with the value (`` `A` is a unit of current, but a charge (capacity) is needed here ``).
     pub message: String,
+    /// How to fix it.
     pub hint: String,
+    /// The byte range of the offending text inside the scalar.
     pub span: Range<usize>,
 }
 
@@ -49,8 +52,11 @@ impl std::error::Error for UnitError {}
 /// `5 V ±2%` has min 4.9, nominal 5, max 5.1; also accept `5 V ±0.1 V` and `+-` for `±`.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Band<Q> {
+    /// The lowest value of the band.
     pub min: Q,
+    /// The value it is meant to have.
     pub nominal: Q,
+    /// The highest value of the band.
     pub max: Q,
 }
 
@@ -60,14 +66,19 @@ pub struct Band<Q> {
 /// `Awg(-3)`, which keeps the ASTM B258 diameter formula valid for them.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum WireSize {
+    /// An American Wire Gauge number (ASTM B258), `n/0` stored as `1 − n`.
     Awg(i32),
+    /// A conductor's cross-section (`0.75 mm²`).
     Metric(Area),
 }
 
 /// A battery's maximum discharge: an absolute current, or a C-rate (multiple of the capacity).
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum DischargeRate {
+    /// An absolute current (`20 A`).
     Current(ElectricCurrent),
+    /// A multiple of the capacity per hour (`25C`: 25 × 5 Ah / h = 125 A for a 5 Ah
+    /// pack).
     CRate(f64),
 }
 
@@ -95,6 +106,21 @@ pub fn voltage(text: &str) -> Result<ElectricPotential, UnitError> {
 }
 
 /// A voltage band: a single voltage, a range `4.5..5.5 V`, or a tolerance `5 V ±2%` / `5 V ±0.1 V`.
+///
+/// ```
+/// use railcheck::units;
+/// use uom::si::electric_potential::volt;
+///
+/// // 5 V ±2 %: 2 % of 5 V is 0.1 V, so 4.9 V..5.1 V around 5 V.
+/// let output = units::voltage_band("5 V ±2%").unwrap();
+/// assert!((output.min.get::<volt>() - 4.9).abs() < 1e-9);
+/// assert!((output.nominal.get::<volt>() - 5.0).abs() < 1e-9);
+/// assert!((output.max.get::<volt>() - 5.1).abs() < 1e-9);
+///
+/// // A range's nominal is its midpoint: (4.5 V + 5.5 V) / 2 = 5 V.
+/// let range = units::voltage_band("4.5..5.5 V").unwrap();
+/// assert!((range.nominal.get::<volt>() - 5.0).abs() < 1e-9);
+/// ```
 pub fn voltage_band(text: &str) -> Result<Band<ElectricPotential>, UnitError> {
     band(text, Kind::Voltage).map(|b| b.typed(ElectricPotential::new::<volt>))
 }
@@ -110,6 +136,24 @@ pub fn current_band(text: &str) -> Result<Band<ElectricCurrent>, UnitError> {
 }
 
 /// A charge (battery capacity): `5 Ah`, `2200 mAh`.
+///
+/// A current where a charge belongs is refused, with the span of the unit and
+/// a hint:
+///
+/// ```
+/// use railcheck::units;
+/// use uom::si::electric_charge::{ampere_hour, coulomb};
+///
+/// // 1 Ah is 3600 C (one ampere for one hour), so 2200 mAh is 7920 C.
+/// let capacity = units::charge("2200 mAh").unwrap();
+/// assert!((capacity.get::<ampere_hour>() - 2.2).abs() < 1e-9);
+/// assert!((capacity.get::<coulomb>() - 7920.0).abs() < 1e-6);
+///
+/// let error = units::charge("5 A").unwrap_err();
+/// assert_eq!(&"5 A"[error.span.clone()], "A");
+/// assert!(error.message.contains("unit of current"), "{}", error.message);
+/// assert!(error.hint.contains("`5 Ah`"), "{}", error.hint);
+/// ```
 pub fn charge(text: &str) -> Result<ElectricCharge, UnitError> {
     single_value(text, Kind::Charge).map(ElectricCharge::new::<coulomb>)
 }
@@ -120,6 +164,15 @@ pub fn power(text: &str) -> Result<Power, UnitError> {
 }
 
 /// A resistance: `0.05 ohm`, `50 mohm`, `10 kohm`, `10 kΩ`, `2 MΩ`, or a bare suffix `10k`, `1M`.
+///
+/// ```
+/// use railcheck::units;
+/// use uom::si::electrical_resistance::ohm;
+///
+/// // The SI prefixes: kilo is 10³, milli 10⁻³.
+/// assert_eq!(units::resistance("4.7 kΩ").unwrap().get::<ohm>(), 4700.0);
+/// assert!((units::resistance("50 mohm").unwrap().get::<ohm>() - 0.05).abs() < 1e-12);
+/// ```
 pub fn resistance(text: &str) -> Result<ElectricalResistance, UnitError> {
     single_value(text, Kind::Resistance).map(ElectricalResistance::new::<ohm>)
 }
@@ -146,6 +199,15 @@ pub fn duration(text: &str) -> Result<Time, UnitError> {
 }
 
 /// A wire size: `18 AWG`, `4/0 AWG` (also `0000 AWG`), `0.75 mm2`, `0.75 mm²`.
+///
+/// ```
+/// use railcheck::units::{self, WireSize};
+///
+/// assert_eq!(units::wire_size("18 AWG").unwrap(), WireSize::Awg(18));
+/// // ASTM B258 numbers the gauges past 0 as 1/0, 2/0, …: n/0 is 1 − n.
+/// assert_eq!(units::wire_size("4/0 AWG").unwrap(), WireSize::Awg(-3));
+/// assert!(units::wire_size("18 AWGG").is_err());
+/// ```
 pub fn wire_size(text: &str) -> Result<WireSize, UnitError> {
     let expect = Expect {
         wanted: "a wire size",
@@ -233,6 +295,13 @@ pub fn share(text: &str) -> Result<Ratio, UnitError> {
 }
 
 /// A maximum discharge: a current `20 A`, or a C-rate `25C` / `25 C` (capital C only).
+///
+/// ```
+/// use railcheck::units::{self, DischargeRate};
+///
+/// assert_eq!(units::discharge_rate("25C").unwrap(), DischargeRate::CRate(25.0));
+/// assert!(matches!(units::discharge_rate("20 A"), Ok(DischargeRate::Current(_))));
+/// ```
 pub fn discharge_rate(text: &str) -> Result<DischargeRate, UnitError> {
     let mut accepted: Vec<&'static str> = CURRENT_UNITS.iter().map(|u| u.text).collect();
     accepted.push("C");
@@ -277,16 +346,25 @@ pub fn discharge_rate(text: &str) -> Result<DischargeRate, UnitError> {
 /// (`model::format`) and the JSON Schema generated from it.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Quantity {
+    /// A single voltage `12 V`.
     Voltage,
     /// A voltage, a range `4.5..5.5 V` or a tolerance `5 V ±2%`.
     VoltageBand,
+    /// A current `2 A`.
     Current,
+    /// A charge, a battery's capacity: `5 Ah`.
     Charge,
+    /// A power `250 mW`.
     Power,
+    /// A resistance `10 kohm`.
     Resistance,
+    /// A temperature `35 degC`.
     Temperature,
+    /// A thermal resistance `50 degC/W`.
     ThermalResistance,
+    /// A length `0.8 m`.
     Length,
+    /// A wire size `14 AWG` or `2.5 mm2`.
     WireSize,
     /// `80 %` or a plain fraction `0.8`.
     Share,
@@ -386,6 +464,16 @@ impl Quantity {
 // ---------------------------------------------------------------------------------------------
 
 /// `12.6 V`, `5.25 V`, `212 mV`, `1.2 kV`.
+///
+/// ```
+/// use railcheck::units::show_voltage;
+/// use uom::si::electric_potential::volt;
+/// use uom::si::f64::ElectricPotential;
+///
+/// // A full 3S lithium-polymer pack: 3 × 4.20 V = 12.6 V.
+/// assert_eq!(show_voltage(ElectricPotential::new::<volt>(3.0 * 4.2)), "12.6 V");
+/// assert_eq!(show_voltage(ElectricPotential::new::<volt>(0.212)), "212 mV");
+/// ```
 pub fn show_voltage(v: ElectricPotential) -> String {
     show_scaled(v.get::<volt>(), VOLTS)
 }

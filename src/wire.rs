@@ -41,6 +41,16 @@ pub fn awg_diameter(gauge: i32) -> Length {
     Length::new::<millimeter>(0.127 * 92f64.powf((36.0 - gauge as f64) / 39.0))
 }
 
+/// Cross-section of an AWG size: π d² / 4 with the ASTM B258 diameter.
+///
+/// ```
+/// use railcheck::wire::awg_area;
+/// use uom::si::area::square_millimeter;
+///
+/// // ASTM B258: 18 AWG is 1.024 mm across, π × 1.024² / 4 = 0.823 mm².
+/// let area = awg_area(18).get::<square_millimeter>();
+/// assert!((area - 0.823).abs() < 0.001, "{area}");
+/// ```
 pub fn awg_area(gauge: i32) -> Area {
     let d = awg_diameter(gauge).get::<millimeter>();
     Area::new::<square_millimeter>(std::f64::consts::PI * d * d / 4.0)
@@ -145,10 +155,14 @@ pub enum AmpacityTable {
     /// Handbook "chassis wiring" column, single wire in free air.
     HandbookChassis,
     /// 33 CFR 183.425 Table 5 at this insulation rating (°C column used).
-    CfrTable5 { column: f64 },
+    CfrTable5 {
+        /// The insulation's temperature rating, in °C: the table's column.
+        column: f64,
+    },
 }
 
 impl AmpacityTable {
+    /// The table's published name, for a finding's text.
     pub fn describe(self) -> String {
         match self {
             AmpacityTable::HandbookChassis => {

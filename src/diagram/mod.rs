@@ -26,6 +26,33 @@ use std::fmt;
 
 /// The plan's block diagram as an SVG document. The same plan always gives
 /// the same bytes.
+///
+/// ```
+/// use railcheck::model::Library;
+///
+/// // An orchard sensor post: a 3S pack, a 5 V buck and a board on its rail.
+/// let plan = "\
+/// railcheck: 1
+/// name: Orchard sensor post
+/// parts:
+///   pack: { use: battery/lipo-3s }
+///   buck: { use: regulator/buck-5v-3a }
+///   logger: { use: board/sbc-5v }
+/// nets:
+///   BATT+: [pack.pos, buck.vin]
+///   5V: [buck.vout, logger.vin]
+///   GND: [pack.neg, buck.gnd, logger.gnd]
+/// ";
+/// let checked = railcheck::check("post.yaml", plan, &Library::builtin()).unwrap();
+/// let svg = railcheck::diagram::draw(&checked);
+/// assert!(svg.starts_with("<svg"), "{}", &svg[..40]);
+/// assert!(svg.trim_end().ends_with("</svg>"));
+/// // Every part is drawn under its name, and the title block carries the plan's.
+/// for name in ["pack", "buck", "logger", "Orchard sensor post"] {
+///     assert!(svg.contains(name), "{name} is missing");
+/// }
+/// assert_eq!(svg, railcheck::diagram::draw(&checked));
+/// ```
 pub fn draw(checked: &Checked) -> String {
     let content = content::gather(checked);
     let marker_w = layout::marker_width(content.findings.len());
@@ -44,6 +71,7 @@ pub enum PngError {
     Svg(String),
     /// The picture has no area (or is too large to allocate).
     Size,
+    /// The PNG encoder failed, with its reason.
     Encode(String),
 }
 

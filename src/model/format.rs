@@ -55,18 +55,26 @@ pub enum Value {
 /// The nested sections of a plan.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Section {
+    /// `limits:`: the project-wide limits ([`LIMITS`]).
     Limits,
+    /// `parts:`: the parts by name, each a class's fields ([`CLASSES`]).
     Parts,
+    /// `nets:`: the nets by name ([`NET`]).
     Nets,
+    /// `links:`: the cables between ports ([`LINK`]).
     Links,
+    /// `modes:`: operating modes, a state per part ([`MODE`]).
     Modes,
+    /// `profile:`: the share of time spent in each mode.
     Profile,
 }
 
 /// One key of the format.
 #[derive(Clone, Copy, Debug)]
 pub struct Field {
+    /// The key as a plan writes it (`wire_drop`).
     pub key: &'static str,
+    /// The kind of value it takes.
     pub value: Value,
     /// Whether a plan must give it (`Required::Unless` names a key that can
     /// stand in for it).
@@ -83,7 +91,9 @@ pub struct Field {
 /// Whether a key must be given.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Required {
+    /// The key must be written.
     Yes,
+    /// The key may be left out: it has a default or is optional.
     No,
     /// Required unless the named key is given.
     Unless(&'static str),
@@ -444,9 +454,13 @@ pub const PIN_FIELDS: &[Field] = &[
 
 /// The written pin roles, with the keys each takes besides `role`.
 pub struct RoleSpec {
+    /// The role this entry describes.
     pub role: PinRole,
+    /// The role as a plan writes it (`supply-in`).
     pub name: &'static str,
+    /// The pin fields ([`PIN_FIELDS`]) a pin of this role may give.
     pub keys: &'static [&'static str],
+    /// What the role does, for a robot builder.
     pub meaning: &'static str,
 }
 
@@ -468,6 +482,7 @@ const FAMILY_NAMES: [&str; 6] = [
     "ttl5", "cmos5", "lvttl33", "lvcmos33", "lvcmos25", "lvcmos18",
 ];
 
+/// Every written pin role, in the order the format reference lists them.
 pub const ROLES: &[RoleSpec] = &[
     RoleSpec {
         role: PinRole::SupplyOut,
@@ -541,7 +556,9 @@ pub const ROLES: &[RoleSpec] = &[
 
 /// A mode state of a part.
 pub struct State {
+    /// The state as a mode writes it (`stall`).
     pub name: &'static str,
+    /// What the part does in it, for a robot builder.
     pub meaning: &'static str,
 }
 
@@ -580,8 +597,11 @@ pub const LOAD_STATES: &[State] = &[
 /// A part class: its fields, the pins it has without writing them, and what
 /// it stands for.
 pub struct ClassSpec {
+    /// The class as a plan writes it after `class:` (`regulator`).
     pub name: &'static str,
+    /// What it stands for, for a robot builder.
     pub meaning: &'static str,
+    /// The fields it takes besides `class`, `pins` and `ports`.
     pub fields: &'static [Field],
     /// Pins the class always has; a `pins:` entry may override their fields.
     pub fixed_pins: &'static [(&'static str, PinRole)],
@@ -619,6 +639,26 @@ const SURGE: Field = field(
     "the current its contacts may carry for a moment (motor start, a brief mode, `worst`); without it brief peaks are not checked against the contacts",
 );
 
+/// Every part class a plan may write, in the order the format reference lists
+/// them.
+///
+/// ```
+/// use railcheck::model::format::{self, Required};
+///
+/// // One declaration per class of `model::Class`.
+/// assert_eq!(format::CLASSES.len(), railcheck::model::Class::NAMES.len());
+///
+/// // A regulator has its three pins without writing them.
+/// let regulator = format::class("regulator").expect("regulator is a class");
+/// let pins: Vec<&str> = regulator.fixed_pins.iter().map(|(name, _)| *name).collect();
+/// assert_eq!(pins, ["vin", "vout", "gnd"]);
+///
+/// // `output` must be written; `tj_max` falls back to 125 °C, the usual
+/// // silicon junction limit (common practice).
+/// let field = |key| regulator.fields.iter().find(|f| f.key == key).unwrap();
+/// assert_eq!(field("output").required, Required::Yes);
+/// assert_eq!(field("tj_max").default, Some("125 degC"));
+/// ```
 pub const CLASSES: &[ClassSpec] = &[
     ClassSpec {
         name: "battery",

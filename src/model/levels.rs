@@ -14,12 +14,16 @@ fn volts(value: f64) -> ElectricPotential {
 /// ratio), or VDD less an offset.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Scale {
+    /// A fixed voltage whatever the supply (TTL's 2.0 V).
     Fixed(ElectricPotential),
+    /// A share of VDD (CMOS's 0.7 × VDD).
     Share(f64),
+    /// VDD less this offset (LVCMOS's VDD − 0.2 V).
     BelowVdd(ElectricPotential),
 }
 
 impl Scale {
+    /// The level at this supply voltage.
     pub fn at(self, vdd: ElectricPotential) -> ElectricPotential {
         match self {
             Scale::Fixed(level) => level,
@@ -28,6 +32,7 @@ impl Scale {
         }
     }
 
+    /// Whether the level moves with the supply (a share of VDD or VDD less an offset).
     pub fn follows_vdd(self) -> bool {
         !matches!(self, Scale::Fixed(_))
     }
@@ -45,10 +50,15 @@ impl Scale {
 /// One family's row of the format reference §3 table.
 #[derive(Clone, Copy, Debug)]
 pub struct FamilyLevels {
+    /// The supply voltage the family is named for (3.3 V for LVCMOS 3.3 V).
     pub nominal_vdd: ElectricPotential,
+    /// Lowest input voltage read as high.
     pub vih: Scale,
+    /// Highest input voltage read as low.
     pub vil: Scale,
+    /// Lowest output high level.
     pub voh: Scale,
+    /// Highest output low level.
     pub vol: Scale,
 }
 

@@ -28,7 +28,9 @@ pub struct Library {
 /// A library part file that is not valid YAML.
 #[derive(Clone, Debug, PartialEq)]
 pub struct LibraryError {
+    /// What is wrong with the file's YAML.
     pub message: String,
+    /// Where in the part file it is.
     pub span: Span,
 }
 
@@ -46,10 +48,12 @@ impl Library {
         self.entries.insert(id, Entry { file_name, text });
     }
 
+    /// Every known part id (`battery/lipo-3s`), sorted.
     pub fn ids(&self) -> impl Iterator<Item = &str> {
         self.entries.keys().map(String::as_str)
     }
 
+    /// Whether a part of this id is known.
     pub fn contains(&self, id: &str) -> bool {
         self.entries.contains_key(id)
     }

@@ -5,6 +5,8 @@
 //! `library` supplies the generic parts that plans `use`. Nothing here computes
 //! currents or voltages: that is `analysis`.
 
+/// The plan format's declaration: every key, class, pin role and mode state,
+/// with its kind of value, default and meaning.
 pub mod format;
 mod levels;
 mod library;
@@ -24,59 +26,88 @@ use uom::si::f64::{
 /// An input problem: the plan cannot be read as written.
 #[derive(Clone, Debug, PartialEq)]
 pub struct InputError {
+    /// What is wrong, lowercase, identifiers in backticks (`unknown part \`pack\``).
     pub message: String,
+    /// Where in the source it is: the report shows this line and column.
     pub span: Span,
     /// How to fix it, e.g. "write `5 Ah`".
     pub hint: Option<String>,
 }
 
+/// A part's place in [`Plan::parts`].
 pub type PartId = usize;
+/// A net's place in [`Plan::nets`].
 pub type NetId = usize;
+/// A pin's place in its part's [`Part::pins`].
 pub type PinIndex = usize;
 
 /// A pin of a part, by index.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub struct PinRef {
+    /// The part the pin belongs to.
     pub part: PartId,
+    /// The pin within that part.
     pub pin: PinIndex,
 }
 
+/// A wiring plan as read: its parts, the nets and cables joining them, its
+/// modes, with every value in its unit and every entry's place in the file.
 #[derive(Clone, Debug)]
 pub struct Plan {
+    /// The plan's title (`name:`), shown on reports and the diagram.
     pub name: Option<String>,
+    /// The air temperature around the electronics (`ambient:`, 25 °C when left
+    /// out), for the heat checks.
     pub ambient: ThermodynamicTemperature,
     /// Whether the plan writes `ambient`: only then do wires take its
     /// temperature (format reference §4); else copper is taken at 20 °C.
     pub ambient_given: bool,
+    /// The project-wide limits (`limits:`), defaults filled in.
     pub limits: Limits,
+    /// The parts, in file order; a [`PartId`] indexes this list.
     pub parts: Vec<Part>,
+    /// The nets, in file order; a [`NetId`] indexes this list.
     pub nets: Vec<Net>,
+    /// The cables between ports (`links:`), in file order.
     pub links: Vec<Link>,
     /// User modes, in file order (`typical` and `worst` are built in, not listed).
     pub modes: Vec<Mode>,
+    /// The share of time spent in each mode (`profile:`), for the runtime; empty
+    /// when the plan gives none.
     pub profile: Vec<ProfileShare>,
     /// The whole document, for findings about the plan as a whole.
     pub span: Span,
 }
 
+/// The project-wide limits a plan sets under `limits:` (format reference §1).
 #[derive(Clone, Copy, Debug)]
 pub struct Limits {
+    /// The largest supply-plus-return wire drop allowed, as a share of the
+    /// source's voltage (5 % when left out).
     pub wire_drop: Ratio,
+    /// The share of a continuous rating a continuous load may use (80 % when
+    /// left out).
     pub derate: Ratio,
     /// How many motors may stall at the same moment in `worst`; `None`
     /// stalls them all (format reference §6).
     pub stall_at_once: Option<Rated<u32>>,
 }
 
+/// A part of the plan, with its class's fields and every pin it has.
 #[derive(Clone, Debug)]
 pub struct Part {
+    /// Its name in `parts:` (`pack`, `left_motor`).
     pub name: String,
     /// The part's name in `parts:`.
     pub span: Span,
     /// The library id it was made from (`battery/lipo-3s`), if any.
     pub library_id: Option<String>,
+    /// What it is, with the ratings its class takes.
     pub class: Class,
+    /// Its pins: the class's fixed pins, the library part's and those the plan
+    /// writes; a [`PinIndex`] indexes this list.
     pub pins: Vec<Pin>,
+    /// Its cable ports (`ports:`), in file order.
     pub ports: Vec<Port>,
     /// It moves something (a motor, a servo, a `load` with `moves: true`):
     /// a stop switch must be able to cut its power.
@@ -84,10 +115,12 @@ pub struct Part {
 }
 
 impl Part {
+    /// The index of the pin of this name, or `None` when the part has no such pin.
     pub fn pin(&self, name: &str) -> Option<PinIndex> {
         self.pins.iter().position(|p| p.name == name)
     }
 
+    /// Its pins of one role, with their indices, in pin order.
     pub fn pins_with_role(&self, role: PinRole) -> impl Iterator<Item = (PinIndex, &Pin)> {
         self.pins
             .iter()
@@ -95,22 +128,38 @@ impl Part {
             .filter(move |(_, p)| p.role == role)
     }
 
+    /// Its class as a plan writes it (`battery`, `regulator`).
     pub fn kind_name(&self) -> &'static str {
         self.class.name()
     }
 }
 
+/// What a pin does in the circuit (`role:`, format reference §3).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum PinRole {
+    /// Provides a rail: a battery's positive, a regulator's output, a board's
+    /// onboard regulator (`supply-out`).
     SupplyOut,
+    /// Takes power from a rail (`supply-in`).
     SupplyIn,
+    /// The part's 0 V reference and return (`ground`).
     Ground,
+    /// Conducts to its partner pin of the same part: a fuse, a switch, a
+    /// connector contact (`through`).
     Through,
+    /// A motor driver's output terminal, paired by the driver's channels
+    /// (`bridge-out`).
     BridgeOut,
+    /// A motor terminal (`winding`).
     Winding,
+    /// A push-pull logic output (`logic-out`).
     LogicOut,
+    /// An output that only pulls low; a pull-up resistor sets its high level
+    /// (`open-drain`).
     OpenDrain,
+    /// A logic input (`logic-in`).
     LogicIn,
+    /// A bidirectional logic pin: an output and an input (`logic-io`).
     LogicIo,
     /// A bidirectional pin of an open-drain bus (I2C data and clock): it
     /// reads the line and only ever pulls it low.
@@ -120,6 +169,8 @@ pub enum PinRole {
 }
 
 impl PinRole {
+    /// The roles a plan may write, by the name it writes them with (`passive` is
+    /// only the resistor's own).
     pub const WRITTEN: [(&'static str, PinRole); 11] = [
         ("supply-out", PinRole::SupplyOut),
         ("supply-in", PinRole::SupplyIn),
@@ -134,6 +185,7 @@ impl PinRole {
         ("open-drain-io", PinRole::OpenDrainIo),
     ];
 
+    /// The role as a plan writes it (`supply-in`).
     pub fn name(self) -> &'static str {
         match self {
             PinRole::Passive => "passive",
@@ -168,6 +220,7 @@ impl PinRole {
         matches!(self, PinRole::LogicOut | PinRole::LogicIo)
     }
 
+    /// Carries a logic signal: any output, input or bidirectional logic pin.
     pub fn is_logic(self) -> bool {
         matches!(
             self,
@@ -180,9 +233,12 @@ impl PinRole {
     }
 }
 
+/// A pin of a part, with the ratings its role takes.
 #[derive(Clone, Debug)]
 pub struct Pin {
+    /// Its name within the part (`vin`, `pos`, `sda`).
     pub name: String,
+    /// What it does in the circuit.
     pub role: PinRole,
     /// Where the pin is written in the plan, or the part's span when it comes
     /// from the library or the class.
@@ -191,6 +247,7 @@ pub struct Pin {
     pub range: Option<Band<ElectricPotential>>,
     /// Absolute maximum of a supply-in or logic input pin.
     pub max: Option<ElectricPotential>,
+    /// Current a supply-in pin takes from its rail, per load state.
     pub draw: Option<Draw>,
     /// Voltage of a board's supply-out pin.
     pub voltage: Option<Band<ElectricPotential>>,
@@ -198,6 +255,7 @@ pub struct Pin {
     pub current: Option<ElectricCurrent>,
     /// `or: diode`: the source cannot be back-fed.
     pub diode_or: bool,
+    /// The logic levels of a logic pin, as written.
     pub logic: Option<LogicSpec>,
     /// Its net, once nets are read.
     pub net: Option<NetId>,
@@ -208,12 +266,17 @@ pub struct Pin {
 /// Current drawn by a supply-in pin in each load state.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Draw {
+    /// In the `idle` state (as `typical` when not written).
     pub idle: ElectricCurrent,
+    /// In normal running (as `peak` when not written).
     pub typical: ElectricCurrent,
+    /// The highest: start-up, transmitting, full load (as `typical` when not
+    /// written).
     pub peak: ElectricCurrent,
 }
 
 impl Draw {
+    /// The current drawn in this load state.
     pub fn in_state(&self, state: LoadState) -> ElectricCurrent {
         match state {
             LoadState::Idle => self.idle,
@@ -226,26 +289,42 @@ impl Draw {
 /// Logic levels as written; the thresholds are worked out by the logic rules.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct LogicSpec {
+    /// The supply pin of the same part whose rail sets the levels (`ref:`, the VDD).
     pub reference: Option<PinIndex>,
+    /// The logic family that sets the thresholds from VDD.
     pub family: Option<LogicFamily>,
+    /// Lowest output high level, over the family's.
     pub voh: Option<ElectricPotential>,
+    /// Highest output low level, over the family's.
     pub vol: Option<ElectricPotential>,
+    /// Lowest input voltage read as high, over the family's.
     pub vih: Option<ElectricPotential>,
+    /// Highest input voltage read as low, over the family's.
     pub vil: Option<ElectricPotential>,
+    /// The voltage the input withstands whatever its own supply (a 5 V-tolerant
+    /// input).
     pub tolerant: Option<ElectricPotential>,
 }
 
+/// A logic family: sets a pin's thresholds from its supply (format reference §3).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum LogicFamily {
+    /// 5 V TTL (`ttl5`).
     Ttl5,
+    /// 5 V CMOS (`cmos5`).
     Cmos5,
+    /// 3.3 V low-voltage TTL (`lvttl33`).
     Lvttl33,
+    /// 3.3 V low-voltage CMOS (`lvcmos33`).
     Lvcmos33,
+    /// 2.5 V low-voltage CMOS (`lvcmos25`).
     Lvcmos25,
+    /// 1.8 V low-voltage CMOS (`lvcmos18`).
     Lvcmos18,
 }
 
 impl LogicFamily {
+    /// Every family, by the name a plan writes.
     pub const ALL: [(&'static str, LogicFamily); 6] = [
         ("ttl5", LogicFamily::Ttl5),
         ("cmos5", LogicFamily::Cmos5),
@@ -256,20 +335,30 @@ impl LogicFamily {
     ];
 }
 
+/// A cable port of a part (`ports:`): one end of a [`Link`].
 #[derive(Clone, Debug)]
 pub struct Port {
+    /// Its name within the part (`usb1`).
     pub name: String,
+    /// Where it is written in the plan.
     pub span: Span,
+    /// Which end of a cable it is, with its ratings.
     pub kind: PortKind,
 }
 
+/// Which end of a USB cable a port is.
 #[derive(Clone, Debug)]
 pub enum PortKind {
+    /// A host port that provides VBUS (`usb-host`).
     UsbHost {
+        /// The most current its VBUS may deliver.
         current: Option<ElectricCurrent>,
+        /// Host ports marked `shared` share one limit, the smallest declared.
         shared: bool,
     },
+    /// A device port that takes power from VBUS (`usb-device`).
     UsbDevice {
+        /// What the part draws from VBUS through this cable.
         draw: Option<Draw>,
         /// A pin of the same part that VBUS joins.
         feeds: Option<PinIndex>,
@@ -279,25 +368,39 @@ pub enum PortKind {
     },
 }
 
+/// A part's class, with the fields that class takes (format reference §3).
 #[derive(Clone, Debug)]
 pub enum Class {
+    /// A battery pack: the source every rail starts from.
     Battery(Battery),
+    /// A fuse.
     Fuse(Fuse),
+    /// A switch or an emergency stop.
     Switch(Switch),
+    /// A connector whose contacts pair `a1`/`b1`, `a2`/`b2`, ….
     Connector(Connector),
+    /// A voltage regulator or DC-DC converter.
     Regulator(Regulator),
+    /// A motor driver of one or more H-bridges.
     Driver(Driver),
+    /// A brushed DC motor.
     Motor(Motor),
+    /// A resistor (pull-up, current limiting).
     Resistor(Resistor),
+    /// A controller board or computer; all its pins are declared.
     Board,
+    /// A sensor or encoder; all its pins are declared.
     Sensor,
+    /// Any other load (lamp, fan, heater); all its pins are declared.
     Load,
+    /// A level translator: each logic pin names its own `ref` side.
     Shifter,
     /// A hobby servo: a geared motor with its own driver, commanded by pulses.
     Servo,
 }
 
 impl Class {
+    /// Every class, by the name a plan writes after `class:`.
     pub const NAMES: [&'static str; 13] = [
         "battery",
         "fuse",
@@ -314,6 +417,7 @@ impl Class {
         "servo",
     ];
 
+    /// The class as a plan writes it (`battery`).
     pub fn name(&self) -> &'static str {
         match self {
             Class::Battery(_) => "battery",
@@ -336,20 +440,29 @@ impl Class {
 /// A value read from the plan with the span a finding about it points at.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct Rated<Q> {
+    /// The value, in its unit.
     pub value: Q,
+    /// Where it is written in the plan.
     pub span: Span,
 }
 
+/// A battery's cell chemistry: sets the per-cell voltage window.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Chemistry {
+    /// Lithium polymer (`lipo`).
     Lipo,
+    /// Lithium-ion (`li-ion`).
     LiIon,
+    /// Lithium iron phosphate (`lifepo4`).
     LiFePo4,
+    /// Nickel-metal hydride (`nimh`).
     NiMh,
+    /// Lead-acid (`lead-acid`).
     LeadAcid,
 }
 
 impl Chemistry {
+    /// Every chemistry, by the name a plan writes.
     pub const ALL: [(&'static str, Chemistry); 5] = [
         ("lipo", Chemistry::Lipo),
         ("li-ion", Chemistry::LiIon),
@@ -358,6 +471,7 @@ impl Chemistry {
         ("lead-acid", Chemistry::LeadAcid),
     ];
 
+    /// The chemistry as a plan writes it (`lipo`).
     pub fn name(self) -> &'static str {
         Chemistry::ALL
             .iter()
@@ -365,6 +479,7 @@ impl Chemistry {
             .map_or("", |(n, _)| n)
     }
 
+    /// A lithium chemistry, which takes the lithium safety cautions.
     pub fn is_lithium(self) -> bool {
         matches!(
             self,
@@ -373,15 +488,22 @@ impl Chemistry {
     }
 }
 
+/// A battery pack's fields (`class: battery`).
 #[derive(Clone, Debug)]
 pub struct Battery {
+    /// The cell chemistry.
     pub chemistry: Chemistry,
     /// Cells in series; `None` when the pack is given by its `voltage:`
     /// window instead.
     pub cells: Option<u32>,
+    /// The rated capacity, for the runtime.
     pub capacity: Option<Rated<ElectricCharge>>,
+    /// The largest continuous discharge, as written: a current or a C-rate.
     pub max_discharge: Option<Rated<DischargeRate>>,
+    /// The pack's internal resistance: the terminal voltage sags by current × this
+    /// (0 Ω when left out).
     pub internal_resistance: ElectricalResistance,
+    /// A low-voltage cutoff or protection board is fitted.
     pub cutoff: bool,
     /// Explicit terminal window (`voltage: 10 V..12.6 V`) instead of cells × chemistry.
     pub voltage: Option<Band<ElectricPotential>>,
@@ -413,29 +535,40 @@ impl Battery {
     }
 }
 
+/// How quickly a fuse blows.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum FuseSpeed {
+    /// A fast-acting fuse (`fast`, the default).
     Fast,
+    /// A time-delay fuse (`slow`): rides through a motor's start.
     Slow,
 }
 
+/// A fuse's fields (`class: fuse`).
 #[derive(Clone, Debug)]
 pub struct Fuse {
+    /// Its rated current.
     pub rating: Option<Rated<ElectricCurrent>>,
+    /// Its DC voltage rating: the highest voltage it may interrupt.
     pub voltage: Option<Rated<ElectricPotential>>,
+    /// How quickly it blows.
     pub speed: FuseSpeed,
 }
 
+/// A switch's fields (`class: switch`).
 #[derive(Clone, Debug)]
 pub struct Switch {
     /// Its contacts' continuous rating.
     pub rating: Option<Rated<ElectricCurrent>>,
     /// The current its contacts may carry for a moment (motor start, stall).
     pub surge: Option<Rated<ElectricCurrent>>,
+    /// Its DC voltage rating: the highest voltage it may interrupt.
     pub voltage: Option<Rated<ElectricPotential>>,
+    /// An emergency stop or kill switch.
     pub stop: bool,
 }
 
+/// A connector's fields (`class: connector`).
 #[derive(Clone, Debug)]
 pub struct Connector {
     /// Per contact, continuous.
@@ -444,15 +577,21 @@ pub struct Connector {
     pub surge: Option<Rated<ElectricCurrent>>,
 }
 
+/// How a regulator converts (`topology:`).
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum Topology {
+    /// Burns the difference between input and output as heat (`linear`).
     Linear,
+    /// A switching step-down converter (`buck`, also written `switching`).
     Buck,
+    /// A switching step-up converter (`boost`).
     Boost,
+    /// A switching converter that steps up or down (`buck-boost`).
     BuckBoost,
 }
 
 impl Topology {
+    /// The topology as a plan writes it (`buck-boost`).
     pub fn name(self) -> &'static str {
         match self {
             Topology::Linear => "linear",
@@ -462,25 +601,39 @@ impl Topology {
         }
     }
 
+    /// A switching converter: its input power is its output power over its
+    /// efficiency, rather than its input current being its output current.
     pub fn is_switching(self) -> bool {
         self != Topology::Linear
     }
 }
 
+/// A regulator's fields (`class: regulator`); its input range is on its `vin` pin.
 #[derive(Clone, Debug)]
 pub struct Regulator {
+    /// How it converts.
     pub topology: Topology,
+    /// Its output voltage and tolerance.
     pub output: Band<ElectricPotential>,
+    /// Its largest output current.
     pub current: Option<Rated<ElectricCurrent>>,
+    /// The least input-to-output difference it needs (0 V when left out): below
+    /// output + dropout the output follows the input less the dropout.
     pub dropout: ElectricPotential,
+    /// A switching converter's efficiency: input power = output power / efficiency
+    /// (85 % when a switching converter leaves it out).
     pub efficiency: Ratio,
     /// True when the efficiency is the assumed default, not written.
     pub efficiency_assumed: bool,
+    /// Its own current from its input (ground current).
     pub quiescent: ElectricCurrent,
+    /// Junction-to-ambient thermal resistance, for the heat check.
     pub theta_ja: Option<ThermalResistance>,
+    /// The highest junction temperature allowed (125 °C when left out).
     pub tj_max: ThermodynamicTemperature,
 }
 
+/// The voltage an H-bridge loses while it conducts.
 #[derive(Clone, Copy, Debug)]
 pub enum BridgeDrop {
     /// Total drop across the bridge (two switches in series).
@@ -489,43 +642,69 @@ pub enum BridgeDrop {
     PerSwitch(ElectricalResistance),
 }
 
+/// One H-bridge of a driver: a numbered pair of `bridge-out` pins.
 #[derive(Clone, Debug)]
 pub struct Channel {
+    /// Its number in `channels:`, from 1.
     pub number: u32,
+    /// Its two `bridge-out` pins.
     pub outputs: [PinIndex; 2],
+    /// Where it is written in the plan.
     pub span: Span,
 }
 
+/// A motor driver's fields (`class: driver`); its supply range is on its `vm` pin.
 #[derive(Clone, Debug)]
 pub struct Driver {
+    /// Each channel's continuous current rating.
     pub channel_current: Option<Rated<ElectricCurrent>>,
+    /// Each channel's peak current rating.
     pub channel_peak: Option<Rated<ElectricCurrent>>,
+    /// What a conducting channel loses (0 V when neither `drop` nor `rds_on` is
+    /// written).
     pub drop: BridgeDrop,
+    /// Its own current from `vm`.
     pub quiescent: ElectricCurrent,
+    /// Its H-bridges, in file order.
     pub channels: Vec<Channel>,
 }
 
+/// A brushed DC motor's fields (`class: motor`).
 #[derive(Clone, Debug)]
 pub struct Motor {
+    /// The voltage its ratings are given at.
     pub rated_voltage: ElectricPotential,
+    /// The current it draws running at rated load.
     pub rated_current: ElectricCurrent,
+    /// The current it draws running free.
     pub no_load_current: Option<ElectricCurrent>,
+    /// The current it draws with its shaft held still, at `rated_voltage`.
     pub stall_current: ElectricCurrent,
 }
 
+/// A resistor's fields (`class: resistor`).
 #[derive(Clone, Debug)]
 pub struct Resistor {
+    /// Its resistance.
     pub value: ElectricalResistance,
+    /// Its power rating.
     pub power: Option<Power>,
 }
 
+/// A net: pins joined by one conductor, with the wire it is run in.
 #[derive(Clone, Debug)]
 pub struct Net {
+    /// Its name in `nets:` (`BATT+`, `GND`).
     pub name: String,
+    /// Where it is named in the plan.
     pub span: Span,
+    /// The pins it joins, in file order.
     pub pins: Vec<PinRef>,
+    /// The conductor's size; with `length`, its resistance enters the operating point.
     pub wire: Option<Rated<WireSize>>,
+    /// The conductor's length, one way.
     pub length: Option<Rated<Length>>,
+    /// The insulation's temperature rating: selects the ampacity table.
     pub insulation: Option<ThermodynamicTemperature>,
     /// The air around this run (a hot enclosure), over the plan's `ambient`.
     pub ambient: Option<ThermodynamicTemperature>,
@@ -547,41 +726,60 @@ impl Plan {
     }
 }
 
+/// A cable between a host port and a device port (`links:`).
 #[derive(Clone, Debug)]
 pub struct Link {
+    /// Where it is written in the plan.
     pub span: Span,
     /// Host port end, then device port end: (part, port index).
     pub host: (PartId, usize),
+    /// The device port end: (part, port index).
     pub device: (PartId, usize),
+    /// The cable's conductor size.
     pub wire: Option<Rated<WireSize>>,
+    /// The cable's length, one way.
     pub length: Option<Rated<Length>>,
 }
 
 /// The state a mode sets a load to.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum LoadState {
+    /// Draws its `idle` current.
     Idle,
+    /// Draws its `typical` current (the default in every mode but `worst`).
     Typical,
+    /// Draws its `peak` current.
     Peak,
 }
 
+/// The state a mode sets a motor to.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum MotorState {
+    /// Stopped: draws nothing.
     Idle,
+    /// Draws `rated_current` (the default in every mode but `worst`).
     Running,
+    /// Shaft held still: draws `stall_current`.
     Stall,
 }
 
+/// A part's state in a mode.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum PartState {
+    /// The state of any part but a motor.
     Load(LoadState),
+    /// The state of a motor.
     Motor(MotorState),
 }
 
+/// An operating mode a plan declares under `modes:`.
 #[derive(Clone, Debug)]
 pub struct Mode {
+    /// Its name (`climb`).
     pub name: String,
+    /// Where it is named in the plan.
     pub span: Span,
+    /// The parts it sets, with their state; the others keep their default.
     pub states: Vec<(PartId, PartState)>,
     /// How long the mode lasts at a time (`lasts:`); `None` is as long as
     /// the robot runs.
@@ -604,9 +802,13 @@ impl Mode {
     }
 }
 
+/// One mode's share of the time (`profile:`), for the runtime.
 #[derive(Clone, Debug)]
 pub struct ProfileShare {
+    /// The mode's name.
     pub mode: String,
+    /// The share of the robot's running time spent in it.
     pub share: Ratio,
+    /// Where it is written in the plan.
     pub span: Span,
 }

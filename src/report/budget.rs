@@ -140,6 +140,8 @@ fn battery_row(b: &BatteryBudget) -> Vec<String> {
     ]
 }
 
+/// The budget as terminal text for the plan `file`: a table of rails and one of
+/// batteries, or why there are no figures.
 pub fn budget_table(file: &str, budget: &Budget) -> String {
     let mut out = format!("Power budget for {file}\n\n");
     if !budget.solved {

@@ -3,6 +3,7 @@
 
 use crate::rules::Rule;
 
+/// The catalogue, one rule a line: id, severity and summary (`railcheck rules`).
 pub fn rule_list(rules: &[Rule]) -> String {
     let width = rules.iter().map(|r| r.id.len()).max().unwrap_or(0);
     let mut out = String::new();
@@ -22,6 +23,8 @@ fn indent(text: &str) -> String {
     text.lines().map(|l| format!("    {l}\n")).collect()
 }
 
+/// One rule explained in full from its documentation: what it checks, why it
+/// matters, an example, the fix and its references (`railcheck rules <id>`).
 pub fn rule_explanation(rule: &Rule) -> String {
     let doc = &rule.doc;
     format!(

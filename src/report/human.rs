@@ -13,7 +13,9 @@ use std::fmt;
 /// How the terminal report is drawn.
 #[derive(Clone, Copy, Debug)]
 pub struct HumanStyle {
+    /// Whether to colour it with terminal escape codes.
     pub color: bool,
+    /// The width to wrap it to, in terminal columns.
     pub width: usize,
 }
 

@@ -147,6 +147,47 @@ impl<'a> FindingItem<'a> {
 
 /// The findings document of format reference §8, plus the safety `cautions` that
 /// apply to the plan and the `units` of each finding's values (added keys).
+///
+/// ```
+/// use railcheck::model::Library;
+/// use railcheck::report::{FORMAT_VERSION, findings_json};
+///
+/// // A warehouse beacon rated 12 V at most, straight on a 3S lithium-polymer pack.
+/// let plan = "\
+/// railcheck: 1
+/// parts:
+///   pack: { use: battery/lipo-3s }
+///   beacon:
+///     class: load
+///     pins:
+///       vin: { role: supply-in, range: 10 V..12 V, max: 12 V, draw: { idle: 0 A, typical: 0.2 A } }
+///       gnd: { role: ground }
+/// nets:
+///   BATT+: [pack.pos, beacon.vin]
+///   GND: [pack.neg, beacon.gnd]
+/// modes:
+///   parked: { beacon: idle }
+/// ";
+/// let checked = railcheck::check("beacon.yaml", plan, &Library::builtin()).unwrap();
+/// let cautions = railcheck::safety::cautions(&checked.plan);
+/// let text = findings_json(&checked.sources, checked.plan_source, &checked.findings, &cautions);
+///
+/// let json: serde_json::Value = serde_json::from_str(&text).expect("the output is JSON");
+/// assert_eq!(json["format_version"], FORMAT_VERSION);
+/// assert_eq!(json["format_version"], 1);
+/// assert_eq!(json["kind"], "findings");
+/// assert_eq!(json["file"], "beacon.yaml");
+/// let findings = json["findings"].as_array().unwrap();
+/// assert_eq!(json["summary"]["errors"], findings.iter().filter(|f| f["severity"] == "error").count());
+/// let over = findings.iter().find(|f| f["rule"] == "voltage/over-max").unwrap();
+/// // Full pack, idle beacon: 3 × 4.20 V = 12.6 V (Linden & Reddy, Handbook of
+/// // Batteries), in volts, on the `BATT+` line.
+/// assert_eq!(over["values"]["voltage"], 12.6);
+/// assert_eq!(over["units"]["voltage"], "V");
+/// assert_eq!(over["line"], 10);
+/// // A lithium pack brings its safety caution.
+/// assert!(json["cautions"].as_array().unwrap().iter().any(|c| c.as_str().unwrap().starts_with("Lithium")));
+/// ```
 pub fn findings_json(
     sources: &Sources,
     plan_source: SourceId,

@@ -29,12 +29,16 @@ use crate::rules::{Finding, Severity};
 /// Counts by severity.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub struct Summary {
+    /// How many errors.
     pub errors: usize,
+    /// How many warnings.
     pub warnings: usize,
+    /// How many notes.
     pub notes: usize,
 }
 
 impl Summary {
+    /// Counts these findings by severity.
     pub fn of(findings: &[Finding]) -> Summary {
         let mut s = Summary::default();
         for f in findings {
@@ -47,6 +51,8 @@ impl Summary {
         s
     }
 
+    /// The counts as the report's closing line writes them:
+    /// `1 error, 0 warnings, 2 notes`.
     pub fn line(&self) -> String {
         fn count(n: usize, word: &str) -> String {
             format!("{n} {word}{}", if n == 1 { "" } else { "s" })

@@ -24,6 +24,7 @@ const NOTES_WIDTH: usize = 96;
 /// typo.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub struct UnknownPart {
+    /// The message the user is shown, with a "did you mean" when an id is close.
     pub message: String,
 }
 

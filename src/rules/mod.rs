@@ -33,14 +33,29 @@ use std::collections::BTreeMap;
 use uom::si::electric_current::ampere;
 use uom::si::f64::ElectricCurrent;
 
+/// How much a finding matters. Ordered most serious first, so sorting puts
+/// errors before warnings before notes.
+///
+/// ```
+/// use railcheck::rules::Severity;
+///
+/// assert!(Severity::Error < Severity::Warning && Severity::Warning < Severity::Note);
+/// assert_eq!(Severity::Warning.name(), "warning");
+/// ```
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Severity {
+    /// The plan would damage a part or fail as wired; `railcheck check` exits 1.
     Error,
+    /// A risk rather than a certain fault: too little margin, a protection
+    /// missing, a part outside its operating range; fails the check only under
+    /// `--strict`.
     Warning,
+    /// Worth knowing; never fails the check.
     Note,
 }
 
 impl Severity {
+    /// The severity as reports write it (`error`, `warning`, `note`).
     pub fn name(self) -> &'static str {
         match self {
             Severity::Error => "error",
@@ -53,24 +68,34 @@ impl Severity {
 /// A rule's documentation, in the shape every rule follows.
 #[derive(Clone, Copy, Debug)]
 pub struct RuleDoc {
+    /// What it checks.
     pub what: &'static str,
+    /// Why it matters to the robot.
     pub why: &'static str,
     /// A plan fragment on which the rule fires.
     pub example: &'static str,
     /// The same fragment, corrected.
     pub fix: &'static str,
+    /// The published sources its numbers come from.
     pub references: &'static str,
 }
 
+/// A check of the catalogue: its id, default severity, documentation and the
+/// code that runs it.
 #[derive(Clone, Copy)]
 pub struct Rule {
+    /// Its stable id (`fuse/undersized`, format reference §7).
     pub id: &'static str,
+    /// The severity of its findings.
     pub severity: Severity,
+    /// One line saying what it finds, for the catalogue.
     pub summary: &'static str,
+    /// Its documentation, shown by `railcheck rules`.
     pub doc: RuleDoc,
     /// Whether the rule needs the operating point (skipped when shorts or
     /// loops prevent solving it).
     pub needs_operating_point: bool,
+    /// Runs the rule, appending its findings.
     pub check: fn(&Context, &mut Vec<Finding>),
 }
 
@@ -118,13 +143,16 @@ pub static RULES: &[Rule] = &[
     analysis::NO_CONVERGENCE,
 ];
 
+/// The rule of this id, or `None` when there is none.
 pub fn rule(id: &str) -> Option<&'static Rule> {
     RULES.iter().find(|r| r.id == id)
 }
 
 /// What every rule reads.
 pub struct Context<'a> {
+    /// The plan as read.
     pub plan: &'a Plan,
+    /// The plan's graph: which net feeds which, grounds, motor feeds.
     pub circuit: &'a Circuit,
     /// `None` when shorts or loops keep the operating point from being solved.
     pub analysis: Option<&'a Analysis>,
@@ -136,6 +164,7 @@ impl Context<'_> {
         self.analysis.into_iter().flat_map(|a| a.settled())
     }
 
+    /// The pin as a plan writes it in `nets:` (`buck.vin`).
     pub fn pin_name(&self, pin: PinRef) -> String {
         let part = &self.plan.parts[pin.part];
         format!("{}.{}", part.name, part.pins[pin.pin].name)
@@ -148,10 +177,12 @@ impl Context<'_> {
         p.net_span.unwrap_or(p.span)
     }
 
+    /// The net's name (`BATT+`).
     pub fn net_name(&self, net: NetId) -> &str {
         &self.plan.nets[net].name
     }
 
+    /// The part's name (`pack`).
     pub fn part_name(&self, part: PartId) -> &str {
         &self.plan.parts[part].name
     }
@@ -208,19 +239,67 @@ impl Context<'_> {
 }
 
 /// A problem found in the plan.
+///
+/// Each finding names its rule and severity, says what is wrong in a
+/// lowercase message, points at the plan line it concerns and carries the
+/// numbers it was computed from, each with its unit.
+///
+/// ```
+/// use railcheck::model::Library;
+/// use railcheck::rules::{Severity, Unit};
+///
+/// // A 3S lithium-polymer pack straight on a lamp rated 12 V at most.
+/// let plan = "\
+/// railcheck: 1
+/// parts:
+///   pack: { use: battery/lipo-3s }
+///   lamp:
+///     class: load
+///     pins:
+///       vin: { role: supply-in, range: 10 V..12 V, max: 12 V, draw: { idle: 0 A, typical: 0.5 A } }
+///       gnd: { role: ground }
+/// nets:
+///   BATT+: [pack.pos, lamp.vin]
+///   GND: [pack.neg, lamp.gnd]
+/// modes:
+///   parked: { lamp: idle }
+/// ";
+/// let checked = railcheck::check("lamp.yaml", plan, &Library::builtin()).expect("the plan reads");
+/// let over = checked
+///     .findings
+///     .iter()
+///     .find(|f| f.rule == "voltage/over-max")
+///     .expect("12.6 V is over the lamp's 12 V");
+/// assert_eq!(over.severity, Severity::Error);
+/// assert_eq!(over.nets, ["BATT+"]);
+/// // A full lithium-polymer cell is at 4.20 V (Linden & Reddy, Handbook of
+/// // Batteries): 3 × 4.20 V = 12.6 V, with no sag while the lamp is idle.
+/// assert!((over.values["voltage"] - 12.6).abs() < 1e-9);
+/// assert_eq!(over.units["voltage"], Unit::Volt);
+/// // The finding points at the `BATT+` net, on line 10.
+/// assert_eq!(checked.sources.line_column(over.span).0, 10);
+/// ```
 #[derive(Clone, Debug, PartialEq)]
 pub struct Finding {
+    /// The id of the rule that found it (`voltage/over-max`).
     pub rule: &'static str,
+    /// How much it matters.
     pub severity: Severity,
+    /// What is wrong, lowercase, identifiers in backticks, numbers with units.
     pub message: String,
     /// Where in the plan it points.
     pub span: Span,
     /// Further places worth showing, with a short label each.
     pub labels: Vec<(Span, String)>,
+    /// How to fix it, when there is a fix to suggest.
     pub help: Option<String>,
+    /// The names of the parts it concerns.
     pub parts: Vec<String>,
+    /// The names of the nets it concerns.
     pub nets: Vec<String>,
+    /// The mode it happens in, when it depends on one.
     pub mode: Option<String>,
+    /// The battery state it happens at, when it depends on one.
     pub battery: Option<BatteryState>,
     /// Computed numbers, in V, A, W, ohm, Ah, m and degC.
     pub values: BTreeMap<String, f64>,
@@ -229,6 +308,8 @@ pub struct Finding {
 }
 
 impl Finding {
+    /// A finding of this rule at `span`, with the rule's severity and nothing
+    /// else yet.
     pub fn new(rule: &Rule, span: Span, message: String) -> Finding {
         Finding {
             rule: rule.id,
@@ -246,6 +327,7 @@ impl Finding {
         }
     }
 
+    /// Records the mode and battery state it happens at.
     pub fn at_point(mut self, plan: &Plan, point: &OperatingPoint) -> Finding {
         self.mode = Some(point.mode.name(plan).to_string());
         self.battery = Some(point.battery);
@@ -259,11 +341,13 @@ impl Finding {
         self
     }
 
+    /// Adds how to fix it.
     pub fn help(mut self, help: impl Into<String>) -> Finding {
         self.help = Some(help.into());
         self
     }
 
+    /// Adds a part it concerns (once).
     pub fn part(mut self, name: &str) -> Finding {
         if !self.parts.iter().any(|p| p == name) {
             self.parts.push(name.to_string());
@@ -271,6 +355,7 @@ impl Finding {
         self
     }
 
+    /// Adds a net it concerns (once).
     pub fn net(mut self, name: &str) -> Finding {
         if !self.nets.iter().any(|n| n == name) {
             self.nets.push(name.to_string());
@@ -293,6 +378,8 @@ impl Finding {
         self
     }
 
+    /// Adds a further place to show, labelled with what is wrong there
+    /// (`rated 10 A`).
     pub fn label(mut self, span: Span, text: impl Into<String>) -> Finding {
         self.labels.push((span, text.into()));
         self
@@ -333,10 +420,12 @@ pub fn show_contributors(loads: &[(String, ElectricCurrent)], total: ElectricCur
 /// for negative limits too. Temperatures are compared in kelvin.
 pub const LIMIT_TOLERANCE: f64 = 0.001;
 
+/// Whether `value` is over `limit` by more than [`LIMIT_TOLERANCE`].
 pub fn exceeds(value: f64, limit: f64) -> bool {
     value - limit > limit.abs() * LIMIT_TOLERANCE
 }
 
+/// Whether `value` is under `limit` by more than [`LIMIT_TOLERANCE`].
 pub fn falls_below(value: f64, limit: f64) -> bool {
     limit - value > limit.abs() * LIMIT_TOLERANCE
 }
@@ -385,6 +474,7 @@ pub fn continuous(point: &&OperatingPoint) -> bool {
     point.is_continuous()
 }
 
+/// Where a finding happens, for its message: ``in mode `climb` at empty battery``.
 pub fn mode_label(plan: &Plan, mode: ModeId, battery: BatteryState) -> String {
     format!(
         "in mode `{}` at {} battery",

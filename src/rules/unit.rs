@@ -26,12 +26,19 @@ use uom::si::thermodynamic_temperature::degree_celsius;
 /// for temperature differences and a plain count.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Unit {
+    /// Volts (`V`).
     Volt,
+    /// Amperes (`A`).
     Ampere,
+    /// Watts (`W`).
     Watt,
+    /// Ohms (`ohm`).
     Ohm,
+    /// Ampere-hours (`Ah`), for charge.
     AmpereHour,
+    /// Metres (`m`).
     Metre,
+    /// Degrees Celsius (`degC`), for a temperature.
     DegreeCelsius,
     /// A temperature difference (a margin or a rise), not a temperature.
     Kelvin,
@@ -77,7 +84,9 @@ impl Unit {
 /// type) or bare, in the contract's fixed unit for its key.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub enum Reading {
+    /// A bare number, in the unit declared for its key.
     Bare(f64),
+    /// A number in this unit.
     In(f64, Unit),
 }
 

@@ -8,6 +8,7 @@
 
 use serde::de::{self, Deserialize, Deserializer, MapAccess, SeqAccess, Visitor};
 use serde_saphyr::Spanned;
+use std::borrow::Cow;
 use std::fmt;
 use std::sync::{Arc, OnceLock};
 
@@ -171,6 +172,35 @@ impl LineIndex {
 /// text. Scans the text: for one lookup; `Sources::line_column` keeps an index.
 pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
     LineIndex::new(text).line_column(text, offset)
+}
+
+/// Whether a character must not reach a terminal as it is: control codes
+/// (C0 but tab and line feed, DEL, C1) can move the cursor, clear the screen
+/// or retitle the window; bidirectional marks, embeddings, overrides and
+/// isolates reorder what is shown around them.
+pub fn is_unsafe_on_terminal(c: char) -> bool {
+    (c.is_control() && c != '\n' && c != '\t')
+        || matches!(
+            c,
+            '\u{061C}' | '\u{200E}' | '\u{200F}' | '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}'
+        )
+}
+
+/// Text as a terminal may show it: every character `is_unsafe_on_terminal`
+/// becomes a visible escape (`\u{1b}`), everything else stays as written.
+pub fn visible(text: &str) -> Cow<'_, str> {
+    if !text.chars().any(is_unsafe_on_terminal) {
+        return Cow::Borrowed(text);
+    }
+    let mut out = String::with_capacity(text.len() + 8);
+    for c in text.chars() {
+        if is_unsafe_on_terminal(c) {
+            out.push_str(&format!("\\u{{{:x}}}", c as u32));
+        } else {
+            out.push(c);
+        }
+    }
+    Cow::Owned(out)
 }
 
 pub fn floor_char_boundary(text: &str, mut offset: usize) -> usize {
@@ -561,6 +591,15 @@ mod tests {
         let text = "a: 1\rb: [1, 2\r";
         let error = parse(SRC, text).unwrap_err();
         assert_eq!(line_column(text, error.span.start).0, 2);
+    }
+
+    #[test]
+    fn control_codes_and_bidi_overrides_become_visible() {
+        // ECMA-48: ESC (0x1B) starts a control sequence; CSI (U+009B) is its
+        // C1 form. Unicode UAX #9: U+202E is RIGHT-TO-LEFT OVERRIDE.
+        assert_eq!(visible("a\u{1b}]0;x\u{7}b"), "a\\u{1b}]0;x\\u{7}b");
+        assert_eq!(visible("\u{9b}2J \u{202e}cba"), "\\u{9b}2J \\u{202e}cba");
+        assert_eq!(visible("tab\tand\nline µ"), "tab\tand\nline µ");
     }
 
     #[test]

@@ -32,6 +32,16 @@ use syntax::{SourceId, Sources};
 /// is refused before it is read into memory.
 pub const MAX_PLAN_BYTES: u64 = 64 * 1024 * 1024;
 
+/// The largest part file railcheck reads from a `--parts` folder, in bytes:
+/// 1 MiB. A part file is a few hundred bytes; a larger one is reported (only
+/// if a plan uses it) without being read.
+pub const MAX_PART_BYTES: u64 = 1024 * 1024;
+
+/// The most files and folders railcheck looks at in a `--parts` folder, and
+/// how deep it goes: a folder beyond either is refused with a message.
+pub const MAX_PARTS_ENTRIES: usize = 10_000;
+pub const MAX_PARTS_DEPTH: usize = 16;
+
 /// A plan that was read and checked.
 #[derive(Debug)]
 pub struct Checked {

@@ -488,6 +488,14 @@ impl Reader<'_> {
             };
             let library_root = match loaded {
                 Ok(root) => root,
+                Err(e) if e.unreadable => {
+                    self.error(
+                        use_node.span,
+                        e.message,
+                        Some("fix or remove the part file, or use another part".into()),
+                    );
+                    return None;
+                }
                 Err(e) => {
                     self.error(e.span, e.message, None);
                     return None;

@@ -128,3 +128,51 @@ fn control_codes_in_the_file_name_never_reach_the_terminal() {
     let out = report::render_input_errors(&failure.sources, &failure.errors, HumanStyle::default());
     assert!(!out.contains('\u{1b}'), "{out:?}");
 }
+
+fn decode_error(bytes: Vec<u8>) -> railcheck::model::InputError {
+    let failure = railcheck::decode("plan.yaml", bytes).expect_err("not UTF-8");
+    assert_eq!(failure.errors.len(), 1);
+    let error = failure.errors[0].clone();
+    assert_eq!(failure.sources.line_column(error.span), (1, 1));
+    error
+}
+
+fn utf16(text: &str, big_endian: bool, mark: bool) -> Vec<u8> {
+    let mut units: Vec<u16> = text.encode_utf16().collect();
+    if mark {
+        units.insert(0, 0xFEFF); // Unicode §23.8 byte order mark
+    }
+    units
+        .iter()
+        .flat_map(|u| {
+            if big_endian {
+                u.to_be_bytes()
+            } else {
+                u.to_le_bytes()
+            }
+        })
+        .collect()
+}
+
+#[test]
+fn utf16_with_or_without_a_byte_order_mark_is_named() {
+    let text = "railcheck: 1\nname: x\nparts: {}\nnets: {}\n";
+    for (big, mark) in [(false, true), (true, true), (false, false), (true, false)] {
+        let error = decode_error(utf16(text, big, mark));
+        let endian = if big { "big-endian" } else { "little-endian" };
+        assert_eq!(
+            error.message,
+            format!("the file is UTF-16 ({endian}) text, not UTF-8")
+        );
+    }
+    let error = decode_error(vec![0xFF, 0xFE, 0, 0, b'r', 0, 0, 0]);
+    assert!(error.message.contains("UTF-32"), "{}", error.message);
+}
+
+#[test]
+fn a_utf8_byte_order_mark_is_read_past() {
+    let mut bytes = vec![0xEF, 0xBB, 0xBF];
+    bytes.extend_from_slice(b"railcheck: 1\nname: x\nparts: {}\nnets: {}\n");
+    let text = railcheck::decode("plan.yaml", bytes).expect("UTF-8 with a mark");
+    assert!(text.starts_with("railcheck"));
+}

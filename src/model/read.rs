@@ -154,11 +154,14 @@ impl Reader<'_> {
             Some(v) if v.as_scalar() == Some("1") => {}
             Some(v) => self.error(
                 v.span,
-                format!(
-                    "unsupported format version `{}`",
-                    v.as_scalar().unwrap_or("?")
-                ),
-                Some("this railcheck reads `railcheck: 1`".into()),
+                match v.as_scalar() {
+                    Some(version) => format!("unsupported format version `{version}`"),
+                    None => format!(
+                        "the format version `railcheck:` must be a number, found {}",
+                        v.describe()
+                    ),
+                },
+                Some("write `railcheck: 1`, the format version this railcheck reads".into()),
             ),
         }
         let name = root
@@ -304,10 +307,19 @@ impl Reader<'_> {
         if format::is_name(&text) {
             Some(text)
         } else {
+            let rule = "names use letters and digits (any script), `_`, `-` and `+`";
+            let hint = match text.chars().find(|&c| !format::is_name(&c.to_string())) {
+                Some(c) if format::is_default_ignorable(c) || c.is_control() => format!(
+                    "it holds U+{:04X}, a character that shows as nothing or moves the text; {rule}",
+                    c as u32
+                ),
+                Some(c) => format!("`{c}` (U+{:04X}) is not allowed; {rule}", c as u32),
+                None => rule.to_string(),
+            };
             self.error(
                 node.span,
                 format!("`{text}` is not a valid {what} name"),
-                Some("names use letters, digits, `_`, `-` and `+`".into()),
+                Some(hint),
             );
             None
         }
@@ -388,6 +400,22 @@ impl Reader<'_> {
     ) -> Option<Rated<T>> {
         let node = body.get(key)?;
         let value = self.scalar_quantity(node, parse)?;
+        // Every rated value (capacity, current and voltage ratings, limits,
+        // wire sizes and lengths) is a physical size: zero is impossible and
+        // would pass every check it takes part in.
+        if let Some(written) = node.as_scalar()
+            && is_written_zero(written)
+        {
+            self.error(
+                node.span,
+                format!("`{key}: {}` must be above zero", written.trim()),
+                Some(format!(
+                    "give the {} the part is made for (its data sheet's value)",
+                    key.replace('_', " ")
+                )),
+            );
+            return None;
+        }
         Some(Rated {
             value,
             span: self.in_plan(node.span, fallback),
@@ -1058,7 +1086,24 @@ impl Reader<'_> {
                 })
             }
             "resistor" => Class::Resistor(Resistor {
-                value: self.required(body, "value", units::resistance, &what, "10 kohm", at)?,
+                value: {
+                    let value =
+                        self.required(body, "value", units::resistance, &what, "10 kohm", at)?;
+                    if value.get::<ohm>() <= 0.0
+                        && let Some(n) = body.get("value")
+                    {
+                        self.error(
+                            n.span,
+                            format!("the `value` of {what} must be above zero"),
+                            Some(
+                                "a pull resistor of zero ohms is a wire: give its resistance"
+                                    .into(),
+                            ),
+                        );
+                        return None;
+                    }
+                    value
+                },
                 power: self.quantity(body, "power", units::power),
             }),
             "board" => Class::Board,
@@ -1848,7 +1893,27 @@ fn pin_names(pins: &[Pin]) -> String {
     list(&names)
 }
 
+/// Whether a quantity as written is zero: its number is `0`, `-0`, `0.0`,
+/// `0e5`… An AWG gauge is a size number, not an amount (`0 AWG` is a thick
+/// wire), so it never counts as zero.
+fn is_written_zero(written: &str) -> bool {
+    let written = written.trim();
+    if written.to_ascii_uppercase().contains("AWG") {
+        return false;
+    }
+    let number: String = written
+        .chars()
+        .take_while(|c| c.is_ascii_digit() || matches!(c, '.' | '+' | '-' | 'e' | 'E'))
+        .collect();
+    let number = number.trim_end_matches(['e', 'E']);
+    number.parse::<f64>().is_ok_and(|n| n == 0.0) && !written.contains("..")
+}
+
+/// Names in backticks, or what to do when there are none.
 fn list(names: &[&str]) -> String {
+    if names.is_empty() {
+        return "none: the part declares no pins; give it its pins under `pins:`".into();
+    }
     names
         .iter()
         .map(|n| format!("`{n}`"))

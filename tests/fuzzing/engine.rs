@@ -245,7 +245,7 @@ fn mutate_once(rng: &mut Rng, text: &str) -> String {
             format!("{}{}{}", &text[..at], &text[from..to], &text[at..])
         }
         // All on one line: flow style made wide.
-        _ => text.replace("\n  ", " ").replace('\n', "\n"),
+        _ => text.replace("\n  ", " "),
     }
 }
 

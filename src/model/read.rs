@@ -63,6 +63,7 @@ pub fn read_plan(
         plan_source: root.span.source,
         refused_parts: HashSet::new(),
         refused_pins: HashSet::new(),
+        pin_names: HashMap::new(),
     };
     let plan = reader.plan(root);
     if reader.errors.is_empty() {
@@ -107,6 +108,9 @@ struct Reader<'a> {
     refused_parts: HashSet<String>,
     /// Pins refused the same way, as (part, pin).
     refused_pins: HashSet<(String, String)>,
+    /// Each part's pins by name, built when a net first names one of them:
+    /// a net of many pins of one large part is read in linear time.
+    pin_names: HashMap<PartId, HashMap<String, PinIndex>>,
 }
 
 /// A logic pin's `ref`, resolved once all pins of the part are known.
@@ -623,6 +627,11 @@ impl Reader<'_> {
             .iter()
             .map(|(pin_name, role)| blank_pin(pin_name, *role, name_span))
             .collect();
+        // Pins by name: a part of thousands of pins is read in linear time.
+        let mut by_name: HashMap<String, PinIndex> = HashMap::new();
+        for (i, pin) in pins.iter().enumerate() {
+            by_name.entry(pin.name.clone()).or_insert(i);
+        }
         let mut pending = Vec::new();
         if let Some(pins_node) = body.get("pins")
             && let Some(entries) = self.mapping(pins_node, &format!("the pins of `{name}`"))
@@ -631,7 +640,7 @@ impl Reader<'_> {
                 let Some(pin_name) = self.name(key, "pin") else {
                     continue;
                 };
-                let existing = pins.iter().position(|p| p.name == pin_name);
+                let existing = by_name.get(&pin_name).copied();
                 let default_role = existing.map(|i| pins[i].role);
                 let span = self.in_plan(key.span, name_span);
                 let index = existing.unwrap_or(pins.len());
@@ -646,7 +655,10 @@ impl Reader<'_> {
                 ) {
                     Some(pin) => match existing {
                         Some(i) => pins[i] = pin,
-                        None => pins.push(pin),
+                        None => {
+                            by_name.insert(pin.name.clone(), pins.len());
+                            pins.push(pin);
+                        }
                     },
                     None => {
                         self.refused_pins.insert((name.clone(), pin_name));
@@ -655,7 +667,7 @@ impl Reader<'_> {
             }
         }
         for r in pending {
-            match pins.iter().position(|p| p.name == r.name) {
+            match by_name.get(&r.name).copied() {
                 Some(i) if matches!(pins[i].role, PinRole::SupplyIn | PinRole::SupplyOut) => {
                     if let Some(logic) = pins[r.pin].logic.as_mut() {
                         logic.reference = Some(i);
@@ -1388,7 +1400,20 @@ impl Reader<'_> {
             );
             return None;
         };
-        let Some(pin) = parts[part].pin(pin_name) else {
+        let found = self
+            .pin_names
+            .entry(part)
+            .or_insert_with(|| {
+                let mut names = HashMap::new();
+                for (i, pin) in parts[part].pins.iter().enumerate() {
+                    // The first of two pins of one name is the one `Part::pin` finds.
+                    names.entry(pin.name.clone()).or_insert(i);
+                }
+                names
+            })
+            .get(pin_name)
+            .copied();
+        let Some(pin) = found else {
             let names: Vec<&str> = parts[part].pins.iter().map(|p| p.name.as_str()).collect();
             let hint = match closest(pin_name, names.iter().copied()) {
                 Some(s) => format!("did you mean `{part_name}.{s}`?"),

@@ -34,6 +34,16 @@ use syntax::{SourceId, Sources};
 /// is refused before it is read into memory.
 pub const MAX_PLAN_BYTES: u64 = 64 * 1024 * 1024;
 
+/// The largest part file railcheck reads from a `--parts` folder, in bytes:
+/// 1 MiB. A part file is a few hundred bytes; a larger one is reported (only
+/// if a plan uses it) without being read.
+pub const MAX_PART_BYTES: u64 = 1024 * 1024;
+
+/// The most files and folders railcheck looks at in a `--parts` folder, and
+/// how deep it goes: a folder beyond either is refused with a message.
+pub const MAX_PARTS_ENTRIES: usize = 10_000;
+pub const MAX_PARTS_DEPTH: usize = 16;
+
 /// A plan that was read and checked.
 #[derive(Debug)]
 pub struct Checked {
@@ -93,8 +103,28 @@ pub struct InputFailure {
 }
 
 /// Turns a file's bytes into text; a file that is not UTF-8 is an input
-/// problem at the first bad byte.
-pub fn decode(file_name: &str, bytes: Vec<u8>) -> Result<String, InputFailure> {
+/// problem at the first bad byte. UTF-16 and UTF-32 (by their byte-order
+/// mark, or UTF-16 without one by its NUL bytes between ASCII letters) are
+/// named as such at line 1; a UTF-8 byte-order mark is dropped.
+pub fn decode(file_name: &str, mut bytes: Vec<u8>) -> Result<String, InputFailure> {
+    if let Some(encoding) = wide_encoding(&bytes) {
+        let mut sources = Sources::default();
+        let plan_source = sources.add(file_name, "");
+        return Err(InputFailure {
+            sources,
+            plan_source,
+            errors: vec![InputError {
+                message: format!("the file is {encoding} text, not UTF-8"),
+                span: syntax::Span::new(plan_source, 0, 0),
+                hint: Some(
+                    "save the plan as UTF-8 (most editors offer it under \"encoding\")".into(),
+                ),
+            }],
+        });
+    }
+    if bytes.starts_with(&[0xEF, 0xBB, 0xBF]) {
+        bytes.drain(..3);
+    }
     String::from_utf8(bytes).map_err(|e| {
         let at = e.utf8_error().valid_up_to();
         let mut sources = Sources::default();
@@ -112,6 +142,38 @@ pub fn decode(file_name: &str, bytes: Vec<u8>) -> Result<String, InputFailure> {
             }],
         }
     })
+}
+
+/// The name of a wide Unicode encoding the bytes are in, if they are: by
+/// the byte-order mark (Unicode §23.8), or for UTF-16 without one by NUL
+/// bytes in every other position of the first characters (ASCII text in
+/// UTF-16 has a zero high byte).
+fn wide_encoding(bytes: &[u8]) -> Option<&'static str> {
+    match bytes {
+        [0x00, 0x00, 0xFE, 0xFF, ..] => return Some("UTF-32 (big-endian)"),
+        [0xFF, 0xFE, 0x00, 0x00, ..] => return Some("UTF-32 (little-endian)"),
+        [0xFE, 0xFF, ..] => return Some("UTF-16 (big-endian)"),
+        [0xFF, 0xFE, ..] => return Some("UTF-16 (little-endian)"),
+        _ => {}
+    }
+    let head = &bytes[..bytes.len().min(64) & !1];
+    if head.len() < 4 {
+        return None;
+    }
+    let zero_at = |parity: usize| {
+        head.iter()
+            .enumerate()
+            .filter(|(i, b)| i % 2 == parity && **b == 0)
+            .count()
+    };
+    let (even, odd, half) = (zero_at(0), zero_at(1), head.len() / 2);
+    if odd * 4 >= half * 3 && even == 0 {
+        Some("UTF-16 (little-endian)")
+    } else if even * 4 >= half * 3 && odd == 0 {
+        Some("UTF-16 (big-endian)")
+    } else {
+        None
+    }
 }
 
 /// Reads a plan from text, without checking it.

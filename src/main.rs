@@ -5,6 +5,7 @@ use clap::{CommandFactory, Parser, Subcommand, ValueEnum};
 use railcheck::model::Library;
 use railcheck::report::{self, HumanStyle};
 use railcheck::rules::Severity;
+use railcheck::syntax;
 use std::io::{IsTerminal, Read, Write};
 use std::path::{Path, PathBuf};
 use std::process::ExitCode;
@@ -159,7 +160,10 @@ struct Run {
 }
 
 fn main() -> ExitCode {
-    let cli = Cli::parse();
+    let cli = match Cli::try_parse() {
+        Ok(cli) => cli,
+        Err(error) => return usage_error(error),
+    };
     let run = Run { color: cli.color };
     match cli.command {
         Command::Check {
@@ -196,8 +200,51 @@ fn main() -> ExitCode {
     }
 }
 
+/// A command line clap refused. Under `--format json` or `sarif` the one
+/// document of that format is printed too, so a caller parsing standard
+/// output always gets one.
+fn usage_error(error: clap::Error) -> ExitCode {
+    if error.use_stderr() {
+        let args: Vec<String> = std::env::args_os()
+            .map(|a| a.to_string_lossy().into_owned())
+            .collect();
+        let format = args
+            .iter()
+            .enumerate()
+            .find_map(|(i, arg)| match arg.as_str() {
+                "--format" => args.get(i + 1).map(String::as_str),
+                _ => arg.strip_prefix("--format="),
+            });
+        let rendered = error.render().to_string();
+        // The first paragraph, without clap's `error:` and usage lines.
+        let paragraph = rendered
+            .lines()
+            .take_while(|line| !line.trim().is_empty())
+            .collect::<Vec<_>>()
+            .join(" ");
+        let message = paragraph
+            .split_whitespace()
+            .collect::<Vec<_>>()
+            .join(" ")
+            .trim_start_matches("error: ")
+            .to_string();
+        let message = message.as_str();
+        const NAME: &str = "<command line>";
+        match format {
+            Some("json") => emit(&report::unplaced_input_error_json(NAME, message)),
+            Some("sarif") => emit(&report::unplaced_input_error_sarif(
+                NAME,
+                railcheck::rules::RULES,
+                message,
+            )),
+            _ => {}
+        }
+    }
+    error.exit()
+}
+
 fn fail(message: &str) -> ExitCode {
-    eprintln!("railcheck: {message}");
+    eprintln!("railcheck: {}", syntax::visible(message));
     ExitCode::from(EXIT_INPUT)
 }
 
@@ -215,6 +262,12 @@ fn fail_as(args: &PlanArgs, message: &str) -> ExitCode {
         Format::Human => {}
     }
     fail(message)
+}
+
+/// A plain-text report as a terminal may show it (`syntax::visible`): names
+/// from a plan or part file cannot send control codes.
+fn shown(text: String) -> String {
+    syntax::visible(&text).into_owned()
 }
 
 fn emit(text: &str) {
@@ -381,7 +434,8 @@ fn check(
     diagram: Option<&Path>,
 ) -> ExitCode {
     if diagram.is_some_and(is_stdin) {
-        return fail(
+        return fail_as(
+            args,
             "`--diagram -` would mix the diagram into the report; use `railcheck draw FILE -o -`",
         );
     }
@@ -406,11 +460,11 @@ fn check(
             &checked.findings,
             &cautions,
         ),
-        Format::Human if quiet => report::quiet_findings(
+        Format::Human if quiet => shown(report::quiet_findings(
             checked.sources.name(checked.plan_source),
             &checked.findings,
             &cautions,
-        ),
+        )),
         Format::Json => report::findings_json(
             &checked.sources,
             checked.plan_source,
@@ -440,7 +494,10 @@ fn check(
 fn draw(run: &Run, args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode {
     let to_stdout = output.is_some_and(is_stdin);
     if to_stdout && png.is_some_and(is_stdin) {
-        return fail("only one of `-o` and `--png` can be `-` (standard output)");
+        return fail_as(
+            args,
+            "only one of `-o` and `--png` can be `-` (standard output)",
+        );
     }
     // With the diagram on standard output, problems go to standard error so
     // the output stays a clean SVG document.
@@ -485,19 +542,90 @@ fn deliver(path: &Path, plan: &Path, bytes: &[u8]) -> Result<(), String> {
 }
 
 fn wrote(path: &Path, bytes: usize) {
-    eprintln!("wrote {} ({bytes} bytes)", path.display());
+    eprintln!(
+        "wrote {} ({bytes} bytes)",
+        syntax::visible(&path.display().to_string())
+    );
 }
 
-/// Writes a file whole or not at all: into a temporary file in the same
+/// Writes a file whole or not at all: into a temporary file in the target's
 /// folder, then renamed over the target. Never writes over the plan itself.
+/// Only a regular file (or a new name) is a target: a folder, device, named
+/// pipe or socket is refused by name. A symbolic link is written through: the
+/// file it points to is replaced (atomically, in that file's folder) and the
+/// link stays.
 fn write_output(path: &Path, plan: &Path, bytes: &[u8]) -> Result<(), String> {
-    if is_same_file(path, plan) {
+    let target = output_target(path)?;
+    if is_same_file(&target, plan) {
         return Err(format!(
             "refusing to write the diagram over the plan {}",
             plan.display()
         ));
     }
-    write_atomically(path, bytes, Replace::Allowed)
+    write_atomically(&target, bytes, Replace::Allowed).map_err(|message| {
+        if target == path {
+            message
+        } else {
+            format!("{message} (the file {} links to)", path.display())
+        }
+    })
+}
+
+/// The file an output path names: itself, or where its links lead. Refuses
+/// anything but a regular file or a new name.
+fn output_target(path: &Path) -> Result<PathBuf, String> {
+    let shown = || syntax::visible(&path.display().to_string()).into_owned();
+    let mut target = path.to_path_buf();
+    // A chain of links is followed a few steps, as the system would.
+    for _ in 0..40 {
+        match target.symlink_metadata() {
+            Ok(own) if own.file_type().is_symlink() => {
+                let next = std::fs::read_link(&target)
+                    .map_err(|e| format!("cannot write {}: {e}", shown()))?;
+                target = match target.parent() {
+                    Some(folder) if next.is_relative() => folder.join(next),
+                    _ => next,
+                };
+            }
+            Ok(own) => {
+                let kind = own.file_type();
+                if kind.is_file() {
+                    return Ok(target);
+                }
+                let what = if kind.is_dir() {
+                    "a folder"
+                } else {
+                    #[cfg(unix)]
+                    {
+                        use std::os::unix::fs::FileTypeExt;
+                        if kind.is_fifo() {
+                            "a named pipe"
+                        } else if kind.is_socket() {
+                            "a socket"
+                        } else if kind.is_block_device() || kind.is_char_device() {
+                            "a device"
+                        } else {
+                            "not a regular file"
+                        }
+                    }
+                    #[cfg(not(unix))]
+                    {
+                        "not a regular file"
+                    }
+                };
+                return Err(format!(
+                    "cannot write {}: it is {what}; give the path of a regular file (or `-` for standard output where offered)",
+                    shown()
+                ));
+            }
+            Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Ok(target),
+            Err(e) => return Err(format!("cannot write {}: {e}", shown())),
+        }
+    }
+    Err(format!(
+        "cannot write {}: too many levels of links",
+        shown()
+    ))
 }
 
 /// Whether an existing file at the target may be replaced.
@@ -588,9 +716,9 @@ fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
     let budget = railcheck::budget::budget(&checked);
     let name = checked.sources.name(checked.plan_source);
     emit(&match args.format {
-        Format::Human if quiet => report::quiet_budget(name, &budget),
+        Format::Human if quiet => shown(report::quiet_budget(name, &budget)),
         Format::Json => report::budget_json(name, &budget),
-        Format::Human | Format::Sarif => report::budget_table(name, &budget),
+        Format::Human | Format::Sarif => shown(report::budget_table(name, &budget)),
     });
     // A plan whose operating point could not be solved has no budget.
     if budget.solved {
@@ -635,9 +763,9 @@ fn show_parts(id: Option<&str>, parts: Option<&Path>) -> ExitCode {
         Err(message) => return fail(&message),
     };
     match id {
-        None => emit(&report::parts_list(&library)),
+        None => emit(&shown(report::parts_list(&library))),
         Some(id) => match report::part_sheet(&library, id) {
-            Ok(sheet) => emit(&sheet),
+            Ok(sheet) => emit(&shown(sheet)),
             Err(unknown) => return fail(&unknown.message),
         },
     }
@@ -661,36 +789,140 @@ fn rules(id: Option<&str>) -> ExitCode {
 }
 
 /// Reads every `.yaml` file below `dir` into the library, id = relative path
-/// without `.yaml`.
+/// without `.yaml`. Only regular files are opened: named pipes, devices and
+/// sockets are passed over (they could block or never end). A link is
+/// followed only when it points inside the folder; a link out of it, or one
+/// back to a folder already walked, is passed over, so the walk ends and
+/// never reads a file outside the folder. Each passed-over entry is named on
+/// standard error. A part file larger than `MAX_PART_BYTES` or not UTF-8 is
+/// not read; a plan that uses it gets the reason.
 fn add_user_parts(library: &mut Library, dir: &Path) -> Result<(), String> {
-    let mut stack = vec![dir.to_path_buf()];
+    let shown = dir.display();
+    let root = dir
+        .canonicalize()
+        .map_err(|e| format!("cannot read parts folder {shown}: {e}"))?;
+    if !root.is_dir() {
+        return Err(format!("the parts folder {shown} is not a folder"));
+    }
+    let mut walked = std::collections::HashSet::from([root.clone()]);
+    let mut stack = vec![(dir.to_path_buf(), 0)];
     let mut files = Vec::new();
-    while let Some(folder) = stack.pop() {
+    let mut seen = 0;
+    let skip = |path: &Path, why: &str| {
+        eprintln!(
+            "railcheck: passing over {} in the parts folder: {why}",
+            syntax::visible(&path.display().to_string())
+        );
+    };
+    while let Some((folder, depth)) = stack.pop() {
         let entries = std::fs::read_dir(&folder)
             .map_err(|e| format!("cannot read parts folder {}: {e}", folder.display()))?;
         for entry in entries {
+            seen += 1;
+            if seen > railcheck::MAX_PARTS_ENTRIES {
+                return Err(format!(
+                    "the parts folder {shown} holds more than {} files and folders, the most railcheck reads",
+                    railcheck::MAX_PARTS_ENTRIES
+                ));
+            }
             let path = entry
                 .map_err(|e| format!("cannot read {}: {e}", folder.display()))?
                 .path();
-            if path.is_dir() {
-                stack.push(path);
+            let Ok(own) = path.symlink_metadata() else {
+                continue;
+            };
+            let metadata = if own.file_type().is_symlink() {
+                match path.canonicalize() {
+                    Ok(target) if target.starts_with(&root) => match target.metadata() {
+                        Ok(m) => m,
+                        Err(_) => continue,
+                    },
+                    Ok(_) => {
+                        skip(&path, "a link out of the folder is not followed");
+                        continue;
+                    }
+                    Err(_) => {
+                        skip(&path, "a link that leads nowhere");
+                        continue;
+                    }
+                }
+            } else {
+                own
+            };
+            if metadata.is_dir() {
+                let canonical = path.canonicalize().unwrap_or_else(|_| path.clone());
+                if depth + 1 > railcheck::MAX_PARTS_DEPTH {
+                    return Err(format!(
+                        "the parts folder {shown} nests folders more than {} deep, the most railcheck reads",
+                        railcheck::MAX_PARTS_DEPTH
+                    ));
+                }
+                if walked.insert(canonical) {
+                    stack.push((path, depth + 1));
+                } else {
+                    skip(&path, "a link back to a folder already read");
+                }
             } else if path.extension().and_then(|e| e.to_str()) == Some("yaml") {
-                files.push(path);
+                if metadata.is_file() {
+                    files.push((path, metadata.len()));
+                } else {
+                    skip(&path, "not a regular file (a named pipe, device or socket)");
+                }
             }
         }
     }
     files.sort();
-    for path in files {
-        let bytes = read_bounded(&path)?;
-        let text = String::from_utf8(bytes)
-            .map_err(|_| format!("cannot read {}: the file is not UTF-8 text", path.display()))?;
+    for (path, len) in files {
         let relative = path.strip_prefix(dir).unwrap_or(&path).with_extension("");
         let id = relative
             .components()
             .map(|c| c.as_os_str().to_string_lossy().into_owned())
             .collect::<Vec<_>>()
             .join("/");
-        library.insert(id, path.display().to_string(), text);
+        let name = path.display().to_string();
+        match read_part_file(&path, len) {
+            Ok(text) => library.insert(id, name, text),
+            Err(reason) => library.insert_unreadable(id, name, reason),
+        }
     }
     Ok(())
+}
+
+/// A part file's text, or why it cannot be read.
+fn read_part_file(path: &Path, len: u64) -> Result<String, String> {
+    let ceiling = railcheck::MAX_PART_BYTES;
+    let too_large = || {
+        format!(
+            "the file is larger than {} KiB, the most railcheck reads of a part file",
+            ceiling / 1024
+        )
+    };
+    if len > ceiling {
+        return Err(too_large());
+    }
+    let mut options = std::fs::OpenOptions::new();
+    options.read(true);
+    // Opened without waiting: if the file was swapped for a named pipe since
+    // it was looked at, the open returns at once and the check below refuses it.
+    #[cfg(target_os = "linux")]
+    {
+        use std::os::unix::fs::OpenOptionsExt;
+        const O_NONBLOCK: i32 = 0o4000;
+        options.custom_flags(O_NONBLOCK);
+    }
+    let file = options.open(path).map_err(|e| e.to_string())?;
+    if !file.metadata().map_err(|e| e.to_string())?.is_file() {
+        return Err("not a regular file".into());
+    }
+    let mut bytes = Vec::new();
+    file.take(ceiling + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| e.to_string())?;
+    if bytes.len() as u64 > ceiling {
+        return Err(too_large());
+    }
+    String::from_utf8(bytes).map_err(|e| {
+        let at = e.utf8_error().valid_up_to();
+        format!("the file is not UTF-8 text (byte {at})")
+    })
 }

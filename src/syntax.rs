@@ -8,8 +8,9 @@
 
 use serde::de::{self, Deserialize, Deserializer, MapAccess, SeqAccess, Visitor};
 use serde_saphyr::Spanned;
+use std::borrow::Cow;
 use std::fmt;
-use std::sync::Arc;
+use std::sync::{Arc, OnceLock};
 
 /// Which loaded text a span points into (the plan, or a library part file).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
@@ -48,41 +49,167 @@ impl Span {
 /// Every text the run has read, so spans can be turned into lines and snippets.
 #[derive(Clone, Debug, Default)]
 pub struct Sources {
-    entries: Vec<(String, Arc<str>)>,
+    entries: Vec<Entry>,
+}
+
+#[derive(Clone, Debug)]
+struct Entry {
+    name: String,
+    text: Arc<str>,
+    /// Built on the first position lookup, then shared by every diagnostic:
+    /// a lookup is a binary search, not a scan of the text.
+    lines: OnceLock<LineIndex>,
 }
 
 impl Sources {
     /// Keeps a text under the name reports show for it (the plan's file name, a
     /// part's `parts/…` path) and returns its id.
     pub fn add(&mut self, name: impl Into<String>, text: impl Into<Arc<str>>) -> SourceId {
-        self.entries.push((name.into(), text.into()));
+        self.entries.push(Entry {
+            name: name.into(),
+            text: text.into(),
+            lines: OnceLock::new(),
+        });
         SourceId(self.entries.len() as u32 - 1)
     }
 
     /// The name a text was added under. Panics for an id from another `Sources`.
     pub fn name(&self, id: SourceId) -> &str {
-        &self.entries[id.0 as usize].0
+        &self.entries[id.0 as usize].name
     }
 
     /// The text itself. Panics for an id from another `Sources`.
     pub fn text(&self, id: SourceId) -> &Arc<str> {
-        &self.entries[id.0 as usize].1
+        &self.entries[id.0 as usize].text
     }
 
-    /// 1-based line and column (in characters) of a byte offset.
+    /// Where each line of a source starts.
+    pub fn lines(&self, id: SourceId) -> &LineIndex {
+        let entry = &self.entries[id.0 as usize];
+        entry.lines.get_or_init(|| LineIndex::new(&entry.text))
+    }
+
+    /// 1-based line and column (in characters) of a span's start.
     pub fn line_column(&self, span: Span) -> (usize, usize) {
-        line_column(self.text(span.source), span.start)
+        self.line_column_at(span.source, span.start)
+    }
+
+    /// 1-based line and column (in characters) of a byte offset in a source.
+    pub fn line_column_at(&self, id: SourceId, offset: usize) -> (usize, usize) {
+        self.lines(id).line_column(self.text(id), offset)
     }
 }
 
-/// 1-based line and column (in characters) of a byte offset, clamped into the text.
+/// The start of every line of a text. Lines end at `\n`, `\r\n` or a lone
+/// `\r` (the YAML line breaks), so a file saved with old Mac line endings
+/// is numbered as its editor shows it.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct LineIndex {
+    starts: Vec<usize>,
+}
+
+impl LineIndex {
+    pub fn new(text: &str) -> LineIndex {
+        let bytes = text.as_bytes();
+        let mut starts = vec![0];
+        let mut i = 0;
+        while i < bytes.len() {
+            match bytes[i] {
+                b'\n' => starts.push(i + 1),
+                b'\r' if bytes.get(i + 1) == Some(&b'\n') => {
+                    starts.push(i + 2);
+                    i += 1;
+                }
+                b'\r' => starts.push(i + 1),
+                _ => {}
+            }
+            i += 1;
+        }
+        LineIndex { starts }
+    }
+
+    /// How many lines the text has (an empty text has one).
+    pub fn count(&self) -> usize {
+        self.starts.len()
+    }
+
+    /// The 0-based line holding a byte offset.
+    pub fn line_of(&self, offset: usize) -> usize {
+        self.starts.partition_point(|&start| start <= offset) - 1
+    }
+
+    /// Byte range of a 0-based line without its line break.
+    pub fn line_range(&self, text: &str, line: usize) -> std::ops::Range<usize> {
+        let start = self.starts[line.min(self.starts.len() - 1)];
+        let next = self.starts.get(line + 1).copied().unwrap_or(text.len());
+        let bytes = text.as_bytes();
+        let mut end = next;
+        if end > start && bytes[end - 1] == b'\n' {
+            end -= 1;
+        }
+        if end > start && bytes[end - 1] == b'\r' {
+            end -= 1;
+        }
+        start..end
+    }
+
+    /// 1-based line and column (in characters) of a byte offset, clamped
+    /// into the text.
+    pub fn line_column(&self, text: &str, offset: usize) -> (usize, usize) {
+        let offset = floor_char_boundary(text, offset);
+        let line = self.line_of(offset);
+        let start = self.starts[line];
+        (line + 1, text[start..offset].chars().count() + 1)
+    }
+
+    /// Byte offset of a 1-based line and column (in characters), clamped
+    /// into the text.
+    pub fn offset_of(&self, text: &str, line: usize, column: usize) -> usize {
+        let Some(&start) = self.starts.get(line.max(1) - 1) else {
+            return text.len();
+        };
+        let rest = &text[start..];
+        start
+            + rest
+                .char_indices()
+                .nth(column.saturating_sub(1))
+                .map_or(rest.len(), |(i, _)| i)
+    }
+}
+
+/// 1-based line and column (in characters) of a byte offset, clamped into the
+/// text. Scans the text: for one lookup; `Sources::line_column` keeps an index.
 pub fn line_column(text: &str, offset: usize) -> (usize, usize) {
-    let offset = floor_char_boundary(text, offset.min(text.len()));
-    let before = &text[..offset];
-    let line = before.matches('\n').count() + 1;
-    let line_start = before.rfind('\n').map_or(0, |i| i + 1);
-    let column = text[line_start..offset].chars().count() + 1;
-    (line, column)
+    LineIndex::new(text).line_column(text, offset)
+}
+
+/// Whether a character must not reach a terminal as it is: control codes
+/// (C0 but tab and line feed, DEL, C1) can move the cursor, clear the screen
+/// or retitle the window; bidirectional marks, embeddings, overrides and
+/// isolates reorder what is shown around them.
+pub fn is_unsafe_on_terminal(c: char) -> bool {
+    (c.is_control() && c != '\n' && c != '\t')
+        || matches!(
+            c,
+            '\u{061C}' | '\u{200E}' | '\u{200F}' | '\u{202A}'..='\u{202E}' | '\u{2066}'..='\u{2069}'
+        )
+}
+
+/// Text as a terminal may show it: every character `is_unsafe_on_terminal`
+/// becomes a visible escape (`\u{1b}`), everything else stays as written.
+pub fn visible(text: &str) -> Cow<'_, str> {
+    if !text.chars().any(is_unsafe_on_terminal) {
+        return Cow::Borrowed(text);
+    }
+    let mut out = String::with_capacity(text.len() + 8);
+    for c in text.chars() {
+        if is_unsafe_on_terminal(c) {
+            out.push_str(&format!("\\u{{{:x}}}", c as u32));
+        } else {
+            out.push(c);
+        }
+    }
+    Cow::Owned(out)
 }
 
 /// The largest offset at or before `offset` (clamped into the text) that falls
@@ -191,13 +318,18 @@ pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
     // then reports them as values, with the rest of the plan still read.
     options.non_finite_float_policy = serde_saphyr::NonFiniteFloatPolicy::AsString;
     match serde_saphyr::from_str_with_options::<Spanned<RawNode>>(text, options) {
-        Ok(raw) => Ok(convert(source, text, raw)),
+        Ok(raw) => Ok(convert(source, text, &OnceLock::new(), raw)),
         Err(error) => {
             let offset = error
                 .location()
-                .map(|loc| offset_of(text, &loc))
+                .map(|loc| offset_of(text, &OnceLock::new(), &loc))
                 .unwrap_or(0);
             let message = plain_message(&error.to_string());
+            let offset = if message.contains("more than one YAML document") {
+                document_marker_before(text, offset)
+            } else {
+                offset
+            };
             let end = next_char_end(text, offset);
             Err(SyntaxError {
                 message,
@@ -205,6 +337,22 @@ pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
             })
         }
     }
+}
+
+/// The reader reports a second document where its content begins; the user
+/// wants the `---` (or `...`) line that started it.
+fn document_marker_before(text: &str, offset: usize) -> usize {
+    let lines = LineIndex::new(text);
+    let last = lines.line_of(offset.min(text.len()));
+    (0..=last)
+        .rev()
+        .map(|line| lines.line_range(text, line))
+        .find(|range| {
+            let line = &text[range.clone()];
+            (line.starts_with("---") || line.starts_with("..."))
+                && line[3..].chars().next().is_none_or(char::is_whitespace)
+        })
+        .map_or(offset, |range| range.start)
 }
 
 fn next_char_end(text: &str, offset: usize) -> usize {
@@ -251,7 +399,9 @@ fn plain_message(message: &str) -> String {
     }
 }
 
-fn offset_of(text: &str, location: &serde_saphyr::Location) -> usize {
+/// A location's byte offset; from its line and column (through an index
+/// built once per parse) when the reader gave none.
+fn offset_of(text: &str, lines: &OnceLock<LineIndex>, location: &serde_saphyr::Location) -> usize {
     let span = location.span();
     if let Some(byte) = span.byte_offset()
         && (byte as usize) <= text.len()
@@ -259,27 +409,20 @@ fn offset_of(text: &str, location: &serde_saphyr::Location) -> usize {
     {
         return byte as usize;
     }
-    offset_of_line_column(text, location.line() as usize, location.column() as usize)
+    lines.get_or_init(|| LineIndex::new(text)).offset_of(
+        text,
+        location.line() as usize,
+        location.column() as usize,
+    )
 }
 
-fn offset_of_line_column(text: &str, line: usize, column: usize) -> usize {
-    let mut offset = 0;
-    for _ in 1..line.max(1) {
-        match text[offset..].find('\n') {
-            Some(i) => offset += i + 1,
-            None => return text.len(),
-        }
-    }
-    let rest = &text[offset..];
-    let within = rest
-        .char_indices()
-        .nth(column.saturating_sub(1))
-        .map_or(rest.len(), |(i, _)| i);
-    offset + within
-}
-
-fn convert(source: SourceId, text: &str, raw: Spanned<RawNode>) -> Node {
-    let start = offset_of(text, &raw.referenced);
+fn convert(
+    source: SourceId,
+    text: &str,
+    lines: &OnceLock<LineIndex>,
+    raw: Spanned<RawNode>,
+) -> Node {
+    let start = offset_of(text, lines, &raw.referenced);
     let declared_len = raw
         .referenced
         .span()
@@ -294,13 +437,18 @@ fn convert(source: SourceId, text: &str, raw: Spanned<RawNode>) -> Node {
         RawNode::Seq(items) => NodeKind::Seq(
             items
                 .into_iter()
-                .map(|i| convert(source, text, i))
+                .map(|i| convert(source, text, lines, i))
                 .collect(),
         ),
         RawNode::Map(entries) => NodeKind::Map(
             entries
                 .into_iter()
-                .map(|(k, v)| (convert(source, text, k), convert(source, text, v)))
+                .map(|(k, v)| {
+                    (
+                        convert(source, text, lines, k),
+                        convert(source, text, lines, v),
+                    )
+                })
                 .collect(),
         ),
     };
@@ -439,6 +587,41 @@ mod tests {
         let text = "a: 1\na: 2\n";
         let error = parse(SRC, text).unwrap_err();
         assert_eq!(line_column(text, error.span.start), (2, 1));
+    }
+
+    #[test]
+    fn a_second_document_is_reported_at_its_marker() {
+        let text = "railcheck: 1\nparts: {}\n---\nfoo: 1\n";
+        let error = parse(SRC, text).unwrap_err();
+        assert_eq!(line_column(text, error.span.start), (3, 1));
+    }
+
+    #[test]
+    fn every_yaml_line_break_starts_a_line() {
+        // YAML 1.2 §5.4: a line break is LF, CR LF or a lone CR.
+        let text = "a: 1\rb: 2\r\nc: 3\nd: 4";
+        let index = LineIndex::new(text);
+        assert_eq!(index.count(), 4);
+        assert_eq!(index.line_column(text, text.find('d').unwrap()), (4, 1));
+        assert_eq!(index.line_column(text, text.find('b').unwrap()), (2, 1));
+        assert_eq!(index.line_range(text, 1), 5..9);
+        assert_eq!(index.offset_of(text, 3, 4), text.find('3').unwrap());
+    }
+
+    #[test]
+    fn an_error_in_a_cr_only_file_is_at_its_line() {
+        let text = "a: 1\rb: [1, 2\r";
+        let error = parse(SRC, text).unwrap_err();
+        assert_eq!(line_column(text, error.span.start).0, 2);
+    }
+
+    #[test]
+    fn control_codes_and_bidi_overrides_become_visible() {
+        // ECMA-48: ESC (0x1B) starts a control sequence; CSI (U+009B) is its
+        // C1 form. Unicode UAX #9: U+202E is RIGHT-TO-LEFT OVERRIDE.
+        assert_eq!(visible("a\u{1b}]0;x\u{7}b"), "a\\u{1b}]0;x\\u{7}b");
+        assert_eq!(visible("\u{9b}2J \u{202e}cba"), "\\u{9b}2J \\u{202e}cba");
+        assert_eq!(visible("tab\tand\nline µ"), "tab\tand\nline µ");
     }
 
     #[test]

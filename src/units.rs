@@ -972,6 +972,9 @@ fn lex_term<'t>(text: &'t str, span: Range<usize>, expect: &Expect) -> Result<Te
         Ok(number) => number,
         Err(_) => return Err(not_a_number(text, span, expect)),
     };
+    if number == 0.0 && mantissa_is_nonzero(number_text) {
+        return Err(underflow(number_text, number_span, expect));
+    }
     if !number.is_finite() {
         return Err(problem(
             format!("`{}` is too large to be a number", excerpt(number_text)),
@@ -1200,6 +1203,23 @@ fn plausible_unit_hint(written: &str, number: f64, kind: Kind) -> String {
     }
 }
 
+/// Whether a written number has a nonzero digit before its exponent.
+fn mantissa_is_nonzero(number_text: &str) -> bool {
+    number_text
+        .split(['e', 'E'])
+        .next()
+        .is_some_and(|m| m.bytes().any(|b| (b'1'..=b'9').contains(&b)))
+}
+
+/// A nonzero number too small for a float: it would silently become 0.
+fn underflow(written: &str, span: Range<usize>, expect: &Expect) -> UnitError {
+    problem(
+        format!("`{}` is too small to tell from zero", excerpt(written)),
+        format!("write {}, like `{}`", expect.wanted, expect.example()),
+        span,
+    )
+}
+
 /// The value of `term` in the kind's base unit, after the sign and range checks.
 fn to_base(
     text: &str,
@@ -1219,6 +1239,13 @@ fn to_base(
             format!("`{written}` is too large"),
             format!("write {}, like `{}`", expect.wanted, expect.example()),
             term.span.clone(),
+        ));
+    }
+    if value == spelling.offset && term.number != 0.0 {
+        return Err(underflow(
+            &text[term.span.clone()],
+            term.span.clone(),
+            expect,
         ));
     }
     if kind == Kind::Temperature && value < 0.0 {

@@ -827,19 +827,65 @@ pub fn role_keys(role: PinRole) -> Vec<&'static str> {
     keys
 }
 
-/// Names of parts, nets, pins, ports and modes: letters, digits, `_`, `-`
-/// and `+`.
+/// Names of parts, nets, pins, ports and modes: letters and digits of any
+/// script, `_`, `-` and `+`, but none of the characters Unicode marks
+/// Default_Ignorable_Code_Point (DerivedCoreProperties.txt): those display
+/// as nothing, so two names that look alike could differ.
 pub fn is_name(text: &str) -> bool {
     !text.is_empty()
-        && text
-            .chars()
-            .all(|c| c.is_alphanumeric() || matches!(c, '_' | '-' | '+'))
+        && text.chars().all(|c| {
+            (c.is_alphanumeric() && !is_default_ignorable(c)) || matches!(c, '_' | '-' | '+')
+        })
+}
+
+/// Unicode's Default_Ignorable_Code_Point ranges (Unicode 15, from memory of
+/// DerivedCoreProperties.txt): the Hangul fillers are letters that show as
+/// blank, the rest format and variation characters.
+pub fn is_default_ignorable(c: char) -> bool {
+    matches!(
+        c,
+        '\u{00AD}'
+            | '\u{034F}'
+            | '\u{061C}'
+            | '\u{115F}'..='\u{1160}'
+            | '\u{17B4}'..='\u{17B5}'
+            | '\u{180B}'..='\u{180F}'
+            | '\u{200B}'..='\u{200F}'
+            | '\u{202A}'..='\u{202E}'
+            | '\u{2060}'..='\u{206F}'
+            | '\u{3164}'
+            | '\u{FE00}'..='\u{FE0F}'
+            | '\u{FEFF}'
+            | '\u{FFA0}'
+            | '\u{FFF0}'..='\u{FFF8}'
+            | '\u{1BCA0}'..='\u{1BCA3}'
+            | '\u{1D173}'..='\u{1D17A}'
+            | '\u{E0000}'..='\u{E0FFF}'
+    )
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
     use crate::model::LogicFamily;
+
+    #[test]
+    fn names_that_display_as_blank_are_not_names() {
+        // U+3164 HANGUL FILLER and U+FFA0 HALFWIDTH HANGUL FILLER are
+        // letters (Lo) that Unicode marks Default_Ignorable_Code_Point.
+        for blank in [
+            "\u{3164}",
+            "a\u{3164}",
+            "\u{ffa0}",
+            "x\u{115f}y",
+            "m\u{200b}",
+        ] {
+            assert!(!is_name(blank), "{blank:?}");
+        }
+        for name in ["BATT+", "left_enc", "3v3", "ø-motor", "電源", "Ωsense"] {
+            assert!(is_name(name), "{name}");
+        }
+    }
 
     #[test]
     fn written_roles_match_the_model() {

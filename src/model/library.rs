@@ -16,7 +16,9 @@ static BUILTIN: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/parts");
 struct Entry {
     /// Shown in diagnostics: `parts/battery/lipo-3s.yaml` or the user's path.
     file_name: String,
-    text: String,
+    /// The file's text, or why it could not be read: a file that is too
+    /// large or not UTF-8 is reported only when a plan uses it.
+    text: Result<String, String>,
 }
 
 /// All known part ids and their YAML texts.
@@ -32,6 +34,9 @@ pub struct LibraryError {
     pub message: String,
     /// Where in the part file it is.
     pub span: Span,
+    /// The file could not be read at all: the span is empty and the plan's
+    /// `use:` is the place to report.
+    pub unreadable: bool,
 }
 
 impl Library {
@@ -45,7 +50,25 @@ impl Library {
     /// Adds (or shadows) a part. `id` is the path below the parts folder
     /// without `.yaml`, with `/` separators.
     pub fn insert(&mut self, id: String, file_name: String, text: String) {
-        self.entries.insert(id, Entry { file_name, text });
+        self.entries.insert(
+            id,
+            Entry {
+                file_name,
+                text: Ok(text),
+            },
+        );
+    }
+
+    /// Adds (or shadows) a part whose file could not be read, and why; a
+    /// plan that uses it gets the reason as an input error.
+    pub fn insert_unreadable(&mut self, id: String, file_name: String, reason: String) {
+        self.entries.insert(
+            id,
+            Entry {
+                file_name,
+                text: Err(reason),
+            },
+        );
     }
 
     /// Every known part id (`battery/lipo-3s`), sorted.
@@ -110,9 +133,10 @@ impl Library {
     /// The part file's `notes:`, with the folding of the YAML block undone.
     pub fn notes(&self, id: &str) -> Option<String> {
         let entry = self.entries.get(id)?;
+        let text = entry.text.as_ref().ok()?;
         let mut sources = Sources::default();
-        let source = sources.add(entry.file_name.clone(), entry.text.as_str());
-        let root = syntax::parse(source, &entry.text).ok()?;
+        let source = sources.add(entry.file_name.clone(), text.as_str());
+        let root = syntax::parse(source, text).ok()?;
         let notes = root.get("notes")?.as_scalar()?;
         Some(notes.split_whitespace().collect::<Vec<_>>().join(" "))
     }
@@ -120,13 +144,26 @@ impl Library {
     /// Parses a part's file into `sources`.
     pub fn load(&self, id: &str, sources: &mut Sources) -> Option<Result<Node, LibraryError>> {
         let entry = self.entries.get(id)?;
-        let source = sources.add(entry.file_name.clone(), entry.text.as_str());
-        Some(
-            syntax::parse(source, &entry.text).map_err(|e| LibraryError {
-                message: e.message,
-                span: e.span,
-            }),
-        )
+        let text = match &entry.text {
+            Ok(text) => text,
+            Err(reason) => {
+                let source = sources.add(entry.file_name.clone(), "");
+                return Some(Err(LibraryError {
+                    message: format!(
+                        "library part `{id}` cannot be read from {}: {reason}",
+                        entry.file_name
+                    ),
+                    span: Span::new(source, 0, 0),
+                    unreadable: true,
+                }));
+            }
+        };
+        let source = sources.add(entry.file_name.clone(), text.as_str());
+        Some(syntax::parse(source, text).map_err(|e| LibraryError {
+            message: e.message,
+            span: e.span,
+            unreadable: false,
+        }))
     }
 }
 

@@ -63,6 +63,7 @@ pub fn read_plan(
         plan_source: root.span.source,
         refused_parts: HashSet::new(),
         refused_pins: HashSet::new(),
+        pin_names: HashMap::new(),
     };
     let plan = reader.plan(root);
     if reader.errors.is_empty() {
@@ -107,6 +108,9 @@ struct Reader<'a> {
     refused_parts: HashSet<String>,
     /// Pins refused the same way, as (part, pin).
     refused_pins: HashSet<(String, String)>,
+    /// Each part's pins by name, built when a net first names one of them:
+    /// a net of many pins of one large part is read in linear time.
+    pin_names: HashMap<PartId, HashMap<String, PinIndex>>,
 }
 
 /// A logic pin's `ref`, resolved once all pins of the part are known.
@@ -154,11 +158,14 @@ impl Reader<'_> {
             Some(v) if v.as_scalar() == Some("1") => {}
             Some(v) => self.error(
                 v.span,
-                format!(
-                    "unsupported format version `{}`",
-                    v.as_scalar().unwrap_or("?")
-                ),
-                Some("this railcheck reads `railcheck: 1`".into()),
+                match v.as_scalar() {
+                    Some(version) => format!("unsupported format version `{version}`"),
+                    None => format!(
+                        "the format version `railcheck:` must be a number, found {}",
+                        v.describe()
+                    ),
+                },
+                Some("write `railcheck: 1`, the format version this railcheck reads".into()),
             ),
         }
         let name = root
@@ -304,10 +311,19 @@ impl Reader<'_> {
         if format::is_name(&text) {
             Some(text)
         } else {
+            let rule = "names use letters and digits (any script), `_`, `-` and `+`";
+            let hint = match text.chars().find(|&c| !format::is_name(&c.to_string())) {
+                Some(c) if format::is_default_ignorable(c) || c.is_control() => format!(
+                    "it holds U+{:04X}, a character that shows as nothing or moves the text; {rule}",
+                    c as u32
+                ),
+                Some(c) => format!("`{c}` (U+{:04X}) is not allowed; {rule}", c as u32),
+                None => rule.to_string(),
+            };
             self.error(
                 node.span,
                 format!("`{text}` is not a valid {what} name"),
-                Some("names use letters, digits, `_`, `-` and `+`".into()),
+                Some(hint),
             );
             None
         }
@@ -388,6 +404,22 @@ impl Reader<'_> {
     ) -> Option<Rated<T>> {
         let node = body.get(key)?;
         let value = self.scalar_quantity(node, parse)?;
+        // Every rated value (capacity, current and voltage ratings, limits,
+        // wire sizes and lengths) is a physical size: zero is impossible and
+        // would pass every check it takes part in.
+        if let Some(written) = node.as_scalar()
+            && is_written_zero(written)
+        {
+            self.error(
+                node.span,
+                format!("`{key}: {}` must be above zero", written.trim()),
+                Some(format!(
+                    "give the {} the part is made for (its data sheet's value)",
+                    key.replace('_', " ")
+                )),
+            );
+            return None;
+        }
         Some(Rated {
             value,
             span: self.in_plan(node.span, fallback),
@@ -488,6 +520,14 @@ impl Reader<'_> {
             };
             let library_root = match loaded {
                 Ok(root) => root,
+                Err(e) if e.unreadable => {
+                    self.error(
+                        use_node.span,
+                        e.message,
+                        Some("fix or remove the part file, or use another part".into()),
+                    );
+                    return None;
+                }
                 Err(e) => {
                     self.error(e.span, e.message, None);
                     return None;
@@ -587,6 +627,11 @@ impl Reader<'_> {
             .iter()
             .map(|(pin_name, role)| blank_pin(pin_name, *role, name_span))
             .collect();
+        // Pins by name: a part of thousands of pins is read in linear time.
+        let mut by_name: HashMap<String, PinIndex> = HashMap::new();
+        for (i, pin) in pins.iter().enumerate() {
+            by_name.entry(pin.name.clone()).or_insert(i);
+        }
         let mut pending = Vec::new();
         if let Some(pins_node) = body.get("pins")
             && let Some(entries) = self.mapping(pins_node, &format!("the pins of `{name}`"))
@@ -595,7 +640,7 @@ impl Reader<'_> {
                 let Some(pin_name) = self.name(key, "pin") else {
                     continue;
                 };
-                let existing = pins.iter().position(|p| p.name == pin_name);
+                let existing = by_name.get(&pin_name).copied();
                 let default_role = existing.map(|i| pins[i].role);
                 let span = self.in_plan(key.span, name_span);
                 let index = existing.unwrap_or(pins.len());
@@ -610,7 +655,10 @@ impl Reader<'_> {
                 ) {
                     Some(pin) => match existing {
                         Some(i) => pins[i] = pin,
-                        None => pins.push(pin),
+                        None => {
+                            by_name.insert(pin.name.clone(), pins.len());
+                            pins.push(pin);
+                        }
                     },
                     None => {
                         self.refused_pins.insert((name.clone(), pin_name));
@@ -619,7 +667,7 @@ impl Reader<'_> {
             }
         }
         for r in pending {
-            match pins.iter().position(|p| p.name == r.name) {
+            match by_name.get(&r.name).copied() {
                 Some(i) if matches!(pins[i].role, PinRole::SupplyIn | PinRole::SupplyOut) => {
                     if let Some(logic) = pins[r.pin].logic.as_mut() {
                         logic.reference = Some(i);
@@ -1056,7 +1104,24 @@ impl Reader<'_> {
                 })
             }
             "resistor" => Class::Resistor(Resistor {
-                value: self.required(body, "value", units::resistance, &what, "10 kohm", at)?,
+                value: {
+                    let value =
+                        self.required(body, "value", units::resistance, &what, "10 kohm", at)?;
+                    if value.get::<ohm>() <= 0.0
+                        && let Some(n) = body.get("value")
+                    {
+                        self.error(
+                            n.span,
+                            format!("the `value` of {what} must be above zero"),
+                            Some(
+                                "a pull resistor of zero ohms is a wire: give its resistance"
+                                    .into(),
+                            ),
+                        );
+                        return None;
+                    }
+                    value
+                },
                 power: self.quantity(body, "power", units::power),
             }),
             "board" => Class::Board,
@@ -1342,7 +1407,20 @@ impl Reader<'_> {
             );
             return None;
         };
-        let Some(pin) = parts[part].pin(pin_name) else {
+        let found = self
+            .pin_names
+            .entry(part)
+            .or_insert_with(|| {
+                let mut names = HashMap::new();
+                for (i, pin) in parts[part].pins.iter().enumerate() {
+                    // The first of two pins of one name is the one `Part::pin` finds.
+                    names.entry(pin.name.clone()).or_insert(i);
+                }
+                names
+            })
+            .get(pin_name)
+            .copied();
+        let Some(pin) = found else {
             let names: Vec<&str> = parts[part].pins.iter().map(|p| p.name.as_str()).collect();
             let hint = match closest(pin_name, names.iter().copied()) {
                 Some(s) => format!("did you mean `{part_name}.{s}`?"),
@@ -1847,7 +1925,27 @@ fn pin_names(pins: &[Pin]) -> String {
     list(&names)
 }
 
+/// Whether a quantity as written is zero: its number is `0`, `-0`, `0.0`,
+/// `0e5`… An AWG gauge is a size number, not an amount (`0 AWG` is a thick
+/// wire), so it never counts as zero.
+fn is_written_zero(written: &str) -> bool {
+    let written = written.trim();
+    if written.to_ascii_uppercase().contains("AWG") {
+        return false;
+    }
+    let number: String = written
+        .chars()
+        .take_while(|c| c.is_ascii_digit() || matches!(c, '.' | '+' | '-' | 'e' | 'E'))
+        .collect();
+    let number = number.trim_end_matches(['e', 'E']);
+    number.parse::<f64>().is_ok_and(|n| n == 0.0) && !written.contains("..")
+}
+
+/// Names in backticks, or what to do when there are none.
 fn list(names: &[&str]) -> String {
+    if names.is_empty() {
+        return "none: the part declares no pins; give it its pins under `pins:`".into();
+    }
     names
         .iter()
         .map(|n| format!("`{n}`"))

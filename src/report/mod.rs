@@ -16,7 +16,7 @@ mod schema;
 
 pub use budget::{budget_json, budget_table};
 pub use catalogue::{rule_explanation, rule_list};
-pub use human::{HumanStyle, render_findings, render_input_errors};
+pub use human::{HumanStyle, MAX_SHOWN, WINDOW_CHARS, render_findings, render_input_errors};
 pub use json::{FORMAT_VERSION, findings_json, input_errors_json, unplaced_input_error_json};
 pub use parts::{UnknownPart, part_sheet, parts_list};
 pub use quiet::{quiet_budget, quiet_findings};

@@ -12,7 +12,7 @@
 
 use crate::model::InputError;
 use crate::rules::{Finding, Rule, Severity};
-use crate::syntax::{self, Sources, Span};
+use crate::syntax::{Sources, Span};
 use percent_encoding::{AsciiSet, NON_ALPHANUMERIC, utf8_percent_encode};
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -200,7 +200,7 @@ fn artifact(name: &str, region: Option<Region>) -> PhysicalLocation {
 fn region(sources: &Sources, span: Span) -> Region {
     let (start_line, start_column) = sources.line_column(span);
     let (end_line, end_column) = if span.end > span.start {
-        let (line, column) = syntax::line_column(sources.text(span.source), span.end);
+        let (line, column) = sources.line_column_at(span.source, span.end);
         (Some(line), Some(column))
     } else {
         (None, None)

@@ -217,13 +217,20 @@ pub fn read(
     let root = match syntax::parse(plan_source, text) {
         Ok(root) => root,
         Err(e) => {
+            let too_large = e.is_size_limit();
             return Err(InputFailure {
                 sources,
                 plan_source,
                 errors: vec![InputError {
                     message: e.message,
                     span: e.span,
-                    hint: Some("fix the YAML syntax here; nothing after it was read".into()),
+                    hint: Some(if too_large {
+                        "split the machine into plans of its separate power domains, or write \
+                         out in full the parts that aliases (`*name`) repeat"
+                            .into()
+                    } else {
+                        "fix the YAML syntax here; nothing after it was read".into()
+                    }),
                 }],
             });
         }

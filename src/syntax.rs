@@ -297,19 +297,40 @@ pub struct SyntaxError {
     pub span: Span,
 }
 
-/// Node budget for the YAML reader. Generated plans with thousands of parts stay
-/// well inside it; hostile input is refused quickly instead of exhausting memory.
-const MAX_NODES: usize = 2_000_000;
+/// How a size-limit message begins (see `SyntaxError::is_size_limit`).
+const TOO_LARGE: &str = "the plan is too large";
+
+impl SyntaxError {
+    /// Whether the text was refused for its size rather than its syntax.
+    pub fn is_size_limit(&self) -> bool {
+        self.message.starts_with(TOO_LARGE)
+    }
+}
+
+/// Fewest YAML nodes (mappings, lists and values) the reader accepts, for
+/// any input: covers a plan of about 95,000 parts.
+const MIN_NODES: usize = 2_000_000;
+/// Bytes of input that buy one more node beyond `MIN_NODES`. Written out, a
+/// plan spends 6 to 10 bytes per node and no YAML node takes fewer than 2
+/// (`a,`), so a plan written out in full never reaches the budget; only
+/// aliases (`*name`) that repeat large parts can, and they cannot make a
+/// small file take unbounded memory.
+const BYTES_PER_NODE: usize = 2;
 /// Nesting depth. A plan needs about eight levels (parts → part → pins →
 /// pin → draw); the reader recurses once per level, so the limit keeps deep
 /// hostile nesting far from any thread's stack limit.
 const MAX_DEPTH: usize = 24;
 
-/// Parses one YAML document into a spanned tree.
-pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
+/// The most YAML nodes a text of this many bytes may hold.
+pub fn node_limit(text_bytes: usize) -> usize {
+    MIN_NODES.max(text_bytes / BYTES_PER_NODE)
+}
+
+/// The reader's settings for one text: the node budget scales with its size.
+pub fn reader_options(text: &str) -> serde_saphyr::Options {
     let mut budget = serde_saphyr::Budget::default();
-    budget.max_nodes = MAX_NODES;
-    budget.max_events = 4 * MAX_NODES;
+    budget.max_nodes = node_limit(text.len());
+    budget.max_events = 4 * budget.max_nodes;
     budget.max_depth = MAX_DEPTH;
     let mut options = serde_saphyr::Options::default();
     options.budget = Some(budget);
@@ -317,9 +338,29 @@ pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
     // Numbers too large for a float, `.inf` and `.nan` stay text: the model
     // then reports them as values, with the rest of the plan still read.
     options.non_finite_float_policy = serde_saphyr::NonFiniteFloatPolicy::AsString;
+    options
+}
+
+/// Parses one YAML document into a spanned tree.
+pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
+    let options = reader_options(text);
     match serde_saphyr::from_str_with_options::<Spanned<RawNode>>(text, options) {
         Ok(raw) => Ok(convert(source, text, &OnceLock::new(), raw)),
         Err(error) => {
+            let full = error.to_string();
+            if full.contains("budget breached: Nodes") || full.contains("budget breached: Events") {
+                // A size limit: the position where the count ran out says
+                // nothing about the plan, so the report points at its start.
+                return Err(SyntaxError {
+                    message: format!(
+                        "{TOO_LARGE}: it expands to more than {} YAML nodes, the most \
+                         a file of {} bytes may hold",
+                        node_limit(text.len()),
+                        text.len()
+                    ),
+                    span: Span::new(source, 0, 0),
+                });
+            }
             let offset = error
                 .location()
                 .map(|loc| offset_of(text, &OnceLock::new(), &loc))

@@ -42,6 +42,7 @@ pub const MAX_PART_BYTES: u64 = 1024 * 1024;
 /// The most files and folders railcheck looks at in a `--parts` folder, and
 /// how deep it goes: a folder beyond either is refused with a message.
 pub const MAX_PARTS_ENTRIES: usize = 10_000;
+/// How many folders deep railcheck walks a `--parts` folder.
 pub const MAX_PARTS_DEPTH: usize = 16;
 
 /// A plan that was read and checked.

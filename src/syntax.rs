@@ -109,6 +109,8 @@ pub struct LineIndex {
 }
 
 impl LineIndex {
+    /// Index the line starts of `text` once, so every later position lookup
+    /// is a binary search.
     pub fn new(text: &str) -> LineIndex {
         let bytes = text.as_bytes();
         let mut starts = vec![0];

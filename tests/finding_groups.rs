@@ -47,3 +47,39 @@ fn an_unpowered_part_is_one_finding_for_all_its_inputs() {
     let fixture = "tests/fixtures/logic__unpowered-input/fires-driver-logic-supply-open.yaml";
     assert_eq!(count(fixture, "logic/unpowered-input"), 1);
 }
+
+fn messages(fixture: &str, rule: &str) -> Vec<String> {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(fixture);
+    let text = std::fs::read_to_string(&path).expect("fixture reads");
+    let checked = railcheck::check(fixture, &text, &Library::builtin())
+        .unwrap_or_else(|_| panic!("{fixture} is a readable plan"));
+    checked
+        .findings
+        .iter()
+        .filter(|f| f.rule == rule)
+        .map(|f| f.message.clone())
+        .collect()
+}
+
+#[test]
+fn two_inputs_over_their_maximum_on_one_rail_are_one_finding() {
+    // Buck at the top of its tolerance: 5 V + 2 % = 5.1 V, above the IMU's
+    // 4 V and the probe's 5.05 V absolute maxima. One rail, one finding,
+    // quoting each pin's own limit.
+    let fixture = "tests/fixtures/voltage__over-max/fires-regulator-tolerance-top.yaml";
+    let found = messages(fixture, "voltage/over-max");
+    assert_eq!(found.len(), 1, "{found:?}");
+    assert!(found[0].contains("`imu.vcc` (4 V)"), "{}", found[0]);
+    assert!(found[0].contains("`probe.vcc` (5.05 V)"), "{}", found[0]);
+}
+
+#[test]
+fn two_inputs_above_their_range_on_one_rail_are_one_finding() {
+    // 3S full: 3 × 4.20 V = 12.6 V (Handbook of Batteries), above the boost's
+    // 11 V and the board's 12 V operating maxima: one finding for the rail.
+    let fixture = "tests/fixtures/voltage__over-range/fires-board-and-boost-input.yaml";
+    let found = messages(fixture, "voltage/over-range");
+    assert_eq!(found.len(), 1, "{found:?}");
+    assert!(found[0].contains("`boost.vin` (11 V)"), "{}", found[0]);
+    assert!(found[0].contains("`brain.vin` (12 V)"), "{}", found[0]);
+}

@@ -1238,6 +1238,16 @@ fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
         let (Some(rating), Some(net)) = (fuse.spec.rating, fuse.downstream) else {
             continue;
         };
+        // An undersized fuse is one mistake: `fuse/undersized` reports it, and
+        // the rating it suggests is chosen to ride through the brief peaks too.
+        if continuous_through(cx, net).is_some_and(|(_, current)| {
+            exceeds(
+                amps(minimum_rating(ElectricCurrent::new::<ampere>(current))),
+                amps(rating.value),
+            )
+        }) {
+            continue;
+        }
         let speed = fuse.spec.speed;
         let motors = motors_below(cx, net);
         // Name the motors behind this fuse that stall at the point; with

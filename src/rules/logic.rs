@@ -34,7 +34,7 @@ pub const OVERVOLTAGE: Rule = Rule {
     severity: Severity::Error,
     summary: "a driver's high level exceeds a receiver's absolute maximum input",
     doc: RuleDoc {
-        what: "For every input on a signal, the highest level anything on that signal can put on it — a push-pull output at its rail's maximum, a pull-up resistor's rail at its maximum, or the rail the input is tied to — against the input's ceiling at its own rail's minimum (when both follow one rail they are compared at each operating point instead, since a rail is never at its top and its bottom at once). The ceiling is the pin's `max` when written; else VDD + 0.3 V; `tolerant: 5 V` raises it to 5.5 V (a V-tolerant pin is taken to withstand V + 10 %). One finding per signal, written from its worst pair and naming every driver and input that fails.",
+        what: "For every input on a signal, the highest level anything on that signal can put on it — a push-pull output at its rail's maximum, a pull-up resistor's rail at its maximum, or the rail the input is tied to — against the input's ceiling at its own rail's minimum (when both follow one rail they are compared at each operating point instead, since a rail is never at its top and its bottom at once). The ceiling is the pin's `max` when written; else VDD + 0.3 V; `tolerant: 5 V` raises it to 5.5 V (a V-tolerant pin is taken to withstand V + 10 %). One finding per signal, written from its worst pair and naming every driver and input that fails. A VDD read at a supply pin is taken within that pin's operating `range`: a rail outside it is reported once, by `voltage/under-range` or `voltage/over-range`.",
         why: "An input driven above its supply conducts through its protection diode into its own rail: the part is back-powered through the signal, latches up or is slowly destroyed. A 5 V output straight into a 3.3 V controller pin is the classic case.",
         example: "railcheck: 1\nparts:\n  pack:   { use: battery/nimh-8cell }\n  fuse:   { use: fuse/blade-1a }\n  buck:   { use: regulator/buck-5v-3a }\n  ranger: { use: sensor/rangefinder-5v }   # echo swings to its rail: up to 5 V + 2 % = 5.1 V\n  mcu:    { use: board/mcu-3v3 }           # rx ceiling: 3.3 V × 0.97 + 0.3 V = 3.5 V\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin]\n  5V:    [buck.vout, ranger.vcc, mcu.vin]\n  GND:   [pack.neg, buck.gnd, ranger.gnd, mcu.gnd]\n  ECHO:  [ranger.echo, mcu.rx]",
         fix: "railcheck: 1\nparts:\n  pack:    { use: battery/nimh-8cell }\n  fuse:    { use: fuse/blade-1a }\n  buck:    { use: regulator/buck-5v-3a }\n  ranger:  { use: sensor/rangefinder-5v }\n  mcu:     { use: board/mcu-3v3 }\n  shifter: { use: shifter/bidir-4ch }   # 5 V side b1, 3.3 V side a1\nnets:\n  BATT+:    [pack.pos, fuse.a]\n  VBAT:     [fuse.b, buck.vin]\n  5V:       [buck.vout, ranger.vcc, mcu.vin, shifter.hv]\n  3V3:      [mcu.3v3, shifter.lv]\n  GND:      [pack.neg, buck.gnd, ranger.gnd, mcu.gnd, shifter.gnd]\n  ECHO:     [ranger.echo, shifter.b1]\n  ECHO_3V3: [shifter.a1, mcu.rx]",
@@ -432,7 +432,20 @@ fn pin_rail<'p>(cx: &'p Context, pin: PinRef, spec: &LogicSpec) -> PinRail<'p> {
             Some(net) => RailId::Node(cx.circuit.node_of_net[net]),
             None => RailId::Pin(supply),
         };
-        let samples = sampled(cx, |point| supply_voltage(cx, point, pin.part, reference));
+        // A supply outside its pin's operating range is reported once, by
+        // `voltage/under-range` or `voltage/over-range`; the levels that follow
+        // it are judged within that range, so the one fix (bring the rail into
+        // range) settles both.
+        let range = match cx.plan.parts[pin.part].pins[reference].role {
+            PinRole::SupplyIn => cx.plan.parts[pin.part].pins[reference].range,
+            _ => None,
+        };
+        let samples = sampled(cx, |point| {
+            supply_voltage(cx, point, pin.part, reference).map(|vdd| match range {
+                Some(range) if v(vdd) > 0.0 => vdd.max(range.min).min(range.max),
+                _ => vdd,
+            })
+        });
         let named = Some(format!("`{}`", cx.pin_name(supply)));
         return match Rail::from_samples(Some(id), samples, named) {
             Some(rail) => PinRail::Known(rail),

@@ -176,14 +176,26 @@ fn supply_entries(cx: &Context) -> Vec<(PinRef, Vec<PartId>)> {
 
 fn check_no_stop(cx: &Context, out: &mut Vec<Finding>) {
     let plan = cx.plan;
-    for (entry, motors) in supply_entries(cx) {
+    // Actuators whose power enters on one rail share one cause: that rail's
+    // path from the battery misses the stop. One finding per rail.
+    let mut rails: Vec<(NetId, Vec<PinRef>, Vec<PartId>)> = Vec::new();
+    for (entry, actuators) in supply_entries(cx) {
         let Some(net) = plan.parts[entry.part].pins[entry.pin].net else {
             continue;
         };
+        match rails.iter_mut().find(|(n, _, _)| *n == net) {
+            Some((_, entries, all)) => {
+                entries.push(entry);
+                all.extend(actuators);
+            }
+            None => rails.push((net, vec![entry], actuators)),
+        }
+    }
+    for (net, entries, actuators) in rails {
         let Some(battery) = unstopped_battery(cx, net, &mut Vec::new()) else {
             continue;
         };
-        let names: Vec<String> = motors
+        let names: Vec<String> = actuators
             .iter()
             .map(|&m| format!("`{}`", cx.part_name(m)))
             .collect();
@@ -192,35 +204,59 @@ fn check_no_stop(cx: &Context, out: &mut Vec<Finding>) {
             Class::Servo => "servo",
             _ => "actuator",
         };
-        let (who, verb, them) = match names.as_slice() {
-            [one] => (format!("{} {one}", noun(motors[0])), "takes", "it"),
-            _ => (format!("motors {}", names.join(" and ")), "take", "them"),
+        let first_noun = noun(actuators[0]);
+        let plural = if actuators.iter().all(|&a| noun(a) == first_noun) {
+            format!("{first_noun}s")
+        } else {
+            "actuators".to_string()
         };
-        let through = if motors.contains(&entry.part) {
+        let (who, verb, them) = match names.as_slice() {
+            [one] => (format!("{} {one}", noun(actuators[0])), "takes", "it"),
+            [init @ .., last] => (
+                format!("{plural} {} and {last}", init.join(", ")),
+                "take",
+                "them",
+            ),
+            [] => continue,
+        };
+        let through: Vec<String> = entries
+            .iter()
+            .filter(|e| !actuators.contains(&e.part))
+            .map(|&e| format!("`{}`", cx.pin_name(e)))
+            .collect();
+        let through = if through.is_empty() {
             String::new()
         } else {
-            format!(" (through `{}`)", cx.pin_name(entry))
+            format!(" (through {})", through.join(" and "))
         };
         let mut finding = Finding::new(
             &NO_STOP,
-            cx.pin_span(entry),
+            cx.pin_span(entries[0]),
             format!(
                 "{who}{through} {verb} power from `{}` with no stop switch on the way: in an emergency nothing cuts {them} off short of unplugging the battery",
                 cx.part_name(battery)
             ),
         )
-        .help(if motors.iter().all(|&m| matches!(plan.parts[m].class, Class::Motor(_))) {
+        .help(if actuators.iter().all(|&m| matches!(plan.parts[m].class, Class::Motor(_))) {
             "put a latching stop switch (`stop: true`) in the motors' supply, between the battery's fuse and the driver, rated for the motors' stall current"
-        } else {
+        } else if actuators.len() == 1 {
             "put a latching stop switch (`stop: true`) in its supply, between the battery's fuse and the actuator (or its regulator), rated for its stall current"
+        } else {
+            "put a latching stop switch (`stop: true`) in their supply, between the battery's fuse and the actuators (or their regulator), rated for their stall current"
         })
         .part(cx.part_name(battery))
         .net(cx.net_name(net));
-        for &m in &motors {
+        for &m in &actuators {
             finding = finding.part(cx.part_name(m));
         }
-        if !motors.contains(&entry.part) {
-            finding = finding.part(cx.part_name(entry.part));
+        for (i, &entry) in entries.iter().enumerate() {
+            if !actuators.contains(&entry.part) {
+                finding = finding.part(cx.part_name(entry.part));
+            }
+            if i > 0 {
+                finding =
+                    finding.label(cx.pin_span(entry), format!("`{}` too", cx.pin_name(entry)));
+            }
         }
         out.push(finding);
     }

@@ -5,9 +5,10 @@ use super::{
     Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label,
     show_voltages_apart, worst_point,
 };
-use crate::analysis::BatteryState;
-use crate::model::{PinRef, PinRole};
+use crate::analysis::{BatteryState, OperatingPoint};
+use crate::model::{NetId, PinRef, PinRole};
 use crate::units::show_voltage;
+use std::collections::HashMap;
 use uom::si::electric_potential::volt;
 use uom::si::f64::ElectricPotential;
 
@@ -70,7 +71,81 @@ fn volts(v: ElectricPotential) -> f64 {
     v.get::<volt>()
 }
 
+/// One supply input past a limit: where, how far, and the limit it passes.
+struct Hit<'p> {
+    pin: PinRef,
+    point: &'p OperatingPoint,
+    voltage: f64,
+    limit: ElectricPotential,
+    severity: Severity,
+}
+
+/// Pins past a limit on the same rail share one cause (the rail), so they
+/// are reported as one finding: hits grouped by rail, in the order found.
+fn by_rail<'p>(cx: &Context, hits: Vec<Hit<'p>>) -> Vec<Vec<Hit<'p>>> {
+    let mut groups: Vec<Vec<Hit<'p>>> = Vec::new();
+    let mut group_of_rail: HashMap<(NetId, Severity), usize> = HashMap::new();
+    for hit in hits {
+        let net = cx.plan.parts[hit.pin.part].pins[hit.pin.pin]
+            .net
+            .unwrap_or(0);
+        match group_of_rail.entry((net, hit.severity)) {
+            std::collections::hash_map::Entry::Occupied(at) => groups[*at.get()].push(hit),
+            std::collections::hash_map::Entry::Vacant(slot) => {
+                slot.insert(groups.len());
+                groups.push(vec![hit]);
+            }
+        }
+    }
+    groups
+}
+
+/// `` the 4.8 V minimum of `a.vin` and `b.vin` `` when the pins share their
+/// limit, else `` the minimum of `a.vin` (4.8 V) and `b.vin` (4.75 V) ``.
+fn limits_of(cx: &Context, hits: &[Hit], what: &str, shown_first: &str) -> String {
+    let same = hits
+        .iter()
+        .all(|h| show_voltage(h.limit) == show_voltage(hits[0].limit));
+    let names: Vec<String> = hits
+        .iter()
+        .enumerate()
+        .map(|(i, h)| {
+            if same {
+                format!("`{}`", cx.pin_name(h.pin))
+            } else {
+                let limit = if i == 0 {
+                    shown_first.to_string()
+                } else {
+                    show_voltage(h.limit)
+                };
+                format!("`{}` ({limit})", cx.pin_name(h.pin))
+            }
+        })
+        .collect();
+    let listed = match names.as_slice() {
+        [one] => one.clone(),
+        [init @ .., last] => format!("{} and {last}", init.join(", ")),
+        [] => String::new(),
+    };
+    if same {
+        format!("the {shown_first} {what} of {listed}")
+    } else {
+        format!("the {what} of {listed}")
+    }
+}
+
+/// Orders a rail's hits worst first (the largest excess over its limit), so
+/// the finding points at, and quotes, the pin that fails by most.
+fn worst_first(hits: &mut [Hit], sign: f64) {
+    hits.sort_by(|a, b| {
+        let excess = |h: &Hit| sign * (h.voltage - volts(h.limit));
+        excess(b).total_cmp(&excess(a))
+    });
+}
+
 fn check_over(cx: &Context, out: &mut Vec<Finding>) {
+    let mut over_max = Vec::new();
+    let mut over_range = Vec::new();
     for pin_ref in supply_inputs(cx) {
         let pin = &cx.plan.parts[pin_ref.part].pins[pin_ref.pin];
         let Some((point, highest)) = worst_point(cx.points(), |p| {
@@ -78,57 +153,91 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
-        let rail = cx.net_name(pin.net.unwrap_or(0)).to_string();
-        let at = mode_label(cx.plan, point.mode, point.battery);
-        let highest_v = ElectricPotential::new::<volt>(highest);
+        let hit = |limit| Hit {
+            pin: pin_ref,
+            point,
+            voltage: highest,
+            limit,
+            severity: Severity::Error,
+        };
         if let Some(max) = pin.max
             && exceeds(highest, volts(max))
         {
-            let (shown, limit) = show_voltages_apart(highest_v, max);
-            out.push(
-                Finding::new(
-                    &OVER_MAX,
-                    cx.pin_span(pin_ref),
-                    format!(
-                        "rail `{rail}` reaches {shown} {at}; `{}` absolute maximum is {limit}",
-                        cx.pin_name(pin_ref),
-                    ),
-                )
-                .at_point(cx.plan, point)
-                .help("feed this part from a lower rail (a regulator), or choose a part rated for the full battery voltage")
-                .part(&cx.plan.parts[pin_ref.part].name)
-                .net(&rail)
-                .value("voltage", highest)
-                .value("max", volts(max)),
-            );
-            continue;
-        }
-        if let Some(range) = pin.range
+            over_max.push(hit(max));
+        } else if let Some(range) = pin.range
             && exceeds(highest, volts(range.max))
         {
-            let (shown, top) = show_voltages_apart(highest_v, range.max);
-            out.push(
-                Finding::new(
-                    &OVER_RANGE,
-                    cx.pin_span(pin_ref),
-                    format!(
-                        "rail `{rail}` reaches {shown} {at}, above the {}–{top} operating range of `{}`",
-                        show_voltage(range.min),
-                        cx.pin_name(pin_ref)
-                    ),
-                )
-                .at_point(cx.plan, point)
-                .help("regulate this rail, or choose a part whose operating range covers the full battery voltage")
-                .part(&cx.plan.parts[pin_ref.part].name)
-                .net(&rail)
-                .value("voltage", highest)
-                .value("range_max", volts(range.max)),
-            );
+            over_range.push(hit(range.max));
         }
+    }
+    for mut hits in by_rail(cx, over_max) {
+        worst_first(&mut hits, 1.0);
+        let first = &hits[0];
+        let rail = cx.net_name(net_of(cx, first.pin)).to_string();
+        let (shown, limit) =
+            show_voltages_apart(ElectricPotential::new::<volt>(first.voltage), first.limit);
+        let mut finding = Finding::new(
+            &OVER_MAX,
+            cx.pin_span(first.pin),
+            format!(
+                "rail `{rail}` reaches {shown} {}, above {}",
+                mode_label(cx.plan, first.point.mode, first.point.battery),
+                limits_of(cx, &hits, "absolute maximum", &limit),
+            ),
+        )
+        .at_point(cx.plan, first.point)
+        .help("feed this part from a lower rail (a regulator), or choose a part rated for the full battery voltage")
+        .net(&rail)
+        .value("voltage", first.voltage)
+        .value("max", volts(first.limit));
+        finding = with_pins(cx, finding, &hits);
+        out.push(finding);
+    }
+    for mut hits in by_rail(cx, over_range) {
+        worst_first(&mut hits, 1.0);
+        let first = &hits[0];
+        let rail = cx.net_name(net_of(cx, first.pin)).to_string();
+        let (shown, top) =
+            show_voltages_apart(ElectricPotential::new::<volt>(first.voltage), first.limit);
+        let mut finding = Finding::new(
+            &OVER_RANGE,
+            cx.pin_span(first.pin),
+            format!(
+                "rail `{rail}` reaches {shown} {}, above {}",
+                mode_label(cx.plan, first.point.mode, first.point.battery),
+                limits_of(cx, &hits, "operating maximum", &top),
+            ),
+        )
+        .at_point(cx.plan, first.point)
+        .help("regulate this rail, or choose a part whose operating range covers the full battery voltage")
+        .net(&rail)
+        .value("voltage", first.voltage)
+        .value("range_max", volts(first.limit));
+        finding = with_pins(cx, finding, &hits);
+        out.push(finding);
     }
 }
 
+fn net_of(cx: &Context, pin: PinRef) -> NetId {
+    cx.plan.parts[pin.part].pins[pin.pin].net.unwrap_or(0)
+}
+
+/// Names every part of a rail's hits and marks each further pin in the plan.
+fn with_pins(cx: &Context, mut finding: Finding, hits: &[Hit]) -> Finding {
+    for (i, hit) in hits.iter().enumerate() {
+        finding = finding.part(&cx.plan.parts[hit.pin.part].name);
+        if i > 0 {
+            finding = finding.label(
+                cx.pin_span(hit.pin),
+                format!("`{}` too", cx.pin_name(hit.pin)),
+            );
+        }
+    }
+    finding
+}
+
 fn check_under(cx: &Context, out: &mut Vec<Finding>) {
+    let mut hits = Vec::new();
     for pin_ref in supply_inputs(cx) {
         let pin = &cx.plan.parts[pin_ref.part].pins[pin_ref.pin];
         let Some(range) = pin.range else { continue };
@@ -150,29 +259,40 @@ fn check_under(cx: &Context, out: &mut Vec<Finding>) {
         let Some((point, negated)) = found else {
             continue;
         };
-        let lowest = -negated;
-        let rail = cx.net_name(pin.net.unwrap_or(0)).to_string();
+        hits.push(Hit {
+            pin: pin_ref,
+            point,
+            voltage: -negated,
+            limit: range.min,
+            severity,
+        });
+    }
+    for mut hits in by_rail(cx, hits) {
+        worst_first(&mut hits, -1.0);
+        let first = &hits[0];
+        let severity = first.severity;
+        let rail = cx.net_name(net_of(cx, first.pin)).to_string();
         let (shown, bottom) =
-            show_voltages_apart(ElectricPotential::new::<volt>(lowest), range.min);
+            show_voltages_apart(ElectricPotential::new::<volt>(first.voltage), first.limit);
         let mut finding = Finding::new(
             &UNDER_RANGE,
-            cx.pin_span(pin_ref),
+            cx.pin_span(first.pin),
             format!(
-                "rail `{rail}` falls to {shown} {}, below the {bottom} minimum of `{}`",
-                mode_label(cx.plan, point.mode, point.battery),
-                cx.pin_name(pin_ref)
+                "rail `{rail}` falls to {shown} {}, below {}",
+                mode_label(cx.plan, first.point.mode, first.point.battery),
+                limits_of(cx, &hits, "minimum", &bottom),
             ),
         )
-        .at_point(cx.plan, point)
+        .at_point(cx.plan, first.point)
         .help(if severity == Severity::Error {
             "reduce the drop (heavier wire, a battery with lower internal resistance, a regulator with less dropout) or feed this part from a rail that stays in range"
         } else {
             "only an empty battery gets here: set the low-voltage cut-off above this point, or accept a brown-out near the end of a run"
         })
-        .part(&cx.plan.parts[pin_ref.part].name)
         .net(&rail)
-        .value("voltage", lowest)
-        .value("range_min", volts(range.min));
+        .value("voltage", first.voltage)
+        .value("range_min", volts(first.limit));
+        finding = with_pins(cx, finding, &hits);
         finding.severity = severity;
         out.push(finding);
     }

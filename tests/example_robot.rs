@@ -1,5 +1,5 @@
 //! The greenhouse picker (`examples/greenhouse-picker.yaml`): a realistic
-//! robot of 42 parts with a mixed 5 V / 3.3 V I²C bus, brief stall modes and
+//! robot of 41 parts with a mixed 5 V / 3.3 V I²C bus, brief stall modes and
 //! six servos. Sound, it gives no finding at all; broken in one way at a
 //! time, it gives exactly one finding, from the rule that owns that mistake.
 //! Each mistake's hand calculation and source is beside it.

@@ -83,3 +83,19 @@ fn two_inputs_above_their_range_on_one_rail_are_one_finding() {
     assert!(found[0].contains("`boost.vin` (11 V)"), "{}", found[0]);
     assert!(found[0].contains("`brain.vin` (12 V)"), "{}", found[0]);
 }
+
+#[test]
+fn a_part_with_no_supply_wired_is_one_finding_that_names_its_driven_input() {
+    // Its only supply open: VDD = 0 V, so the driven input back-powers it
+    // (JEDEC JESD8 ceiling VDD + 0.3 V). One finding, not three.
+    let fixture = "tests/fixtures/ground__offset/passes-receiver-unpowered.yaml";
+    assert_eq!(count(fixture, "power/unfed"), 1);
+    assert_eq!(count(fixture, "logic/unpowered-input"), 0);
+    assert_eq!(count(fixture, "ground/offset"), 0);
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(fixture);
+    let text = std::fs::read_to_string(&path).unwrap();
+    let checked = railcheck::check(fixture, &text, &Library::builtin()).unwrap();
+    let unfed = checked.findings.iter().find(|f| f.rule == "power/unfed").unwrap();
+    let help = unfed.help.as_deref().unwrap_or_default();
+    assert!(help.contains("`valve.in`") && help.contains("clamp"), "{help}");
+}

@@ -66,10 +66,18 @@ fn check_floating(cx: &Context, out: &mut Vec<Finding>) {
                 ),
             },
         };
+        // Logic levels are measured from a part's ground: without one they
+        // cannot be judged, so say that they wait for this fix.
+        let signals = part
+            .pins
+            .iter()
+            .any(|p| p.role.is_logic() && p.net.is_some());
         let mut finding = Finding::new(&FLOATING, span, message)
-            .help(
-                "join this ground to the battery negative, directly or through a connector contact",
-            )
+            .help(if signals {
+                "join this ground to the battery negative, directly or through a connector contact; its logic levels are checked once it has a ground"
+            } else {
+                "join this ground to the battery negative, directly or through a connector contact"
+            })
             .part(&part.name);
         if let Some(net) = ground_pins.first().and_then(|&p| part.pins[p].net) {
             finding = finding.net(cx.net_name(net));
@@ -194,9 +202,15 @@ fn family_levels(family: LogicFamily, vdd: Option<ElectricPotential>) -> Levels 
 /// overridden by explicit levels.
 fn pin_levels(cx: &Context, point: &OperatingPoint, pin: PinRef) -> Option<Levels> {
     let spec = cx.plan.parts[pin.part].pins[pin.pin].logic.as_ref()?;
-    let vdd = spec
-        .reference
-        .and_then(|r| point.pin_voltage[pin.part].get(r).copied().flatten());
+    // The same VDD the logic rules read, an unwired onboard output included;
+    // a reference rail with no voltage leaves the pin unjudged here (the
+    // logic rules report an input driven while its part is unpowered).
+    let vdd = match spec.reference {
+        Some(reference) => Some(super::logic::supply_voltage(
+            cx, point, pin.part, reference,
+        )?),
+        None => None,
+    };
     let base = spec
         .family
         .map(|f| family_levels(f, vdd))

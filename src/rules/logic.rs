@@ -362,7 +362,10 @@ fn powered(cx: &Context, point: &OperatingPoint, part: PartId) -> bool {
 }
 
 /// The voltage a supply pin gives its part's logic, above the part's ground.
-fn supply_voltage(
+/// Read from the pin's own solved voltage, its net's potential, or, for an
+/// onboard output left unwired, the output's regulated band while the part
+/// is powered.
+pub(super) fn supply_voltage(
     cx: &Context,
     point: &OperatingPoint,
     part: PartId,

@@ -13,7 +13,7 @@ mod driver;
 mod fuse;
 mod ground;
 mod logic;
-mod power;
+pub(crate) mod power;
 mod regulator;
 mod safety;
 mod switch;

@@ -4,7 +4,7 @@
 
 use super::{Context, Finding, Rule, RuleDoc, Severity};
 use crate::graph::Stage;
-use crate::model::{PinRole, PortKind};
+use crate::model::{PartId, PinRole, PortKind};
 use petgraph::algo::kosaraju_scc;
 
 pub const SHORT: Rule = Rule {
@@ -141,6 +141,20 @@ pub const UNFED: Rule = Rule {
     check: check_unfed,
 };
 
+/// Whether every supply input of `part` is in no net and no USB cable
+/// powers it: the part is not powered at all.
+pub(crate) fn wholly_unwired(cx: &Context, part_id: PartId) -> bool {
+    let part = &cx.plan.parts[part_id];
+    let mut supply_ins = part.pins_with_role(PinRole::SupplyIn).peekable();
+    let has_supply = supply_ins.peek().is_some();
+    has_supply
+        && supply_ins.all(|(_, pin)| pin.net.is_none())
+        && !cx.plan.links.iter().any(|l| {
+            l.device.0 == part_id
+                && matches!(part.ports[l.device.1].kind, PortKind::UsbDevice { .. })
+        })
+}
+
 fn check_unfed(cx: &Context, out: &mut Vec<Finding>) {
     let plan = cx.plan;
     for (part_id, part) in plan.parts.iter().enumerate() {
@@ -216,10 +230,25 @@ fn check_unfed(cx: &Context, out: &mut Vec<Finding>) {
                         names.join(", ")
                     ),
                 )
-                .help(format!(
-                    "add `{}.{}` to the rail that should power it",
-                    part.name, part.pins[supply_ins[0]].name
-                ))
+                .help({
+                    let fix = format!(
+                        "add `{}.{}` to the rail that should power it",
+                        part.name, part.pins[supply_ins[0]].name
+                    );
+                    // Until then, a signal driven into one of its inputs
+                    // powers it through the input's clamp diode.
+                    let inputs: Vec<String> = part
+                        .pins
+                        .iter()
+                        .filter(|p| p.role.is_input() && p.net.is_some())
+                        .map(|p| format!("`{}.{}`", part.name, p.name))
+                        .collect();
+                    match inputs.as_slice() {
+                        [] => fix,
+                        [one] => format!("{fix}; until then, a signal driven into {one} powers the part through that input's clamp diode"),
+                        _ => format!("{fix}; until then, signals driven into {} power the part through those inputs' clamp diodes", inputs.join(", ")),
+                    }
+                })
                 .part(&part.name),
             );
         }

@@ -95,7 +95,14 @@ fn a_part_with_no_supply_wired_is_one_finding_that_names_its_driven_input() {
     let path = Path::new(env!("CARGO_MANIFEST_DIR")).join(fixture);
     let text = std::fs::read_to_string(&path).unwrap();
     let checked = railcheck::check(fixture, &text, &Library::builtin()).unwrap();
-    let unfed = checked.findings.iter().find(|f| f.rule == "power/unfed").unwrap();
+    let unfed = checked
+        .findings
+        .iter()
+        .find(|f| f.rule == "power/unfed")
+        .unwrap();
     let help = unfed.help.as_deref().unwrap_or_default();
-    assert!(help.contains("`valve.in`") && help.contains("clamp"), "{help}");
+    assert!(
+        help.contains("`valve.in`") && help.contains("clamp"),
+        "{help}"
+    );
 }

@@ -1351,3 +1351,41 @@ fn bare_numbers_get_the_unit_that_makes_them_plausible() {
     let plan = "railcheck: 1\nparts:\n  lamp: { class: load, pins: { vin: { role: supply-in, draw: 120 } } }\nnets: {}\n";
     assert_hint(&single_error(plan), &["120 mA"]);
 }
+
+/// §1: `date` is an ISO 8601 calendar date that exists (Gregorian calendar:
+/// February has 29 days in years divisible by 4, except centuries not
+/// divisible by 400).
+#[test]
+fn the_title_date_is_a_calendar_date() {
+    let with_date = |date: &str| {
+        format!(
+            "railcheck: 1\nname: lab cart\nrevision: B\nauthor: lab crew\ndate: {date}\nparts:\n  pack: {{ use: battery/lipo-3s, with: {{ cutoff: true }} }}\nnets: {{}}\n"
+        )
+    };
+    for good in ["2024-02-29", "2000-02-29", "2026-12-31"] {
+        let checked = railcheck::check(PLAN, &with_date(good), &LIBRARY)
+            .unwrap_or_else(|_| panic!("{good} is a date"));
+        assert_eq!(checked.plan.date.as_deref(), Some(good));
+        assert_eq!(checked.plan.revision.as_deref(), Some("B"));
+        assert_eq!(checked.plan.author.as_deref(), Some("lab crew"));
+    }
+    for bad in [
+        "1900-02-29",
+        "2026-02-30",
+        "2026-13-01",
+        "2026-1-5",
+        "05/12/2026",
+    ] {
+        let reported = input_errors(&with_date(bad));
+        assert_eq!(reported.len(), 1, "{bad}: {reported:?}");
+        assert_eq!(reported[0].line, 5, "{bad}");
+        assert!(reported[0].message.contains("not a calendar date"), "{bad}");
+        assert!(
+            reported[0]
+                .hint
+                .as_deref()
+                .unwrap_or("")
+                .contains("YYYY-MM-DD")
+        );
+    }
+}

@@ -151,6 +151,24 @@ pub const TOP_LEVEL: &[Field] = &[
         "the plan's title, shown on reports and the diagram",
     ),
     field(
+        "revision",
+        Value::Text,
+        "B",
+        "the plan's revision, shown in the diagram's title block and the build notes",
+    ),
+    field(
+        "date",
+        Value::Text,
+        "2026-03-14",
+        "the date of this revision, as a calendar date YYYY-MM-DD (ISO 8601); taken from the plan, never from the clock, so the same plan always gives the same output",
+    ),
+    field(
+        "author",
+        Value::Text,
+        "Greenhouse robotics club",
+        "who drew the plan, shown in the title block",
+    ),
+    field(
         "ambient",
         Qty(Q::Temperature),
         "35 degC",

@@ -56,6 +56,13 @@ pub struct PinRef {
 pub struct Plan {
     /// The plan's title (`name:`), shown on reports and the diagram.
     pub name: Option<String>,
+    /// The plan's revision (`revision:`), for the title block.
+    pub revision: Option<String>,
+    /// The date of this revision (`date:`, YYYY-MM-DD), for the title block;
+    /// never the clock's, so output is the same on every run.
+    pub date: Option<String>,
+    /// Who drew the plan (`author:`), for the title block.
+    pub author: Option<String>,
     /// The air temperature around the electronics (`ambient:`, 25 °C when left
     /// out), for the heat checks.
     pub ambient: ThermodynamicTemperature,

@@ -171,6 +171,25 @@ impl Reader<'_> {
         let name = root
             .get("name")
             .and_then(|n| self.text(n, "the plan's name"));
+        let revision = root
+            .get("revision")
+            .and_then(|n| self.text(n, "the plan's revision"));
+        let author = root
+            .get("author")
+            .and_then(|n| self.text(n, "the plan's author"));
+        let date = root.get("date").and_then(|n| {
+            let text = self.text(n, "the plan's date")?;
+            if is_calendar_date(&text) {
+                Some(text)
+            } else {
+                self.error(
+                    n.span,
+                    format!("`{text}` is not a calendar date"),
+                    Some("write the date as YYYY-MM-DD (ISO 8601), e.g. `2026-03-14`".to_string()),
+                );
+                None
+            }
+        });
         let ambient = match root.get("ambient") {
             Some(n) => self
                 .scalar_quantity(n, plausible_temperature)
@@ -235,6 +254,9 @@ impl Reader<'_> {
 
         Some(Plan {
             name,
+            revision,
+            date,
+            author,
             ambient,
             ambient_given: root.get("ambient").is_some(),
             limits,
@@ -1802,6 +1824,38 @@ impl Reader<'_> {
 }
 
 // ----- helpers -------------------------------------------------------------
+
+/// Whether `text` is an ISO 8601 calendar date `YYYY-MM-DD` that exists
+/// (Gregorian leap years: divisible by 4, except centuries not divisible
+/// by 400).
+fn is_calendar_date(text: &str) -> bool {
+    let bytes = text.as_bytes();
+    let digits = |range: std::ops::Range<usize>| {
+        bytes[range.clone()]
+            .iter()
+            .all(u8::is_ascii_digit)
+            .then(|| {
+                bytes[range]
+                    .iter()
+                    .fold(0u32, |n, d| n * 10 + u32::from(d - b'0'))
+            })
+    };
+    if bytes.len() != 10 || bytes[4] != b'-' || bytes[7] != b'-' {
+        return false;
+    }
+    let (Some(year), Some(month), Some(day)) = (digits(0..4), digits(5..7), digits(8..10)) else {
+        return false;
+    };
+    let leap = year % 4 == 0 && (year % 100 != 0 || year % 400 == 0);
+    let days = match month {
+        1 | 3 | 5 | 7 | 8 | 10 | 12 => 31,
+        4 | 6 | 9 | 11 => 30,
+        2 if leap => 29,
+        2 => 28,
+        _ => return false,
+    };
+    (1..=days).contains(&day)
+}
 
 /// A cable's VBUS powers the pin its device port `feeds` even where the plan
 /// wires that pin to nothing else (format reference §3, ports): such a pin

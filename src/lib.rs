@@ -22,6 +22,7 @@ pub mod starter;
 pub mod syntax;
 pub mod units;
 pub mod wire;
+pub mod wirelist;
 
 use analysis::Analysis;
 use graph::Circuit;

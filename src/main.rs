@@ -103,6 +103,13 @@ enum Command {
         #[arg(short, long)]
         quiet: bool,
     },
+    /// List every wire to cut and connector to crimp: runs in cutting order
+    /// with size, length, currents, fuse and drop; metres of each size to
+    /// buy; connector pinouts.
+    Wires {
+        #[command(flatten)]
+        plan: PlanArgs,
+    },
     /// List the rules, or explain one (`railcheck rules fuse/undersized`).
     Rules {
         /// A rule id.
@@ -145,6 +152,8 @@ enum Format {
     Json,
     /// SARIF 2.1.0 for code-scanning services (`check` and `draw` only).
     Sarif,
+    /// CSV rows for a spreadsheet (`wires` only).
+    Csv,
 }
 
 const EXIT_FINDINGS: u8 = 1;
@@ -174,6 +183,7 @@ fn main() -> ExitCode {
         } => check(&run, &plan, strict, quiet, diagram.as_deref()),
         Command::Draw { plan, output, png } => draw(&run, &plan, output.as_deref(), png.as_deref()),
         Command::Budget { plan, quiet } => budget(&run, &plan, quiet),
+        Command::Wires { plan } => wires(&run, &plan),
         Command::Rules { id } => rules(id.as_deref()),
         Command::Schema => {
             emit(&report::plan_schema_text());
@@ -259,7 +269,7 @@ fn fail_as(args: &PlanArgs, message: &str) -> ExitCode {
             railcheck::rules::RULES,
             message,
         )),
-        Format::Human => {}
+        Format::Human | Format::Csv => {}
     }
     fail(message)
 }
@@ -415,7 +425,7 @@ fn report_input(
         Format::Sarif => {
             report::input_errors_sarif(&failure.sources, railcheck::rules::RULES, &failure.errors)
         }
-        Format::Human => {
+        Format::Human | Format::Csv => {
             report::render_input_errors(&failure.sources, &failure.errors, style(run, stream))
         }
     };
@@ -439,6 +449,7 @@ fn check(
             "`--diagram -` would mix the diagram into the report; use `railcheck draw FILE -o -`",
         );
     }
+    refuse_format(args, "check", &[Format::Human, Format::Json, Format::Sarif]);
     let checked = match load(run, args, Stream::Stdout) {
         Ok(c) => c,
         Err(code) => return code,
@@ -471,7 +482,7 @@ fn check(
             &checked.findings,
             &cautions,
         ),
-        Format::Human => report::render_findings(
+        Format::Human | Format::Csv => report::render_findings(
             &checked.sources,
             checked.plan_source,
             &checked.findings,
@@ -492,6 +503,7 @@ fn check(
 }
 
 fn draw(run: &Run, args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode {
+    refuse_format(args, "draw", &[Format::Human, Format::Json, Format::Sarif]);
     let to_stdout = output.is_some_and(is_stdin);
     if to_stdout && png.is_some_and(is_stdin) {
         return fail_as(
@@ -699,16 +711,59 @@ fn is_same_file(a: &Path, b: &Path) -> bool {
     matches!((a.canonicalize(), b.canonicalize()), (Ok(x), Ok(y)) if x == y)
 }
 
-fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
-    if args.format == Format::Sarif {
-        use clap::CommandFactory;
-        Cli::command()
-            .error(
-                clap::error::ErrorKind::InvalidValue,
-                "`budget` has no SARIF form (SARIF carries findings): use `--format json` or `human`",
-            )
-            .exit();
+/// Ends the run with a usage error when `format` is not one `command` writes.
+fn refuse_format(args: &PlanArgs, command: &str, allowed: &[Format]) {
+    if allowed.contains(&args.format) {
+        return;
     }
+    let name = |f: &Format| match f {
+        Format::Human => "`human`",
+        Format::Json => "`json`",
+        Format::Sarif => "`sarif`",
+        Format::Csv => "`csv`",
+    };
+    let why = match args.format {
+        Format::Sarif => " (SARIF carries findings)",
+        Format::Csv => " (CSV is the wire list's rows)",
+        _ => "",
+    };
+    let choices: Vec<&str> = allowed.iter().map(name).collect();
+    Cli::command()
+        .error(
+            clap::error::ErrorKind::InvalidValue,
+            format!(
+                "`{command}` has no {} form{why}: use `--format` {}",
+                name(&args.format).trim_matches('`').to_uppercase(),
+                choices.join(" or ")
+            ),
+        )
+        .exit();
+}
+
+fn wires(run: &Run, args: &PlanArgs) -> ExitCode {
+    refuse_format(args, "wires", &[Format::Human, Format::Csv, Format::Json]);
+    // CSV on standard output stays clean: problems go to standard error.
+    let stream = if args.format == Format::Csv {
+        Stream::Stderr
+    } else {
+        Stream::Stdout
+    };
+    let checked = match load(run, args, stream) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    let list = railcheck::wirelist::wire_list(&checked);
+    let name = checked.sources.name(checked.plan_source);
+    emit(&match args.format {
+        Format::Json => report::wires_json(name, &list),
+        Format::Csv => report::wires_csv(&list),
+        Format::Human | Format::Sarif => shown(report::wires_table(name, &list)),
+    });
+    ExitCode::SUCCESS
+}
+
+fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
+    refuse_format(args, "budget", &[Format::Human, Format::Json]);
     let checked = match load(run, args, Stream::Stdout) {
         Ok(c) => c,
         Err(code) => return code,
@@ -718,7 +773,7 @@ fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
     emit(&match args.format {
         Format::Human if quiet => shown(report::quiet_budget(name, &budget)),
         Format::Json => report::budget_json(name, &budget),
-        Format::Human | Format::Sarif => shown(report::budget_table(name, &budget)),
+        Format::Human | Format::Sarif | Format::Csv => shown(report::budget_table(name, &budget)),
     });
     // A plan whose operating point could not be solved has no budget.
     if budget.solved {

@@ -1,7 +1,7 @@
 //! Every JSON document railcheck prints is valid against the published JSON
 //! Schema `docs/report.schema.json` (JSON Schema draft 2020-12), checked with
 //! a general-purpose validator: findings of both examples and of every rule
-//! fixture, the budgets of both examples, and input errors of broken plans,
+//! fixture, the budgets and wire lists of the examples, and input errors of broken plans,
 //! including those with no place in a file.
 //!
 //! The published schema lets readers meet keys added later in format
@@ -12,7 +12,11 @@ use assert_cmd::Command;
 use serde_json::{Value, json};
 use std::path::{Path, PathBuf};
 
-const EXAMPLES: [&str; 2] = ["examples/first-draft.yaml", "examples/orchard-rover.yaml"];
+const EXAMPLES: [&str; 3] = [
+    "examples/first-draft.yaml",
+    "examples/orchard-rover.yaml",
+    "examples/greenhouse-picker.yaml",
+];
 
 fn manifest_dir() -> &'static Path {
     Path::new(env!("CARGO_MANIFEST_DIR"))
@@ -142,6 +146,12 @@ fn the_examples_check_and_budget_documents_are_valid() {
         assert_eq!(budget["kind"], "budget");
         assert!(!budget["rails"].as_array().expect("rails").is_empty());
         assert_valid(&strict, &budget, &format!("budget of {example}"));
+
+        let (wires, code) = run(&["wires", "--format", "json", example]);
+        assert_eq!(code, 0, "{example}: the wire list is written");
+        assert_eq!(wires["kind"], "wires");
+        assert!(!wires["runs"].as_array().expect("runs").is_empty());
+        assert_valid(&strict, &wires, &format!("wire list of {example}"));
     }
 }
 

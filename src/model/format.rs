@@ -273,6 +273,12 @@ pub const NET: &[Field] = &[
         "60 degC",
         "the air around this run (a hot enclosure), instead of the plan's `ambient`: sets the copper's resistance and the ampacity correction",
     ),
+    field(
+        "colour",
+        Value::Text,
+        "red",
+        "the insulation colour you chose for this run, listed by `railcheck wires`; railcheck never picks one",
+    ),
 ];
 
 /// Reserved keys inside a mode (every other key names a part).

@@ -715,6 +715,9 @@ pub struct Net {
     pub insulation: Option<ThermodynamicTemperature>,
     /// The air around this run (a hot enclosure), over the plan's `ambient`.
     pub ambient: Option<ThermodynamicTemperature>,
+    /// The insulation colour the builder chose (`colour:`), for the wire
+    /// list; railcheck never picks one.
+    pub colour: Option<String>,
 }
 
 impl Plan {

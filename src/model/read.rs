@@ -1474,8 +1474,8 @@ impl Reader<'_> {
                 continue;
             };
             let net_id = nets.len();
-            let (pin_nodes, wire, length, insulation, ambient) = match &body.kind {
-                NodeKind::Seq(items) => (items.as_slice(), None, None, None, None),
+            let (pin_nodes, wire, length, insulation, ambient, colour) = match &body.kind {
+                NodeKind::Seq(items) => (items.as_slice(), None, None, None, None, None),
                 NodeKind::Map(_) => {
                     let context = format!("net `{name}`");
                     self.check_keys(body, &format::keys(format::NET), &context);
@@ -1506,6 +1506,8 @@ impl Reader<'_> {
                         self.rated(body, "length", units::length, key.span),
                         self.quantity(body, "insulation", plausible_temperature),
                         self.quantity(body, "ambient", plausible_temperature),
+                        body.get("colour")
+                            .and_then(|c| self.text(c, &format!("the colour of {context}"))),
                     )
                 }
                 _ => {
@@ -1574,6 +1576,7 @@ impl Reader<'_> {
                 length,
                 insulation,
                 ambient,
+                colour,
             });
         }
         nets
@@ -1885,6 +1888,7 @@ fn cable_fed_nets(links: &[Link], parts: &mut [Part], nets: &mut Vec<Net>) {
             wire: None,
             length: None,
             insulation: None,
+            colour: None,
             ambient: None,
         });
     }

@@ -22,7 +22,7 @@ use uom::si::time::hour;
 /// hold names the user chose: where the table is wider than the terminal
 /// report, they wrap inside their cells (keeping at least `NAME_CELLS`).
 /// Figures never wrap: a value torn from its unit misleads.
-fn table(header: &[&str], rows: &[Vec<String>], name_columns: usize) -> String {
+pub(super) fn table(header: &[&str], rows: &[Vec<String>], name_columns: usize) -> String {
     const NAME_CELLS: u16 = 16;
     let width = HumanStyle::default().width;
     let mut table = Table::new();

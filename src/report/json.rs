@@ -25,6 +25,7 @@ pub(super) enum Kind {
     Findings,
     InputErrors,
     Budget,
+    Wires,
 }
 
 /// The keys every JSON document starts with.
@@ -59,6 +60,11 @@ impl<'a, Body: Serialize> Envelope<'a, Body> {
 pub(super) struct Rounded(pub f64);
 
 impl Rounded {
+    /// The rounded value, `None` when not finite.
+    pub(super) fn finite(self) -> Option<f64> {
+        self.value()
+    }
+
     fn value(self) -> Option<f64> {
         let value = self.0;
         if !value.is_finite() {

@@ -13,6 +13,7 @@ mod quiet;
 mod reference;
 mod sarif;
 mod schema;
+mod wires;
 
 pub use budget::{budget_json, budget_table};
 pub use catalogue::{rule_explanation, rule_list};
@@ -23,6 +24,7 @@ pub use quiet::{quiet_budget, quiet_findings};
 pub use reference::{describe, fill_generated_blocks, format_tables};
 pub use sarif::{findings_sarif, input_errors_sarif, unplaced_input_error_sarif};
 pub use schema::{plan_schema, plan_schema_text};
+pub use wires::{wires_csv, wires_json, wires_table};
 
 use crate::rules::{Finding, Severity};
 

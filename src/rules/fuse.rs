@@ -247,6 +247,22 @@ fn protected_wires(cx: &Context, start: NetId) -> Vec<WireLimit> {
     wires
 }
 
+/// Per net, the fuses whose opening protects its conductor (a sized wire
+/// below the fuse, or the return of a load it feeds), in part order: what
+/// the wire list names beside each run.
+pub fn protecting_fuses(cx: &Context) -> Vec<Vec<PartId>> {
+    let mut by_net = vec![Vec::new(); cx.plan.nets.len()];
+    for fuse in fuses(cx) {
+        let Some(start) = fuse.downstream else {
+            continue;
+        };
+        for wire in protected_wires(cx, start) {
+            by_net[wire.net].push(fuse.part);
+        }
+    }
+    by_net
+}
+
 /// The ground nets where the loads fed from `supply_nets` return their
 /// current: each supply-in part's ground net, and the ground side of a motor
 /// wired straight across a rail. Grounds that never reach a battery negative

@@ -10,7 +10,7 @@ mod analysis;
 mod battery;
 mod current;
 mod driver;
-mod fuse;
+pub(crate) mod fuse;
 mod ground;
 mod logic;
 pub(crate) mod power;

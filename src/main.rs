@@ -110,6 +110,28 @@ enum Command {
         #[command(flatten)]
         plan: PlanArgs,
     },
+    /// Write the build notes: title block, verdict, safety cautions, findings
+    /// with their fixes, the diagram, the power budget, the wire list and the
+    /// connector pinouts, as one self-contained HTML file (or Markdown with
+    /// the diagram as an SVG file beside it).
+    Notes {
+        /// The plan (YAML netlist); `-` reads it from standard input.
+        file: PathBuf,
+        /// The notes file to write (`notes.html`, or `notes.md` with
+        /// `--format markdown`, which also writes `notes.svg` beside it);
+        /// `-` writes HTML to standard output.
+        #[arg(short = 'o', long = "output", value_name = "OUT")]
+        output: PathBuf,
+        /// Document format.
+        #[arg(long, value_enum, default_value_t = NotesFormat::Html)]
+        format: NotesFormat,
+        /// The paper the HTML notes print on.
+        #[arg(long, value_enum, default_value_t = NotesPaper::A4)]
+        page: NotesPaper,
+        /// A folder of extra part files; its ids shadow built-in ones.
+        #[arg(long, value_name = "DIR")]
+        parts: Option<PathBuf>,
+    },
     /// List the rules, or explain one (`railcheck rules fuse/undersized`).
     Rules {
         /// A rule id.
@@ -156,6 +178,22 @@ enum Format {
     Csv,
 }
 
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum NotesFormat {
+    /// One self-contained HTML file.
+    Html,
+    /// Markdown, with the diagram as an SVG file beside it.
+    Markdown,
+}
+
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum NotesPaper {
+    /// ISO A4.
+    A4,
+    /// US Letter.
+    Letter,
+}
+
 const EXIT_FINDINGS: u8 = 1;
 const EXIT_INPUT: u8 = 2;
 
@@ -184,6 +222,13 @@ fn main() -> ExitCode {
         Command::Draw { plan, output, png } => draw(&run, &plan, output.as_deref(), png.as_deref()),
         Command::Budget { plan, quiet } => budget(&run, &plan, quiet),
         Command::Wires { plan } => wires(&run, &plan),
+        Command::Notes {
+            file,
+            output,
+            format,
+            page,
+            parts,
+        } => notes(&run, file, &output, format, page, parts),
         Command::Rules { id } => rules(id.as_deref()),
         Command::Schema => {
             emit(&report::plan_schema_text());
@@ -760,6 +805,75 @@ fn wires(run: &Run, args: &PlanArgs) -> ExitCode {
         Format::Human | Format::Sarif => shown(report::wires_table(name, &list)),
     });
     ExitCode::SUCCESS
+}
+
+fn notes(
+    run: &Run,
+    file: PathBuf,
+    output: &Path,
+    format: NotesFormat,
+    page: NotesPaper,
+    parts: Option<PathBuf>,
+) -> ExitCode {
+    let args = PlanArgs {
+        file,
+        format: Format::Human,
+        parts,
+    };
+    let to_stdout = is_stdin(output);
+    if to_stdout && format == NotesFormat::Markdown {
+        return fail_as(
+            &args,
+            "Markdown notes come with their diagram as a file beside them: give `-o notes.md`",
+        );
+    }
+    let stream = if to_stdout {
+        Stream::Stderr
+    } else {
+        Stream::Stdout
+    };
+    let checked = match load(run, &args, stream) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    let result = match format {
+        NotesFormat::Html => {
+            let page = match page {
+                NotesPaper::A4 => report::NotesPage::A4,
+                NotesPaper::Letter => report::NotesPage::Letter,
+            };
+            deliver(
+                output,
+                &args.file,
+                report::notes_html(&checked, page).as_bytes(),
+            )
+        }
+        NotesFormat::Markdown => {
+            let svg_path = output.with_extension("svg");
+            if svg_path == output {
+                return fail_as(
+                    &args,
+                    "the Markdown notes and their diagram would share one name: give `-o notes.md`",
+                );
+            }
+            let svg_name = svg_path
+                .file_name()
+                .map(|n| n.to_string_lossy().into_owned())
+                .unwrap_or_default();
+            let svg = railcheck::diagram::draw(&checked);
+            deliver(&svg_path, &args.file, svg.as_bytes()).and_then(|()| {
+                deliver(
+                    output,
+                    &args.file,
+                    report::notes_markdown(&checked, &svg_name).as_bytes(),
+                )
+            })
+        }
+    };
+    match result {
+        Ok(()) => ExitCode::SUCCESS,
+        Err(message) => fail_as(&args, &message),
+    }
 }
 
 fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {

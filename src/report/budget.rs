@@ -94,7 +94,7 @@ fn trim(v: f64) -> String {
     }
 }
 
-fn rail_row(r: &RailBudget) -> Vec<String> {
+pub(super) fn rail_row(r: &RailBudget) -> Vec<String> {
     vec![
         r.nets[0].clone(),
         r.source.clone(),
@@ -115,7 +115,7 @@ fn rail_row(r: &RailBudget) -> Vec<String> {
     ]
 }
 
-fn battery_row(b: &BatteryBudget) -> Vec<String> {
+pub(super) fn battery_row(b: &BatteryBudget) -> Vec<String> {
     vec![
         b.name.clone(),
         b.pack.clone(),

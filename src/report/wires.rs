@@ -20,7 +20,7 @@ fn ends(run: &Run) -> String {
     format!("{} → {}", run.from, run.to.join(", "))
 }
 
-fn run_row(number: usize, run: &Run) -> Vec<String> {
+pub(super) fn run_row(number: usize, run: &Run) -> Vec<String> {
     vec![
         number.to_string(),
         run.net.clone(),
@@ -40,7 +40,7 @@ fn run_row(number: usize, run: &Run) -> Vec<String> {
     ]
 }
 
-fn total_row(total: &SizeTotal) -> Vec<String> {
+pub(super) fn total_row(total: &SizeTotal) -> Vec<String> {
     vec![
         if total.cable {
             format!("{} USB cable", total.wire)
@@ -52,7 +52,7 @@ fn total_row(total: &SizeTotal) -> Vec<String> {
     ]
 }
 
-fn pinout_rows(pinout: &Pinout) -> Vec<Vec<String>> {
+pub(super) fn pinout_rows(pinout: &Pinout) -> Vec<Vec<String>> {
     pinout
         .contacts
         .iter()

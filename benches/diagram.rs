@@ -1,5 +1,6 @@
 //! How long laying out and writing the block diagram takes for a generated
-//! plan of 1,000 parts (the check itself is done once, outside the timing).
+//! plan of 1,000 parts, and the whole build notes beside it (the check
+//! itself is done once, outside the timing).
 
 use criterion::{Criterion, criterion_group, criterion_main};
 use railcheck::model::Library;
@@ -18,6 +19,17 @@ fn draw_generated(c: &mut Criterion) {
     group.sample_size(10);
     group.bench_function("draw 1000 parts", |b| {
         b.iter(|| black_box(railcheck::diagram::draw(black_box(&checked))).len())
+    });
+    // The build notes draw the same diagram and add the budget, the wire
+    // list and the templates: the target is within 2× of `draw` alone.
+    group.bench_function("notes 1000 parts", |b| {
+        b.iter(|| {
+            black_box(railcheck::report::notes_html(
+                black_box(&checked),
+                railcheck::report::NotesPage::A4,
+            ))
+            .len()
+        })
     });
     group.finish();
 }

@@ -6,6 +6,9 @@ use assert_cmd::Command;
 use railcheck::model::Library;
 use railcheck::report::{NotesPage, notes_html, notes_markdown};
 
+#[path = "common/generate.rs"]
+mod generate;
+
 const EXAMPLES: [&str; 3] = [
     "examples/first-draft.yaml",
     "examples/orchard-rover.yaml",
@@ -222,4 +225,24 @@ fn committed_example_notes_are_current() {
         committed == fresh,
         "examples/orchard-rover.notes.html is stale: run `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test notes`"
     );
+}
+
+#[test]
+fn generated_plans_of_10_50_and_200_parts_get_notes_and_a_wire_list() {
+    for parts in [10, 50, 200] {
+        let text = generate::plan(parts);
+        let checked = railcheck::check("generated.yaml", &text, &Library::builtin())
+            .unwrap_or_else(|f| panic!("{parts}: {:?}", f.errors));
+        let list = railcheck::wirelist::wire_list(&checked);
+        // Every net that joins two pins or more is a run to cut, and every
+        // USB link a cable.
+        let nets = checked.plan.nets.iter().filter(|n| n.pins.len() >= 2).count();
+        assert_eq!(list.runs.len(), nets + checked.plan.links.len(), "{parts} parts");
+        let html = notes_html(&checked, NotesPage::A4);
+        for part in &checked.plan.parts {
+            assert!(html.contains(&part.name), "{parts}: {}", part.name);
+        }
+        let md = notes_markdown(&checked, "generated.svg");
+        assert!(md.contains("## Wire list"), "{parts}");
+    }
 }

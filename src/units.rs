@@ -198,6 +198,12 @@ pub fn duration(text: &str) -> Result<Time, UnitError> {
     single_value(text, Kind::Duration).map(Time::new::<uom::si::time::second>)
 }
 
+/// A capacitance: `470 uF`, `1000 µF`, `2.2 mF`, `100 nF`.
+pub fn capacitance(text: &str) -> Result<uom::si::f64::Capacitance, UnitError> {
+    single_value(text, Kind::Capacitance)
+        .map(uom::si::f64::Capacitance::new::<uom::si::capacitance::farad>)
+}
+
 /// A wire size: `18 AWG`, `4/0 AWG` (also `0000 AWG`), `0.75 mm2`, `0.75 mm²`.
 ///
 /// ```
@@ -372,11 +378,13 @@ pub enum Quantity {
     DischargeRate,
     /// How long something lasts: `2 s`, `500 ms`, `1 min`.
     Duration,
+    /// A capacitance `470 uF`.
+    Capacitance,
 }
 
 impl Quantity {
     /// Every kind, in the order the format reference lists them.
-    pub const ALL: [Quantity; 13] = [
+    pub const ALL: [Quantity; 14] = [
         Quantity::Voltage,
         Quantity::VoltageBand,
         Quantity::Current,
@@ -390,6 +398,7 @@ impl Quantity {
         Quantity::Share,
         Quantity::DischargeRate,
         Quantity::Duration,
+        Quantity::Capacitance,
     ];
 
     /// What the format reference calls it.
@@ -408,6 +417,7 @@ impl Quantity {
             Quantity::Share => "share",
             Quantity::DischargeRate => "discharge rate",
             Quantity::Duration => "duration",
+            Quantity::Capacitance => "capacitance",
         }
     }
 
@@ -427,6 +437,7 @@ impl Quantity {
             Quantity::Share => share(text).map(drop),
             Quantity::DischargeRate => discharge_rate(text).map(drop),
             Quantity::Duration => duration(text).map(drop),
+            Quantity::Capacitance => capacitance(text).map(drop),
         }
     }
 
@@ -443,6 +454,7 @@ impl Quantity {
             Quantity::ThermalResistance => of(Kind::ThermalResistance),
             Quantity::Length => of(Kind::Length),
             Quantity::Duration => of(Kind::Duration),
+            Quantity::Capacitance => of(Kind::Capacitance),
             Quantity::WireSize => WIRE_UNITS.to_vec(),
             Quantity::Share => vec!["%"],
             Quantity::DischargeRate => {
@@ -541,9 +553,10 @@ enum Kind {
     ThermalResistance,
     Length,
     Duration,
+    Capacitance,
 }
 
-const ALL_KINDS: [Kind; 9] = [
+const ALL_KINDS: [Kind; 10] = [
     Kind::Voltage,
     Kind::Current,
     Kind::Charge,
@@ -553,6 +566,7 @@ const ALL_KINDS: [Kind; 9] = [
     Kind::ThermalResistance,
     Kind::Length,
     Kind::Duration,
+    Kind::Capacitance,
 ];
 
 /// One accepted spelling of a unit. In the kind's base unit (V, A, C, W, Ω, K, K/W, m) a number
@@ -672,6 +686,15 @@ const DURATION_UNITS: &[Spelling] = &[
     scaled("min", 60.0, 1.0),
 ];
 
+const CAPACITANCE_UNITS: &[Spelling] = &[
+    scaled("F", 1.0, 1.0),
+    scaled("mF", 1.0, 1e3),
+    scaled("uF", 1.0, 1e6),
+    scaled("\u{b5}F", 1.0, 1e6),
+    scaled("\u{3bc}F", 1.0, 1e6),
+    scaled("nF", 1.0, 1e9),
+];
+
 const WIRE_UNITS: [&str; 3] = ["AWG", "mm2", "mm\u{b2}"];
 
 /// The thickest gauge: ASTM B258 runs from No. 0000 (4/0).
@@ -693,6 +716,7 @@ impl Kind {
             Kind::ThermalResistance => THERMAL_RESISTANCE_UNITS,
             Kind::Length => LENGTH_UNITS,
             Kind::Duration => DURATION_UNITS,
+            Kind::Capacitance => CAPACITANCE_UNITS,
         }
     }
 
@@ -707,6 +731,7 @@ impl Kind {
             Kind::ThermalResistance => "thermal resistance",
             Kind::Length => "length",
             Kind::Duration => "duration",
+            Kind::Capacitance => "capacitance",
         }
     }
 
@@ -721,6 +746,7 @@ impl Kind {
             Kind::ThermalResistance => "a thermal resistance",
             Kind::Length => "a length",
             Kind::Duration => "a duration",
+            Kind::Capacitance => "a capacitance",
         }
     }
 
@@ -736,6 +762,7 @@ impl Kind {
             Kind::ThermalResistance => "degC/W",
             Kind::Length => "m",
             Kind::Duration => "s",
+            Kind::Capacitance => "uF",
         }
     }
 
@@ -753,6 +780,7 @@ impl Kind {
             Kind::ThermalResistance => "`degC/W`, `\u{b0}C/W` or `K/W`",
             Kind::Length => "`m`, `cm`, `mm`, `in` or `ft`",
             Kind::Duration => "`s`, `ms` or `min`",
+            Kind::Capacitance => "`F`, `mF`, `uF`, `\u{b5}F` or `nF`",
         }
     }
 

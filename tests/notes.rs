@@ -236,8 +236,17 @@ fn generated_plans_of_10_50_and_200_parts_get_notes_and_a_wire_list() {
         let list = railcheck::wirelist::wire_list(&checked);
         // Every net that joins two pins or more is a run to cut, and every
         // USB link a cable.
-        let nets = checked.plan.nets.iter().filter(|n| n.pins.len() >= 2).count();
-        assert_eq!(list.runs.len(), nets + checked.plan.links.len(), "{parts} parts");
+        let nets = checked
+            .plan
+            .nets
+            .iter()
+            .filter(|n| n.pins.len() >= 2)
+            .count();
+        assert_eq!(
+            list.runs.len(),
+            nets + checked.plan.links.len(),
+            "{parts} parts"
+        );
         let html = notes_html(&checked, NotesPage::A4);
         for part in &checked.plan.parts {
             assert!(html.contains(&part.name), "{parts}: {}", part.name);

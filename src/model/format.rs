@@ -274,6 +274,13 @@ pub const NET: &[Field] = &[
         "the air around this run (a hot enclosure), instead of the plan's `ambient`: sets the copper's resistance and the ampacity correction",
     ),
     field(
+        "sheathed",
+        Value::Flag,
+        "true",
+        "the run is in a sheath or enclosure all the way, which lets the first fuse sit farther from the battery",
+    )
+    .or_else("false"),
+    field(
         "colour",
         Value::Text,
         "red",
@@ -656,6 +663,13 @@ const RATING_VOLTAGE: Field = field(
     "its DC voltage rating: the highest voltage it may interrupt",
 );
 
+const INPUT_CAPACITANCE: Field = field(
+    "capacitance",
+    Qty(Q::Capacitance),
+    "470 uF",
+    "the capacitance across its supply input (its bulk capacitors), which a closing switch charges",
+);
+
 const SURGE: Field = field(
     "surge",
     Qty(Q::Current),
@@ -697,6 +711,7 @@ pub const CLASSES: &[ClassSpec] = &[
             field("cutoff", Value::Flag, "true", "a low-voltage cutoff or protection board is fitted").or_else("false"),
             field("voltage", Qty(Q::VoltageBand), "10.5..14.4 V", "the terminal voltage window (empty..full), instead of cells × the chemistry's window"),
             field("usable", Qty(Q::Share), "80 %", "the share of the capacity the runtime may use").or_else("100 %"),
+            field("short_circuit", Qty(Q::Current), "400 A", "the most current the pack (or its protection board) is rated to deliver into a short until a fuse opens"),
         ],
     },
     ClassSpec {
@@ -707,6 +722,7 @@ pub const CLASSES: &[ClassSpec] = &[
             field("rating", Qty(Q::Current), "15 A", "its rated current"),
             RATING_VOLTAGE,
             field("speed", Value::Choice(FUSE_SPEEDS), "slow", "`fast` or `slow` (time-delay) blow").or_else("fast"),
+            field("breaking", Qty(Q::Current), "1000 A", "its breaking capacity: the largest fault current it can interrupt"),
         ],
     },
     ClassSpec {
@@ -743,6 +759,7 @@ pub const CLASSES: &[ClassSpec] = &[
             field("quiescent", Qty(Q::Current), "5 mA", "its own current draw from the input (ground current)").or_else("0 A"),
             field("theta_ja", Qty(Q::ThermalResistance), "50 degC/W", "junction-to-ambient thermal resistance, for the heat check"),
             field("tj_max", Qty(Q::Temperature), "150 degC", "the highest junction temperature allowed").or_else("125 degC"),
+            INPUT_CAPACITANCE,
         ],
     },
     ClassSpec {
@@ -757,6 +774,8 @@ pub const CLASSES: &[ClassSpec] = &[
             field("rds_on", Qty(Q::Resistance), "25 mohm", "each MOSFET switch's on-resistance: a channel loses current × 2 × rds_on"),
             field("quiescent", Qty(Q::Current), "10 mA", "its own current from `vm`").or_else("0 A"),
             field("channels", Value::Channels, "{ 1: [out1a, out1b] }", "each channel's two `bridge-out` pins, numbered from 1"),
+            INPUT_CAPACITANCE,
+            field("clamp", Value::Flag, "true", "its motor supply has a clamp that takes the current a coasting motor sends back (a braking resistor, a TVS, a shunt regulator)").or_else("false"),
         ],
     },
     ClassSpec {

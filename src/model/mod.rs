@@ -19,8 +19,8 @@ pub use read::read_plan;
 use crate::syntax::Span;
 use crate::units::{Band, DischargeRate, WireSize};
 use uom::si::f64::{
-    ElectricCharge, ElectricCurrent, ElectricPotential, ElectricalResistance, Length, Power, Ratio,
-    ThermalResistance, ThermodynamicTemperature, Time,
+    Capacitance, ElectricCharge, ElectricCurrent, ElectricPotential, ElectricalResistance, Length,
+    Power, Ratio, ThermalResistance, ThermodynamicTemperature, Time,
 };
 
 /// An input problem: the plan cannot be read as written.
@@ -517,6 +517,9 @@ pub struct Battery {
     /// Share of the rated capacity the runtime estimate may use (default 100 %:
     /// capacity is rated down to the cut-off voltage).
     pub usable: Ratio,
+    /// The most current the pack (or its protection board) is rated to deliver
+    /// into a short until a fuse opens.
+    pub short_circuit: Option<Rated<ElectricCurrent>>,
 }
 
 impl Battery {
@@ -560,6 +563,8 @@ pub struct Fuse {
     pub voltage: Option<Rated<ElectricPotential>>,
     /// How quickly it blows.
     pub speed: FuseSpeed,
+    /// Its breaking capacity: the largest fault current it can interrupt.
+    pub breaking: Option<Rated<ElectricCurrent>>,
 }
 
 /// A switch's fields (`class: switch`).
@@ -638,6 +643,8 @@ pub struct Regulator {
     pub theta_ja: Option<ThermalResistance>,
     /// The highest junction temperature allowed (125 °C when left out).
     pub tj_max: ThermodynamicTemperature,
+    /// The capacitance across its input, which a closing switch charges.
+    pub capacitance: Option<Rated<Capacitance>>,
 }
 
 /// The voltage an H-bridge loses while it conducts.
@@ -674,6 +681,11 @@ pub struct Driver {
     pub quiescent: ElectricCurrent,
     /// Its H-bridges, in file order.
     pub channels: Vec<Channel>,
+    /// The capacitance across its motor supply, which a closing switch charges.
+    pub capacitance: Option<Rated<Capacitance>>,
+    /// Its motor supply has a clamp (braking resistor, TVS, shunt regulator)
+    /// for the current a coasting motor sends back.
+    pub clamp: bool,
 }
 
 /// A brushed DC motor's fields (`class: motor`).
@@ -718,6 +730,8 @@ pub struct Net {
     /// The insulation colour the builder chose (`colour:`), for the wire
     /// list; railcheck never picks one.
     pub colour: Option<String>,
+    /// The run is in a sheath or enclosure all the way (`sheathed: true`).
+    pub sheathed: bool,
 }
 
 impl Plan {

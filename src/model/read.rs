@@ -1035,6 +1035,7 @@ impl Reader<'_> {
                     cutoff,
                     voltage,
                     usable,
+                    short_circuit: self.rated(body, "short_circuit", units::current, at),
                 })
             }
             "fuse" => Class::Fuse(Fuse {
@@ -1048,6 +1049,7 @@ impl Reader<'_> {
                     )?,
                     None => FuseSpeed::Fast,
                 },
+                breaking: self.rated(body, "breaking", units::current, at),
             }),
             "switch" => Class::Switch(Switch {
                 rating: self.rated(body, "rating", units::current, at),
@@ -1234,6 +1236,7 @@ impl Reader<'_> {
             quiescent,
             theta_ja,
             tj_max,
+            capacitance: self.rated(body, "capacitance", units::capacitance, at),
         };
         for pin in pins.iter_mut() {
             match pin.name.as_str() {
@@ -1388,6 +1391,11 @@ impl Reader<'_> {
                 .quantity(body, "quiescent", units::current)
                 .unwrap_or(ElectricCurrent::new::<ampere>(0.0)),
             channels,
+            capacitance: self.rated(body, "capacitance", units::capacitance, at),
+            clamp: body
+                .get("clamp")
+                .and_then(|n| self.boolean(n))
+                .unwrap_or(false),
         }))
     }
 
@@ -1474,8 +1482,9 @@ impl Reader<'_> {
                 continue;
             };
             let net_id = nets.len();
-            let (pin_nodes, wire, length, insulation, ambient, colour) = match &body.kind {
-                NodeKind::Seq(items) => (items.as_slice(), None, None, None, None, None),
+            let (pin_nodes, wire, length, insulation, ambient, colour, sheathed) = match &body.kind
+            {
+                NodeKind::Seq(items) => (items.as_slice(), None, None, None, None, None, false),
                 NodeKind::Map(_) => {
                     let context = format!("net `{name}`");
                     self.check_keys(body, &format::keys(format::NET), &context);
@@ -1508,6 +1517,9 @@ impl Reader<'_> {
                         self.quantity(body, "ambient", plausible_temperature),
                         body.get("colour")
                             .and_then(|c| self.text(c, &format!("the colour of {context}"))),
+                        body.get("sheathed")
+                            .and_then(|n| self.boolean(n))
+                            .unwrap_or(false),
                     )
                 }
                 _ => {
@@ -1577,6 +1589,7 @@ impl Reader<'_> {
                 insulation,
                 ambient,
                 colour,
+                sheathed,
             });
         }
         nets
@@ -1889,6 +1902,7 @@ fn cable_fed_nets(links: &[Link], parts: &mut [Part], nets: &mut Vec<Net>) {
             length: None,
             insulation: None,
             colour: None,
+            sheathed: false,
             ambient: None,
         });
     }

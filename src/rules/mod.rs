@@ -10,6 +10,7 @@ mod analysis;
 mod battery;
 mod current;
 mod driver;
+mod fault;
 pub(crate) mod fuse;
 mod ground;
 mod logic;
@@ -136,6 +137,10 @@ pub static RULES: &[Rule] = &[
     fuse::VOLTAGE,
     fuse::NUISANCE,
     switch::VOLTAGE,
+    fault::SHORT_CIRCUIT,
+    fault::FUSE_DISTANCE,
+    fault::INRUSH,
+    fault::REGENERATION,
     wire::AMPACITY,
     wire::DROP,
     safety::NO_STOP,

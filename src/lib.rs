@@ -10,6 +10,7 @@
 #![warn(missing_docs)]
 
 pub mod analysis;
+pub mod bringup;
 pub mod budget;
 pub mod diagram;
 pub mod graph;

@@ -132,6 +132,13 @@ enum Command {
         #[arg(long, value_name = "DIR")]
         parts: Option<PathBuf>,
     },
+    /// Write the first power-on procedure: checks before power, the bench
+    /// supply's voltage and current limit, the reading to expect on each rail,
+    /// then motors, the stop and the battery.
+    Bringup {
+        #[command(flatten)]
+        plan: PlanArgs,
+    },
     /// List the rules, or explain one (`railcheck rules fuse/undersized`).
     Rules {
         /// A rule id.
@@ -176,6 +183,8 @@ enum Format {
     Sarif,
     /// CSV rows for a spreadsheet (`wires` only).
     Csv,
+    /// A Markdown checklist (`bringup` only).
+    Markdown,
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -222,6 +231,7 @@ fn main() -> ExitCode {
         Command::Draw { plan, output, png } => draw(&run, &plan, output.as_deref(), png.as_deref()),
         Command::Budget { plan, quiet } => budget(&run, &plan, quiet),
         Command::Wires { plan } => wires(&run, &plan),
+        Command::Bringup { plan } => bringup(&run, &plan),
         Command::Notes {
             file,
             output,
@@ -314,7 +324,7 @@ fn fail_as(args: &PlanArgs, message: &str) -> ExitCode {
             railcheck::rules::RULES,
             message,
         )),
-        Format::Human | Format::Csv => {}
+        Format::Human | Format::Csv | Format::Markdown => {}
     }
     fail(message)
 }
@@ -470,7 +480,7 @@ fn report_input(
         Format::Sarif => {
             report::input_errors_sarif(&failure.sources, railcheck::rules::RULES, &failure.errors)
         }
-        Format::Human | Format::Csv => {
+        Format::Human | Format::Csv | Format::Markdown => {
             report::render_input_errors(&failure.sources, &failure.errors, style(run, stream))
         }
     };
@@ -527,7 +537,7 @@ fn check(
             &checked.findings,
             &cautions,
         ),
-        Format::Human | Format::Csv => report::render_findings(
+        Format::Human | Format::Csv | Format::Markdown => report::render_findings(
             &checked.sources,
             checked.plan_source,
             &checked.findings,
@@ -766,10 +776,12 @@ fn refuse_format(args: &PlanArgs, command: &str, allowed: &[Format]) {
         Format::Json => "`json`",
         Format::Sarif => "`sarif`",
         Format::Csv => "`csv`",
+        Format::Markdown => "`markdown`",
     };
     let why = match args.format {
         Format::Sarif => " (SARIF carries findings)",
         Format::Csv => " (CSV is the wire list's rows)",
+        Format::Markdown => " (Markdown is the bring-up checklist)",
         _ => "",
     };
     let choices: Vec<&str> = allowed.iter().map(name).collect();
@@ -783,6 +795,35 @@ fn refuse_format(args: &PlanArgs, command: &str, allowed: &[Format]) {
             ),
         )
         .exit();
+}
+
+fn bringup(run: &Run, args: &PlanArgs) -> ExitCode {
+    refuse_format(
+        args,
+        "bringup",
+        &[Format::Human, Format::Markdown, Format::Json],
+    );
+    let stream = if args.format == Format::Markdown {
+        Stream::Stderr
+    } else {
+        Stream::Stdout
+    };
+    let checked = match load(run, args, stream) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    let procedure = railcheck::bringup::procedure(&checked);
+    let name = checked.sources.name(checked.plan_source);
+    emit(&match args.format {
+        Format::Json => report::bringup_json(name, &procedure),
+        Format::Markdown => report::bringup_markdown(name, &procedure),
+        _ => shown(report::bringup_text(name, &procedure)),
+    });
+    if procedure.solved {
+        ExitCode::SUCCESS
+    } else {
+        ExitCode::from(EXIT_FINDINGS)
+    }
 }
 
 fn wires(run: &Run, args: &PlanArgs) -> ExitCode {
@@ -802,7 +843,7 @@ fn wires(run: &Run, args: &PlanArgs) -> ExitCode {
     emit(&match args.format {
         Format::Json => report::wires_json(name, &list),
         Format::Csv => report::wires_csv(&list),
-        Format::Human | Format::Sarif => shown(report::wires_table(name, &list)),
+        _ => shown(report::wires_table(name, &list)),
     });
     ExitCode::SUCCESS
 }
@@ -887,7 +928,7 @@ fn budget(run: &Run, args: &PlanArgs, quiet: bool) -> ExitCode {
     emit(&match args.format {
         Format::Human if quiet => shown(report::quiet_budget(name, &budget)),
         Format::Json => report::budget_json(name, &budget),
-        Format::Human | Format::Sarif | Format::Csv => shown(report::budget_table(name, &budget)),
+        _ => shown(report::budget_table(name, &budget)),
     });
     // A plan whose operating point could not be solved has no budget.
     if budget.solved {

@@ -152,6 +152,11 @@ fn the_examples_check_and_budget_documents_are_valid() {
         assert_eq!(wires["kind"], "wires");
         assert!(!wires["runs"].as_array().expect("runs").is_empty());
         assert_valid(&strict, &wires, &format!("wire list of {example}"));
+
+        let (bringup, code) = run(&["bringup", "--format", "json", example]);
+        assert_eq!(code, 0, "{example}: the procedure is written");
+        assert_eq!(bringup["kind"], "bringup");
+        assert_valid(&strict, &bringup, &format!("bring-up of {example}"));
     }
 }
 

@@ -26,6 +26,7 @@ pub(super) enum Kind {
     InputErrors,
     Budget,
     Wires,
+    Bringup,
 }
 
 /// The keys every JSON document starts with.

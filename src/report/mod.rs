@@ -4,6 +4,7 @@
 //! The only module that knows how findings and input errors look on the
 //! outside. It returns strings; the binary decides where they go.
 
+mod bringup;
 mod budget;
 mod catalogue;
 mod human;
@@ -16,6 +17,7 @@ mod sarif;
 mod schema;
 mod wires;
 
+pub use bringup::{bringup_json, bringup_markdown, bringup_text};
 pub use budget::{budget_json, budget_table};
 pub use catalogue::{rule_explanation, rule_list};
 pub use human::{HumanStyle, MAX_SHOWN, WINDOW_CHARS, render_findings, render_input_errors};

@@ -51,6 +51,12 @@ struct FindingItem {
 }
 
 #[derive(Serialize)]
+struct StageItem {
+    title: &'static str,
+    steps: Vec<String>,
+}
+
+#[derive(Serialize)]
 struct PinoutItem {
     name: String,
     library_id: Option<String>,
@@ -85,6 +91,7 @@ struct NotesContext {
     totals: Vec<Vec<String>>,
     pinout_header: &'static [&'static str],
     pinouts: Vec<PinoutItem>,
+    bringup: Vec<StageItem>,
 }
 
 const RAIL_HEADER: &[&str] = &[
@@ -213,6 +220,14 @@ fn context(
                 name: p.connector.clone(),
                 library_id: p.library_id.clone(),
                 rows: super::wires::pinout_rows(p),
+            })
+            .collect(),
+        bringup: crate::bringup::procedure(checked)
+            .stages
+            .into_iter()
+            .map(|stage| StageItem {
+                title: stage.title,
+                steps: stage.steps.into_iter().map(|s| s.text).collect(),
             })
             .collect(),
     }

@@ -17,6 +17,7 @@ use crate::model::{
 };
 use crate::units::{WireSize, show_power};
 use crate::wire;
+use std::sync::Arc;
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
 use uom::si::f64::{ElectricCurrent, ElectricPotential, ElectricalResistance, Power, Time};
@@ -196,24 +197,317 @@ pub struct OperatingPoint {
     /// Per net: potential above the battery negative at the load end; `None`
     /// for a net with no source.
     pub net_potential: Vec<Option<ElectricPotential>>,
-    /// Per part and pin: for supply-in pins, the voltage across the part
-    /// (pin minus the part's ground); for supply-out pins, the voltage it gives.
-    pub pin_voltage: Vec<Vec<Option<ElectricPotential>>>,
-    /// Per part and pin: current into a supply-in pin or out of a supply-out pin.
-    pub pin_current: Vec<Vec<ElectricCurrent>>,
+    /// Per supply pin: for supply-in pins, the voltage across the part
+    /// (pin minus the part's ground); for supply-out pins, the voltage it
+    /// gives. `None` for any other pin.
+    pub pin_voltage: PinTable<Option<ElectricPotential>>,
+    /// Per supply pin: current into a supply-in pin or out of a supply-out
+    /// pin; zero for any other pin.
+    pub pin_current: PinTable<ElectricCurrent>,
     /// Per part: the regulator's point, `None` for any other part.
-    pub regulators: Vec<Option<RegulatorPoint>>,
+    pub regulators: PartTable<RegulatorPoint>,
     /// Per part: the motor's point, `None` for any other part.
-    pub motors: Vec<Option<MotorPoint>>,
-    /// Per driver part: (channel number, current).
-    pub channels: Vec<Vec<(u32, ElectricCurrent)>>,
+    pub motors: PartTable<MotorPoint>,
+    /// Per driver part: (channel number, current); empty for any other part.
+    pub channels: ChannelTable,
     /// Per part: the battery's point, `None` for any other part.
-    pub batteries: Vec<Option<BatteryPoint>>,
+    pub batteries: PartTable<BatteryPoint>,
     /// Per USB link: current over its VBUS conductor.
     pub link_current: Vec<ElectricCurrent>,
     /// How long the point lasts when its mode is a brief peak (`lasts:` of
     /// 5 s or less); `None` for `typical`, `worst` and longer modes.
     pub brief: Option<Time>,
+}
+
+/// Where each part's numbers sit in a point's tables: only supply pins
+/// and the parts of the classes that have a point of their own take room,
+/// so a point grows with the plan's power wiring, not with its logic pins.
+/// One per plan, shared by all its points.
+#[derive(Debug, Default)]
+pub struct Layout {
+    /// Per part: where its pins start in `pin_slot`.
+    pin_start: Vec<usize>,
+    /// Per pin of every part, in order: its slot among the supply pins.
+    pin_slot: Vec<u32>,
+    /// How many supply pins the plan has.
+    supply_pins: usize,
+    /// Per part: its class among those with points, and its slot among the
+    /// parts of that class (each class counts from 0).
+    class_slot: Vec<(Option<Kind>, u32)>,
+    /// Per class with points: its parts in order.
+    regulators: Vec<PartId>,
+    motors: Vec<PartId>,
+    batteries: Vec<PartId>,
+    /// Per driver, in part order: where its channels start and end in a
+    /// point's channel list.
+    channel_ranges: Vec<(usize, usize)>,
+    /// Per driver's channel, in order: its number.
+    channel_numbers: Vec<u32>,
+}
+
+/// No slot: the pin is not a supply pin, or the part has no point.
+const NO_SLOT: u32 = u32::MAX;
+
+/// The classes of part that have a point of their own.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Kind {
+    Regulator,
+    Motor,
+    Battery,
+    Driver,
+}
+
+impl Layout {
+    /// The layout of a plan's points.
+    pub fn new(plan: &Plan) -> Layout {
+        let mut layout = Layout {
+            pin_start: Vec::with_capacity(plan.parts.len()),
+            pin_slot: Vec::new(),
+            supply_pins: 0,
+            class_slot: Vec::with_capacity(plan.parts.len()),
+            regulators: Vec::new(),
+            motors: Vec::new(),
+            batteries: Vec::new(),
+            channel_ranges: Vec::new(),
+            channel_numbers: Vec::new(),
+        };
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            layout.pin_start.push(layout.pin_slot.len());
+            for pin in &part.pins {
+                if matches!(pin.role, PinRole::SupplyIn | PinRole::SupplyOut) {
+                    layout.pin_slot.push(layout.supply_pins as u32);
+                    layout.supply_pins += 1;
+                } else {
+                    layout.pin_slot.push(NO_SLOT);
+                }
+            }
+            let slot = match &part.class {
+                Class::Regulator(_) => (
+                    Some(Kind::Regulator),
+                    push_slot(&mut layout.regulators, part_id),
+                ),
+                Class::Motor(_) => (Some(Kind::Motor), push_slot(&mut layout.motors, part_id)),
+                Class::Battery(_) => (
+                    Some(Kind::Battery),
+                    push_slot(&mut layout.batteries, part_id),
+                ),
+                Class::Driver(driver) => {
+                    let start = layout.channel_numbers.len();
+                    layout
+                        .channel_numbers
+                        .extend(driver.channels.iter().map(|c| c.number));
+                    layout
+                        .channel_ranges
+                        .push((start, layout.channel_numbers.len()));
+                    (Some(Kind::Driver), (layout.channel_ranges.len() - 1) as u32)
+                }
+                _ => (None, NO_SLOT),
+            };
+            layout.class_slot.push(slot);
+        }
+        layout
+    }
+
+    fn pin_slot(&self, part: PartId, pin: usize) -> Option<usize> {
+        let start = *self.pin_start.get(part)?;
+        let end = self
+            .pin_start
+            .get(part + 1)
+            .copied()
+            .unwrap_or(self.pin_slot.len());
+        if start + pin >= end {
+            return None;
+        }
+        match self.pin_slot[start + pin] {
+            NO_SLOT => None,
+            slot => Some(slot as usize),
+        }
+    }
+
+    fn class_slot(&self, part: PartId, kind: Kind) -> Option<usize> {
+        match self.class_slot.get(part).copied() {
+            Some((Some(k), slot)) if k == kind => Some(slot as usize),
+            _ => None,
+        }
+    }
+}
+
+fn push_slot(parts: &mut Vec<PartId>, part: PartId) -> u32 {
+    parts.push(part);
+    (parts.len() - 1) as u32
+}
+
+/// A value per supply pin of a plan, read by part and pin; other pins read
+/// as the blank value.
+#[derive(Clone, Debug)]
+pub struct PinTable<T> {
+    layout: Arc<Layout>,
+    values: Vec<T>,
+    blank: T,
+}
+
+impl<T: Copy> PinTable<T> {
+    fn new(layout: &Arc<Layout>, blank: T) -> PinTable<T> {
+        PinTable {
+            layout: Arc::clone(layout),
+            values: vec![blank; layout.supply_pins],
+            blank,
+        }
+    }
+
+    /// A table of no pins, holding a place while a pass refills the real one.
+    fn empty() -> PinTable<T>
+    where
+        T: Default,
+    {
+        PinTable {
+            layout: Arc::new(Layout::default()),
+            values: Vec::new(),
+            blank: T::default(),
+        }
+    }
+
+    /// Every pin back to the blank value.
+    fn clear(&mut self) {
+        self.values.fill(self.blank);
+    }
+
+    /// The value at a pin of a part (the blank value for a pin that is not
+    /// a supply pin).
+    pub fn get(&self, part: PartId, pin: usize) -> T {
+        self.layout
+            .pin_slot(part, pin)
+            .map_or(self.blank, |slot| self.values[slot])
+    }
+
+    /// Sets the value at a supply pin; other pins hold nothing.
+    fn set(&mut self, part: PartId, pin: usize, value: T) {
+        if let Some(slot) = self.layout.pin_slot(part, pin) {
+            self.values[slot] = value;
+        }
+    }
+}
+
+/// A point per part of one class (regulators, motors or batteries), read by
+/// part: `None` for a part of another class or one not solved.
+#[derive(Clone, Debug)]
+pub struct PartTable<T> {
+    layout: Arc<Layout>,
+    kind: Kind,
+    values: Vec<Option<T>>,
+    none: Option<T>,
+}
+
+impl<T: Copy> PartTable<T> {
+    fn new(layout: &Arc<Layout>, kind: Kind) -> PartTable<T> {
+        let mut table = PartTable {
+            layout: Arc::clone(layout),
+            kind,
+            values: Vec::new(),
+            none: None,
+        };
+        table.values = vec![None; table.parts().len()];
+        table
+    }
+
+    /// Each part of the class with its point, in part order.
+    pub fn iter(&self) -> impl Iterator<Item = (PartId, &Option<T>)> {
+        self.parts().iter().copied().zip(&self.values)
+    }
+
+    fn parts(&self) -> &[PartId] {
+        match self.kind {
+            Kind::Regulator => &self.layout.regulators,
+            Kind::Motor => &self.layout.motors,
+            Kind::Battery => &self.layout.batteries,
+            Kind::Driver => &[],
+        }
+    }
+}
+
+impl<T> std::ops::Index<PartId> for PartTable<T> {
+    type Output = Option<T>;
+    fn index(&self, part: PartId) -> &Option<T> {
+        match self.layout.class_slot(part, self.kind) {
+            Some(slot) => &self.values[slot],
+            None => &self.none,
+        }
+    }
+}
+
+impl<T> std::ops::IndexMut<PartId> for PartTable<T> {
+    /// A part of the table's class; the solver writes no other.
+    fn index_mut(&mut self, part: PartId) -> &mut Option<T> {
+        match self.layout.class_slot(part, self.kind) {
+            Some(slot) => &mut self.values[slot],
+            None => {
+                self.none = None;
+                &mut self.none
+            }
+        }
+    }
+}
+
+/// Per driver part: (channel number, current) for each of its channels;
+/// an empty list for any other part.
+#[derive(Clone, Debug)]
+pub struct ChannelTable {
+    layout: Arc<Layout>,
+    values: Vec<(u32, ElectricCurrent)>,
+}
+
+impl ChannelTable {
+    fn new(layout: &Arc<Layout>) -> ChannelTable {
+        ChannelTable {
+            layout: Arc::clone(layout),
+            values: layout
+                .channel_numbers
+                .iter()
+                .map(|&n| (n, zero_current()))
+                .collect(),
+        }
+    }
+
+    /// A table of no channels, holding a place while a pass refills the
+    /// real one.
+    fn empty() -> ChannelTable {
+        ChannelTable {
+            layout: Arc::new(Layout::default()),
+            values: Vec::new(),
+        }
+    }
+
+    /// Every channel's current back to zero.
+    fn clear(&mut self) {
+        for (_, current) in &mut self.values {
+            *current = zero_current();
+        }
+    }
+
+    fn range(&self, part: PartId) -> std::ops::Range<usize> {
+        match self.layout.class_slot(part, Kind::Driver) {
+            Some(slot) => {
+                let (start, end) = self.layout.channel_ranges[slot];
+                start..end
+            }
+            None => 0..0,
+        }
+    }
+}
+
+impl std::ops::Index<PartId> for ChannelTable {
+    type Output = [(u32, ElectricCurrent)];
+    fn index(&self, part: PartId) -> &[(u32, ElectricCurrent)] {
+        let range = self.range(part);
+        &self.values[range]
+    }
+}
+
+impl std::ops::IndexMut<PartId> for ChannelTable {
+    fn index_mut(&mut self, part: PartId) -> &mut [(u32, ElectricCurrent)] {
+        let range = self.range(part);
+        &mut self.values[range]
+    }
 }
 
 impl OperatingPoint {
@@ -239,7 +533,9 @@ impl Analysis {
     pub fn solve(plan: &Plan, circuit: &Circuit) -> Analysis {
         let mut points = Vec::new();
         let groups = stall_groups(plan, circuit);
+        let lookup = Lookup::build(plan, circuit);
         for mode in ModeId::all(plan) {
+            let states = mode_states(plan, mode);
             let stall_sets: Vec<Option<&[PartId]>> = match (mode, &groups) {
                 (ModeId::WORST, Some(groups)) => {
                     groups.iter().map(|g| Some(g.as_slice())).collect()
@@ -249,7 +545,17 @@ impl Analysis {
             for stalled in stall_sets {
                 for battery in BatteryState::ALL {
                     for corner in [Corner::Low, Corner::High] {
-                        points.push(solve_point(plan, circuit, mode, battery, corner, stalled));
+                        let solver = Solver {
+                            plan,
+                            circuit,
+                            mode,
+                            battery,
+                            corner,
+                            stalled,
+                            states: &states,
+                            lookup: &lookup,
+                        };
+                        points.push(solver.run());
                     }
                 }
             }
@@ -310,13 +616,7 @@ pub fn stall_groups(plan: &Plan, circuit: &Circuit) -> Option<Vec<Vec<PartId>>> 
 
 /// What state a mode puts a part in.
 pub fn part_state(plan: &Plan, mode: ModeId, part: PartId) -> PartState {
-    let is_motor = matches!(plan.parts[part].class, Class::Motor(_));
-    let default = match (mode, is_motor) {
-        (ModeId::WORST, true) => PartState::Motor(MotorState::Stall),
-        (ModeId::WORST, false) => PartState::Load(LoadState::Peak),
-        (_, true) => PartState::Motor(MotorState::Running),
-        (_, false) => PartState::Load(LoadState::Typical),
-    };
+    let default = default_state(mode, matches!(plan.parts[part].class, Class::Motor(_)));
     if mode.0 < 2 {
         return default;
     }
@@ -327,10 +627,79 @@ pub fn part_state(plan: &Plan, mode: ModeId, part: PartId) -> PartState {
         .map_or(default, |(_, s)| *s)
 }
 
-fn load_state(plan: &Plan, mode: ModeId, part: PartId) -> LoadState {
-    match part_state(plan, mode, part) {
-        PartState::Load(s) => s,
-        PartState::Motor(_) => LoadState::Typical,
+/// The state a mode puts each part in, indexed by part: the mode's list
+/// read once (the first entry for a part wins, as in [`part_state`]).
+fn mode_states(plan: &Plan, mode: ModeId) -> Vec<PartState> {
+    let mut states: Vec<PartState> = plan
+        .parts
+        .iter()
+        .map(|part| default_state(mode, matches!(part.class, Class::Motor(_))))
+        .collect();
+    if mode.0 >= 2 {
+        let mut set = vec![false; plan.parts.len()];
+        for &(part, state) in &plan.modes[mode.0 - 2].states {
+            if let Some(seen) = set.get_mut(part)
+                && !*seen
+            {
+                *seen = true;
+                states[part] = state;
+            }
+        }
+    }
+    states
+}
+
+/// What a mode puts a part in when the mode does not name it.
+fn default_state(mode: ModeId, is_motor: bool) -> PartState {
+    match (mode, is_motor) {
+        (ModeId::WORST, true) => PartState::Motor(MotorState::Stall),
+        (ModeId::WORST, false) => PartState::Load(LoadState::Peak),
+        (_, true) => PartState::Motor(MotorState::Running),
+        (_, false) => PartState::Load(LoadState::Typical),
+    }
+}
+
+/// Lookups the solver needs at every point, built once per plan.
+struct Lookup {
+    /// Per net: the resistance of its conductor.
+    resistance: Vec<Option<ElectricalResistance>>,
+    /// Per part: the USB links it is the host of, in file order.
+    host_links: Vec<Vec<usize>>,
+    /// Per part: whether it is the device end of a USB link.
+    is_device: Vec<bool>,
+    /// Per link: the roots of the source-less rails it is the first VBUS
+    /// feed of (their current flows over the cable).
+    vbus_roots: Vec<Vec<NetId>>,
+    /// Where each part's numbers sit in a point.
+    layout: Arc<Layout>,
+}
+
+impl Lookup {
+    fn build(plan: &Plan, circuit: &Circuit) -> Lookup {
+        let mut host_links = vec![Vec::new(); plan.parts.len()];
+        let mut is_device = vec![false; plan.parts.len()];
+        for (link, l) in plan.links.iter().enumerate() {
+            host_links[l.host.0].push(link);
+            is_device[l.device.0] = true;
+        }
+        let mut vbus_roots = vec![Vec::new(); plan.links.len()];
+        for (node_id, links) in circuit.vbus.iter().enumerate() {
+            if let Some(&link) = links.first()
+                && circuit.source[node_id].is_none()
+                && let Some(root) = circuit.root[node_id]
+            {
+                vbus_roots[link].push(root);
+            }
+        }
+        Lookup {
+            resistance: (0..plan.nets.len())
+                .map(|n| net_resistance(plan, n))
+                .collect(),
+            host_links,
+            is_device,
+            vbus_roots,
+            layout: Arc::new(Layout::new(plan)),
+        }
     }
 }
 
@@ -381,32 +750,21 @@ struct Solver<'a> {
     /// In a bounded `worst`: the motors that stall at this point (the
     /// others run).
     stalled: Option<&'a [PartId]>,
-    resistance: Vec<Option<ElectricalResistance>>,
-}
-
-fn solve_point<'a>(
-    plan: &'a Plan,
-    circuit: &'a Circuit,
-    mode: ModeId,
-    battery: BatteryState,
-    corner: Corner,
-    stalled: Option<&'a [PartId]>,
-) -> OperatingPoint {
-    let solver = Solver {
-        plan,
-        circuit,
-        mode,
-        battery,
-        corner,
-        stalled,
-        resistance: (0..plan.nets.len())
-            .map(|n| net_resistance(plan, n))
-            .collect(),
-    };
-    solver.run()
+    /// Per part: the state the mode puts it in.
+    states: &'a [PartState],
+    lookup: &'a Lookup,
 }
 
 impl Solver<'_> {
+    /// The load state of a part at this point (a motor's draws are its
+    /// typical ones).
+    fn load_state(&self, part: PartId) -> LoadState {
+        match self.states[part] {
+            PartState::Load(s) => s,
+            PartState::Motor(_) => LoadState::Typical,
+        }
+    }
+
     fn blank(&self) -> OperatingPoint {
         let plan = self.plan;
         OperatingPoint {
@@ -416,20 +774,12 @@ impl Solver<'_> {
             unsettled: None,
             net_current: vec![zero_current(); plan.nets.len()],
             net_potential: vec![None; plan.nets.len()],
-            pin_voltage: plan
-                .parts
-                .iter()
-                .map(|p| vec![None; p.pins.len()])
-                .collect(),
-            pin_current: plan
-                .parts
-                .iter()
-                .map(|p| vec![zero_current(); p.pins.len()])
-                .collect(),
-            regulators: vec![None; plan.parts.len()],
-            motors: vec![None; plan.parts.len()],
-            channels: vec![Vec::new(); plan.parts.len()],
-            batteries: vec![None; plan.parts.len()],
+            pin_voltage: PinTable::new(&self.lookup.layout, None),
+            pin_current: PinTable::new(&self.lookup.layout, zero_current()),
+            regulators: PartTable::new(&self.lookup.layout, Kind::Regulator),
+            motors: PartTable::new(&self.lookup.layout, Kind::Motor),
+            channels: ChannelTable::new(&self.lookup.layout),
+            batteries: PartTable::new(&self.lookup.layout, Kind::Battery),
             link_current: vec![zero_current(); plan.links.len()],
             brief: match self.mode.0 {
                 0 | 1 => None,
@@ -440,9 +790,12 @@ impl Solver<'_> {
 
     fn run(&self) -> OperatingPoint {
         let mut point = self.blank();
+        // The last pass's numbers, kept in buffers reused from pass to pass.
+        let mut before_potential = Vec::new();
+        let mut before_current = Vec::new();
         for iteration in 1..=MAX_ITERATIONS {
-            let before_potential = point.net_potential.clone();
-            let before_current = point.net_current.clone();
+            before_potential.clone_from(&point.net_potential);
+            before_current.clone_from(&point.net_current);
             self.voltages(&mut point);
             if let Some(mut failure) = self.collapsed(&point) {
                 failure.iterations = iteration;
@@ -492,7 +845,6 @@ impl Solver<'_> {
         let hungriest_converter = point
             .regulators
             .iter()
-            .enumerate()
             .filter_map(|(part, r)| {
                 let r = r.as_ref()?;
                 let Class::Regulator(spec) = &self.plan.parts[part].class else {
@@ -506,9 +858,8 @@ impl Solver<'_> {
         let collapsed_battery = point
             .batteries
             .iter()
-            .enumerate()
             .find_map(|(part, b)| b.filter(|b| b.terminal.get::<volt>() <= 0.0).map(|_| part));
-        let collapsed_converter = point.regulators.iter().enumerate().find_map(|(part, r)| {
+        let collapsed_converter = point.regulators.iter().find_map(|(part, r)| {
             let r = r.as_ref()?;
             let Class::Regulator(spec) = &self.plan.parts[part].class else {
                 return None;
@@ -574,7 +925,8 @@ impl Solver<'_> {
         let circuit = self.circuit;
         // Ground nets first, from the last pass's currents: the battery
         // negative's net is 0 V at its root; return current raises the far end.
-        point.net_potential = vec![None; plan.nets.len()];
+        point.net_potential.clear();
+        point.net_potential.resize(plan.nets.len(), None);
         for &net in &circuit.net_order {
             let node = &circuit.nodes[circuit.node_of_net[net]];
             if !node.is_ground() {
@@ -594,7 +946,7 @@ impl Solver<'_> {
                 Some(pin) => {
                     let ground = self.ground_of(point, pin.part);
                     let across = self.source_voltage(point, pin.part, pin.pin);
-                    point.pin_voltage[pin.part][pin.pin] = across;
+                    point.pin_voltage.set(pin.part, pin.pin, across);
                     across.map(|v| ground + v)
                 }
                 None => circuit.vbus[node_id].first().and_then(|&link| {
@@ -614,10 +966,11 @@ impl Solver<'_> {
             // The voltage across each part fed from this rail.
             for pin in &circuit.nodes[node_id].supply_ins {
                 let ground = self.ground_of(point, pin.part);
-                point.pin_voltage[pin.part][pin.pin] = plan.parts[pin.part].pins[pin.pin]
+                let across = plan.parts[pin.part].pins[pin.pin]
                     .net
                     .and_then(|n| point.net_potential[n])
                     .map(|v| v - ground);
+                point.pin_voltage.set(pin.part, pin.pin, across);
             }
         }
 
@@ -627,15 +980,16 @@ impl Solver<'_> {
             if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
                 continue;
             }
-            let powered = self.fed_supply_in(point, part_id).is_some()
-                || plan.links.iter().any(|l| l.device.0 == part_id);
+            let powered =
+                self.fed_supply_in(point, part_id).is_some() || self.lookup.is_device[part_id];
             for (pin_id, pin) in part.pins.iter().enumerate() {
                 if pin.role == PinRole::SupplyOut && pin.net.is_none() {
-                    point.pin_voltage[part_id][pin_id] = if powered {
+                    let across = if powered {
                         self.source_voltage(point, part_id, pin_id)
                     } else {
                         None
                     };
+                    point.pin_voltage.set(part_id, pin_id, across);
                 }
             }
         }
@@ -660,14 +1014,14 @@ impl Solver<'_> {
         let host = self.plan.links[link].host.0;
         let at_host = self
             .fed_supply_in(point, host)
-            .and_then(|pin| point.pin_voltage[host][pin])?;
+            .and_then(|pin| point.pin_voltage.get(host, pin))?;
         let drop = usb_link_resistance(self.plan, link)
             .map_or(zero_voltage(), |r| point.link_current[link] * r * 2.0);
         Some(at_host - drop)
     }
 
     fn drop(&self, net: NetId, current: ElectricCurrent) -> ElectricPotential {
-        match self.resistance[net] {
+        match self.lookup.resistance[net] {
             Some(r) => current * r,
             None => zero_voltage(),
         }
@@ -684,7 +1038,7 @@ impl Solver<'_> {
         match &part.class {
             Class::Battery(battery) => {
                 let open_circuit = battery_voltage(self.plan, part_id, self.battery)?;
-                let current = point.pin_current[part_id][pin];
+                let current = point.pin_current.get(part_id, pin);
                 let terminal = open_circuit - current * battery.internal_resistance;
                 point.batteries[part_id] = Some(BatteryPoint {
                     open_circuit,
@@ -695,7 +1049,10 @@ impl Solver<'_> {
             }
             Class::Regulator(regulator) => {
                 let vin_pin = part.pin("vin")?;
-                let input = point.pin_voltage[part_id][vin_pin].unwrap_or_else(zero_voltage);
+                let input = point
+                    .pin_voltage
+                    .get(part_id, vin_pin)
+                    .unwrap_or_else(zero_voltage);
                 let target = match self.corner {
                     Corner::Low => regulator.output.min,
                     Corner::High => regulator.output.max,
@@ -745,7 +1102,7 @@ impl Solver<'_> {
             let Class::Motor(motor) = &plan.parts[part_id].class else {
                 continue;
             };
-            let state = match (self.stalled, part_state(plan, self.mode, part_id)) {
+            let state = match (self.stalled, self.states[part_id]) {
                 (Some(group), _) if !group.contains(&part_id) => MotorState::Running,
                 (_, PartState::Motor(s)) => s,
                 (_, PartState::Load(_)) => MotorState::Running,
@@ -756,7 +1113,7 @@ impl Solver<'_> {
                         continue;
                     };
                     let vm = plan.parts[*driver].pin("vm");
-                    let v = vm.and_then(|p| point.pin_voltage[*driver][p]);
+                    let v = vm.and_then(|p| point.pin_voltage.get(*driver, p));
                     (v, Some(spec.drop))
                 }
                 Some(MotorFeed::Direct { supply, ground }) => {
@@ -803,16 +1160,10 @@ impl Solver<'_> {
             });
         }
 
-        let mut channels: Vec<Vec<(u32, ElectricCurrent)>> = vec![Vec::new(); plan.parts.len()];
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            if let Class::Driver(driver) = &part.class {
-                channels[part_id] = driver
-                    .channels
-                    .iter()
-                    .map(|c| (c.number, zero_current()))
-                    .collect();
-            }
-        }
+        // The last pass's tables are refilled rather than allocated anew;
+        // nothing below reads their old values.
+        let mut channels = std::mem::replace(&mut point.channels, ChannelTable::empty());
+        channels.clear();
         for (motor, feed) in circuit.motor_feed.iter().enumerate() {
             if let (Some(MotorFeed::Driver { driver, channel }), Some(m)) =
                 (feed, point.motors[motor])
@@ -824,12 +1175,11 @@ impl Solver<'_> {
 
         // Rails downstream first: what a converter draws depends on what its
         // outputs deliver, so those are known before its input is worked out.
-        let mut pin_current: Vec<Vec<ElectricCurrent>> = plan
-            .parts
-            .iter()
-            .map(|p| vec![zero_current(); p.pins.len()])
-            .collect();
-        let mut net_current = vec![zero_current(); plan.nets.len()];
+        let mut pin_current = std::mem::replace(&mut point.pin_current, PinTable::empty());
+        pin_current.clear();
+        let mut net_current = std::mem::take(&mut point.net_current);
+        net_current.clear();
+        net_current.resize(plan.nets.len(), zero_current());
         // Motors wired straight across a rail load its supply net.
         let mut direct_motor = vec![zero_current(); plan.nets.len()];
         for (motor, feed) in circuit.motor_feed.iter().enumerate() {
@@ -837,23 +1187,20 @@ impl Solver<'_> {
                 direct_motor[*supply] += m.current;
             }
         }
-        let mut done: Vec<Vec<bool>> = plan
-            .parts
-            .iter()
-            .map(|p| vec![false; p.pins.len()])
-            .collect();
+        let mut done = PinTable::new(&self.lookup.layout, false);
         for &node_id in circuit.rail_order.iter().rev() {
             let node = &circuit.nodes[node_id];
             for pin in &node.supply_ins {
-                pin_current[pin.part][pin.pin] =
+                let current =
                     self.supply_in_current(point, *pin, &pin_current, &net_current, &channels);
-                done[pin.part][pin.pin] = true;
+                pin_current.set(pin.part, pin.pin, current);
+                done.set(pin.part, pin.pin, true);
             }
             // Each net carries what hangs on it and below it.
             for &net in circuit.node_nets[node_id].iter().rev() {
                 for pin in &plan.nets[net].pins {
                     if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn {
-                        net_current[net] += pin_current[pin.part][pin.pin];
+                        net_current[net] += pin_current.get(pin.part, pin.pin);
                     }
                 }
                 net_current[net] += direct_motor[net];
@@ -866,14 +1213,14 @@ impl Solver<'_> {
             // it. Others (a conflict, or diode-joined spares) are charged
             // nothing rather than twice.
             if let (Some(source), Some(root)) = (circuit.source[node_id], circuit.root[node_id]) {
-                pin_current[source.part][source.pin] = net_current[root];
+                pin_current.set(source.part, source.pin, net_current[root]);
             }
         }
         // Inputs on no rail carry nothing, but a regulator there still gets
         // its operating point recorded.
         for (part_id, part) in plan.parts.iter().enumerate() {
             for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyIn && !done[part_id][pin_id] {
+                if pin.role == PinRole::SupplyIn && !done.get(part_id, pin_id) {
                     let pin_ref = crate::model::PinRef {
                         part: part_id,
                         pin: pin_id,
@@ -899,8 +1246,8 @@ impl Solver<'_> {
                 let mut returned = zero_current();
                 for (pin_id, pin) in part.pins.iter().enumerate() {
                     match pin.role {
-                        PinRole::SupplyIn => returned += pin_current[part_id][pin_id],
-                        PinRole::SupplyOut => returned -= pin_current[part_id][pin_id],
+                        PinRole::SupplyIn => returned += pin_current.get(part_id, pin_id),
+                        PinRole::SupplyOut => returned -= pin_current.get(part_id, pin_id),
                         _ => {}
                     }
                 }
@@ -937,13 +1284,12 @@ impl Solver<'_> {
         &self,
         point: &OperatingPoint,
         link: usize,
-        pin_current: &[Vec<ElectricCurrent>],
+        pin_current: &PinTable<ElectricCurrent>,
         net_current: &[ElectricCurrent],
     ) -> ElectricCurrent {
         let plan = self.plan;
-        let circuit = self.circuit;
         let (device, port) = plan.links[link].device;
-        let state = load_state(plan, self.mode, device);
+        let state = self.load_state(device);
         let mut current = match &plan.parts[device].ports[port].kind {
             PortKind::UsbDevice { draw: Some(d), .. } => d.in_state(state),
             _ => zero_current(),
@@ -951,17 +1297,12 @@ impl Solver<'_> {
         if self.fed_supply_in(point, device).is_none() {
             for (pin_id, pin) in plan.parts[device].pins.iter().enumerate() {
                 if pin.role == PinRole::SupplyOut {
-                    current += pin_current[device][pin_id];
+                    current += pin_current.get(device, pin_id);
                 }
             }
         }
-        for (node_id, links) in circuit.vbus.iter().enumerate() {
-            if links.first() == Some(&link)
-                && circuit.source[node_id].is_none()
-                && let Some(root) = circuit.root[node_id]
-            {
-                current += net_current[root];
-            }
+        for &root in &self.lookup.vbus_roots[link] {
+            current += net_current[root];
         }
         current
     }
@@ -974,15 +1315,15 @@ impl Solver<'_> {
         &self,
         point: &mut OperatingPoint,
         pin_ref: crate::model::PinRef,
-        pin_current: &[Vec<ElectricCurrent>],
+        pin_current: &PinTable<ElectricCurrent>,
         net_current: &[ElectricCurrent],
-        channels: &[Vec<(u32, ElectricCurrent)>],
+        channels: &ChannelTable,
     ) -> ElectricCurrent {
         let plan = self.plan;
         let (part_id, pin_id) = (pin_ref.part, pin_ref.pin);
         let part = &plan.parts[part_id];
         let pin = &part.pins[pin_id];
-        let state = load_state(plan, self.mode, part_id);
+        let state = self.load_state(part_id);
         // Only a pin on a fed rail draws: an open or unfed input carries
         // nothing (its part may be powered another way).
         let fed = pin.net.is_some_and(|n| point.net_potential[n].is_some());
@@ -995,8 +1336,11 @@ impl Solver<'_> {
                 let Some(vout) = part.pin("vout") else {
                     return current;
                 };
-                let output_current = pin_current[part_id][vout];
-                let input_voltage = point.pin_voltage[part_id][pin_id].unwrap_or_else(zero_voltage);
+                let output_current = pin_current.get(part_id, vout);
+                let input_voltage = point
+                    .pin_voltage
+                    .get(part_id, pin_id)
+                    .unwrap_or_else(zero_voltage);
                 let output_voltage = point.regulators[part_id]
                     .map_or(regulator.output.nominal, |r| r.output_voltage);
                 let input_current = if regulator.topology == Topology::Linear {
@@ -1035,13 +1379,11 @@ impl Solver<'_> {
         if pays {
             for (out_id, out) in part.pins.iter().enumerate() {
                 if out.role == PinRole::SupplyOut {
-                    current += pin_current[part_id][out_id];
+                    current += pin_current.get(part_id, out_id);
                 }
             }
-            for (link, l) in plan.links.iter().enumerate() {
-                if l.host.0 == part_id {
-                    current += self.link_current(point, link, pin_current, net_current);
-                }
+            for &link in &self.lookup.host_links[part_id] {
+                current += self.link_current(point, link, pin_current, net_current);
             }
         }
         current

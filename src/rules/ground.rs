@@ -196,7 +196,7 @@ fn pin_levels(cx: &Context, point: &OperatingPoint, pin: PinRef) -> Option<Level
     let spec = cx.plan.parts[pin.part].pins[pin.pin].logic.as_ref()?;
     let vdd = spec
         .reference
-        .and_then(|r| point.pin_voltage[pin.part].get(r).copied().flatten());
+        .and_then(|r| point.pin_voltage.get(pin.part, r));
     let base = spec
         .family
         .map(|f| family_levels(f, vdd))
@@ -228,10 +228,9 @@ fn ground_at(
     if cx.circuit.ground_net[part].is_some() {
         return own(part);
     }
-    cx.plan
-        .links
+    cx.circuit.part_links[part]
         .iter()
-        .enumerate()
+        .map(|&link_id| (link_id, &cx.plan.links[link_id]))
         .find_map(|(link_id, link)| {
             let drop = usb_link_resistance(cx.plan, link_id)
                 .map_or(ElectricPotential::new::<volt>(0.0), |r| {

@@ -41,7 +41,7 @@ pub const OVERVOLTAGE: Rule = Rule {
         references: "Input ceiling VDD + 0.3 V: JEDEC JESD8 recommended input range (taking it as the absolute maximum of a pin that is not 5 V-tolerant is common practice); 5 V-tolerant meaning up to 5.5 V is common practice (worked example: 5.0 V > 3.3 + 0.3 = 3.6 V).",
     },
     needs_operating_point: true,
-    check: check_overvoltage,
+    check: check_levels,
 };
 
 pub const HIGH_MARGIN: Rule = Rule {
@@ -56,7 +56,8 @@ pub const HIGH_MARGIN: Rule = Rule {
         references: "Family levels: format reference §3 table (JEDEC JESD8C LVCMOS/LVTTL, JESD8-5, JESD8-7, JESD7 HC, 54/74 TTL); NMH = VOH(min) − VIH(min), evaluated at the driver's minimum VDD (JEDEC JESD8C worked example: LVCMOS at 3.0 V into a 5 V HC input, 2.80 V − 3.50 V = −0.70 V).",
     },
     needs_operating_point: true,
-    check: check_high_margin,
+    // Decided with the other level rules in `check_levels`.
+    check: |_, _| {},
 };
 
 pub const LOW_MARGIN: Rule = Rule {
@@ -71,7 +72,8 @@ pub const LOW_MARGIN: Rule = Rule {
         references: "Family levels: format reference §3 table (JEDEC JESD8C, JESD8-5, JESD8-7, JESD7, 54/74 TTL); NML = VIL(max) − VOL(max), the noise-margin definition.",
     },
     needs_operating_point: true,
-    check: check_low_margin,
+    // Decided with the other level rules in `check_levels`.
+    check: |_, _| {},
 };
 
 pub const CONTENTION: Rule = Rule {
@@ -191,7 +193,7 @@ struct Rail<'p> {
     low: AtPoint<'p>,
     high: AtPoint<'p>,
     /// The supply pin or net it is read at; `None` for a nominal VDD.
-    named: Option<String>,
+    named: Option<RailName>,
     /// It is the same in every mode at each battery state and tolerance
     /// corner (a regulated rail): a finding on it names no mode.
     mode_free: bool,
@@ -231,7 +233,7 @@ impl<'p> Rail<'p> {
     fn from_samples(
         id: Option<RailId>,
         samples: Vec<AtPoint<'p>>,
-        named: Option<String>,
+        named: Option<RailName>,
     ) -> Option<Rail<'p>> {
         let first = *samples.first()?;
         // The same at each battery state and corner whatever the mode; the
@@ -284,18 +286,94 @@ impl<'p> Rail<'p> {
             .find(|s| s.point.is_some_and(|p| std::ptr::eq(p, point)))
             .copied()
     }
+}
 
-    fn vdd_text(&self, vdd: ElectricPotential) -> String {
-        match &self.named {
-            Some(pin) => format!("VDD = {} at {pin}", show_voltage(vdd)),
-            None => format!("VDD = {}, the family's nominal", show_voltage(vdd)),
+/// Where a rail is read, named in messages only when a finding fires.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum RailName {
+    /// A supply pin (a `ref`).
+    Pin(PinRef),
+    /// A net (a pull-up's far end, or a rail an input is tied to).
+    Net(NetId),
+}
+
+impl RailName {
+    fn text(self, cx: &Context) -> String {
+        match self {
+            RailName::Pin(pin) => format!("`{}`", cx.pin_name(pin)),
+            RailName::Net(net) => format!("`{}`", cx.net_name(net)),
         }
     }
+}
 
-    fn highest_text(&self) -> String {
-        match &self.named {
-            Some(name) => format!("{name} at its highest"),
-            None => "the family's nominal VDD".to_string(),
+fn vdd_text(cx: &Context, named: Option<RailName>, vdd: ElectricPotential) -> String {
+    match named {
+        Some(pin) => format!("VDD = {} at {}", show_voltage(vdd), pin.text(cx)),
+        None => format!("VDD = {}, the family's nominal", show_voltage(vdd)),
+    }
+}
+
+/// How a level was worked out. Kept as data and written out only for a
+/// finding, so comparisons that pass cost no text.
+#[derive(Clone, Copy, Debug)]
+enum Basis {
+    /// A level the plan writes (`voh`, `vil`, `max`, ...).
+    Written(&'static str),
+    /// A family's fixed level.
+    Family { name: &'static str, scale: Scale },
+    /// A family's level that follows VDD, at `vdd` on the rail `named`.
+    FamilyAt {
+        name: &'static str,
+        scale: Scale,
+        vdd: ElectricPotential,
+        named: Option<RailName>,
+    },
+    /// A rail at its highest.
+    Highest(Option<RailName>),
+    /// An open-drain output pulled up by a resistor to a rail at its lowest.
+    OpenDrain {
+        resistor: PartId,
+        named: Option<RailName>,
+    },
+    /// The ceiling VDD + 0.3 V at `vdd`.
+    AboveRail {
+        vdd: ElectricPotential,
+        named: Option<RailName>,
+    },
+    /// A `tolerant:` rating, taken with its headroom.
+    Tolerant(ElectricPotential),
+}
+
+impl Basis {
+    fn text(self, cx: &Context) -> String {
+        match self {
+            Basis::Written(key) => format!("written `{key}`"),
+            Basis::Family { name, scale } => format!("{name}: {}", scale.formula()),
+            Basis::FamilyAt {
+                name,
+                scale,
+                vdd,
+                named,
+            } => format!(
+                "{name}: {} with {}",
+                scale.formula(),
+                vdd_text(cx, named, vdd)
+            ),
+            Basis::Highest(Some(name)) => format!("{} at its highest", name.text(cx)),
+            Basis::Highest(None) => "the family's nominal VDD".to_string(),
+            Basis::OpenDrain { resistor, named } => format!(
+                "open drain pulled up by `{}` to {} at its lowest",
+                cx.part_name(resistor),
+                named.map(|n| n.text(cx)).unwrap_or_default()
+            ),
+            Basis::AboveRail { vdd, named } => {
+                format!("VDD + 0.3 V with {}", vdd_text(cx, named, vdd))
+            }
+            Basis::Tolerant(t) => format!(
+                "`tolerant: {}`, taken as up to {}",
+                show_voltage(t),
+                show_voltage(t * TOLERANT_HEADROOM)
+            ),
         }
     }
 }
@@ -304,15 +382,15 @@ impl<'p> Rail<'p> {
 #[derive(Clone)]
 struct Level<'p> {
     value: ElectricPotential,
-    basis: String,
+    basis: Basis,
     point: Option<&'p OperatingPoint>,
 }
 
 impl<'p> Level<'p> {
-    fn written(value: ElectricPotential, key: &str) -> Level<'p> {
+    fn written(value: ElectricPotential, key: &'static str) -> Level<'p> {
         Level {
             value,
-            basis: format!("written `{key}`"),
+            basis: Basis::Written(key),
             point: None,
         }
     }
@@ -328,17 +406,18 @@ impl<'p> Level<'p> {
         if !scale.follows_vdd() {
             return Level {
                 value: scale.at(at.voltage),
-                basis: format!("{name}: {}", scale.formula()),
+                basis: Basis::Family { name, scale },
                 point: None,
             };
         }
         Level {
             value: scale.at(at.voltage),
-            basis: format!(
-                "{name}: {} with {}",
-                scale.formula(),
-                rail.vdd_text(at.voltage)
-            ),
+            basis: Basis::FamilyAt {
+                name,
+                scale,
+                vdd: at.voltage,
+                named: rail.named,
+            },
             point: at.point,
         }
     }
@@ -357,8 +436,11 @@ fn powered(cx: &Context, point: &OperatingPoint, part: PartId) -> bool {
         .pins
         .iter()
         .enumerate()
-        .any(|(i, p)| p.role == PinRole::SupplyIn && point.pin_voltage[part][i].is_some());
-    fed_input || cx.plan.links.iter().any(|l| l.device.0 == part)
+        .any(|(i, p)| p.role == PinRole::SupplyIn && point.pin_voltage.get(part, i).is_some());
+    fed_input
+        || cx.circuit.part_links[part]
+            .iter()
+            .any(|&l| cx.plan.links[l].device.0 == part)
 }
 
 /// The voltage a supply pin gives its part's logic, above the part's ground.
@@ -368,7 +450,7 @@ fn supply_voltage(
     part: PartId,
     pin: usize,
 ) -> Option<ElectricPotential> {
-    if let Some(value) = point.pin_voltage[part][pin] {
+    if let Some(value) = point.pin_voltage.get(part, pin) {
         return Some(value);
     }
     let spec = &cx.plan.parts[part].pins[pin];
@@ -433,7 +515,7 @@ fn pin_rail<'p>(cx: &'p Context, pin: PinRef, spec: &LogicSpec) -> PinRail<'p> {
             None => RailId::Pin(supply),
         };
         let samples = sampled(cx, |point| supply_voltage(cx, point, pin.part, reference));
-        let named = Some(format!("`{}`", cx.pin_name(supply)));
+        let named = Some(RailName::Pin(supply));
         return match Rail::from_samples(Some(id), samples, named) {
             Some(rail) => PinRail::Known(rail),
             None => PinRail::Unfed,
@@ -454,7 +536,7 @@ fn net_rail<'p>(cx: &'p Context, net: NetId, receiver: PartId) -> Option<Rail<'p
     Rail::from_samples(
         Some(RailId::Node(cx.circuit.node_of_net[net])),
         samples,
-        Some(format!("`{}`", cx.net_name(net))),
+        Some(RailName::Net(net)),
     )
 }
 
@@ -665,7 +747,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
         // A pull-up or a tie only sets the highest level.
         let highest = side.rail.as_ref().zip(ends).map(|(rail, (_, high))| Level {
             value: high.voltage,
-            basis: rail.highest_text(),
+            basis: Basis::Highest(rail.named),
             point: high.point,
         });
         return Drive {
@@ -690,11 +772,10 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
                 .zip(side.pulled_by)
                 .map(|((rail, (low, _)), resistor)| Level {
                     value: low.voltage,
-                    basis: format!(
-                        "open drain pulled up by `{}` to {} at its lowest",
-                        cx.part_name(resistor),
-                        rail.named.clone().unwrap_or_default()
-                    ),
+                    basis: Basis::OpenDrain {
+                        resistor,
+                        named: rail.named,
+                    },
                     point: low.point,
                 });
         return Drive {
@@ -706,7 +787,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
         };
     }
     let from_family = |written: Option<ElectricPotential>,
-                       key: &str,
+                       key: &'static str,
                        pick: fn(&FamilyLevels) -> Scale,
                        at: fn(RailEnds<'p>) -> AtPoint<'p>| {
         if let Some(value) = written {
@@ -721,7 +802,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
     let highest = match side.rail.as_ref().zip(ends) {
         Some((rail, (_, high))) => Some(Level {
             value: high.voltage,
-            basis: rail.highest_text(),
+            basis: Basis::Highest(rail.named),
             point: high.point,
         }),
         // With no rail known, the written high level is the least it reaches.
@@ -769,7 +850,7 @@ fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
     let family = spec.family.map(|f| (f, f.levels()));
     let rail = side.rail.as_ref().zip(ends);
     let threshold = |written: Option<ElectricPotential>,
-                     key: &str,
+                     key: &'static str,
                      pick: fn(&FamilyLevels) -> Scale,
                      at: fn(RailEnds<'p>) -> AtPoint<'p>| {
         if let Some(value) = written {
@@ -783,16 +864,15 @@ fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
     let vil = threshold(spec.vil, "vil", |l| l.vil, |(low, _)| low);
     let above_rail = rail.map(|(rail, (low, _))| Level {
         value: low.voltage + ceiling_above_vdd(),
-        basis: format!("VDD + 0.3 V with {}", rail.vdd_text(low.voltage)),
+        basis: Basis::AboveRail {
+            vdd: low.voltage,
+            named: rail.named,
+        },
         point: low.point,
     });
     let tolerant = spec.tolerant.map(|t| Level {
         value: t * TOLERANT_HEADROOM,
-        basis: format!(
-            "`tolerant: {}`, taken as up to {}",
-            show_voltage(t),
-            show_voltage(t * TOLERANT_HEADROOM)
-        ),
+        basis: Basis::Tolerant(t),
         point: None,
     });
     let ceiling = match (side.max, tolerant, above_rail) {
@@ -1157,9 +1237,18 @@ fn at_text(cx: &Context, point: Option<&OperatingPoint>, link: &Link) -> String 
     })
 }
 
-fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
-    for group in pairs(cx) {
-        let Some(failed) = failures(&group, |l| {
+/// The three level rules (`logic/overvoltage`, `logic/high-margin`,
+/// `logic/low-margin`) over one set of driver–receiver pairs, worked out once.
+fn check_levels(cx: &Context, out: &mut Vec<Finding>) {
+    let groups = pairs(cx);
+    check_overvoltage(cx, &groups, out);
+    check_high_margin(cx, &groups, out);
+    check_low_margin(cx, &groups, out);
+}
+
+fn check_overvoltage(cx: &Context, groups: &[Vec<Vec<Link>>], out: &mut Vec<Finding>) {
+    for group in groups {
+        let Some(failed) = failures(group, |l| {
             let (high, ceiling) = (l.drive.highest.as_ref()?, l.sense.ceiling.as_ref()?);
             l.verdict
                 .over_ceiling
@@ -1179,15 +1268,15 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
                 "`{receiver}` is wired straight to rail `{}`, which reaches {shown}{}, above its {limit} input ceiling ({})",
                 cx.net_name(net),
                 at_text(cx, point, link),
-                ceiling.basis,
+                ceiling.basis.text(cx),
             ),
             _ => format!(
                 "{} takes `{}` up to {shown} ({}){}, above the {limit} input ceiling of `{receiver}` ({})",
                 link.driver_name(cx),
                 cx.net_name(link.net),
-                high.basis,
+                high.basis.text(cx),
                 at_text(cx, point, link),
-                ceiling.basis,
+                ceiling.basis.text(cx),
             ),
         };
         let margins = link.margins_text();
@@ -1202,9 +1291,9 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
     }
 }
 
-fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
-    for group in pairs(cx) {
-        let Some(failed) = failures(&group, |l| {
+fn check_high_margin(cx: &Context, groups: &[Vec<Vec<Link>>], out: &mut Vec<Finding>) {
+    for group in groups {
+        let Some(failed) = failures(group, |l| {
             l.verdict.high_fails.then_some(-v(l.verdict.high_margin?))
         }) else {
             continue;
@@ -1219,10 +1308,10 @@ fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
             "{} drives `{}` high to as little as {shown} ({}){}, below the {limit} `{}` needs to read a high ({}): {}{}",
             link.driver_name(cx),
             cx.net_name(link.net),
-            voh.basis,
+            voh.basis.text(cx),
             at_text(cx, point, link),
             cx.pin_name(link.sense.pin),
-            vih.basis,
+            vih.basis.text(cx),
             link.margins_text(),
             failed.in_all_text(cx),
         );
@@ -1233,9 +1322,9 @@ fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
     }
 }
 
-fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
-    for group in pairs(cx) {
-        let Some(failed) = failures(&group, |l| {
+fn check_low_margin(cx: &Context, groups: &[Vec<Vec<Link>>], out: &mut Vec<Finding>) {
+    for group in groups {
+        let Some(failed) = failures(group, |l| {
             l.verdict.low_fails.then_some(-v(l.verdict.low_margin?))
         }) else {
             continue;
@@ -1250,9 +1339,9 @@ fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
             "{} drives `{}` low to as much as {shown} ({}), above the {limit} `{}` still reads as a low ({}){}: {}{}",
             link.driver_name(cx),
             cx.net_name(link.net),
-            vol.basis,
+            vol.basis.text(cx),
             cx.pin_name(link.sense.pin),
-            vil.basis,
+            vil.basis.text(cx),
             at_text(cx, point, link),
             link.margins_text(),
             failed.in_all_text(cx),

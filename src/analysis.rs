@@ -12,8 +12,8 @@
 
 use crate::graph::{Circuit, MotorFeed};
 use crate::model::{
-    BridgeDrop, Chemistry, Class, LoadState, MotorState, NetId, PartId, PartState, PinRole, Plan,
-    PortKind, Topology,
+    BridgeDrop, Chemistry, Class, LoadState, MotorState, NetId, PartId, PartState, PinRef, PinRole,
+    Plan, PortKind, Topology,
 };
 use crate::units::{WireSize, show_power};
 use crate::wire;
@@ -231,6 +231,11 @@ pub struct Layout {
     pin_slot: Vec<u32>,
     /// How many supply pins the plan has.
     supply_pins: usize,
+    /// Per part, and one past the last: where its supply pins start among
+    /// the slots (a part's slots are consecutive, in pin order).
+    slot_start: Vec<u32>,
+    /// Per slot: the supply pin it holds.
+    slot_pin: Vec<SlotPin>,
     /// Per part: its class among those with points, and its slot among the
     /// parts of that class (each class counts from 0).
     class_slot: Vec<(Option<Kind>, u32)>,
@@ -248,6 +253,18 @@ pub struct Layout {
 /// No slot: the pin is not a supply pin, or the part has no point.
 const NO_SLOT: u32 = u32::MAX;
 
+/// A supply pin, in the compact form the solver walks each pass.
+#[derive(Clone, Copy, Debug)]
+struct SlotPin {
+    part: PartId,
+    pin: usize,
+    /// A supply-in pin (else supply-out).
+    input: bool,
+    net: Option<NetId>,
+    /// What a supply-in pin draws by itself.
+    draw: Option<crate::model::Draw>,
+}
+
 /// The classes of part that have a point of their own.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 enum Kind {
@@ -264,6 +281,8 @@ impl Layout {
             pin_start: Vec::with_capacity(plan.parts.len()),
             pin_slot: Vec::new(),
             supply_pins: 0,
+            slot_start: Vec::with_capacity(plan.parts.len() + 1),
+            slot_pin: Vec::new(),
             class_slot: Vec::with_capacity(plan.parts.len()),
             regulators: Vec::new(),
             motors: Vec::new(),
@@ -273,10 +292,18 @@ impl Layout {
         };
         for (part_id, part) in plan.parts.iter().enumerate() {
             layout.pin_start.push(layout.pin_slot.len());
-            for pin in &part.pins {
+            layout.slot_start.push(layout.supply_pins as u32);
+            for (pin_id, pin) in part.pins.iter().enumerate() {
                 if matches!(pin.role, PinRole::SupplyIn | PinRole::SupplyOut) {
                     layout.pin_slot.push(layout.supply_pins as u32);
                     layout.supply_pins += 1;
+                    layout.slot_pin.push(SlotPin {
+                        part: part_id,
+                        pin: pin_id,
+                        input: pin.role == PinRole::SupplyIn,
+                        net: pin.net,
+                        draw: pin.draw,
+                    });
                 } else {
                     layout.pin_slot.push(NO_SLOT);
                 }
@@ -305,7 +332,16 @@ impl Layout {
             };
             layout.class_slot.push(slot);
         }
+        layout.slot_start.push(layout.supply_pins as u32);
         layout
+    }
+
+    /// A part's supply pins, in pin order.
+    fn supply_pins_of(&self, part: PartId) -> &[SlotPin] {
+        match (self.slot_start.get(part), self.slot_start.get(part + 1)) {
+            (Some(&start), Some(&end)) => &self.slot_pin[start as usize..end as usize],
+            _ => &[],
+        }
     }
 
     fn pin_slot(&self, part: PartId, pin: usize) -> Option<usize> {
@@ -672,6 +708,22 @@ struct Lookup {
     vbus_roots: Vec<Vec<NetId>>,
     /// Where each part's numbers sit in a point.
     layout: Arc<Layout>,
+    /// Per part: whether it is a battery (its ground is the reference).
+    is_battery: Vec<bool>,
+    /// Ground nets in the order of the net trees (each after its parent).
+    ground_nets: Vec<NetId>,
+    /// Per net, and one past the last: where its supply-in pins start in
+    /// `net_inputs` (in the net's pin order).
+    net_inputs_start: Vec<usize>,
+    net_inputs: Vec<PinRef>,
+    /// Parts other than batteries with a ground net, in part order: their
+    /// return current flows there.
+    returns: Vec<(PartId, NetId)>,
+    /// Onboard supply outputs left unwired on parts other than batteries and
+    /// regulators, in part and pin order.
+    unwired_outputs: Vec<PinRef>,
+    /// Per part: its `vin`, `vout` and `vm` pins, where it has them.
+    named_pins: Vec<[Option<usize>; 3]>,
 }
 
 impl Lookup {
@@ -691,7 +743,60 @@ impl Lookup {
                 vbus_roots[link].push(root);
             }
         }
+        let is_battery: Vec<bool> = plan
+            .parts
+            .iter()
+            .map(|p| matches!(p.class, Class::Battery(_)))
+            .collect();
+        let ground_nets = circuit
+            .net_order
+            .iter()
+            .copied()
+            .filter(|&net| circuit.nodes[circuit.node_of_net[net]].is_ground())
+            .collect();
+        let mut net_inputs_start = Vec::with_capacity(plan.nets.len() + 1);
+        let mut net_inputs = Vec::new();
+        for net in &plan.nets {
+            net_inputs_start.push(net_inputs.len());
+            net_inputs.extend(
+                net.pins
+                    .iter()
+                    .copied()
+                    .filter(|p| plan.parts[p.part].pins[p.pin].role == PinRole::SupplyIn),
+            );
+        }
+        net_inputs_start.push(net_inputs.len());
+        let returns = (0..plan.parts.len())
+            .filter(|&p| !is_battery[p])
+            .filter_map(|p| Some((p, circuit.ground_net[p]?)))
+            .collect();
+        let mut unwired_outputs = Vec::new();
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
+                continue;
+            }
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role == PinRole::SupplyOut && pin.net.is_none() {
+                    unwired_outputs.push(PinRef {
+                        part: part_id,
+                        pin: pin_id,
+                    });
+                }
+            }
+        }
+        let named_pins = plan
+            .parts
+            .iter()
+            .map(|p| [p.pin("vin"), p.pin("vout"), p.pin("vm")])
+            .collect();
         Lookup {
+            is_battery,
+            ground_nets,
+            net_inputs_start,
+            net_inputs,
+            returns,
+            unwired_outputs,
+            named_pins,
             resistance: (0..plan.nets.len())
                 .map(|n| net_resistance(plan, n))
                 .collect(),
@@ -927,11 +1032,7 @@ impl Solver<'_> {
         // negative's net is 0 V at its root; return current raises the far end.
         point.net_potential.clear();
         point.net_potential.resize(plan.nets.len(), None);
-        for &net in &circuit.net_order {
-            let node = &circuit.nodes[circuit.node_of_net[net]];
-            if !node.is_ground() {
-                continue;
-            }
+        for &net in &self.lookup.ground_nets {
             let upstream = match circuit.parent[net] {
                 Some(parent) => point.net_potential[parent.net],
                 None => Some(zero_voltage()),
@@ -966,8 +1067,8 @@ impl Solver<'_> {
             // The voltage across each part fed from this rail.
             for pin in &circuit.nodes[node_id].supply_ins {
                 let ground = self.ground_of(point, pin.part);
-                let across = plan.parts[pin.part].pins[pin.pin]
-                    .net
+                let across = self
+                    .net_of(*pin)
                     .and_then(|n| point.net_potential[n])
                     .map(|v| v - ground);
                 point.pin_voltage.set(pin.part, pin.pin, across);
@@ -976,22 +1077,31 @@ impl Solver<'_> {
 
         // Onboard outputs left unwired still set the levels of their part's
         // logic pins: give them their voltage whenever the part is powered.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
-                continue;
-            }
-            let powered =
-                self.fed_supply_in(point, part_id).is_some() || self.lookup.is_device[part_id];
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyOut && pin.net.is_none() {
-                    let across = if powered {
-                        self.source_voltage(point, part_id, pin_id)
-                    } else {
-                        None
-                    };
-                    point.pin_voltage.set(part_id, pin_id, across);
+        let mut powered_part: Option<(PartId, bool)> = None;
+        for &PinRef { part, pin } in &self.lookup.unwired_outputs {
+            let powered = match powered_part {
+                Some((p, powered)) if p == part => powered,
+                _ => {
+                    let powered =
+                        self.fed_supply_in(point, part).is_some() || self.lookup.is_device[part];
+                    powered_part = Some((part, powered));
+                    powered
                 }
-            }
+            };
+            let across = if powered {
+                self.source_voltage(point, part, pin)
+            } else {
+                None
+            };
+            point.pin_voltage.set(part, pin, across);
+        }
+    }
+
+    /// The net a pin sits on.
+    fn net_of(&self, pin: PinRef) -> Option<NetId> {
+        match self.lookup.layout.pin_slot(pin.part, pin.pin) {
+            Some(slot) => self.lookup.layout.slot_pin[slot].net,
+            None => self.plan.parts[pin.part].pins[pin.pin].net,
         }
     }
 
@@ -999,7 +1109,7 @@ impl Solver<'_> {
     /// reference every potential is measured from; other parts sit at the
     /// load end of their ground net.
     fn ground_of(&self, point: &OperatingPoint, part: PartId) -> ElectricPotential {
-        if matches!(self.plan.parts[part].class, Class::Battery(_)) {
+        if self.lookup.is_battery[part] {
             return zero_voltage();
         }
         self.circuit.ground_net[part]
@@ -1098,7 +1208,8 @@ impl Solver<'_> {
         let circuit = self.circuit;
 
         // Motors first: drivers add them up.
-        for (part_id, feed) in circuit.motor_feed.iter().enumerate() {
+        for &part_id in &self.lookup.layout.motors {
+            let feed = &circuit.motor_feed[part_id];
             let Class::Motor(motor) = &plan.parts[part_id].class else {
                 continue;
             };
@@ -1112,7 +1223,7 @@ impl Solver<'_> {
                     let Class::Driver(spec) = &plan.parts[*driver].class else {
                         continue;
                     };
-                    let vm = plan.parts[*driver].pin("vm");
+                    let vm = self.lookup.named_pins[*driver][2];
                     let v = vm.and_then(|p| point.pin_voltage.get(*driver, p));
                     (v, Some(spec.drop))
                 }
@@ -1164,9 +1275,9 @@ impl Solver<'_> {
         // nothing below reads their old values.
         let mut channels = std::mem::replace(&mut point.channels, ChannelTable::empty());
         channels.clear();
-        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
+        for &motor in &self.lookup.layout.motors {
             if let (Some(MotorFeed::Driver { driver, channel }), Some(m)) =
-                (feed, point.motors[motor])
+                (&circuit.motor_feed[motor], point.motors[motor])
                 && let Some(slot) = channels[*driver].iter_mut().find(|(n, _)| n == channel)
             {
                 slot.1 += m.current;
@@ -1182,8 +1293,10 @@ impl Solver<'_> {
         net_current.resize(plan.nets.len(), zero_current());
         // Motors wired straight across a rail load its supply net.
         let mut direct_motor = vec![zero_current(); plan.nets.len()];
-        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
-            if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) = (feed, point.motors[motor]) {
+        for &motor in &self.lookup.layout.motors {
+            if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) =
+                (&circuit.motor_feed[motor], point.motors[motor])
+            {
                 direct_motor[*supply] += m.current;
             }
         }
@@ -1198,10 +1311,10 @@ impl Solver<'_> {
             }
             // Each net carries what hangs on it and below it.
             for &net in circuit.node_nets[node_id].iter().rev() {
-                for pin in &plan.nets[net].pins {
-                    if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn {
-                        net_current[net] += pin_current.get(pin.part, pin.pin);
-                    }
+                let inputs =
+                    self.lookup.net_inputs_start[net]..self.lookup.net_inputs_start[net + 1];
+                for pin in &self.lookup.net_inputs[inputs] {
+                    net_current[net] += pin_current.get(pin.part, pin.pin);
                 }
                 net_current[net] += direct_motor[net];
                 if let Some(parent) = circuit.parent[net] {
@@ -1218,51 +1331,38 @@ impl Solver<'_> {
         }
         // Inputs on no rail carry nothing, but a regulator there still gets
         // its operating point recorded.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyIn && !done.get(part_id, pin_id) {
-                    let pin_ref = crate::model::PinRef {
-                        part: part_id,
-                        pin: pin_id,
-                    };
-                    let _ = self.supply_in_current(
-                        point,
-                        pin_ref,
-                        &pin_current,
-                        &net_current,
-                        &channels,
-                    );
-                }
+        for (slot, pin) in self.lookup.layout.slot_pin.iter().enumerate() {
+            if pin.input && !done.values[slot] {
+                let pin_ref = PinRef {
+                    part: pin.part,
+                    pin: pin.pin,
+                };
+                let _ =
+                    self.supply_in_current(point, pin_ref, &pin_current, &net_current, &channels);
             }
         }
 
         // Return current: what a part takes in minus what it gives out, on
         // its ground net, summed toward the battery negative.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            if matches!(part.class, Class::Battery(_)) {
-                continue;
-            }
-            if let Some(ground) = circuit.ground_net[part_id] {
-                let mut returned = zero_current();
-                for (pin_id, pin) in part.pins.iter().enumerate() {
-                    match pin.role {
-                        PinRole::SupplyIn => returned += pin_current.get(part_id, pin_id),
-                        PinRole::SupplyOut => returned -= pin_current.get(part_id, pin_id),
-                        _ => {}
-                    }
+        for &(part_id, ground) in &self.lookup.returns {
+            let mut returned = zero_current();
+            for pin in self.lookup.layout.supply_pins_of(part_id) {
+                if pin.input {
+                    returned += pin_current.get(part_id, pin.pin);
+                } else {
+                    returned -= pin_current.get(part_id, pin.pin);
                 }
-                net_current[ground] += returned;
             }
+            net_current[ground] += returned;
         }
-        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
-            if let (Some(MotorFeed::Direct { ground, .. }), Some(m)) = (feed, point.motors[motor]) {
+        for &motor in &self.lookup.layout.motors {
+            if let (Some(MotorFeed::Direct { ground, .. }), Some(m)) =
+                (&circuit.motor_feed[motor], point.motors[motor])
+            {
                 net_current[*ground] += m.current;
             }
         }
-        for &net in circuit.net_order.iter().rev() {
-            if !circuit.nodes[circuit.node_of_net[net]].is_ground() {
-                continue;
-            }
+        for &net in self.lookup.ground_nets.iter().rev() {
             if let Some(parent) = circuit.parent[net] {
                 let below = net_current[net];
                 net_current[parent.net] += below;
@@ -1295,9 +1395,9 @@ impl Solver<'_> {
             _ => zero_current(),
         };
         if self.fed_supply_in(point, device).is_none() {
-            for (pin_id, pin) in plan.parts[device].pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyOut {
-                    current += pin_current.get(device, pin_id);
+            for pin in self.lookup.layout.supply_pins_of(device) {
+                if !pin.input {
+                    current += pin_current.get(device, pin.pin);
                 }
             }
         }
@@ -1320,20 +1420,34 @@ impl Solver<'_> {
         channels: &ChannelTable,
     ) -> ElectricCurrent {
         let plan = self.plan;
+        let layout = &self.lookup.layout;
         let (part_id, pin_id) = (pin_ref.part, pin_ref.pin);
-        let part = &plan.parts[part_id];
-        let pin = &part.pins[pin_id];
+        let (net, draw) = match layout.pin_slot(part_id, pin_id) {
+            Some(slot) => (layout.slot_pin[slot].net, layout.slot_pin[slot].draw),
+            None => {
+                let pin = &plan.parts[part_id].pins[pin_id];
+                (pin.net, pin.draw)
+            }
+        };
         let state = self.load_state(part_id);
         // Only a pin on a fed rail draws: an open or unfed input carries
         // nothing (its part may be powered another way).
-        let fed = pin.net.is_some_and(|n| point.net_potential[n].is_some());
-        let mut current = match pin.draw {
+        let fed = net.is_some_and(|n| point.net_potential[n].is_some());
+        let mut current = match draw {
             Some(d) if fed => d.in_state(state),
             _ => zero_current(),
         };
-        match &part.class {
-            Class::Regulator(regulator) if part.pin("vin") == Some(pin_id) => {
-                let Some(vout) = part.pin("vout") else {
+        let kind = layout.class_slot.get(part_id).and_then(|(kind, _)| *kind);
+        let part = match kind {
+            // Only these classes take the part's own record.
+            Some(Kind::Regulator | Kind::Driver) => Some(&plan.parts[part_id]),
+            _ => None,
+        };
+        match part.map(|p| &p.class) {
+            Some(Class::Regulator(regulator))
+                if self.lookup.named_pins[part_id][0] == Some(pin_id) =>
+            {
+                let Some(vout) = self.lookup.named_pins[part_id][1] else {
                     return current;
                 };
                 let output_current = pin_current.get(part_id, vout);
@@ -1364,7 +1478,7 @@ impl Solver<'_> {
                 entry.output_current = output_current;
                 return input_current;
             }
-            Class::Driver(driver) if part.pin("vm") == Some(pin_id) => {
+            Some(Class::Driver(driver)) if self.lookup.named_pins[part_id][2] == Some(pin_id) => {
                 let motors = channels[part_id]
                     .iter()
                     .fold(zero_current(), |sum, (_, i)| sum + *i);
@@ -1374,12 +1488,12 @@ impl Solver<'_> {
         }
         // Onboard outputs and USB host ports are paid for by the part's own
         // supply, through its first fed input.
-        let pays = !matches!(part.class, Class::Battery(_) | Class::Regulator(_))
+        let pays = !matches!(kind, Some(Kind::Battery | Kind::Regulator))
             && self.fed_supply_in(point, part_id) == Some(pin_id);
         if pays {
-            for (out_id, out) in part.pins.iter().enumerate() {
-                if out.role == PinRole::SupplyOut {
-                    current += pin_current.get(part_id, out_id);
+            for out in layout.supply_pins_of(part_id) {
+                if !out.input {
+                    current += pin_current.get(part_id, out.pin);
                 }
             }
             for &link in &self.lookup.host_links[part_id] {
@@ -1391,15 +1505,12 @@ impl Solver<'_> {
 
     /// The first supply-in pin of a part that sits on a fed rail.
     fn fed_supply_in(&self, point: &OperatingPoint, part: PartId) -> Option<usize> {
-        self.plan.parts[part]
-            .pins
+        self.lookup
+            .layout
+            .supply_pins_of(part)
             .iter()
-            .enumerate()
-            .find(|(_, pin)| {
-                pin.role == PinRole::SupplyIn
-                    && pin.net.is_some_and(|n| point.net_potential[n].is_some())
-            })
-            .map(|(i, _)| i)
+            .find(|pin| pin.input && pin.net.is_some_and(|n| point.net_potential[n].is_some()))
+            .map(|pin| pin.pin)
     }
 }
 

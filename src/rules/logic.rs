@@ -730,6 +730,7 @@ fn driver_side<'p>(
 }
 
 /// What a source can put on the signal, as seen by one receiver.
+#[derive(Clone)]
 struct Drive<'p> {
     source: Source,
     voh: Option<Level<'p>>,
@@ -836,6 +837,7 @@ fn receiver_side<'p>(cx: &'p Context, pin: PinRef) -> Option<ReceiverSide<'p>> {
 }
 
 /// What a receiver accepts.
+#[derive(Clone)]
 struct Sense<'p> {
     pin: PinRef,
     vih: Option<Level<'p>>,
@@ -889,6 +891,7 @@ fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
 }
 
 /// One comparison of a driver and a receiver, with its verdict.
+#[derive(Clone)]
 struct Link<'p> {
     drive: Drive<'p>,
     sense: Sense<'p>,
@@ -972,7 +975,7 @@ fn shares_ground(cx: &Context, pins: &[PinRef]) -> bool {
 /// Every driver–receiver pair, each with its comparisons, grouped by signal
 /// (and, for inputs wired straight onto a rail, by that rail's net): a rule
 /// reports each group once, however many pairs in it fail.
-fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Vec<Link<'p>>>> {
+fn pairs<'p>(cx: &'p Context) -> Vec<Vec<PairWorst<'p>>> {
     let mut groups = Vec::new();
     for signal in signals(cx) {
         if !shares_ground(cx, &signal.pins) {
@@ -1001,7 +1004,7 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Vec<Link<'p>>>> {
                 .collect();
             for source in sources {
                 if let Some(driving) = driver_side(cx, source, &signal.pull_ups, receiver.part) {
-                    found.push(compare(cx, &driving, &receiving, net));
+                    push_pair(&mut found, compare(cx, &driving, &receiving, net));
                 }
             }
         }
@@ -1024,7 +1027,7 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Vec<Link<'p>>>> {
             ) else {
                 continue;
             };
-            found.push(compare(cx, &driving, &receiving, net_id));
+            push_pair(&mut found, compare(cx, &driving, &receiving, net_id));
         }
         groups.push(found);
     }
@@ -1048,6 +1051,43 @@ fn worst<'a, 'p>(
     found.map(|(link, _)| link)
 }
 
+/// A pair's worst comparison for each level rule (`None` where it passes):
+/// all the rules read of a pair, so the other comparisons are not kept.
+type PairWorst<'p> = [Option<Link<'p>>; 3];
+
+/// Where each level rule's comparison sits in a [`PairWorst`].
+const OVER: usize = 0;
+const HIGH: usize = 1;
+const LOW: usize = 2;
+
+/// How far a comparison is over the receiver's ceiling, when it is.
+fn over_badness(l: &Link) -> Option<f64> {
+    let (high, ceiling) = (l.drive.highest.as_ref()?, l.sense.ceiling.as_ref()?);
+    l.verdict
+        .over_ceiling
+        .then(|| v(high.value) - v(ceiling.value))
+}
+
+/// How far a failing high level falls short.
+fn high_badness(l: &Link) -> Option<f64> {
+    l.verdict.high_fails.then_some(-v(l.verdict.high_margin?))
+}
+
+/// How far a failing low level falls short.
+fn low_badness(l: &Link) -> Option<f64> {
+    l.verdict.low_fails.then_some(-v(l.verdict.low_margin?))
+}
+
+/// Keeps a pair's worst comparison for each rule, and the pair only when
+/// some rule fails it.
+fn push_pair<'p>(found: &mut Vec<PairWorst<'p>>, comparisons: Vec<Link<'p>>) {
+    let pick = |badness: fn(&Link) -> Option<f64>| worst(&comparisons, badness).cloned();
+    let kept = [pick(over_badness), pick(high_badness), pick(low_badness)];
+    if kept.iter().any(Option::is_some) {
+        found.push(kept);
+    }
+}
+
 /// The failing pairs of one group: each pair's worst comparison, and the
 /// worst of them all, which the finding is written from.
 struct Failures<'a, 'p> {
@@ -1056,12 +1096,13 @@ struct Failures<'a, 'p> {
 }
 
 fn failures<'a, 'p>(
-    group: &'a [Vec<Link<'p>>],
-    badness: impl Fn(&Link) -> Option<f64>,
+    group: &'a [PairWorst<'p>],
+    rule: usize,
+    badness: fn(&Link) -> Option<f64>,
 ) -> Option<Failures<'a, 'p>> {
     let pairs: Vec<&Link> = group
         .iter()
-        .filter_map(|pair| worst(pair, &badness))
+        .filter_map(|pair| pair[rule].as_ref())
         .collect();
     let mut found: Option<(&Link, f64)> = None;
     for &link in &pairs {
@@ -1246,14 +1287,9 @@ fn check_levels(cx: &Context, out: &mut Vec<Finding>) {
     check_low_margin(cx, &groups, out);
 }
 
-fn check_overvoltage(cx: &Context, groups: &[Vec<Vec<Link>>], out: &mut Vec<Finding>) {
+fn check_overvoltage(cx: &Context, groups: &[Vec<PairWorst>], out: &mut Vec<Finding>) {
     for group in groups {
-        let Some(failed) = failures(group, |l| {
-            let (high, ceiling) = (l.drive.highest.as_ref()?, l.sense.ceiling.as_ref()?);
-            l.verdict
-                .over_ceiling
-                .then(|| v(high.value) - v(ceiling.value))
-        }) else {
+        let Some(failed) = failures(group, OVER, over_badness) else {
             continue;
         };
         let link = failed.worst;
@@ -1291,11 +1327,9 @@ fn check_overvoltage(cx: &Context, groups: &[Vec<Vec<Link>>], out: &mut Vec<Find
     }
 }
 
-fn check_high_margin(cx: &Context, groups: &[Vec<Vec<Link>>], out: &mut Vec<Finding>) {
+fn check_high_margin(cx: &Context, groups: &[Vec<PairWorst>], out: &mut Vec<Finding>) {
     for group in groups {
-        let Some(failed) = failures(group, |l| {
-            l.verdict.high_fails.then_some(-v(l.verdict.high_margin?))
-        }) else {
+        let Some(failed) = failures(group, HIGH, high_badness) else {
             continue;
         };
         let link = failed.worst;
@@ -1322,11 +1356,9 @@ fn check_high_margin(cx: &Context, groups: &[Vec<Vec<Link>>], out: &mut Vec<Find
     }
 }
 
-fn check_low_margin(cx: &Context, groups: &[Vec<Vec<Link>>], out: &mut Vec<Finding>) {
+fn check_low_margin(cx: &Context, groups: &[Vec<PairWorst>], out: &mut Vec<Finding>) {
     for group in groups {
-        let Some(failed) = failures(group, |l| {
-            l.verdict.low_fails.then_some(-v(l.verdict.low_margin?))
-        }) else {
+        let Some(failed) = failures(group, LOW, low_badness) else {
             continue;
         };
         let link = failed.worst;

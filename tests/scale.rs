@@ -31,3 +31,41 @@ fn a_thousand_part_plan_reads_and_solves() {
         .collect();
     assert!(errors.is_empty(), "{errors:?}");
 }
+
+/// A plan refused for what its aliases expand to says so, with the limit
+/// and the file's size, and points at the file's start rather than at the
+/// line where the count happened to run out.
+#[test]
+fn an_expanding_plan_is_refused_as_too_large_with_its_limit_and_size() {
+    // Ten values, then seven levels of ten aliases each: 10^8 values from
+    // a file of a few hundred bytes.
+    let mut text = String::from("railcheck: 1\nx0: &a0 [1,1,1,1,1,1,1,1,1,1]\n");
+    for level in 1..8 {
+        let aliases = vec![format!("*a{}", level - 1); 10].join(",");
+        text.push_str(&format!("x{level}: &a{level} [{aliases}]\n"));
+    }
+    let failure = match railcheck::check("aliases.yaml", &text, &Library::builtin()) {
+        Ok(_) => panic!("an expansion of 10^8 values was read"),
+        Err(f) => f,
+    };
+    assert_eq!(failure.errors.len(), 1);
+    let error = &failure.errors[0];
+    assert!(
+        error.message.starts_with("the plan is too large"),
+        "{}",
+        error.message
+    );
+    assert!(
+        error
+            .message
+            .contains(&format!("a file of {} bytes", text.len())),
+        "{}",
+        error.message
+    );
+    assert!(
+        error.message.contains("more than 1000000 "),
+        "{}",
+        error.message
+    );
+    assert_eq!((error.span.start, error.span.end), (0, 0));
+}

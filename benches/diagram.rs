@@ -1,7 +1,8 @@
-//! How long laying out and writing the block diagram takes for a generated
-//! plan of 1,000 parts (the check itself is done once, outside the timing).
+//! How long laying out and writing the block diagram takes for generated
+//! plans of 100, 1,000 and 10,000 parts (the check itself is done once,
+//! outside the timing; `cargo bench --bench check` times `draw` whole).
 
-use criterion::{Criterion, criterion_group, criterion_main};
+use criterion::{BenchmarkId, Criterion, criterion_group, criterion_main};
 use railcheck::model::Library;
 use std::hint::black_box;
 
@@ -9,16 +10,21 @@ use std::hint::black_box;
 mod generate;
 
 fn draw_generated(c: &mut Criterion) {
-    let text = generate::plan(1_000);
-    let checked = match railcheck::check("generated.yaml", &text, &Library::builtin()) {
-        Ok(checked) => checked,
-        Err(failure) => panic!("generated plan has input errors: {:?}", failure.errors),
-    };
+    let library = Library::builtin();
     let mut group = c.benchmark_group("diagram");
     group.sample_size(10);
-    group.bench_function("draw 1000 parts", |b| {
-        b.iter(|| black_box(railcheck::diagram::draw(black_box(&checked))).len())
-    });
+    for parts in [100, 1_000, 10_000] {
+        let text = generate::plan(parts);
+        let checked = match railcheck::check("generated.yaml", &text, &library) {
+            Ok(checked) => checked,
+            Err(failure) => panic!("generated plan has input errors: {:?}", failure.errors),
+        };
+        group.bench_with_input(
+            BenchmarkId::from_parameter(parts),
+            &checked,
+            |b, checked| b.iter(|| black_box(railcheck::diagram::draw(black_box(checked))).len()),
+        );
+    }
     group.finish();
 }
 

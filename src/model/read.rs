@@ -824,7 +824,7 @@ impl Reader<'_> {
                     span: r.span,
                 });
             }
-            pin.logic = Some(logic);
+            pin.logic = Some(Box::new(logic));
         }
         Some(pin)
     }

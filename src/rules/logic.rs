@@ -660,7 +660,8 @@ fn role_of(cx: &Context, pin: PinRef) -> PinRole {
 fn logic_of(cx: &Context, pin: PinRef) -> LogicSpec {
     cx.plan.parts[pin.part].pins[pin.pin]
         .logic
-        .clone()
+        .as_deref()
+        .cloned()
         .unwrap_or_default()
 }
 

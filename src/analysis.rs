@@ -567,42 +567,96 @@ impl Analysis {
     /// corner. A point that does not settle is kept, marked
     /// [`unsettled`](OperatingPoint::unsettled).
     pub fn solve(plan: &Plan, circuit: &Circuit) -> Analysis {
-        let mut points = Vec::new();
+        let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
+        Analysis::solve_on(plan, circuit, threads)
+    }
+
+    /// [`solve`](Analysis::solve) on at most `threads` threads: each mode's
+    /// points are solved on one thread, modes side by side. The points do
+    /// not depend on each other, so the result is the same on any number of
+    /// threads, in the same order.
+    pub fn solve_on(plan: &Plan, circuit: &Circuit, threads: usize) -> Analysis {
         let groups = stall_groups(plan, circuit);
         let lookup = Lookup::build(plan, circuit);
-        for mode in ModeId::all(plan) {
-            let states = mode_states(plan, mode);
-            let stall_sets: Vec<Option<&[PartId]>> = match (mode, &groups) {
-                (ModeId::WORST, Some(groups)) => {
-                    groups.iter().map(|g| Some(g.as_slice())).collect()
-                }
-                _ => vec![None],
-            };
-            for stalled in stall_sets {
-                for battery in BatteryState::ALL {
-                    for corner in [Corner::Low, Corner::High] {
-                        let solver = Solver {
-                            plan,
-                            circuit,
-                            mode,
-                            battery,
-                            corner,
-                            stalled,
-                            states: &states,
-                            lookup: &lookup,
-                        };
-                        points.push(solver.run());
-                    }
-                }
-            }
+        let modes: Vec<ModeId> = ModeId::all(plan).collect();
+        let solve_mode = |mode: ModeId| solve_mode(plan, circuit, &lookup, groups.as_deref(), mode);
+        let threads = threads.clamp(1, modes.len().max(1));
+        if threads == 1 {
+            let points = modes.iter().flat_map(|&mode| solve_mode(mode)).collect();
+            return Analysis { points };
         }
-        Analysis { points }
+        // Each thread takes the next mode not yet taken; the modes' points
+        // are put back in mode order.
+        let next = std::sync::atomic::AtomicUsize::new(0);
+        let mut solved: Vec<(usize, Vec<OperatingPoint>)> = std::thread::scope(|scope| {
+            let workers: Vec<_> = (0..threads)
+                .map(|_| {
+                    scope.spawn(|| {
+                        let mut mine = Vec::new();
+                        loop {
+                            let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                            let Some(&mode) = modes.get(i) else {
+                                break;
+                            };
+                            mine.push((i, solve_mode(mode)));
+                        }
+                        mine
+                    })
+                })
+                .collect();
+            workers
+                .into_iter()
+                .flat_map(|w| match w.join() {
+                    Ok(mine) => mine,
+                    Err(panic) => std::panic::resume_unwind(panic),
+                })
+                .collect()
+        });
+        solved.sort_by_key(|(i, _)| *i);
+        Analysis {
+            points: solved.into_iter().flat_map(|(_, points)| points).collect(),
+        }
     }
 
     /// The points that settled, whose numbers the rules judge.
     pub fn settled(&self) -> impl Iterator<Item = &OperatingPoint> {
         self.points.iter().filter(|p| p.unsettled.is_none())
     }
+}
+
+/// Every point of one mode: each stall group (in a bounded `worst`), battery
+/// state and tolerance corner, in that order.
+fn solve_mode(
+    plan: &Plan,
+    circuit: &Circuit,
+    lookup: &Lookup,
+    groups: Option<&[Vec<PartId>]>,
+    mode: ModeId,
+) -> Vec<OperatingPoint> {
+    let states = mode_states(plan, mode);
+    let stall_sets: Vec<Option<&[PartId]>> = match (mode, groups) {
+        (ModeId::WORST, Some(groups)) => groups.iter().map(|g| Some(g.as_slice())).collect(),
+        _ => vec![None],
+    };
+    let mut points = Vec::new();
+    for stalled in stall_sets {
+        for battery in BatteryState::ALL {
+            for corner in [Corner::Low, Corner::High] {
+                let solver = Solver {
+                    plan,
+                    circuit,
+                    mode,
+                    battery,
+                    corner,
+                    stalled,
+                    states: &states,
+                    lookup,
+                };
+                points.push(solver.run());
+            }
+        }
+    }
+    points
 }
 
 /// The most groups of motors `worst` is solved for: past it, every motor

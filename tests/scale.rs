@@ -69,3 +69,40 @@ fn an_expanding_plan_is_refused_as_too_large_with_its_limit_and_size() {
     );
     assert_eq!((error.span.start, error.span.end), (0, 0));
 }
+
+/// Operating points solved side by side on several threads are the same,
+/// to the last bit and in the same order, as points solved one after
+/// another: each point depends only on the plan.
+#[test]
+fn points_solved_on_several_threads_match_points_solved_on_one() {
+    use railcheck::analysis::Analysis;
+    use railcheck::graph::Circuit;
+    let library = Library::builtin();
+    let orchard = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/examples/orchard-rover.yaml"
+    ))
+    .expect("the example plan");
+    for text in [generate::plan(400), orchard] {
+        let (_, _, plan) = match railcheck::read("plan.yaml", &text, &library) {
+            Ok(read) => read,
+            Err(f) => panic!("plan has input errors: {:?}", f.errors),
+        };
+        let circuit = Circuit::build(&plan);
+        let serial = Analysis::solve_on(&plan, &circuit, 1);
+        assert_eq!(
+            serial.points.len(),
+            30,
+            "5 modes x 3 battery states x 2 corners"
+        );
+        // Debug output writes each number exactly (shortest round trip).
+        let expected = format!("{:?}", serial.points);
+        for threads in [2, 3, 8] {
+            let parallel = Analysis::solve_on(&plan, &circuit, threads);
+            assert!(
+                format!("{:?}", parallel.points) == expected,
+                "{threads} threads gave other points"
+            );
+        }
+    }
+}

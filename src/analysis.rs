@@ -12,11 +12,12 @@
 
 use crate::graph::{Circuit, MotorFeed};
 use crate::model::{
-    BridgeDrop, Chemistry, Class, LoadState, MotorState, NetId, PartId, PartState, PinRole, Plan,
-    PortKind, Topology,
+    BridgeDrop, Chemistry, Class, LoadState, MotorState, NetId, PartId, PartState, PinRef, PinRole,
+    Plan, PortKind, Topology,
 };
 use crate::units::{WireSize, show_power};
 use crate::wire;
+use std::sync::Arc;
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
 use uom::si::f64::{ElectricCurrent, ElectricPotential, ElectricalResistance, Power, Time};
@@ -196,24 +197,353 @@ pub struct OperatingPoint {
     /// Per net: potential above the battery negative at the load end; `None`
     /// for a net with no source.
     pub net_potential: Vec<Option<ElectricPotential>>,
-    /// Per part and pin: for supply-in pins, the voltage across the part
-    /// (pin minus the part's ground); for supply-out pins, the voltage it gives.
-    pub pin_voltage: Vec<Vec<Option<ElectricPotential>>>,
-    /// Per part and pin: current into a supply-in pin or out of a supply-out pin.
-    pub pin_current: Vec<Vec<ElectricCurrent>>,
+    /// Per supply pin: for supply-in pins, the voltage across the part
+    /// (pin minus the part's ground); for supply-out pins, the voltage it
+    /// gives. `None` for any other pin.
+    pub pin_voltage: PinTable<Option<ElectricPotential>>,
+    /// Per supply pin: current into a supply-in pin or out of a supply-out
+    /// pin; zero for any other pin.
+    pub pin_current: PinTable<ElectricCurrent>,
     /// Per part: the regulator's point, `None` for any other part.
-    pub regulators: Vec<Option<RegulatorPoint>>,
+    pub regulators: PartTable<RegulatorPoint>,
     /// Per part: the motor's point, `None` for any other part.
-    pub motors: Vec<Option<MotorPoint>>,
-    /// Per driver part: (channel number, current).
-    pub channels: Vec<Vec<(u32, ElectricCurrent)>>,
+    pub motors: PartTable<MotorPoint>,
+    /// Per driver part: (channel number, current); empty for any other part.
+    pub channels: ChannelTable,
     /// Per part: the battery's point, `None` for any other part.
-    pub batteries: Vec<Option<BatteryPoint>>,
+    pub batteries: PartTable<BatteryPoint>,
     /// Per USB link: current over its VBUS conductor.
     pub link_current: Vec<ElectricCurrent>,
     /// How long the point lasts when its mode is a brief peak (`lasts:` of
     /// 5 s or less); `None` for `typical`, `worst` and longer modes.
     pub brief: Option<Time>,
+}
+
+/// Where each part's numbers sit in a point's tables: only supply pins
+/// and the parts of the classes that have a point of their own take room,
+/// so a point grows with the plan's power wiring, not with its logic pins.
+/// One per plan, shared by all its points.
+#[derive(Debug, Default)]
+pub struct Layout {
+    /// Per part: where its pins start in `pin_slot`.
+    pin_start: Vec<usize>,
+    /// Per pin of every part, in order: its slot among the supply pins.
+    pin_slot: Vec<u32>,
+    /// How many supply pins the plan has.
+    supply_pins: usize,
+    /// Per part, and one past the last: where its supply pins start among
+    /// the slots (a part's slots are consecutive, in pin order).
+    slot_start: Vec<u32>,
+    /// Per slot: the supply pin it holds.
+    slot_pin: Vec<SlotPin>,
+    /// Per part: its class among those with points, and its slot among the
+    /// parts of that class (each class counts from 0).
+    class_slot: Vec<(Option<Kind>, u32)>,
+    /// Per class with points: its parts in order.
+    regulators: Vec<PartId>,
+    motors: Vec<PartId>,
+    batteries: Vec<PartId>,
+    /// Per driver, in part order: where its channels start and end in a
+    /// point's channel list.
+    channel_ranges: Vec<(usize, usize)>,
+    /// Per driver's channel, in order: its number.
+    channel_numbers: Vec<u32>,
+}
+
+/// No slot: the pin is not a supply pin, or the part has no point.
+const NO_SLOT: u32 = u32::MAX;
+
+/// A supply pin, in the compact form the solver walks each pass.
+#[derive(Clone, Copy, Debug)]
+struct SlotPin {
+    part: PartId,
+    pin: usize,
+    /// A supply-in pin (else supply-out).
+    input: bool,
+    net: Option<NetId>,
+    /// What a supply-in pin draws by itself.
+    draw: Option<crate::model::Draw>,
+}
+
+/// The classes of part that have a point of their own.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Kind {
+    Regulator,
+    Motor,
+    Battery,
+    Driver,
+}
+
+impl Layout {
+    /// The layout of a plan's points.
+    pub fn new(plan: &Plan) -> Layout {
+        let mut layout = Layout {
+            pin_start: Vec::with_capacity(plan.parts.len()),
+            pin_slot: Vec::new(),
+            supply_pins: 0,
+            slot_start: Vec::with_capacity(plan.parts.len() + 1),
+            slot_pin: Vec::new(),
+            class_slot: Vec::with_capacity(plan.parts.len()),
+            regulators: Vec::new(),
+            motors: Vec::new(),
+            batteries: Vec::new(),
+            channel_ranges: Vec::new(),
+            channel_numbers: Vec::new(),
+        };
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            layout.pin_start.push(layout.pin_slot.len());
+            layout.slot_start.push(layout.supply_pins as u32);
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if matches!(pin.role, PinRole::SupplyIn | PinRole::SupplyOut) {
+                    layout.pin_slot.push(layout.supply_pins as u32);
+                    layout.supply_pins += 1;
+                    layout.slot_pin.push(SlotPin {
+                        part: part_id,
+                        pin: pin_id,
+                        input: pin.role == PinRole::SupplyIn,
+                        net: pin.net,
+                        draw: pin.draw,
+                    });
+                } else {
+                    layout.pin_slot.push(NO_SLOT);
+                }
+            }
+            let slot = match &part.class {
+                Class::Regulator(_) => (
+                    Some(Kind::Regulator),
+                    push_slot(&mut layout.regulators, part_id),
+                ),
+                Class::Motor(_) => (Some(Kind::Motor), push_slot(&mut layout.motors, part_id)),
+                Class::Battery(_) => (
+                    Some(Kind::Battery),
+                    push_slot(&mut layout.batteries, part_id),
+                ),
+                Class::Driver(driver) => {
+                    let start = layout.channel_numbers.len();
+                    layout
+                        .channel_numbers
+                        .extend(driver.channels.iter().map(|c| c.number));
+                    layout
+                        .channel_ranges
+                        .push((start, layout.channel_numbers.len()));
+                    (Some(Kind::Driver), (layout.channel_ranges.len() - 1) as u32)
+                }
+                _ => (None, NO_SLOT),
+            };
+            layout.class_slot.push(slot);
+        }
+        layout.slot_start.push(layout.supply_pins as u32);
+        layout
+    }
+
+    /// A part's supply pins, in pin order.
+    fn supply_pins_of(&self, part: PartId) -> &[SlotPin] {
+        match (self.slot_start.get(part), self.slot_start.get(part + 1)) {
+            (Some(&start), Some(&end)) => &self.slot_pin[start as usize..end as usize],
+            _ => &[],
+        }
+    }
+
+    fn pin_slot(&self, part: PartId, pin: usize) -> Option<usize> {
+        let start = *self.pin_start.get(part)?;
+        let end = self
+            .pin_start
+            .get(part + 1)
+            .copied()
+            .unwrap_or(self.pin_slot.len());
+        if start + pin >= end {
+            return None;
+        }
+        match self.pin_slot[start + pin] {
+            NO_SLOT => None,
+            slot => Some(slot as usize),
+        }
+    }
+
+    fn class_slot(&self, part: PartId, kind: Kind) -> Option<usize> {
+        match self.class_slot.get(part).copied() {
+            Some((Some(k), slot)) if k == kind => Some(slot as usize),
+            _ => None,
+        }
+    }
+}
+
+fn push_slot(parts: &mut Vec<PartId>, part: PartId) -> u32 {
+    parts.push(part);
+    (parts.len() - 1) as u32
+}
+
+/// A value per supply pin of a plan, read by part and pin; other pins read
+/// as the blank value.
+#[derive(Clone, Debug)]
+pub struct PinTable<T> {
+    layout: Arc<Layout>,
+    values: Vec<T>,
+    blank: T,
+}
+
+impl<T: Copy> PinTable<T> {
+    fn new(layout: &Arc<Layout>, blank: T) -> PinTable<T> {
+        PinTable {
+            layout: Arc::clone(layout),
+            values: vec![blank; layout.supply_pins],
+            blank,
+        }
+    }
+
+    /// A table of no pins, holding a place while a pass refills the real one.
+    fn empty() -> PinTable<T>
+    where
+        T: Default,
+    {
+        PinTable {
+            layout: Arc::new(Layout::default()),
+            values: Vec::new(),
+            blank: T::default(),
+        }
+    }
+
+    /// Every pin back to the blank value.
+    fn clear(&mut self) {
+        self.values.fill(self.blank);
+    }
+
+    /// The value at a pin of a part (the blank value for a pin that is not
+    /// a supply pin).
+    pub fn get(&self, part: PartId, pin: usize) -> T {
+        self.layout
+            .pin_slot(part, pin)
+            .map_or(self.blank, |slot| self.values[slot])
+    }
+
+    /// Sets the value at a supply pin; other pins hold nothing.
+    fn set(&mut self, part: PartId, pin: usize, value: T) {
+        if let Some(slot) = self.layout.pin_slot(part, pin) {
+            self.values[slot] = value;
+        }
+    }
+}
+
+/// A point per part of one class (regulators, motors or batteries), read by
+/// part: `None` for a part of another class or one not solved.
+#[derive(Clone, Debug)]
+pub struct PartTable<T> {
+    layout: Arc<Layout>,
+    kind: Kind,
+    values: Vec<Option<T>>,
+    none: Option<T>,
+}
+
+impl<T: Copy> PartTable<T> {
+    fn new(layout: &Arc<Layout>, kind: Kind) -> PartTable<T> {
+        let mut table = PartTable {
+            layout: Arc::clone(layout),
+            kind,
+            values: Vec::new(),
+            none: None,
+        };
+        table.values = vec![None; table.parts().len()];
+        table
+    }
+
+    /// Each part of the class with its point, in part order.
+    pub fn iter(&self) -> impl Iterator<Item = (PartId, &Option<T>)> {
+        self.parts().iter().copied().zip(&self.values)
+    }
+
+    fn parts(&self) -> &[PartId] {
+        match self.kind {
+            Kind::Regulator => &self.layout.regulators,
+            Kind::Motor => &self.layout.motors,
+            Kind::Battery => &self.layout.batteries,
+            Kind::Driver => &[],
+        }
+    }
+}
+
+impl<T> std::ops::Index<PartId> for PartTable<T> {
+    type Output = Option<T>;
+    fn index(&self, part: PartId) -> &Option<T> {
+        match self.layout.class_slot(part, self.kind) {
+            Some(slot) => &self.values[slot],
+            None => &self.none,
+        }
+    }
+}
+
+impl<T> std::ops::IndexMut<PartId> for PartTable<T> {
+    /// A part of the table's class; the solver writes no other.
+    fn index_mut(&mut self, part: PartId) -> &mut Option<T> {
+        match self.layout.class_slot(part, self.kind) {
+            Some(slot) => &mut self.values[slot],
+            None => {
+                self.none = None;
+                &mut self.none
+            }
+        }
+    }
+}
+
+/// Per driver part: (channel number, current) for each of its channels;
+/// an empty list for any other part.
+#[derive(Clone, Debug)]
+pub struct ChannelTable {
+    layout: Arc<Layout>,
+    values: Vec<(u32, ElectricCurrent)>,
+}
+
+impl ChannelTable {
+    fn new(layout: &Arc<Layout>) -> ChannelTable {
+        ChannelTable {
+            layout: Arc::clone(layout),
+            values: layout
+                .channel_numbers
+                .iter()
+                .map(|&n| (n, zero_current()))
+                .collect(),
+        }
+    }
+
+    /// A table of no channels, holding a place while a pass refills the
+    /// real one.
+    fn empty() -> ChannelTable {
+        ChannelTable {
+            layout: Arc::new(Layout::default()),
+            values: Vec::new(),
+        }
+    }
+
+    /// Every channel's current back to zero.
+    fn clear(&mut self) {
+        for (_, current) in &mut self.values {
+            *current = zero_current();
+        }
+    }
+
+    fn range(&self, part: PartId) -> std::ops::Range<usize> {
+        match self.layout.class_slot(part, Kind::Driver) {
+            Some(slot) => {
+                let (start, end) = self.layout.channel_ranges[slot];
+                start..end
+            }
+            None => 0..0,
+        }
+    }
+}
+
+impl std::ops::Index<PartId> for ChannelTable {
+    type Output = [(u32, ElectricCurrent)];
+    fn index(&self, part: PartId) -> &[(u32, ElectricCurrent)] {
+        let range = self.range(part);
+        &self.values[range]
+    }
+}
+
+impl std::ops::IndexMut<PartId> for ChannelTable {
+    fn index_mut(&mut self, part: PartId) -> &mut [(u32, ElectricCurrent)] {
+        let range = self.range(part);
+        &mut self.values[range]
+    }
 }
 
 impl OperatingPoint {
@@ -237,30 +567,96 @@ impl Analysis {
     /// corner. A point that does not settle is kept, marked
     /// [`unsettled`](OperatingPoint::unsettled).
     pub fn solve(plan: &Plan, circuit: &Circuit) -> Analysis {
-        let mut points = Vec::new();
+        let threads = std::thread::available_parallelism().map_or(1, |n| n.get());
+        Analysis::solve_on(plan, circuit, threads)
+    }
+
+    /// [`solve`](Analysis::solve) on at most `threads` threads: each mode's
+    /// points are solved on one thread, modes side by side. The points do
+    /// not depend on each other, so the result is the same on any number of
+    /// threads, in the same order.
+    pub fn solve_on(plan: &Plan, circuit: &Circuit, threads: usize) -> Analysis {
         let groups = stall_groups(plan, circuit);
-        for mode in ModeId::all(plan) {
-            let stall_sets: Vec<Option<&[PartId]>> = match (mode, &groups) {
-                (ModeId::WORST, Some(groups)) => {
-                    groups.iter().map(|g| Some(g.as_slice())).collect()
-                }
-                _ => vec![None],
-            };
-            for stalled in stall_sets {
-                for battery in BatteryState::ALL {
-                    for corner in [Corner::Low, Corner::High] {
-                        points.push(solve_point(plan, circuit, mode, battery, corner, stalled));
-                    }
-                }
-            }
+        let lookup = Lookup::build(plan, circuit);
+        let modes: Vec<ModeId> = ModeId::all(plan).collect();
+        let solve_mode = |mode: ModeId| solve_mode(plan, circuit, &lookup, groups.as_deref(), mode);
+        let threads = threads.clamp(1, modes.len().max(1));
+        if threads == 1 {
+            let points = modes.iter().flat_map(|&mode| solve_mode(mode)).collect();
+            return Analysis { points };
         }
-        Analysis { points }
+        // Each thread takes the next mode not yet taken; the modes' points
+        // are put back in mode order.
+        let next = std::sync::atomic::AtomicUsize::new(0);
+        let mut solved: Vec<(usize, Vec<OperatingPoint>)> = std::thread::scope(|scope| {
+            let workers: Vec<_> = (0..threads)
+                .map(|_| {
+                    scope.spawn(|| {
+                        let mut mine = Vec::new();
+                        loop {
+                            let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                            let Some(&mode) = modes.get(i) else {
+                                break;
+                            };
+                            mine.push((i, solve_mode(mode)));
+                        }
+                        mine
+                    })
+                })
+                .collect();
+            workers
+                .into_iter()
+                .flat_map(|w| match w.join() {
+                    Ok(mine) => mine,
+                    Err(panic) => std::panic::resume_unwind(panic),
+                })
+                .collect()
+        });
+        solved.sort_by_key(|(i, _)| *i);
+        Analysis {
+            points: solved.into_iter().flat_map(|(_, points)| points).collect(),
+        }
     }
 
     /// The points that settled, whose numbers the rules judge.
     pub fn settled(&self) -> impl Iterator<Item = &OperatingPoint> {
         self.points.iter().filter(|p| p.unsettled.is_none())
     }
+}
+
+/// Every point of one mode: each stall group (in a bounded `worst`), battery
+/// state and tolerance corner, in that order.
+fn solve_mode(
+    plan: &Plan,
+    circuit: &Circuit,
+    lookup: &Lookup,
+    groups: Option<&[Vec<PartId>]>,
+    mode: ModeId,
+) -> Vec<OperatingPoint> {
+    let states = mode_states(plan, mode);
+    let stall_sets: Vec<Option<&[PartId]>> = match (mode, groups) {
+        (ModeId::WORST, Some(groups)) => groups.iter().map(|g| Some(g.as_slice())).collect(),
+        _ => vec![None],
+    };
+    let mut points = Vec::new();
+    for stalled in stall_sets {
+        for battery in BatteryState::ALL {
+            for corner in [Corner::Low, Corner::High] {
+                let solver = Solver {
+                    plan,
+                    circuit,
+                    mode,
+                    battery,
+                    corner,
+                    stalled,
+                    states: &states,
+                    lookup,
+                };
+                points.push(solver.run());
+            }
+        }
+    }
+    points
 }
 
 /// The most groups of motors `worst` is solved for: past it, every motor
@@ -310,13 +706,7 @@ pub fn stall_groups(plan: &Plan, circuit: &Circuit) -> Option<Vec<Vec<PartId>>> 
 
 /// What state a mode puts a part in.
 pub fn part_state(plan: &Plan, mode: ModeId, part: PartId) -> PartState {
-    let is_motor = matches!(plan.parts[part].class, Class::Motor(_));
-    let default = match (mode, is_motor) {
-        (ModeId::WORST, true) => PartState::Motor(MotorState::Stall),
-        (ModeId::WORST, false) => PartState::Load(LoadState::Peak),
-        (_, true) => PartState::Motor(MotorState::Running),
-        (_, false) => PartState::Load(LoadState::Typical),
-    };
+    let default = default_state(mode, matches!(plan.parts[part].class, Class::Motor(_)));
     if mode.0 < 2 {
         return default;
     }
@@ -327,10 +717,148 @@ pub fn part_state(plan: &Plan, mode: ModeId, part: PartId) -> PartState {
         .map_or(default, |(_, s)| *s)
 }
 
-fn load_state(plan: &Plan, mode: ModeId, part: PartId) -> LoadState {
-    match part_state(plan, mode, part) {
-        PartState::Load(s) => s,
-        PartState::Motor(_) => LoadState::Typical,
+/// The state a mode puts each part in, indexed by part: the mode's list
+/// read once (the first entry for a part wins, as in [`part_state`]).
+fn mode_states(plan: &Plan, mode: ModeId) -> Vec<PartState> {
+    let mut states: Vec<PartState> = plan
+        .parts
+        .iter()
+        .map(|part| default_state(mode, matches!(part.class, Class::Motor(_))))
+        .collect();
+    if mode.0 >= 2 {
+        let mut set = vec![false; plan.parts.len()];
+        for &(part, state) in &plan.modes[mode.0 - 2].states {
+            if let Some(seen) = set.get_mut(part)
+                && !*seen
+            {
+                *seen = true;
+                states[part] = state;
+            }
+        }
+    }
+    states
+}
+
+/// What a mode puts a part in when the mode does not name it.
+fn default_state(mode: ModeId, is_motor: bool) -> PartState {
+    match (mode, is_motor) {
+        (ModeId::WORST, true) => PartState::Motor(MotorState::Stall),
+        (ModeId::WORST, false) => PartState::Load(LoadState::Peak),
+        (_, true) => PartState::Motor(MotorState::Running),
+        (_, false) => PartState::Load(LoadState::Typical),
+    }
+}
+
+/// Lookups the solver needs at every point, built once per plan.
+struct Lookup {
+    /// Per net: the resistance of its conductor.
+    resistance: Vec<Option<ElectricalResistance>>,
+    /// Per part: the USB links it is the host of, in file order.
+    host_links: Vec<Vec<usize>>,
+    /// Per part: whether it is the device end of a USB link.
+    is_device: Vec<bool>,
+    /// Per link: the roots of the source-less rails it is the first VBUS
+    /// feed of (their current flows over the cable).
+    vbus_roots: Vec<Vec<NetId>>,
+    /// Where each part's numbers sit in a point.
+    layout: Arc<Layout>,
+    /// Per part: whether it is a battery (its ground is the reference).
+    is_battery: Vec<bool>,
+    /// Ground nets in the order of the net trees (each after its parent).
+    ground_nets: Vec<NetId>,
+    /// Per net, and one past the last: where its supply-in pins start in
+    /// `net_inputs` (in the net's pin order).
+    net_inputs_start: Vec<usize>,
+    net_inputs: Vec<PinRef>,
+    /// Parts other than batteries with a ground net, in part order: their
+    /// return current flows there.
+    returns: Vec<(PartId, NetId)>,
+    /// Onboard supply outputs left unwired on parts other than batteries and
+    /// regulators, in part and pin order.
+    unwired_outputs: Vec<PinRef>,
+    /// Per part: its `vin`, `vout` and `vm` pins, where it has them.
+    named_pins: Vec<[Option<usize>; 3]>,
+}
+
+impl Lookup {
+    fn build(plan: &Plan, circuit: &Circuit) -> Lookup {
+        let mut host_links = vec![Vec::new(); plan.parts.len()];
+        let mut is_device = vec![false; plan.parts.len()];
+        for (link, l) in plan.links.iter().enumerate() {
+            host_links[l.host.0].push(link);
+            is_device[l.device.0] = true;
+        }
+        let mut vbus_roots = vec![Vec::new(); plan.links.len()];
+        for (node_id, links) in circuit.vbus.iter().enumerate() {
+            if let Some(&link) = links.first()
+                && circuit.source[node_id].is_none()
+                && let Some(root) = circuit.root[node_id]
+            {
+                vbus_roots[link].push(root);
+            }
+        }
+        let is_battery: Vec<bool> = plan
+            .parts
+            .iter()
+            .map(|p| matches!(p.class, Class::Battery(_)))
+            .collect();
+        let ground_nets = circuit
+            .net_order
+            .iter()
+            .copied()
+            .filter(|&net| circuit.nodes[circuit.node_of_net[net]].is_ground())
+            .collect();
+        let mut net_inputs_start = Vec::with_capacity(plan.nets.len() + 1);
+        let mut net_inputs = Vec::new();
+        for net in &plan.nets {
+            net_inputs_start.push(net_inputs.len());
+            net_inputs.extend(
+                net.pins
+                    .iter()
+                    .copied()
+                    .filter(|p| plan.parts[p.part].pins[p.pin].role == PinRole::SupplyIn),
+            );
+        }
+        net_inputs_start.push(net_inputs.len());
+        let returns = (0..plan.parts.len())
+            .filter(|&p| !is_battery[p])
+            .filter_map(|p| Some((p, circuit.ground_net[p]?)))
+            .collect();
+        let mut unwired_outputs = Vec::new();
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
+                continue;
+            }
+            for (pin_id, pin) in part.pins.iter().enumerate() {
+                if pin.role == PinRole::SupplyOut && pin.net.is_none() {
+                    unwired_outputs.push(PinRef {
+                        part: part_id,
+                        pin: pin_id,
+                    });
+                }
+            }
+        }
+        let named_pins = plan
+            .parts
+            .iter()
+            .map(|p| [p.pin("vin"), p.pin("vout"), p.pin("vm")])
+            .collect();
+        Lookup {
+            is_battery,
+            ground_nets,
+            net_inputs_start,
+            net_inputs,
+            returns,
+            unwired_outputs,
+            named_pins,
+            resistance: (0..plan.nets.len())
+                .map(|n| net_resistance(plan, n))
+                .collect(),
+            host_links,
+            is_device,
+            vbus_roots,
+            layout: Arc::new(Layout::new(plan)),
+        }
     }
 }
 
@@ -381,32 +909,21 @@ struct Solver<'a> {
     /// In a bounded `worst`: the motors that stall at this point (the
     /// others run).
     stalled: Option<&'a [PartId]>,
-    resistance: Vec<Option<ElectricalResistance>>,
-}
-
-fn solve_point<'a>(
-    plan: &'a Plan,
-    circuit: &'a Circuit,
-    mode: ModeId,
-    battery: BatteryState,
-    corner: Corner,
-    stalled: Option<&'a [PartId]>,
-) -> OperatingPoint {
-    let solver = Solver {
-        plan,
-        circuit,
-        mode,
-        battery,
-        corner,
-        stalled,
-        resistance: (0..plan.nets.len())
-            .map(|n| net_resistance(plan, n))
-            .collect(),
-    };
-    solver.run()
+    /// Per part: the state the mode puts it in.
+    states: &'a [PartState],
+    lookup: &'a Lookup,
 }
 
 impl Solver<'_> {
+    /// The load state of a part at this point (a motor's draws are its
+    /// typical ones).
+    fn load_state(&self, part: PartId) -> LoadState {
+        match self.states[part] {
+            PartState::Load(s) => s,
+            PartState::Motor(_) => LoadState::Typical,
+        }
+    }
+
     fn blank(&self) -> OperatingPoint {
         let plan = self.plan;
         OperatingPoint {
@@ -416,20 +933,12 @@ impl Solver<'_> {
             unsettled: None,
             net_current: vec![zero_current(); plan.nets.len()],
             net_potential: vec![None; plan.nets.len()],
-            pin_voltage: plan
-                .parts
-                .iter()
-                .map(|p| vec![None; p.pins.len()])
-                .collect(),
-            pin_current: plan
-                .parts
-                .iter()
-                .map(|p| vec![zero_current(); p.pins.len()])
-                .collect(),
-            regulators: vec![None; plan.parts.len()],
-            motors: vec![None; plan.parts.len()],
-            channels: vec![Vec::new(); plan.parts.len()],
-            batteries: vec![None; plan.parts.len()],
+            pin_voltage: PinTable::new(&self.lookup.layout, None),
+            pin_current: PinTable::new(&self.lookup.layout, zero_current()),
+            regulators: PartTable::new(&self.lookup.layout, Kind::Regulator),
+            motors: PartTable::new(&self.lookup.layout, Kind::Motor),
+            channels: ChannelTable::new(&self.lookup.layout),
+            batteries: PartTable::new(&self.lookup.layout, Kind::Battery),
             link_current: vec![zero_current(); plan.links.len()],
             brief: match self.mode.0 {
                 0 | 1 => None,
@@ -440,9 +949,12 @@ impl Solver<'_> {
 
     fn run(&self) -> OperatingPoint {
         let mut point = self.blank();
+        // The last pass's numbers, kept in buffers reused from pass to pass.
+        let mut before_potential = Vec::new();
+        let mut before_current = Vec::new();
         for iteration in 1..=MAX_ITERATIONS {
-            let before_potential = point.net_potential.clone();
-            let before_current = point.net_current.clone();
+            before_potential.clone_from(&point.net_potential);
+            before_current.clone_from(&point.net_current);
             self.voltages(&mut point);
             if let Some(mut failure) = self.collapsed(&point) {
                 failure.iterations = iteration;
@@ -492,7 +1004,6 @@ impl Solver<'_> {
         let hungriest_converter = point
             .regulators
             .iter()
-            .enumerate()
             .filter_map(|(part, r)| {
                 let r = r.as_ref()?;
                 let Class::Regulator(spec) = &self.plan.parts[part].class else {
@@ -506,9 +1017,8 @@ impl Solver<'_> {
         let collapsed_battery = point
             .batteries
             .iter()
-            .enumerate()
             .find_map(|(part, b)| b.filter(|b| b.terminal.get::<volt>() <= 0.0).map(|_| part));
-        let collapsed_converter = point.regulators.iter().enumerate().find_map(|(part, r)| {
+        let collapsed_converter = point.regulators.iter().find_map(|(part, r)| {
             let r = r.as_ref()?;
             let Class::Regulator(spec) = &self.plan.parts[part].class else {
                 return None;
@@ -574,12 +1084,9 @@ impl Solver<'_> {
         let circuit = self.circuit;
         // Ground nets first, from the last pass's currents: the battery
         // negative's net is 0 V at its root; return current raises the far end.
-        point.net_potential = vec![None; plan.nets.len()];
-        for &net in &circuit.net_order {
-            let node = &circuit.nodes[circuit.node_of_net[net]];
-            if !node.is_ground() {
-                continue;
-            }
+        point.net_potential.clear();
+        point.net_potential.resize(plan.nets.len(), None);
+        for &net in &self.lookup.ground_nets {
             let upstream = match circuit.parent[net] {
                 Some(parent) => point.net_potential[parent.net],
                 None => Some(zero_voltage()),
@@ -594,7 +1101,7 @@ impl Solver<'_> {
                 Some(pin) => {
                     let ground = self.ground_of(point, pin.part);
                     let across = self.source_voltage(point, pin.part, pin.pin);
-                    point.pin_voltage[pin.part][pin.pin] = across;
+                    point.pin_voltage.set(pin.part, pin.pin, across);
                     across.map(|v| ground + v)
                 }
                 None => circuit.vbus[node_id].first().and_then(|&link| {
@@ -614,30 +1121,41 @@ impl Solver<'_> {
             // The voltage across each part fed from this rail.
             for pin in &circuit.nodes[node_id].supply_ins {
                 let ground = self.ground_of(point, pin.part);
-                point.pin_voltage[pin.part][pin.pin] = plan.parts[pin.part].pins[pin.pin]
-                    .net
+                let across = self
+                    .net_of(*pin)
                     .and_then(|n| point.net_potential[n])
                     .map(|v| v - ground);
+                point.pin_voltage.set(pin.part, pin.pin, across);
             }
         }
 
         // Onboard outputs left unwired still set the levels of their part's
         // logic pins: give them their voltage whenever the part is powered.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
-                continue;
-            }
-            let powered = self.fed_supply_in(point, part_id).is_some()
-                || plan.links.iter().any(|l| l.device.0 == part_id);
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyOut && pin.net.is_none() {
-                    point.pin_voltage[part_id][pin_id] = if powered {
-                        self.source_voltage(point, part_id, pin_id)
-                    } else {
-                        None
-                    };
+        let mut powered_part: Option<(PartId, bool)> = None;
+        for &PinRef { part, pin } in &self.lookup.unwired_outputs {
+            let powered = match powered_part {
+                Some((p, powered)) if p == part => powered,
+                _ => {
+                    let powered =
+                        self.fed_supply_in(point, part).is_some() || self.lookup.is_device[part];
+                    powered_part = Some((part, powered));
+                    powered
                 }
-            }
+            };
+            let across = if powered {
+                self.source_voltage(point, part, pin)
+            } else {
+                None
+            };
+            point.pin_voltage.set(part, pin, across);
+        }
+    }
+
+    /// The net a pin sits on.
+    fn net_of(&self, pin: PinRef) -> Option<NetId> {
+        match self.lookup.layout.pin_slot(pin.part, pin.pin) {
+            Some(slot) => self.lookup.layout.slot_pin[slot].net,
+            None => self.plan.parts[pin.part].pins[pin.pin].net,
         }
     }
 
@@ -645,7 +1163,7 @@ impl Solver<'_> {
     /// reference every potential is measured from; other parts sit at the
     /// load end of their ground net.
     fn ground_of(&self, point: &OperatingPoint, part: PartId) -> ElectricPotential {
-        if matches!(self.plan.parts[part].class, Class::Battery(_)) {
+        if self.lookup.is_battery[part] {
             return zero_voltage();
         }
         self.circuit.ground_net[part]
@@ -660,14 +1178,14 @@ impl Solver<'_> {
         let host = self.plan.links[link].host.0;
         let at_host = self
             .fed_supply_in(point, host)
-            .and_then(|pin| point.pin_voltage[host][pin])?;
+            .and_then(|pin| point.pin_voltage.get(host, pin))?;
         let drop = usb_link_resistance(self.plan, link)
             .map_or(zero_voltage(), |r| point.link_current[link] * r * 2.0);
         Some(at_host - drop)
     }
 
     fn drop(&self, net: NetId, current: ElectricCurrent) -> ElectricPotential {
-        match self.resistance[net] {
+        match self.lookup.resistance[net] {
             Some(r) => current * r,
             None => zero_voltage(),
         }
@@ -684,7 +1202,7 @@ impl Solver<'_> {
         match &part.class {
             Class::Battery(battery) => {
                 let open_circuit = battery_voltage(self.plan, part_id, self.battery)?;
-                let current = point.pin_current[part_id][pin];
+                let current = point.pin_current.get(part_id, pin);
                 let terminal = open_circuit - current * battery.internal_resistance;
                 point.batteries[part_id] = Some(BatteryPoint {
                     open_circuit,
@@ -695,7 +1213,10 @@ impl Solver<'_> {
             }
             Class::Regulator(regulator) => {
                 let vin_pin = part.pin("vin")?;
-                let input = point.pin_voltage[part_id][vin_pin].unwrap_or_else(zero_voltage);
+                let input = point
+                    .pin_voltage
+                    .get(part_id, vin_pin)
+                    .unwrap_or_else(zero_voltage);
                 let target = match self.corner {
                     Corner::Low => regulator.output.min,
                     Corner::High => regulator.output.max,
@@ -741,11 +1262,12 @@ impl Solver<'_> {
         let circuit = self.circuit;
 
         // Motors first: drivers add them up.
-        for (part_id, feed) in circuit.motor_feed.iter().enumerate() {
+        for &part_id in &self.lookup.layout.motors {
+            let feed = &circuit.motor_feed[part_id];
             let Class::Motor(motor) = &plan.parts[part_id].class else {
                 continue;
             };
-            let state = match (self.stalled, part_state(plan, self.mode, part_id)) {
+            let state = match (self.stalled, self.states[part_id]) {
                 (Some(group), _) if !group.contains(&part_id) => MotorState::Running,
                 (_, PartState::Motor(s)) => s,
                 (_, PartState::Load(_)) => MotorState::Running,
@@ -755,8 +1277,8 @@ impl Solver<'_> {
                     let Class::Driver(spec) = &plan.parts[*driver].class else {
                         continue;
                     };
-                    let vm = plan.parts[*driver].pin("vm");
-                    let v = vm.and_then(|p| point.pin_voltage[*driver][p]);
+                    let vm = self.lookup.named_pins[*driver][2];
+                    let v = vm.and_then(|p| point.pin_voltage.get(*driver, p));
                     (v, Some(spec.drop))
                 }
                 Some(MotorFeed::Direct { supply, ground }) => {
@@ -803,19 +1325,13 @@ impl Solver<'_> {
             });
         }
 
-        let mut channels: Vec<Vec<(u32, ElectricCurrent)>> = vec![Vec::new(); plan.parts.len()];
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            if let Class::Driver(driver) = &part.class {
-                channels[part_id] = driver
-                    .channels
-                    .iter()
-                    .map(|c| (c.number, zero_current()))
-                    .collect();
-            }
-        }
-        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
+        // The last pass's tables are refilled rather than allocated anew;
+        // nothing below reads their old values.
+        let mut channels = std::mem::replace(&mut point.channels, ChannelTable::empty());
+        channels.clear();
+        for &motor in &self.lookup.layout.motors {
             if let (Some(MotorFeed::Driver { driver, channel }), Some(m)) =
-                (feed, point.motors[motor])
+                (&circuit.motor_feed[motor], point.motors[motor])
                 && let Some(slot) = channels[*driver].iter_mut().find(|(n, _)| n == channel)
             {
                 slot.1 += m.current;
@@ -824,37 +1340,35 @@ impl Solver<'_> {
 
         // Rails downstream first: what a converter draws depends on what its
         // outputs deliver, so those are known before its input is worked out.
-        let mut pin_current: Vec<Vec<ElectricCurrent>> = plan
-            .parts
-            .iter()
-            .map(|p| vec![zero_current(); p.pins.len()])
-            .collect();
-        let mut net_current = vec![zero_current(); plan.nets.len()];
+        let mut pin_current = std::mem::replace(&mut point.pin_current, PinTable::empty());
+        pin_current.clear();
+        let mut net_current = std::mem::take(&mut point.net_current);
+        net_current.clear();
+        net_current.resize(plan.nets.len(), zero_current());
         // Motors wired straight across a rail load its supply net.
         let mut direct_motor = vec![zero_current(); plan.nets.len()];
-        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
-            if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) = (feed, point.motors[motor]) {
+        for &motor in &self.lookup.layout.motors {
+            if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) =
+                (&circuit.motor_feed[motor], point.motors[motor])
+            {
                 direct_motor[*supply] += m.current;
             }
         }
-        let mut done: Vec<Vec<bool>> = plan
-            .parts
-            .iter()
-            .map(|p| vec![false; p.pins.len()])
-            .collect();
+        let mut done = PinTable::new(&self.lookup.layout, false);
         for &node_id in circuit.rail_order.iter().rev() {
             let node = &circuit.nodes[node_id];
             for pin in &node.supply_ins {
-                pin_current[pin.part][pin.pin] =
+                let current =
                     self.supply_in_current(point, *pin, &pin_current, &net_current, &channels);
-                done[pin.part][pin.pin] = true;
+                pin_current.set(pin.part, pin.pin, current);
+                done.set(pin.part, pin.pin, true);
             }
             // Each net carries what hangs on it and below it.
             for &net in circuit.node_nets[node_id].iter().rev() {
-                for pin in &plan.nets[net].pins {
-                    if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn {
-                        net_current[net] += pin_current[pin.part][pin.pin];
-                    }
+                let inputs =
+                    self.lookup.net_inputs_start[net]..self.lookup.net_inputs_start[net + 1];
+                for pin in &self.lookup.net_inputs[inputs] {
+                    net_current[net] += pin_current.get(pin.part, pin.pin);
                 }
                 net_current[net] += direct_motor[net];
                 if let Some(parent) = circuit.parent[net] {
@@ -866,56 +1380,43 @@ impl Solver<'_> {
             // it. Others (a conflict, or diode-joined spares) are charged
             // nothing rather than twice.
             if let (Some(source), Some(root)) = (circuit.source[node_id], circuit.root[node_id]) {
-                pin_current[source.part][source.pin] = net_current[root];
+                pin_current.set(source.part, source.pin, net_current[root]);
             }
         }
         // Inputs on no rail carry nothing, but a regulator there still gets
         // its operating point recorded.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyIn && !done[part_id][pin_id] {
-                    let pin_ref = crate::model::PinRef {
-                        part: part_id,
-                        pin: pin_id,
-                    };
-                    let _ = self.supply_in_current(
-                        point,
-                        pin_ref,
-                        &pin_current,
-                        &net_current,
-                        &channels,
-                    );
-                }
+        for (slot, pin) in self.lookup.layout.slot_pin.iter().enumerate() {
+            if pin.input && !done.values[slot] {
+                let pin_ref = PinRef {
+                    part: pin.part,
+                    pin: pin.pin,
+                };
+                let _ =
+                    self.supply_in_current(point, pin_ref, &pin_current, &net_current, &channels);
             }
         }
 
         // Return current: what a part takes in minus what it gives out, on
         // its ground net, summed toward the battery negative.
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            if matches!(part.class, Class::Battery(_)) {
-                continue;
-            }
-            if let Some(ground) = circuit.ground_net[part_id] {
-                let mut returned = zero_current();
-                for (pin_id, pin) in part.pins.iter().enumerate() {
-                    match pin.role {
-                        PinRole::SupplyIn => returned += pin_current[part_id][pin_id],
-                        PinRole::SupplyOut => returned -= pin_current[part_id][pin_id],
-                        _ => {}
-                    }
+        for &(part_id, ground) in &self.lookup.returns {
+            let mut returned = zero_current();
+            for pin in self.lookup.layout.supply_pins_of(part_id) {
+                if pin.input {
+                    returned += pin_current.get(part_id, pin.pin);
+                } else {
+                    returned -= pin_current.get(part_id, pin.pin);
                 }
-                net_current[ground] += returned;
             }
+            net_current[ground] += returned;
         }
-        for (motor, feed) in circuit.motor_feed.iter().enumerate() {
-            if let (Some(MotorFeed::Direct { ground, .. }), Some(m)) = (feed, point.motors[motor]) {
+        for &motor in &self.lookup.layout.motors {
+            if let (Some(MotorFeed::Direct { ground, .. }), Some(m)) =
+                (&circuit.motor_feed[motor], point.motors[motor])
+            {
                 net_current[*ground] += m.current;
             }
         }
-        for &net in circuit.net_order.iter().rev() {
-            if !circuit.nodes[circuit.node_of_net[net]].is_ground() {
-                continue;
-            }
+        for &net in self.lookup.ground_nets.iter().rev() {
             if let Some(parent) = circuit.parent[net] {
                 let below = net_current[net];
                 net_current[parent.net] += below;
@@ -937,31 +1438,25 @@ impl Solver<'_> {
         &self,
         point: &OperatingPoint,
         link: usize,
-        pin_current: &[Vec<ElectricCurrent>],
+        pin_current: &PinTable<ElectricCurrent>,
         net_current: &[ElectricCurrent],
     ) -> ElectricCurrent {
         let plan = self.plan;
-        let circuit = self.circuit;
         let (device, port) = plan.links[link].device;
-        let state = load_state(plan, self.mode, device);
+        let state = self.load_state(device);
         let mut current = match &plan.parts[device].ports[port].kind {
             PortKind::UsbDevice { draw: Some(d), .. } => d.in_state(state),
             _ => zero_current(),
         };
         if self.fed_supply_in(point, device).is_none() {
-            for (pin_id, pin) in plan.parts[device].pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyOut {
-                    current += pin_current[device][pin_id];
+            for pin in self.lookup.layout.supply_pins_of(device) {
+                if !pin.input {
+                    current += pin_current.get(device, pin.pin);
                 }
             }
         }
-        for (node_id, links) in circuit.vbus.iter().enumerate() {
-            if links.first() == Some(&link)
-                && circuit.source[node_id].is_none()
-                && let Some(root) = circuit.root[node_id]
-            {
-                current += net_current[root];
-            }
+        for &root in &self.lookup.vbus_roots[link] {
+            current += net_current[root];
         }
         current
     }
@@ -974,29 +1469,46 @@ impl Solver<'_> {
         &self,
         point: &mut OperatingPoint,
         pin_ref: crate::model::PinRef,
-        pin_current: &[Vec<ElectricCurrent>],
+        pin_current: &PinTable<ElectricCurrent>,
         net_current: &[ElectricCurrent],
-        channels: &[Vec<(u32, ElectricCurrent)>],
+        channels: &ChannelTable,
     ) -> ElectricCurrent {
         let plan = self.plan;
+        let layout = &self.lookup.layout;
         let (part_id, pin_id) = (pin_ref.part, pin_ref.pin);
-        let part = &plan.parts[part_id];
-        let pin = &part.pins[pin_id];
-        let state = load_state(plan, self.mode, part_id);
+        let (net, draw) = match layout.pin_slot(part_id, pin_id) {
+            Some(slot) => (layout.slot_pin[slot].net, layout.slot_pin[slot].draw),
+            None => {
+                let pin = &plan.parts[part_id].pins[pin_id];
+                (pin.net, pin.draw)
+            }
+        };
+        let state = self.load_state(part_id);
         // Only a pin on a fed rail draws: an open or unfed input carries
         // nothing (its part may be powered another way).
-        let fed = pin.net.is_some_and(|n| point.net_potential[n].is_some());
-        let mut current = match pin.draw {
+        let fed = net.is_some_and(|n| point.net_potential[n].is_some());
+        let mut current = match draw {
             Some(d) if fed => d.in_state(state),
             _ => zero_current(),
         };
-        match &part.class {
-            Class::Regulator(regulator) if part.pin("vin") == Some(pin_id) => {
-                let Some(vout) = part.pin("vout") else {
+        let kind = layout.class_slot.get(part_id).and_then(|(kind, _)| *kind);
+        let part = match kind {
+            // Only these classes take the part's own record.
+            Some(Kind::Regulator | Kind::Driver) => Some(&plan.parts[part_id]),
+            _ => None,
+        };
+        match part.map(|p| &p.class) {
+            Some(Class::Regulator(regulator))
+                if self.lookup.named_pins[part_id][0] == Some(pin_id) =>
+            {
+                let Some(vout) = self.lookup.named_pins[part_id][1] else {
                     return current;
                 };
-                let output_current = pin_current[part_id][vout];
-                let input_voltage = point.pin_voltage[part_id][pin_id].unwrap_or_else(zero_voltage);
+                let output_current = pin_current.get(part_id, vout);
+                let input_voltage = point
+                    .pin_voltage
+                    .get(part_id, pin_id)
+                    .unwrap_or_else(zero_voltage);
                 let output_voltage = point.regulators[part_id]
                     .map_or(regulator.output.nominal, |r| r.output_voltage);
                 let input_current = if regulator.topology == Topology::Linear {
@@ -1020,7 +1532,7 @@ impl Solver<'_> {
                 entry.output_current = output_current;
                 return input_current;
             }
-            Class::Driver(driver) if part.pin("vm") == Some(pin_id) => {
+            Some(Class::Driver(driver)) if self.lookup.named_pins[part_id][2] == Some(pin_id) => {
                 let motors = channels[part_id]
                     .iter()
                     .fold(zero_current(), |sum, (_, i)| sum + *i);
@@ -1030,18 +1542,16 @@ impl Solver<'_> {
         }
         // Onboard outputs and USB host ports are paid for by the part's own
         // supply, through its first fed input.
-        let pays = !matches!(part.class, Class::Battery(_) | Class::Regulator(_))
+        let pays = !matches!(kind, Some(Kind::Battery | Kind::Regulator))
             && self.fed_supply_in(point, part_id) == Some(pin_id);
         if pays {
-            for (out_id, out) in part.pins.iter().enumerate() {
-                if out.role == PinRole::SupplyOut {
-                    current += pin_current[part_id][out_id];
+            for out in layout.supply_pins_of(part_id) {
+                if !out.input {
+                    current += pin_current.get(part_id, out.pin);
                 }
             }
-            for (link, l) in plan.links.iter().enumerate() {
-                if l.host.0 == part_id {
-                    current += self.link_current(point, link, pin_current, net_current);
-                }
+            for &link in &self.lookup.host_links[part_id] {
+                current += self.link_current(point, link, pin_current, net_current);
             }
         }
         current
@@ -1049,15 +1559,12 @@ impl Solver<'_> {
 
     /// The first supply-in pin of a part that sits on a fed rail.
     fn fed_supply_in(&self, point: &OperatingPoint, part: PartId) -> Option<usize> {
-        self.plan.parts[part]
-            .pins
+        self.lookup
+            .layout
+            .supply_pins_of(part)
             .iter()
-            .enumerate()
-            .find(|(_, pin)| {
-                pin.role == PinRole::SupplyIn
-                    && pin.net.is_some_and(|n| point.net_potential[n].is_some())
-            })
-            .map(|(i, _)| i)
+            .find(|pin| pin.input && pin.net.is_some_and(|n| point.net_potential[n].is_some()))
+            .map(|pin| pin.pin)
     }
 }
 

@@ -346,7 +346,9 @@ pub fn procedure(checked: &Checked) -> Procedure {
             continue;
         }
         let Some((low, high)) = window(&bench_nominal, |p| {
-            p.pin_voltage[source.part][source.pin].map(|v| v.get::<volt>())
+            p.pin_voltage
+                .get(source.part, source.pin)
+                .map(|v| v.get::<volt>())
         }) else {
             continue;
         };

@@ -227,7 +227,7 @@ pub fn budget(checked: &Checked) -> Budget {
         let PinRef { part, pin } = source;
         let typical =
             |s: BatteryState| move |p: &OperatingPoint| p.mode == ModeId::TYPICAL && p.battery == s;
-        let at_source = |p: &OperatingPoint| p.pin_voltage[part][pin];
+        let at_source = |p: &OperatingPoint| p.pin_voltage.get(part, pin);
         let current = |p: &OperatingPoint| Some(p.net_current[root]);
         let (peak_current, peak_mode) =
             highest(&points, |_| true, current).unwrap_or((zero_i, ModeId::TYPICAL));

@@ -8,7 +8,7 @@
 use crate::model::{Class, NetId, PartId, PinIndex, PinRef, PinRole, Plan, PortKind};
 use petgraph::stable_graph::{NodeIndex, StableDiGraph};
 use petgraph::unionfind::UnionFind;
-use std::collections::VecDeque;
+use std::collections::{HashMap, VecDeque};
 
 /// Nets joined by `through` pins (fuses, switches, connector contacts).
 #[derive(Clone, Debug, Default)]
@@ -118,6 +118,15 @@ pub struct Circuit {
     /// Per part: its stage in [`flow`](Circuit::flow); `None` for a part that
     /// gives no power on (a load, a battery).
     pub converter_stage: Vec<Option<NodeIndex>>,
+    /// Per part: the USB links it is an end of (host or device), in file
+    /// order, each once.
+    pub part_links: Vec<Vec<usize>>,
+    /// Per net: the motors wired straight across it as their supply
+    /// ([`MotorFeed::Direct`]), in part order.
+    pub direct_motors: Vec<Vec<PartId>>,
+    /// Per driver channel (driver part, channel number): the motors on it,
+    /// in part order.
+    pub channel_motors: HashMap<(PartId, u32), Vec<PartId>>,
 }
 
 impl Circuit {
@@ -212,6 +221,21 @@ impl Circuit {
             node_nets[node_of_net[net]].push(net);
         }
         let rail_order = rail_order(&flow, &nodes);
+        let part_links = part_links(plan);
+        let mut direct_motors = vec![Vec::new(); net_count];
+        let mut channel_motors: HashMap<(PartId, u32), Vec<PartId>> = HashMap::new();
+        for (motor, feed) in motor_feed.iter().enumerate() {
+            match *feed {
+                Some(MotorFeed::Direct { supply, .. }) => direct_motors[supply].push(motor),
+                Some(MotorFeed::Driver { driver, channel }) => {
+                    channel_motors
+                        .entry((driver, channel))
+                        .or_default()
+                        .push(motor);
+                }
+                None => {}
+            }
+        }
 
         Circuit {
             nodes,
@@ -231,6 +255,9 @@ impl Circuit {
             flow,
             rail_stage,
             converter_stage,
+            part_links,
+            direct_motors,
+            channel_motors,
         }
     }
 
@@ -352,6 +379,11 @@ fn ground_groups(
     for link in &plan.links {
         groups.union(own(link.host.0), own(link.device.0));
     }
+    let mut linked = vec![false; plan.parts.len()];
+    for link in &plan.links {
+        linked[link.host.0] = true;
+        linked[link.device.0] = true;
+    }
     let labels = groups.into_labeling();
     let mut grounded = vec![false; labels.len()];
     for (node_id, node) in nodes.iter().enumerate() {
@@ -363,18 +395,25 @@ fn ground_groups(
             grounded[labels[node_id]] = true;
         }
     }
-    let linked = |part: PartId| {
-        plan.links
-            .iter()
-            .any(|l| l.host.0 == part || l.device.0 == part)
-    };
     let group = (0..plan.parts.len())
         .map(|part| {
-            let has_ground = ground_net[part].is_some() || linked(part);
+            let has_ground = ground_net[part].is_some() || linked[part];
             has_ground.then(|| labels[own(part)])
         })
         .collect();
     (group, grounded)
+}
+
+/// Per part: the links it is an end of, in file order, each once.
+fn part_links(plan: &Plan) -> Vec<Vec<usize>> {
+    let mut links = vec![Vec::new(); plan.parts.len()];
+    for (link_id, link) in plan.links.iter().enumerate() {
+        links[link.host.0].push(link_id);
+        if link.device.0 != link.host.0 {
+            links[link.device.0].push(link_id);
+        }
+    }
+    links
 }
 
 fn motor_feeds(
@@ -382,6 +421,25 @@ fn motor_feeds(
     nodes: &[ElectricalNode],
     node_of_net: &[usize],
 ) -> Vec<Option<MotorFeed>> {
+    // Each driver channel by the pair of nets its outputs sit on; the first
+    // driver (in file order) and its first channel win, as a search would.
+    let mut channel_at: HashMap<(NetId, NetId), MotorFeed> = HashMap::new();
+    for (driver_id, driver_part) in plan.parts.iter().enumerate() {
+        let Class::Driver(driver) = &driver_part.class else {
+            continue;
+        };
+        for channel in &driver.channels {
+            let [Some(x), Some(y)] = channel.outputs.map(|p| driver_part.pins[p].net) else {
+                continue;
+            };
+            channel_at
+                .entry((x.min(y), x.max(y)))
+                .or_insert(MotorFeed::Driver {
+                    driver: driver_id,
+                    channel: channel.number,
+                });
+        }
+    }
     plan.parts
         .iter()
         .map(|part| {
@@ -390,19 +448,8 @@ fn motor_feeds(
             }
             let (a, b) = (part.pin("a")?, part.pin("b")?);
             let (na, nb) = (part.pins[a].net?, part.pins[b].net?);
-            for (driver_id, driver_part) in plan.parts.iter().enumerate() {
-                let Class::Driver(driver) = &driver_part.class else {
-                    continue;
-                };
-                for channel in &driver.channels {
-                    let nets = channel.outputs.map(|p| driver_part.pins[p].net);
-                    if nets == [Some(na), Some(nb)] || nets == [Some(nb), Some(na)] {
-                        return Some(MotorFeed::Driver {
-                            driver: driver_id,
-                            channel: channel.number,
-                        });
-                    }
-                }
+            if let Some(&feed) = channel_at.get(&(na.min(nb), na.max(nb))) {
+                return Some(feed);
             }
             let (node_a, node_b) = (&nodes[node_of_net[na]], &nodes[node_of_net[nb]]);
             match (node_a.is_ground(), node_b.is_ground()) {

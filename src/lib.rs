@@ -295,7 +295,14 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         circuit: &circuit,
         analysis: None,
     };
-    let blocking = rules::run(&topology)
+    // Only the two rules that decide it run here; every rule runs below.
+    let mut topology_findings = Vec::new();
+    for id in ["power/short", "power/loop"] {
+        if let Some(rule) = rules::rule(id) {
+            (rule.check)(&topology, &mut topology_findings);
+        }
+    }
+    let blocking = topology_findings
         .iter()
         .any(|f| f.rule == "power/short" || f.rule == "power/loop");
     let analysis = (!blocking).then(|| Analysis::solve(&plan, &circuit));

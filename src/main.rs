@@ -416,9 +416,16 @@ fn plan_name(path: &Path) -> String {
 fn read_bounded(path: &Path) -> Result<Vec<u8>, String> {
     let name = plan_name(path);
     let ceiling = railcheck::MAX_PLAN_BYTES;
-    let too_large = || {
+    // With the size when it is known (a file's length); standard input is
+    // read no further than one byte past the limit.
+    let too_large = |size: Option<u64>| {
+        let size = match size {
+            Some(bytes) => format!("{bytes} bytes"),
+            None => format!("more than {ceiling} bytes"),
+        };
         format!(
-            "{name} is larger than {} MiB, the most railcheck reads; a wiring plan is far smaller",
+            "{name} is larger than {} MiB ({ceiling} bytes), the most railcheck reads: it has \
+             {size}; a wiring plan is far smaller",
             ceiling / (1024 * 1024)
         )
     };
@@ -432,15 +439,16 @@ fn read_bounded(path: &Path) -> Result<Vec<u8>, String> {
             .map_err(cannot)?;
     } else {
         let file = std::fs::File::open(path).map_err(cannot)?;
-        if file.metadata().map_err(cannot)?.len() > ceiling {
-            return Err(too_large());
+        let size = file.metadata().map_err(cannot)?.len();
+        if size > ceiling {
+            return Err(too_large(Some(size)));
         }
         file.take(ceiling + 1)
             .read_to_end(&mut bytes)
             .map_err(cannot)?;
     }
     if bytes.len() as u64 > ceiling {
-        return Err(too_large());
+        return Err(too_large(None));
     }
     Ok(bytes)
 }

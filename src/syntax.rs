@@ -350,16 +350,11 @@ pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
         Ok(raw) => Ok(convert(source, text, &OnceLock::new(), raw)),
         Err(error) => {
             let full = error.to_string();
-            if full.contains("budget breached: Nodes") || full.contains("budget breached: Events") {
+            if let Some(message) = size_limit_message(&full, text) {
                 // A size limit: the position where the count ran out says
                 // nothing about the plan, so the report points at its start.
                 return Err(SyntaxError {
-                    message: format!(
-                        "{TOO_LARGE}: it expands to more than {} YAML nodes, the most \
-                         a file of {} bytes may hold",
-                        node_limit(text.len()),
-                        text.len()
-                    ),
+                    message,
                     span: Span::new(source, 0, 0),
                 });
             }
@@ -380,6 +375,38 @@ pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
             })
         }
     }
+}
+
+/// The message for a reader limit on the size of what a text expands to
+/// (nodes, events, aliases and what they repeat, text of values): the plan
+/// is too large, with the limit and the file's size. `None` for any other
+/// error, nesting depth included (that one has a place in the file).
+fn size_limit_message(error: &str, text: &str) -> Option<String> {
+    let breach = error.split("budget breached: ").nth(1)?;
+    let name = breach.split([' ', '{', '(']).next().unwrap_or("");
+    let budget = reader_options(text).budget.unwrap_or_default();
+    let bytes = text.len();
+    let (limit, what) = match name {
+        "Nodes" => (budget.max_nodes, "YAML nodes"),
+        "Events" => (budget.max_events, "YAML events"),
+        "Aliases" => (budget.max_aliases, "aliases (`*name`)"),
+        "Anchors" => (budget.max_anchors, "anchors (`&name`)"),
+        "RecordedAnchorEvents" => (
+            budget.max_recorded_anchor_events,
+            "YAML events repeated by aliases",
+        ),
+        "RecordedAnchorBytes" => (
+            budget.max_recorded_anchor_bytes,
+            "bytes repeated by aliases",
+        ),
+        "ScalarBytes" => (budget.max_total_scalar_bytes, "bytes of values"),
+        "MergeKeys" => (budget.max_merge_keys, "merge keys (`<<`)"),
+        "Documents" => (budget.max_documents, "YAML documents"),
+        _ => return None,
+    };
+    Some(format!(
+        "{TOO_LARGE}: it expands to more than {limit} {what}, the most a file of {bytes} bytes may hold"
+    ))
 }
 
 /// The reader reports a second document where its content begins; the user

@@ -43,13 +43,14 @@ fn pin(c: &railcheck::Checked, part_name: &str, pin_name: &str) -> (usize, usize
 }
 
 fn volts_in(p: &OperatingPoint, (part, pin): (usize, usize)) -> f64 {
-    p.pin_voltage[part][pin]
+    p.pin_voltage
+        .get(part, pin)
         .expect("pin has a voltage")
         .get::<volt>()
 }
 
 fn amps_in(p: &OperatingPoint, (part, pin): (usize, usize)) -> f64 {
-    p.pin_current[part][pin].get::<ampere>()
+    p.pin_current.get(part, pin).get::<ampere>()
 }
 
 fn close(actual: f64, expected: f64, relative: f64) {

@@ -31,3 +31,78 @@ fn a_thousand_part_plan_reads_and_solves() {
         .collect();
     assert!(errors.is_empty(), "{errors:?}");
 }
+
+/// A plan refused for what its aliases expand to says so, with the limit
+/// and the file's size, and points at the file's start rather than at the
+/// line where the count happened to run out.
+#[test]
+fn an_expanding_plan_is_refused_as_too_large_with_its_limit_and_size() {
+    // Ten values, then seven levels of ten aliases each: 10^8 values from
+    // a file of a few hundred bytes.
+    let mut text = String::from("railcheck: 1\nx0: &a0 [1,1,1,1,1,1,1,1,1,1]\n");
+    for level in 1..8 {
+        let aliases = vec![format!("*a{}", level - 1); 10].join(",");
+        text.push_str(&format!("x{level}: &a{level} [{aliases}]\n"));
+    }
+    let failure = match railcheck::check("aliases.yaml", &text, &Library::builtin()) {
+        Ok(_) => panic!("an expansion of 10^8 values was read"),
+        Err(f) => f,
+    };
+    assert_eq!(failure.errors.len(), 1);
+    let error = &failure.errors[0];
+    assert!(
+        error.message.starts_with("the plan is too large"),
+        "{}",
+        error.message
+    );
+    assert!(
+        error
+            .message
+            .contains(&format!("a file of {} bytes", text.len())),
+        "{}",
+        error.message
+    );
+    assert!(
+        error.message.contains("more than 1000000 "),
+        "{}",
+        error.message
+    );
+    assert_eq!((error.span.start, error.span.end), (0, 0));
+}
+
+/// Operating points solved side by side on several threads are the same,
+/// to the last bit and in the same order, as points solved one after
+/// another: each point depends only on the plan.
+#[test]
+fn points_solved_on_several_threads_match_points_solved_on_one() {
+    use railcheck::analysis::Analysis;
+    use railcheck::graph::Circuit;
+    let library = Library::builtin();
+    let orchard = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/examples/orchard-rover.yaml"
+    ))
+    .expect("the example plan");
+    for text in [generate::plan(400), orchard] {
+        let (_, _, plan) = match railcheck::read("plan.yaml", &text, &library) {
+            Ok(read) => read,
+            Err(f) => panic!("plan has input errors: {:?}", f.errors),
+        };
+        let circuit = Circuit::build(&plan);
+        let serial = Analysis::solve_on(&plan, &circuit, 1);
+        assert_eq!(
+            serial.points.len(),
+            30,
+            "5 modes x 3 battery states x 2 corners"
+        );
+        // Debug output writes each number exactly (shortest round trip).
+        let expected = format!("{:?}", serial.points);
+        for threads in [2, 3, 8] {
+            let parallel = Analysis::solve_on(&plan, &circuit, threads);
+            assert!(
+                format!("{:?}", parallel.points) == expected,
+                "{threads} threads gave other points"
+            );
+        }
+    }
+}

@@ -168,10 +168,10 @@ pub(crate) fn gather(checked: &Checked) -> Content {
             });
         }
         for (port_index, port) in part.ports.iter().enumerate() {
-            let linked = plan
-                .links
-                .iter()
-                .any(|l| l.host == (part_id, port_index) || l.device == (part_id, port_index));
+            let linked = circuit.part_links[part_id].iter().any(|&l| {
+                let l = &plan.links[l];
+                l.host == (part_id, port_index) || l.device == (part_id, port_index)
+            });
             if linked {
                 port_slot[part_id].insert(port_index, pins.len());
                 pins.push(ShownPin {

@@ -262,8 +262,8 @@ pub struct Pin {
     pub current: Option<ElectricCurrent>,
     /// `or: diode`: the source cannot be back-fed.
     pub diode_or: bool,
-    /// The logic levels of a logic pin, as written.
-    pub logic: Option<LogicSpec>,
+    /// The logic levels of a logic pin, as written (boxed: most pins have none).
+    pub logic: Option<Box<LogicSpec>>,
     /// Its net, once nets are read.
     pub net: Option<NetId>,
     /// Where it is named in `nets:`.

@@ -64,6 +64,7 @@ pub fn read_plan(
         refused_parts: HashSet::new(),
         refused_pins: HashSet::new(),
         pin_names: HashMap::new(),
+        loaded: HashMap::new(),
     };
     let plan = reader.plan(root);
     if reader.errors.is_empty() {
@@ -111,6 +112,9 @@ struct Reader<'a> {
     /// Each part's pins by name, built when a net first names one of them:
     /// a net of many pins of one large part is read in linear time.
     pin_names: HashMap<PartId, HashMap<String, PinIndex>>,
+    /// Library parts parsed so far, by id: each file is parsed (and added
+    /// to the sources) once however many parts use it.
+    loaded: HashMap<String, Option<Result<Node, LibraryError>>>,
 }
 
 /// A logic pin's `ref`, resolved once all pins of the part are known.
@@ -528,7 +532,15 @@ impl Reader<'_> {
                 &format!("part `{name}` (a library part)"),
             );
             let id = self.text(use_node, "a library part id")?;
-            let Some(loaded) = self.library.load(&id, self.sources) else {
+            let loaded = match self.loaded.get(&id) {
+                Some(loaded) => loaded.clone(),
+                None => {
+                    let loaded = self.library.load(&id, self.sources);
+                    self.loaded.insert(id.clone(), loaded.clone());
+                    loaded
+                }
+            };
+            let Some(loaded) = loaded else {
                 let hint = match closest(&id, self.library.ids()) {
                     Some(s) => format!("did you mean `{s}`?"),
                     None => "write the part inline with `class:` and `pins:`, or add it with `--parts DIR`".into(),
@@ -834,7 +846,7 @@ impl Reader<'_> {
                     span: r.span,
                 });
             }
-            pin.logic = Some(logic);
+            pin.logic = Some(Box::new(logic));
         }
         Some(pin)
     }

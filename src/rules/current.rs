@@ -8,7 +8,7 @@ use super::{
     worst_point,
 };
 use crate::analysis::OperatingPoint;
-use crate::graph::{MotorFeed, through_pairs};
+use crate::graph::through_pairs;
 use crate::model::{Class, MotorState, NetId, PartId, PinRole, PortKind, Rated};
 use crate::syntax::Span;
 use crate::units::{show_current, show_share};
@@ -135,6 +135,12 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                 if let Some(rating) = driver.channel_current {
                     for channel in &driver.channels {
                         let number = channel.number;
+                        let motors = cx
+                            .circuit
+                            .channel_motors
+                            .get(&(part_id, number))
+                            .cloned()
+                            .unwrap_or_default();
                         paths.push(RatedPath {
                             subject: format!("`{}` channel {number}", part.name),
                             span: channel.span,
@@ -149,14 +155,9 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             // motors running (format reference §6); a stall meets the
                             // peak rating, in `driver/stall`.
                             current: Box::new(move |p| {
-                                let stalled =
-                                    cx.circuit.motor_feed.iter().enumerate().any(|(m, f)| {
-                                        *f == Some(MotorFeed::Driver {
-                                            driver: part_id,
-                                            channel: number,
-                                        }) && p.motors[m]
-                                            .is_some_and(|m| m.state == MotorState::Stall)
-                                    });
+                                let stalled = motors.iter().any(|&m| {
+                                    p.motors[m].is_some_and(|m| m.state == MotorState::Stall)
+                                });
                                 if stalled {
                                     return None;
                                 }
@@ -182,7 +183,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
                             rating: limit,
                             continuous_rating: false,
                             surge: false,
-                            current: Box::new(move |p| Some(p.pin_current[part_id][pin_id])),
+                            current: Box::new(move |p| Some(p.pin_current.get(part_id, pin_id))),
                             carries: Carries::Net(pin.net),
                         });
                     }
@@ -200,12 +201,10 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
             else {
                 continue;
             };
-            let links: Vec<usize> = plan
-                .links
+            let links: Vec<usize> = cx.circuit.part_links[part_id]
                 .iter()
-                .enumerate()
-                .filter(|(_, l)| l.host == (part_id, port_id))
-                .map(|(i, _)| i)
+                .copied()
+                .filter(|&l| plan.links[l].host == (part_id, port_id))
                 .collect();
             if shared {
                 shared_limit = Some(shared_limit.map_or(limit, |s: ElectricCurrent| s.min(limit)));

@@ -2,7 +2,6 @@
 //! channel's peak rating.
 
 use super::{Context, Finding, Rule, RuleDoc, Severity, exceeds, mode_label, worst_point};
-use crate::graph::MotorFeed;
 use crate::model::{Class, MotorState};
 use crate::units::{show_current, show_voltage};
 use uom::si::electric_current::ampere;
@@ -35,19 +34,11 @@ fn check_stall(cx: &Context, out: &mut Vec<Finding>) {
         for channel in &spec.channels {
             let number = channel.number;
             // Motors in parallel on one channel add up (Kirchhoff's current law).
-            let motors: Vec<usize> = cx
+            let motors: &[usize] = cx
                 .circuit
-                .motor_feed
-                .iter()
-                .enumerate()
-                .filter(|(_, f)| {
-                    **f == Some(MotorFeed::Driver {
-                        driver: driver_id,
-                        channel: number,
-                    })
-                })
-                .map(|(m, _)| m)
-                .collect();
+                .channel_motors
+                .get(&(driver_id, number))
+                .map_or(&[], Vec::as_slice);
             let Some(&first) = motors.first() else {
                 continue;
             };
@@ -101,7 +92,7 @@ fn check_stall(cx: &Context, out: &mut Vec<Finding>) {
             .value("stall_current", stall)
             .value("voltage", motor.voltage.get::<uom::si::electric_potential::volt>())
             .value("channel_peak", peak.value.get::<ampere>());
-            for &m in &motors {
+            for &m in motors {
                 finding = finding.part(&plan.parts[m].name);
             }
             out.push(finding.part(&driver_part.name));

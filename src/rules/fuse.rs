@@ -755,30 +755,40 @@ fn brief_peaks(cx: &Context, measure: impl Fn(&OperatingPoint) -> Option<f64>) -
 
 /// The motors whose current runs through `net`: fed straight from a net
 /// below it, or through a driver whose motor supply is below it.
-fn motors_below(cx: &Context, net: NetId) -> Vec<PartId> {
-    let plan = cx.plan;
-    let mut below = vec![false; plan.nets.len()];
+fn motors_below(cx: &Context, by_net: &[Vec<PartId>], net: NetId) -> Vec<PartId> {
+    let mut seen = std::collections::HashSet::new();
+    let mut found = Vec::new();
     let mut stack = vec![net];
     while let Some(n) = stack.pop() {
-        if std::mem::replace(&mut below[n], true) {
+        if !seen.insert(n) {
             continue;
         }
+        found.extend(by_net[n].iter().copied());
         stack.extend(cx.circuit.children[n].iter().copied());
     }
-    cx.circuit
-        .motor_feed
-        .iter()
-        .enumerate()
-        .filter(|(_, feed)| match feed {
-            Some(MotorFeed::Direct { supply, .. }) => below[*supply],
+    found.sort_unstable();
+    found.dedup();
+    found
+}
+
+/// Per net: the motors whose current enters the supply tree there — wired
+/// straight across it, or through a driver whose motor supply is on it.
+fn motors_by_net(cx: &Context) -> Vec<Vec<PartId>> {
+    let plan = cx.plan;
+    let mut by_net = vec![Vec::new(); plan.nets.len()];
+    for (motor, feed) in cx.circuit.motor_feed.iter().enumerate() {
+        let net = match feed {
+            Some(MotorFeed::Direct { supply, .. }) => Some(*supply),
             Some(MotorFeed::Driver { driver, .. }) => plan.parts[*driver]
                 .pin("vm")
-                .and_then(|p| plan.parts[*driver].pins[p].net)
-                .is_some_and(|n| below[n]),
-            None => false,
-        })
-        .map(|(m, _)| m)
-        .collect()
+                .and_then(|p| plan.parts[*driver].pins[p].net),
+            None => None,
+        };
+        if let Some(net) = net {
+            by_net[net].push(motor);
+        }
+    }
+    by_net
 }
 
 // ----- fuse/missing ----------------------------------------------------------
@@ -1250,6 +1260,7 @@ fn check_voltage(cx: &Context, out: &mut Vec<Finding>) {
 // ----- fuse/nuisance ---------------------------------------------------------
 
 fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
+    let by_net = motors_by_net(cx);
     for fuse in fuses(cx) {
         let (Some(rating), Some(net)) = (fuse.spec.rating, fuse.downstream) else {
             continue;
@@ -1265,7 +1276,7 @@ fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
             continue;
         }
         let speed = fuse.spec.speed;
-        let motors = motors_below(cx, net);
+        let motors = motors_below(cx, &by_net, net);
         // Name the motors behind this fuse that stall at the point; with
         // none, the peak is a load's, not a motor start.
         let cause = |point: &OperatingPoint| {

@@ -242,10 +242,9 @@ fn ground_at(
     if cx.circuit.ground_net[part].is_some() {
         return own(part);
     }
-    cx.plan
-        .links
+    cx.circuit.part_links[part]
         .iter()
-        .enumerate()
+        .map(|&link_id| (link_id, &cx.plan.links[link_id]))
         .find_map(|(link_id, link)| {
             let drop = usb_link_resistance(cx.plan, link_id)
                 .map_or(ElectricPotential::new::<volt>(0.0), |r| {

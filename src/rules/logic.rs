@@ -41,7 +41,7 @@ pub const OVERVOLTAGE: Rule = Rule {
         references: "Input ceiling VDD + 0.3 V: JEDEC JESD8 recommended input range (taking it as the absolute maximum of a pin that is not 5 V-tolerant is common practice); 5 V-tolerant meaning up to 5.5 V is common practice (worked example: 5.0 V > 3.3 + 0.3 = 3.6 V).",
     },
     needs_operating_point: true,
-    check: check_overvoltage,
+    check: check_levels,
 };
 
 pub const HIGH_MARGIN: Rule = Rule {
@@ -56,7 +56,8 @@ pub const HIGH_MARGIN: Rule = Rule {
         references: "Family levels: format reference §3 table (JEDEC JESD8C LVCMOS/LVTTL, JESD8-5, JESD8-7, JESD7 HC, 54/74 TTL); NMH = VOH(min) − VIH(min), evaluated at the driver's minimum VDD (JEDEC JESD8C worked example: LVCMOS at 3.0 V into a 5 V HC input, 2.80 V − 3.50 V = −0.70 V).",
     },
     needs_operating_point: true,
-    check: check_high_margin,
+    // Decided with the other level rules in `check_levels`.
+    check: |_, _| {},
 };
 
 pub const LOW_MARGIN: Rule = Rule {
@@ -71,7 +72,8 @@ pub const LOW_MARGIN: Rule = Rule {
         references: "Family levels: format reference §3 table (JEDEC JESD8C, JESD8-5, JESD8-7, JESD7, 54/74 TTL); NML = VIL(max) − VOL(max), the noise-margin definition.",
     },
     needs_operating_point: true,
-    check: check_low_margin,
+    // Decided with the other level rules in `check_levels`.
+    check: |_, _| {},
 };
 
 pub const CONTENTION: Rule = Rule {
@@ -191,7 +193,7 @@ struct Rail<'p> {
     low: AtPoint<'p>,
     high: AtPoint<'p>,
     /// The supply pin or net it is read at; `None` for a nominal VDD.
-    named: Option<String>,
+    named: Option<RailName>,
     /// It is the same in every mode at each battery state and tolerance
     /// corner (a regulated rail): a finding on it names no mode.
     mode_free: bool,
@@ -231,7 +233,7 @@ impl<'p> Rail<'p> {
     fn from_samples(
         id: Option<RailId>,
         samples: Vec<AtPoint<'p>>,
-        named: Option<String>,
+        named: Option<RailName>,
     ) -> Option<Rail<'p>> {
         let first = *samples.first()?;
         // The same at each battery state and corner whatever the mode; the
@@ -284,18 +286,94 @@ impl<'p> Rail<'p> {
             .find(|s| s.point.is_some_and(|p| std::ptr::eq(p, point)))
             .copied()
     }
+}
 
-    fn vdd_text(&self, vdd: ElectricPotential) -> String {
-        match &self.named {
-            Some(pin) => format!("VDD = {} at {pin}", show_voltage(vdd)),
-            None => format!("VDD = {}, the family's nominal", show_voltage(vdd)),
+/// Where a rail is read, named in messages only when a finding fires.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum RailName {
+    /// A supply pin (a `ref`).
+    Pin(PinRef),
+    /// A net (a pull-up's far end, or a rail an input is tied to).
+    Net(NetId),
+}
+
+impl RailName {
+    fn text(self, cx: &Context) -> String {
+        match self {
+            RailName::Pin(pin) => format!("`{}`", cx.pin_name(pin)),
+            RailName::Net(net) => format!("`{}`", cx.net_name(net)),
         }
     }
+}
 
-    fn highest_text(&self) -> String {
-        match &self.named {
-            Some(name) => format!("{name} at its highest"),
-            None => "the family's nominal VDD".to_string(),
+fn vdd_text(cx: &Context, named: Option<RailName>, vdd: ElectricPotential) -> String {
+    match named {
+        Some(pin) => format!("VDD = {} at {}", show_voltage(vdd), pin.text(cx)),
+        None => format!("VDD = {}, the family's nominal", show_voltage(vdd)),
+    }
+}
+
+/// How a level was worked out. Kept as data and written out only for a
+/// finding, so comparisons that pass cost no text.
+#[derive(Clone, Copy, Debug)]
+enum Basis {
+    /// A level the plan writes (`voh`, `vil`, `max`, ...).
+    Written(&'static str),
+    /// A family's fixed level.
+    Family { name: &'static str, scale: Scale },
+    /// A family's level that follows VDD, at `vdd` on the rail `named`.
+    FamilyAt {
+        name: &'static str,
+        scale: Scale,
+        vdd: ElectricPotential,
+        named: Option<RailName>,
+    },
+    /// A rail at its highest.
+    Highest(Option<RailName>),
+    /// An open-drain output pulled up by a resistor to a rail at its lowest.
+    OpenDrain {
+        resistor: PartId,
+        named: Option<RailName>,
+    },
+    /// The ceiling VDD + 0.3 V at `vdd`.
+    AboveRail {
+        vdd: ElectricPotential,
+        named: Option<RailName>,
+    },
+    /// A `tolerant:` rating, taken with its headroom.
+    Tolerant(ElectricPotential),
+}
+
+impl Basis {
+    fn text(self, cx: &Context) -> String {
+        match self {
+            Basis::Written(key) => format!("written `{key}`"),
+            Basis::Family { name, scale } => format!("{name}: {}", scale.formula()),
+            Basis::FamilyAt {
+                name,
+                scale,
+                vdd,
+                named,
+            } => format!(
+                "{name}: {} with {}",
+                scale.formula(),
+                vdd_text(cx, named, vdd)
+            ),
+            Basis::Highest(Some(name)) => format!("{} at its highest", name.text(cx)),
+            Basis::Highest(None) => "the family's nominal VDD".to_string(),
+            Basis::OpenDrain { resistor, named } => format!(
+                "open drain pulled up by `{}` to {} at its lowest",
+                cx.part_name(resistor),
+                named.map(|n| n.text(cx)).unwrap_or_default()
+            ),
+            Basis::AboveRail { vdd, named } => {
+                format!("VDD + 0.3 V with {}", vdd_text(cx, named, vdd))
+            }
+            Basis::Tolerant(t) => format!(
+                "`tolerant: {}`, taken as up to {}",
+                show_voltage(t),
+                show_voltage(t * TOLERANT_HEADROOM)
+            ),
         }
     }
 }
@@ -304,15 +382,15 @@ impl<'p> Rail<'p> {
 #[derive(Clone)]
 struct Level<'p> {
     value: ElectricPotential,
-    basis: String,
+    basis: Basis,
     point: Option<&'p OperatingPoint>,
 }
 
 impl<'p> Level<'p> {
-    fn written(value: ElectricPotential, key: &str) -> Level<'p> {
+    fn written(value: ElectricPotential, key: &'static str) -> Level<'p> {
         Level {
             value,
-            basis: format!("written `{key}`"),
+            basis: Basis::Written(key),
             point: None,
         }
     }
@@ -328,17 +406,18 @@ impl<'p> Level<'p> {
         if !scale.follows_vdd() {
             return Level {
                 value: scale.at(at.voltage),
-                basis: format!("{name}: {}", scale.formula()),
+                basis: Basis::Family { name, scale },
                 point: None,
             };
         }
         Level {
             value: scale.at(at.voltage),
-            basis: format!(
-                "{name}: {} with {}",
-                scale.formula(),
-                rail.vdd_text(at.voltage)
-            ),
+            basis: Basis::FamilyAt {
+                name,
+                scale,
+                vdd: at.voltage,
+                named: rail.named,
+            },
             point: at.point,
         }
     }
@@ -357,8 +436,11 @@ fn powered(cx: &Context, point: &OperatingPoint, part: PartId) -> bool {
         .pins
         .iter()
         .enumerate()
-        .any(|(i, p)| p.role == PinRole::SupplyIn && point.pin_voltage[part][i].is_some());
-    fed_input || cx.plan.links.iter().any(|l| l.device.0 == part)
+        .any(|(i, p)| p.role == PinRole::SupplyIn && point.pin_voltage.get(part, i).is_some());
+    fed_input
+        || cx.circuit.part_links[part]
+            .iter()
+            .any(|&l| cx.plan.links[l].device.0 == part)
 }
 
 /// The voltage a supply pin gives its part's logic, above the part's ground.
@@ -371,7 +453,7 @@ pub(super) fn supply_voltage(
     part: PartId,
     pin: usize,
 ) -> Option<ElectricPotential> {
-    if let Some(value) = point.pin_voltage[part][pin] {
+    if let Some(value) = point.pin_voltage.get(part, pin) {
         return Some(value);
     }
     let spec = &cx.plan.parts[part].pins[pin];
@@ -449,7 +531,7 @@ fn pin_rail<'p>(cx: &'p Context, pin: PinRef, spec: &LogicSpec) -> PinRail<'p> {
                 _ => vdd,
             })
         });
-        let named = Some(format!("`{}`", cx.pin_name(supply)));
+        let named = Some(RailName::Pin(supply));
         return match Rail::from_samples(Some(id), samples, named) {
             Some(rail) => PinRail::Known(rail),
             None => PinRail::Unfed,
@@ -470,7 +552,7 @@ fn net_rail<'p>(cx: &'p Context, net: NetId, receiver: PartId) -> Option<Rail<'p
     Rail::from_samples(
         Some(RailId::Node(cx.circuit.node_of_net[net])),
         samples,
-        Some(format!("`{}`", cx.net_name(net))),
+        Some(RailName::Net(net)),
     )
 }
 
@@ -594,7 +676,8 @@ fn role_of(cx: &Context, pin: PinRef) -> PinRole {
 fn logic_of(cx: &Context, pin: PinRef) -> LogicSpec {
     cx.plan.parts[pin.part].pins[pin.pin]
         .logic
-        .clone()
+        .as_deref()
+        .cloned()
         .unwrap_or_default()
 }
 
@@ -664,6 +747,7 @@ fn driver_side<'p>(
 }
 
 /// What a source can put on the signal, as seen by one receiver.
+#[derive(Clone)]
 struct Drive<'p> {
     source: Source,
     voh: Option<Level<'p>>,
@@ -681,7 +765,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
         // A pull-up or a tie only sets the highest level.
         let highest = side.rail.as_ref().zip(ends).map(|(rail, (_, high))| Level {
             value: high.voltage,
-            basis: rail.highest_text(),
+            basis: Basis::Highest(rail.named),
             point: high.point,
         });
         return Drive {
@@ -706,11 +790,10 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
                 .zip(side.pulled_by)
                 .map(|((rail, (low, _)), resistor)| Level {
                     value: low.voltage,
-                    basis: format!(
-                        "open drain pulled up by `{}` to {} at its lowest",
-                        cx.part_name(resistor),
-                        rail.named.clone().unwrap_or_default()
-                    ),
+                    basis: Basis::OpenDrain {
+                        resistor,
+                        named: rail.named,
+                    },
                     point: low.point,
                 });
         return Drive {
@@ -722,7 +805,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
         };
     }
     let from_family = |written: Option<ElectricPotential>,
-                       key: &str,
+                       key: &'static str,
                        pick: fn(&FamilyLevels) -> Scale,
                        at: fn(RailEnds<'p>) -> AtPoint<'p>| {
         if let Some(value) = written {
@@ -737,7 +820,7 @@ fn drive<'p>(cx: &Context, side: &DriverSide<'p>, ends: Option<RailEnds<'p>>) ->
     let highest = match side.rail.as_ref().zip(ends) {
         Some((rail, (_, high))) => Some(Level {
             value: high.voltage,
-            basis: rail.highest_text(),
+            basis: Basis::Highest(rail.named),
             point: high.point,
         }),
         // With no rail known, the written high level is the least it reaches.
@@ -771,6 +854,7 @@ fn receiver_side<'p>(cx: &'p Context, pin: PinRef) -> Option<ReceiverSide<'p>> {
 }
 
 /// What a receiver accepts.
+#[derive(Clone)]
 struct Sense<'p> {
     pin: PinRef,
     vih: Option<Level<'p>>,
@@ -785,7 +869,7 @@ fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
     let family = spec.family.map(|f| (f, f.levels()));
     let rail = side.rail.as_ref().zip(ends);
     let threshold = |written: Option<ElectricPotential>,
-                     key: &str,
+                     key: &'static str,
                      pick: fn(&FamilyLevels) -> Scale,
                      at: fn(RailEnds<'p>) -> AtPoint<'p>| {
         if let Some(value) = written {
@@ -799,16 +883,15 @@ fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
     let vil = threshold(spec.vil, "vil", |l| l.vil, |(low, _)| low);
     let above_rail = rail.map(|(rail, (low, _))| Level {
         value: low.voltage + ceiling_above_vdd(),
-        basis: format!("VDD + 0.3 V with {}", rail.vdd_text(low.voltage)),
+        basis: Basis::AboveRail {
+            vdd: low.voltage,
+            named: rail.named,
+        },
         point: low.point,
     });
     let tolerant = spec.tolerant.map(|t| Level {
         value: t * TOLERANT_HEADROOM,
-        basis: format!(
-            "`tolerant: {}`, taken as up to {}",
-            show_voltage(t),
-            show_voltage(t * TOLERANT_HEADROOM)
-        ),
+        basis: Basis::Tolerant(t),
         point: None,
     });
     let ceiling = match (side.max, tolerant, above_rail) {
@@ -825,6 +908,7 @@ fn sense<'p>(side: &ReceiverSide<'p>, ends: Option<RailEnds<'p>>) -> Sense<'p> {
 }
 
 /// One comparison of a driver and a receiver, with its verdict.
+#[derive(Clone)]
 struct Link<'p> {
     drive: Drive<'p>,
     sense: Sense<'p>,
@@ -908,7 +992,7 @@ fn shares_ground(cx: &Context, pins: &[PinRef]) -> bool {
 /// Every driver–receiver pair, each with its comparisons, grouped by signal
 /// (and, for inputs wired straight onto a rail, by that rail's net): a rule
 /// reports each group once, however many pairs in it fail.
-fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Vec<Link<'p>>>> {
+fn pairs<'p>(cx: &'p Context) -> Vec<Vec<PairWorst<'p>>> {
     let mut groups = Vec::new();
     for signal in signals(cx) {
         if !shares_ground(cx, &signal.pins) {
@@ -937,7 +1021,7 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Vec<Link<'p>>>> {
                 .collect();
             for source in sources {
                 if let Some(driving) = driver_side(cx, source, &signal.pull_ups, receiver.part) {
-                    found.push(compare(cx, &driving, &receiving, net));
+                    push_pair(&mut found, compare(cx, &driving, &receiving, net));
                 }
             }
         }
@@ -960,7 +1044,7 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<Vec<Link<'p>>>> {
             ) else {
                 continue;
             };
-            found.push(compare(cx, &driving, &receiving, net_id));
+            push_pair(&mut found, compare(cx, &driving, &receiving, net_id));
         }
         groups.push(found);
     }
@@ -984,6 +1068,43 @@ fn worst<'a, 'p>(
     found.map(|(link, _)| link)
 }
 
+/// A pair's worst comparison for each level rule (`None` where it passes):
+/// all the rules read of a pair, so the other comparisons are not kept.
+type PairWorst<'p> = [Option<Link<'p>>; 3];
+
+/// Where each level rule's comparison sits in a [`PairWorst`].
+const OVER: usize = 0;
+const HIGH: usize = 1;
+const LOW: usize = 2;
+
+/// How far a comparison is over the receiver's ceiling, when it is.
+fn over_badness(l: &Link) -> Option<f64> {
+    let (high, ceiling) = (l.drive.highest.as_ref()?, l.sense.ceiling.as_ref()?);
+    l.verdict
+        .over_ceiling
+        .then(|| v(high.value) - v(ceiling.value))
+}
+
+/// How far a failing high level falls short.
+fn high_badness(l: &Link) -> Option<f64> {
+    l.verdict.high_fails.then_some(-v(l.verdict.high_margin?))
+}
+
+/// How far a failing low level falls short.
+fn low_badness(l: &Link) -> Option<f64> {
+    l.verdict.low_fails.then_some(-v(l.verdict.low_margin?))
+}
+
+/// Keeps a pair's worst comparison for each rule, and the pair only when
+/// some rule fails it.
+fn push_pair<'p>(found: &mut Vec<PairWorst<'p>>, comparisons: Vec<Link<'p>>) {
+    let pick = |badness: fn(&Link) -> Option<f64>| worst(&comparisons, badness).cloned();
+    let kept = [pick(over_badness), pick(high_badness), pick(low_badness)];
+    if kept.iter().any(Option::is_some) {
+        found.push(kept);
+    }
+}
+
 /// The failing pairs of one group: each pair's worst comparison, and the
 /// worst of them all, which the finding is written from.
 struct Failures<'a, 'p> {
@@ -992,12 +1113,13 @@ struct Failures<'a, 'p> {
 }
 
 fn failures<'a, 'p>(
-    group: &'a [Vec<Link<'p>>],
-    badness: impl Fn(&Link) -> Option<f64>,
+    group: &'a [PairWorst<'p>],
+    rule: usize,
+    badness: fn(&Link) -> Option<f64>,
 ) -> Option<Failures<'a, 'p>> {
     let pairs: Vec<&Link> = group
         .iter()
-        .filter_map(|pair| worst(pair, &badness))
+        .filter_map(|pair| pair[rule].as_ref())
         .collect();
     let mut found: Option<(&Link, f64)> = None;
     for &link in &pairs {
@@ -1173,14 +1295,18 @@ fn at_text(cx: &Context, point: Option<&OperatingPoint>, link: &Link) -> String 
     })
 }
 
-fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
-    for group in pairs(cx) {
-        let Some(failed) = failures(&group, |l| {
-            let (high, ceiling) = (l.drive.highest.as_ref()?, l.sense.ceiling.as_ref()?);
-            l.verdict
-                .over_ceiling
-                .then(|| v(high.value) - v(ceiling.value))
-        }) else {
+/// The three level rules (`logic/overvoltage`, `logic/high-margin`,
+/// `logic/low-margin`) over one set of driver–receiver pairs, worked out once.
+fn check_levels(cx: &Context, out: &mut Vec<Finding>) {
+    let groups = pairs(cx);
+    check_overvoltage(cx, &groups, out);
+    check_high_margin(cx, &groups, out);
+    check_low_margin(cx, &groups, out);
+}
+
+fn check_overvoltage(cx: &Context, groups: &[Vec<PairWorst>], out: &mut Vec<Finding>) {
+    for group in groups {
+        let Some(failed) = failures(group, OVER, over_badness) else {
             continue;
         };
         let link = failed.worst;
@@ -1195,15 +1321,15 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
                 "`{receiver}` is wired straight to rail `{}`, which reaches {shown}{}, above its {limit} input ceiling ({})",
                 cx.net_name(net),
                 at_text(cx, point, link),
-                ceiling.basis,
+                ceiling.basis.text(cx),
             ),
             _ => format!(
                 "{} takes `{}` up to {shown} ({}){}, above the {limit} input ceiling of `{receiver}` ({})",
                 link.driver_name(cx),
                 cx.net_name(link.net),
-                high.basis,
+                high.basis.text(cx),
                 at_text(cx, point, link),
-                ceiling.basis,
+                ceiling.basis.text(cx),
             ),
         };
         let margins = link.margins_text();
@@ -1218,11 +1344,9 @@ fn check_overvoltage(cx: &Context, out: &mut Vec<Finding>) {
     }
 }
 
-fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
-    for group in pairs(cx) {
-        let Some(failed) = failures(&group, |l| {
-            l.verdict.high_fails.then_some(-v(l.verdict.high_margin?))
-        }) else {
+fn check_high_margin(cx: &Context, groups: &[Vec<PairWorst>], out: &mut Vec<Finding>) {
+    for group in groups {
+        let Some(failed) = failures(group, HIGH, high_badness) else {
             continue;
         };
         let link = failed.worst;
@@ -1235,10 +1359,10 @@ fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
             "{} drives `{}` high to as little as {shown} ({}){}, below the {limit} `{}` needs to read a high ({}): {}{}",
             link.driver_name(cx),
             cx.net_name(link.net),
-            voh.basis,
+            voh.basis.text(cx),
             at_text(cx, point, link),
             cx.pin_name(link.sense.pin),
-            vih.basis,
+            vih.basis.text(cx),
             link.margins_text(),
             failed.in_all_text(cx),
         );
@@ -1249,11 +1373,9 @@ fn check_high_margin(cx: &Context, out: &mut Vec<Finding>) {
     }
 }
 
-fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
-    for group in pairs(cx) {
-        let Some(failed) = failures(&group, |l| {
-            l.verdict.low_fails.then_some(-v(l.verdict.low_margin?))
-        }) else {
+fn check_low_margin(cx: &Context, groups: &[Vec<PairWorst>], out: &mut Vec<Finding>) {
+    for group in groups {
+        let Some(failed) = failures(group, LOW, low_badness) else {
             continue;
         };
         let link = failed.worst;
@@ -1266,9 +1388,9 @@ fn check_low_margin(cx: &Context, out: &mut Vec<Finding>) {
             "{} drives `{}` low to as much as {shown} ({}), above the {limit} `{}` still reads as a low ({}){}: {}{}",
             link.driver_name(cx),
             cx.net_name(link.net),
-            vol.basis,
+            vol.basis.text(cx),
             cx.pin_name(link.sense.pin),
-            vil.basis,
+            vil.basis.text(cx),
             at_text(cx, point, link),
             link.margins_text(),
             failed.in_all_text(cx),

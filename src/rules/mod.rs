@@ -27,7 +27,7 @@ pub use fuse::minimum_rating;
 pub use unit::{Reading, Unit, declared_unit};
 
 use crate::analysis::{Analysis, BatteryState, ModeId, OperatingPoint};
-use crate::graph::{Circuit, MotorFeed};
+use crate::graph::Circuit;
 use crate::model::{NetId, PartId, PinRef, PinRole, Plan};
 use crate::syntax::Span;
 use std::collections::BTreeMap;
@@ -207,16 +207,13 @@ impl Context<'_> {
         while let Some(n) = stack.pop() {
             for &pin_ref in &plan.nets[n].pins {
                 let pin = &plan.parts[pin_ref.part].pins[pin_ref.pin];
-                let current = point.pin_current[pin_ref.part][pin_ref.pin];
+                let current = point.pin_current.get(pin_ref.part, pin_ref.pin);
                 if pin.role == PinRole::SupplyIn && current.get::<ampere>() > 0.0 {
                     loads.push((format!("`{}`", self.pin_name(pin_ref)), current));
                 }
             }
-            for (motor, feed) in self.circuit.motor_feed.iter().enumerate() {
-                if let Some(MotorFeed::Direct { supply, .. }) = feed
-                    && *supply == n
-                    && let Some(m) = point.motors[motor]
-                {
+            for &motor in &self.circuit.direct_motors[n] {
+                if let Some(m) = point.motors[motor] {
                     loads.push((format!("`{}`", plan.parts[motor].name), m.current));
                 }
             }

@@ -165,7 +165,8 @@ fn check_unfed(cx: &Context, out: &mut Vec<Finding>) {
         if supply_ins.is_empty() {
             continue;
         }
-        let powered_by_cable = plan.links.iter().any(|l| {
+        let powered_by_cable = cx.circuit.part_links[part_id].iter().any(|&l| {
+            let l = &plan.links[l];
             l.device.0 == part_id
                 && matches!(part.ports[l.device.1].kind, PortKind::UsbDevice { .. })
         });

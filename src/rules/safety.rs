@@ -122,7 +122,8 @@ fn unstopped_part(cx: &Context, part: PartId, visited: &mut Vec<PartId>) -> Opti
         }
     }
     // A part powered through a USB cable: its host feeds it.
-    for link in plan.links.iter().filter(|l| l.device.0 == part) {
+    let links = cx.circuit.part_links[part].iter().map(|&l| &plan.links[l]);
+    for link in links.filter(|l| l.device.0 == part) {
         if let Some(found) = unstopped_part(cx, link.host.0, visited) {
             return Some(found);
         }

@@ -149,7 +149,7 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
     for pin_ref in supply_inputs(cx) {
         let pin = &cx.plan.parts[pin_ref.part].pins[pin_ref.pin];
         let Some((point, highest)) = worst_point(cx.points(), |p| {
-            p.pin_voltage[pin_ref.part][pin_ref.pin].map(volts)
+            p.pin_voltage.get(pin_ref.part, pin_ref.pin).map(volts)
         }) else {
             continue;
         };
@@ -243,7 +243,9 @@ fn check_under(cx: &Context, out: &mut Vec<Finding>) {
         let Some(range) = pin.range else { continue };
         let lowest_where = |keep: fn(BatteryState) -> bool| {
             worst_point(cx.points().filter(|p| keep(p.battery)), |p| {
-                p.pin_voltage[pin_ref.part][pin_ref.pin].map(|v| -volts(v))
+                p.pin_voltage
+                    .get(pin_ref.part, pin_ref.pin)
+                    .map(|v| -volts(v))
             })
             .filter(|(_, negated)| falls_below(-negated, volts(range.min)))
         };

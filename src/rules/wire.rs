@@ -324,7 +324,7 @@ fn wiring_drop(
     load: &Load,
 ) -> Option<WiringDrop> {
     point.net_potential[load.supply]?;
-    let source_voltage = point.pin_voltage[load.source.part][load.source.pin]?;
+    let source_voltage = point.pin_voltage.get(load.source.part, load.source.pin)?;
     let (supply, supply_nets) = path_drop(cx, resistance, point, load.supply);
     // The return side counts from the source's own ground: a regulator's
     // load sharing its ground net loses nothing there, whatever the battery
@@ -419,7 +419,7 @@ fn loads(cx: &Context) -> Vec<Load> {
 fn load_current(point: &OperatingPoint, load: &Load) -> ElectricCurrent {
     match point.motors[load.pin.part] {
         Some(motor) => motor.current,
-        None => point.pin_current[load.pin.part][load.pin.pin],
+        None => point.pin_current.get(load.pin.part, load.pin.pin),
     }
 }
 
@@ -497,7 +497,7 @@ fn supply_of(cx: &Context, point: &OperatingPoint, part: PartId) -> Option<Elect
     let (pin, _) = cx.plan.parts[part]
         .pins_with_role(PinRole::SupplyIn)
         .find(|(_, pin)| pin.net.is_some_and(|n| point.net_potential[n].is_some()))?;
-    point.pin_voltage[part][pin]
+    point.pin_voltage.get(part, pin)
 }
 
 fn check_cable_drop(cx: &Context, out: &mut Vec<Finding>) {

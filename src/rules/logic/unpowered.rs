@@ -238,7 +238,7 @@ fn finding(cx: &Context, back: &Back) -> Option<Finding> {
         if inputs.len() == 1 { "is" } else { "are" },
         super::joined(&drivers),
         show_voltage(level.value),
-        level.basis,
+        level.basis.text(cx),
         mode_label(cx.plan, point.mode, point.battery),
         show_voltage(*limit),
     );

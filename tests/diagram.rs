@@ -427,7 +427,7 @@ nets:
         vec![
             "BATT+",
             "8.99 V–12.6 V",
-            "400 mA typ / 600 mA peak",
+            "400 mA typical / 600 mA peak",
             "18 AWG · 1 m"
         ]
     );
@@ -575,6 +575,33 @@ fn every_finding_is_numbered_marked_and_listed() {
             );
         }
     }
+    // Each finding's fix is printed under its message, so the printed notes
+    // say what to change, not only what is wrong.
+    let fixes: String = panel
+        .descendants()
+        .filter(|n| has_class(n, "panel-fix"))
+        .map(|n| text_of(&n))
+        .collect::<Vec<_>>()
+        .join(" ");
+    for finding in &checked.findings {
+        let help = finding
+            .help
+            .as_deref()
+            .expect("every rule here suggests a fix");
+        let first_words: String = help
+            .replace('`', "")
+            .split(' ')
+            .take(4)
+            .collect::<Vec<_>>()
+            .join(" ");
+        assert!(
+            fixes.contains(&first_words),
+            "fix {first_words:?} of {} missing",
+            finding.rule
+        );
+    }
+    // No terminal markup reaches the paper.
+    assert!(!panel_texts(&doc).contains('`'));
     let severities: std::collections::BTreeSet<_> =
         checked.findings.iter().map(|f| f.severity).collect();
     assert!(severities.len() >= 2, "{severities:?}");
@@ -748,6 +775,46 @@ fn title_block_and_cautions() {
         footer.contains("Lithium"),
         "a lipo pack needs the lithium caution"
     );
+}
+
+fn panel_texts(doc: &Document) -> String {
+    doc.descendants()
+        .filter(|n| has_class(n, "findings-panel"))
+        .flat_map(|g| g.descendants().filter(|n| n.has_tag_name("text")))
+        .map(|n| text_of(&n))
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+#[test]
+fn boxes_name_their_library_part_and_the_title_block_its_revision() {
+    // The rover's plan gives revision D, its date and its author; its pack is
+    // `use: battery/lipo-3s` (examples/orchard-rover.yaml).
+    let svg = rover_svg();
+    let doc = Document::parse(&svg).unwrap();
+    let title: String = doc
+        .descendants()
+        .filter(|n| has_class(n, "title"))
+        .map(|n| text_of(&n))
+        .collect::<Vec<_>>()
+        .join(" ");
+    assert!(
+        title.contains("revision D · dated 2026-11-20 · drawn by Orchard robotics group"),
+        "{title}"
+    );
+    let pack = doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("pack"))
+        .unwrap();
+    let lines: Vec<String> = pack
+        .descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| text_of(&n))
+        .collect();
+    assert_eq!(&lines[..2], ["pack", "battery/lipo-3s"], "{lines:?}");
+    // A plan without those fields prints no empty record line.
+    let chain = draw("chain.yaml", CHAIN);
+    assert!(!chain.contains("revision") && !chain.contains("drawn by"));
 }
 
 fn rover_svg() -> String {

@@ -39,6 +39,10 @@ pub(crate) struct Content {
 pub(crate) struct Heading {
     pub name: String,
     pub file: String,
+    /// Revision, date and author, as the plan gives them.
+    pub revision: Option<String>,
+    pub date: Option<String>,
+    pub author: Option<String>,
     pub summary: String,
     /// False when shorts or power loops kept the operating point from being solved.
     pub solved: bool,
@@ -50,6 +54,8 @@ pub(crate) struct PartBox {
     /// The name as shown (long names are cut).
     pub name: String,
     pub class: String,
+    /// The library part it was made from (its `use:`).
+    pub library: Option<String>,
     pub rating: Option<String>,
     pub stage: Stage,
     pub pins: Vec<ShownPin>,
@@ -121,6 +127,8 @@ pub(crate) struct Marker {
 pub(crate) struct Listed {
     pub marker: Marker,
     pub text: String,
+    /// How to fix it, when the rule suggests a fix.
+    pub fix: Option<String>,
 }
 
 pub(crate) fn gather(checked: &Checked) -> Content {
@@ -185,6 +193,10 @@ pub(crate) fn gather(checked: &Checked) -> Content {
             id: clean(&part.name),
             name: truncate(&clean(&part.name), NAME_CELLS),
             class: part.kind_name().to_string(),
+            library: part
+                .library_id
+                .as_deref()
+                .map(|id| truncate(&clean(id), NAME_CELLS)),
             rating: rating(plan, part_id).map(|r| truncate(&r, LINE_CELLS)),
             stage: stage(&part.class),
             pins,
@@ -323,6 +335,9 @@ pub(crate) fn gather(checked: &Checked) -> Content {
         heading: Heading {
             name,
             file,
+            revision: plan.revision.as_deref().map(clean),
+            date: plan.date.as_deref().map(clean),
+            author: plan.author.as_deref().map(clean),
             summary: Summary::of(&checked.findings).line(),
             solved: checked.analysis.is_some(),
         },
@@ -371,10 +386,20 @@ fn number_findings(checked: &Checked) -> (Vec<Listed>, Markers, BTreeMap<NetId, 
         }
         listed.push(Listed {
             marker,
-            text: clean(&format!("{}: {}", finding.rule, finding.message)),
+            text: clean(&plain_words(&format!(
+                "{}: {}",
+                finding.rule, finding.message
+            ))),
+            fix: finding.help.as_deref().map(|h| clean(&plain_words(h))),
         });
     }
     (listed, part_markers, net_markers)
+}
+
+/// Message text as the drawing prints it: the backticks that mark names in
+/// the terminal report are dropped (the names stay).
+fn plain_words(text: &str) -> String {
+    text.replace('`', "")
 }
 
 /// How a net is drawn; `None` for a ground net (symbols, no line). A node
@@ -559,7 +584,8 @@ fn rating(plan: &Plan, part_id: PartId) -> Option<String> {
             s
         }
         Class::Driver(d) => {
-            let mut s = format!("{} ch", d.channels.len());
+            let channels = d.channels.len();
+            let mut s = format!("{channels} channel{}", if channels == 1 { "" } else { "s" });
             if let Some(current) = d.channel_current {
                 s.push(' ');
                 s.push_str(&show_current(current.value));
@@ -595,7 +621,7 @@ fn rating(plan: &Plan, part_id: PartId) -> Option<String> {
             });
             let draw = pin_draw.or(port_draw)?;
             format!(
-                "draws {} typ, {} peak",
+                "draws {} typical, {} peak",
                 show_current(draw.typical),
                 show_current(draw.peak)
             )
@@ -615,7 +641,7 @@ fn net_lines(
 ) -> Vec<String> {
     let mut lines = Vec::new();
     match kind {
-        WireKind::Rail if !has_source => lines.push("no source".to_string()),
+        WireKind::Rail if !has_source => lines.push("nothing feeds this rail".to_string()),
         WireKind::Signal => lines.push("signal".to_string()),
         _ => {}
     }
@@ -634,7 +660,7 @@ fn net_lines(
             && let Some((typical, peak)) = currents(plan, analysis, net)
         {
             lines.push(format!(
-                "{} typ / {} peak",
+                "{} typical / {} peak",
                 show_current(typical),
                 show_current(peak)
             ));

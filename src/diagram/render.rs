@@ -341,6 +341,19 @@ fn title_block(content: &Content, x: f64, top: f64, width: f64) -> (Group, f64) 
     for line in text::wrap(&file, cells_for(text_width, BODY_SIZE)) {
         lines.push((line, BODY_SIZE, false));
     }
+    let record: Vec<String> = [
+        heading.revision.as_ref().map(|r| format!("revision {r}")),
+        heading.date.as_ref().map(|d| format!("dated {d}")),
+        heading.author.as_ref().map(|a| format!("drawn by {a}")),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    if !record.is_empty() {
+        for line in text::wrap(&record.join(" · "), cells_for(text_width, BODY_SIZE)) {
+            lines.push((line, BODY_SIZE, false));
+        }
+    }
     lines.push((heading.summary.clone(), BODY_SIZE, false));
     let note = if heading.solved {
         "Rail tags: voltage from empty to full battery in the typical mode; current typical / peak over all modes; wire size and length."
@@ -501,6 +514,16 @@ fn findings_panel(
             ));
             baseline += LINE_STEP;
         }
+        if let Some(fix) = &listed.fix {
+            let fix_x = text_x + 2.0 * text::ADVANCE_EM * BODY_SIZE;
+            let fix_cells = cells_for(x + width - PANEL_PAD - fix_x, BODY_SIZE);
+            for line in text::wrap(&format!("fix: {fix}"), fix_cells) {
+                let mut l = plain(fix_x, baseline, BODY_SIZE, &line, false);
+                l.tone = Tone::Soft;
+                group = group.add(label(&l, "panel-fix"));
+                baseline += LINE_STEP;
+            }
+        }
         let text_bottom = baseline - LINE_STEP + BODY_SIZE * text::DESCENT_EM;
         y = text_bottom.max(row_top + MARKER_HEIGHT) + 3.0;
     }
@@ -523,7 +546,7 @@ fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
     let mut rows: Vec<(Sample, &str)> = vec![
         (
             Sample::Line(WireKind::Rail),
-            "supply rail: heavy solid line; its tag gives name, voltage window (lowest–highest over battery states), current (typical / peak) and wire",
+            "supply rail: heavy solid line; its tag gives the name, the lowest and highest voltage (battery empty to full), the current (typical / peak) and the wire size and length",
         ),
         (
             Sample::Line(WireKind::MotorLead),

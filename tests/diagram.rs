@@ -481,13 +481,18 @@ nets:
             && n.attribute("data-finding") == Some(number.as_str())),
         "no error marker {number} on the part"
     );
-    // Grounded parts get the plain symbol, never the floating one.
+    // A grounded part is never marked floating; its ground here is the
+    // battery negative's lead, drawn as a line.
     let buck = doc
         .descendants()
         .find(|n| n.attribute("data-part") == Some("buck"))
         .unwrap();
-    assert!(buck.descendants().any(|n| has_class(&n, "ground-symbol")));
     assert!(!buck.descendants().any(|n| has_class(&n, "floating-ground")));
+    assert!(
+        doc.descendants()
+            .any(|n| has_class(&n, "ground-lead") && n.attribute("data-net") == Some("GND")),
+        "the battery negative's lead is not drawn"
+    );
     // With two grounds in the plan, each symbol says which one it is.
     let texts = |part: Node| -> Vec<String> {
         part.descendants()
@@ -495,11 +500,6 @@ nets:
             .map(|n| text_of(&n))
             .collect()
     };
-    assert!(
-        texts(buck).contains(&"GND".to_string()),
-        "{:?}",
-        texts(buck)
-    );
     assert!(
         texts(probe).contains(&"PROBE_GND".to_string()),
         "{:?}",
@@ -513,6 +513,92 @@ nets:
         .find(|n| n.attribute("data-part") == Some("buck"))
         .unwrap();
     assert!(!texts(chain_buck).contains(&"GND".to_string()));
+}
+
+/// A pack through a two-way power connector to a buck, and a probe whose
+/// ground comes through a header contact: BATT− and GND have wire sizes,
+/// PROBE_GND has none.
+const RETURNS: &str = "railcheck: 1
+name: greenhouse probe cart
+parts:
+  pack: { use: battery/lipo-3s }
+  plug: { use: connector/power-2pin-30a }
+  buck: { use: regulator/buck-5v-3a }
+  header: { use: connector/header-2pin-3a }
+  probe:
+    class: sensor
+    pins:
+      vcc: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 20 mA } }
+      gnd: { role: ground }
+nets:
+  BATT+: { pins: [pack.pos, plug.a1], wire: 12 AWG, length: 20 cm }
+  BATT-: { pins: [pack.neg, plug.a2], wire: 12 AWG, length: 20 cm }
+  VBAT: { pins: [plug.b1, buck.vin], wire: 14 AWG, length: 30 cm }
+  GND: { pins: [plug.b2, buck.gnd, header.a1], wire: 14 AWG, length: 30 cm }
+  5V: [buck.vout, header.a2]
+  PROBE_5V: [header.b2, probe.vcc]
+  PROBE_GND: [header.b1, probe.gnd]
+";
+
+#[test]
+fn ground_leads_with_a_wire_are_drawn_through_their_contacts() {
+    let svg = draw("returns.yaml", RETURNS);
+    assert_clean_geometry(&svg, "returns");
+    let pic = picture(&svg);
+    let doc = Document::parse(&svg).unwrap();
+    // BATT− and GND are lines of their own kind, never a rail's.
+    for net in ["BATT-", "GND"] {
+        let classes: Vec<&str> = pic
+            .segments
+            .iter()
+            .filter(|(_, n, _)| n == net)
+            .map(|(c, _, _)| c.as_str())
+            .collect();
+        assert!(!classes.is_empty(), "{net} is not drawn");
+        assert!(
+            classes
+                .iter()
+                .all(|c| c.contains("ground-lead") && !c.contains("rail")),
+            "{net}: {classes:?}"
+        );
+    }
+    // Their tags give the wire: 12 AWG for 20 cm, 14 AWG for 30 cm.
+    assert!(tag_lines(&svg, "BATT-").contains(&"12 AWG · 0.2 m".to_string()));
+    assert!(tag_lines(&svg, "GND").contains(&"14 AWG · 0.3 m".to_string()));
+    // The power connector's ground contact sits on the path: a lead ends on
+    // each side of the plug's box, at pins a2 and b2.
+    let plug = part_box(&svg, "plug");
+    let on_edge = |net: &str, x: f64| {
+        pic.segments.iter().any(|(_, n, [x1, y1, x2, y2])| {
+            n == net
+                && [(x1, y1), (x2, y2)]
+                    .iter()
+                    .any(|(px, py)| (**px - x).abs() < EPS && **py > plug.y0 && **py < plug.y1)
+        })
+    };
+    assert!(on_edge("BATT-", plug.x0) || on_edge("BATT-", plug.x1));
+    assert!(on_edge("GND", plug.x0) || on_edge("GND", plug.x1));
+    let plug_texts: Vec<String> = doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("plug"))
+        .unwrap()
+        .descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| text_of(&n))
+        .collect();
+    for pin in ["a2", "b2"] {
+        assert!(
+            plug_texts.iter().any(|t| t.split(' ').next() == Some(pin)),
+            "{pin}: {plug_texts:?}"
+        );
+    }
+    // PROBE_GND has no wire given and no battery on it: a symbol at the probe.
+    assert!(!pic.segments.iter().any(|(_, n, _)| n == "PROBE_GND"));
+    let probe = doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("probe"))
+        .unwrap();
+    assert!(probe.descendants().any(|n| has_class(&n, "ground-symbol")));
 }
 
 #[test]

@@ -96,6 +96,9 @@ pub(crate) struct Tag {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
 pub(crate) enum WireKind {
     Rail,
+    /// A ground net drawn as a line: one with a wire given, or one a battery
+    /// negative is on.
+    Ground,
     MotorLead,
     Signal,
     Cable,
@@ -251,7 +254,7 @@ pub(crate) fn gather(checked: &Checked) -> Content {
             let tag_node = part_count + tags.len();
             let has_source = ends.iter().any(|e| e.source);
             // A rail nobody feeds: its tag stands for the missing source.
-            let tag_is_source = !has_source && kind != WireKind::Signal;
+            let tag_is_source = !has_source && matches!(kind, WireKind::Rail | WireKind::MotorLead);
             tags.push(Tag {
                 net: clean(&net.name),
                 name: truncate(&clean(&net.name), NAME_CELLS),
@@ -408,7 +411,13 @@ fn plain_words(text: &str) -> String {
 fn net_kind(plan: &Plan, circuit: &Circuit, net: NetId) -> Option<WireKind> {
     let node = &circuit.nodes[circuit.node_of_net[net]];
     if node.is_ground() && node.supply_outs.is_empty() {
-        return None;
+        // A ground lead with a wire size, and the lead off a battery
+        // negative, are drawn like rails; other grounds are symbols.
+        let on_battery = plan.nets[net].pins.iter().any(|p| {
+            matches!(plan.parts[p.part].class, Class::Battery(_))
+                && plan.parts[p.part].pins[p.pin].role == PinRole::Ground
+        });
+        return (plan.nets[net].wire.is_some() || on_battery).then_some(WireKind::Ground);
     }
     let roles = || {
         plan.nets[net]
@@ -458,6 +467,21 @@ fn net_sources(plan: &Plan, circuit: &Circuit, net: NetId, kind: WireKind) -> Ve
                 bridges
             }
         }
+        WireKind::Ground => {
+            // The return flows back to the battery negative: the end towards
+            // it (the battery's own pin, or the part joining this net to the
+            // net nearer the battery) is where the lead starts.
+            let mut sources: Vec<(PartId, usize)> = pins
+                .iter()
+                .filter(|p| {
+                    matches!(plan.parts[p.part].class, Class::Battery(_))
+                        && plan.parts[p.part].pins[p.pin].role == PinRole::Ground
+                })
+                .map(|p| (p.part, p.pin))
+                .collect();
+            sources.extend(from_parent());
+            sources
+        }
         WireKind::Signal => with_role(&[PinRole::LogicOut, PinRole::OpenDrain]),
         WireKind::Cable => Vec::new(),
     }
@@ -466,6 +490,15 @@ fn net_sources(plan: &Plan, circuit: &Circuit, net: NetId, kind: WireKind) -> Ve
 /// Power-flow edges of a drawn connection: from each source end to every
 /// other end. A signal flows no power; only its tag is placed after its parts.
 fn flow_edges(ends: &[End], kind: WireKind, edges: &mut Vec<(usize, usize)>) {
+    if kind == WireKind::Ground {
+        // The return follows the power's columns; only its tag is placed by it.
+        for from in ends.iter().filter(|e| e.source) {
+            for tag in ends.iter().filter(|e| e.pin.is_none()) {
+                edges.push((from.node, tag.node));
+            }
+        }
+        return;
+    }
     if kind == WireKind::Signal {
         let Some(tag) = ends.iter().find(|e| e.pin.is_none()) else {
             return;
@@ -508,7 +541,11 @@ fn several_grounds(circuit: &Circuit, net_kind: &[Option<WireKind>]) -> bool {
     let ground_nodes = circuit
         .nodes
         .iter()
-        .filter(|node| node.nets.iter().any(|&net| net_kind[net].is_none()))
+        .filter(|node| {
+            node.nets
+                .iter()
+                .any(|&net| matches!(net_kind[net], None | Some(WireKind::Ground)))
+        })
         .count();
     ground_nodes >= 2
 }
@@ -643,6 +680,7 @@ fn net_lines(
     match kind {
         WireKind::Rail if !has_source => lines.push("nothing feeds this rail".to_string()),
         WireKind::Signal => lines.push("signal".to_string()),
+        WireKind::Ground => lines.push("ground return".to_string()),
         _ => {}
     }
     if let Some(analysis) = analysis {

@@ -87,6 +87,7 @@ fn stroked(path: Path, line: &LineStyle, width: f64) -> Path {
 fn line_style(kind: WireKind) -> LineStyle {
     match kind {
         WireKind::Rail => style::RAIL,
+        WireKind::Ground => style::GROUND,
         WireKind::MotorLead => style::MOTOR_LEAD,
         WireKind::Signal => style::SIGNAL,
         WireKind::Cable => style::CABLE,
@@ -96,6 +97,7 @@ fn line_style(kind: WireKind) -> LineStyle {
 fn kind_class(kind: WireKind) -> &'static str {
     match kind {
         WireKind::Rail => "rail",
+        WireKind::Ground => "ground-lead",
         WireKind::MotorLead => "motor-lead",
         WireKind::Signal => "signal",
         WireKind::Cable => "cable",
@@ -547,6 +549,10 @@ fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
         (
             Sample::Line(WireKind::Rail),
             "supply rail: heavy solid line; its tag gives the name, the lowest and highest voltage (battery empty to full), the current (typical / peak) and the wire size and length",
+        ),
+        (
+            Sample::Line(WireKind::Ground),
+            "ground return: heavy grey dash-dot line; its tag gives the name, the current and the wire size and length",
         ),
         (
             Sample::Line(WireKind::MotorLead),

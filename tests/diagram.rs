@@ -89,6 +89,12 @@ struct Picture {
     labels: Vec<Label>,
     /// (class, net, segment)
     segments: Vec<(String, String, [f64; 4])>,
+    /// Per drawn connection (one path each): its segments.
+    paths: Vec<(String, Vec<[f64; 4]>)>,
+    /// Frames of rail tags and off-page connectors: places a line may end on.
+    frames: Vec<Bounds>,
+    /// Centres of junction dots.
+    dots: Vec<(f64, f64)>,
 }
 
 fn has_class(node: &Node, class: &str) -> bool {
@@ -147,6 +153,9 @@ fn picture(svg: &str) -> Picture {
     let mut boxes = Vec::new();
     let mut labels = Vec::new();
     let mut segs = Vec::new();
+    let mut paths = Vec::new();
+    let mut frames = Vec::new();
+    let mut dots = Vec::new();
     for node in doc.descendants() {
         if node.has_tag_name("rect") && has_class(&node, "part-box") {
             let part = node
@@ -192,20 +201,40 @@ fn picture(svg: &str) -> Picture {
         if node.has_tag_name("path") && has_class(&node, "wire") {
             let class = node.attribute("class").unwrap_or_default().to_string();
             let net = node.attribute("data-net").unwrap_or_default().to_string();
-            for s in segments(node.attribute("d").expect("a wire path has d")) {
-                segs.push((class.clone(), net.clone(), s));
+            let path = segments(node.attribute("d").expect("a wire path has d"));
+            for s in &path {
+                segs.push((class.clone(), net.clone(), *s));
             }
+            paths.push((net, path));
+        }
+        if node.has_tag_name("rect")
+            && (has_class(&node, "tag-frame") || has_class(&node, "off-page"))
+        {
+            let (x, y) = (number(&node, "x"), number(&node, "y"));
+            frames.push(Bounds {
+                x0: x,
+                y0: y,
+                x1: x + number(&node, "width"),
+                y1: y + number(&node, "height"),
+            });
+        }
+        if node.has_tag_name("circle") && has_class(&node, "junction") {
+            dots.push((number(&node, "cx"), number(&node, "cy")));
         }
     }
     Picture {
         boxes,
         labels,
         segments: segs,
+        paths,
+        frames,
+        dots,
     }
 }
 
 /// Everything the issue asks of the picture's geometry.
 fn assert_clean_geometry(svg: &str, what: &str) {
+    assert_line_ends_attached(svg, what);
     let pic = picture(svg);
     assert!(!pic.boxes.is_empty(), "{what}: no part boxes");
     for (i, (a, ba)) in pic.boxes.iter().enumerate() {
@@ -259,6 +288,129 @@ fn assert_clean_geometry(svg: &str, what: &str) {
             );
         }
     }
+}
+
+/// Whether a point lies on the outline of a box.
+fn on_outline(b: &Bounds, (x, y): (f64, f64)) -> bool {
+    let within_y = y >= b.y0 - EPS && y <= b.y1 + EPS;
+    let within_x = x >= b.x0 - EPS && x <= b.x1 + EPS;
+    ((x - b.x0).abs() < EPS || (x - b.x1).abs() < EPS) && within_y
+        || ((y - b.y0).abs() < EPS || (y - b.y1).abs() < EPS) && within_x
+}
+
+/// Whether a point lies on an axis-parallel segment.
+fn on_segment([x1, y1, x2, y2]: [f64; 4], (x, y): (f64, f64)) -> bool {
+    x >= x1.min(x2) - EPS
+        && x <= x1.max(x2) + EPS
+        && y >= y1.min(y2) - EPS
+        && y <= y1.max(y2) + EPS
+        && ((x1 - x2).abs() < EPS || (y1 - y2).abs() < EPS)
+}
+
+/// No line ends in open space: every end of every segment of a connection
+/// lies on a part box's outline (a pin), on a tag's or off-page connector's
+/// frame, on a junction dot, or on another segment of the same connection.
+fn assert_line_ends_attached(svg: &str, what: &str) {
+    let pic = picture(svg);
+    for (net, path) in &pic.paths {
+        for (i, s) in path.iter().enumerate() {
+            for end in [(s[0], s[1]), (s[2], s[3])] {
+                let attached = pic.boxes.iter().any(|(_, b)| on_outline(b, end))
+                    || pic.frames.iter().any(|b| on_outline(b, end))
+                    || pic
+                        .dots
+                        .iter()
+                        .any(|d| (d.0 - end.0).abs() < EPS && (d.1 - end.1).abs() < EPS)
+                    || path
+                        .iter()
+                        .enumerate()
+                        .any(|(j, other)| j != i && on_segment(*other, end));
+                assert!(
+                    attached,
+                    "{what}: `{net}` ends in open space at {end:?} (segment {s:?})"
+                );
+            }
+        }
+    }
+}
+
+#[test]
+#[should_panic(expected = "ends in open space")]
+fn a_line_left_hanging_is_caught() {
+    // A box with one line leaving its right edge and stopping short of
+    // anything: the check must refuse it.
+    let svg = r#"<svg xmlns="http://www.w3.org/2000/svg">
+<g class="part" data-part="a"><rect class="part-box" x="0" y="0" width="40" height="40"/></g>
+<path class="wire rail" data-net="X" d="M40 20 L90 20"/>
+</svg>"#;
+    assert_line_ends_attached(svg, "hanging");
+}
+
+#[test]
+fn signals_are_named_at_their_pins_and_shared_runs_are_bundled() {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml"),
+    )
+    .unwrap();
+    let checked = check("examples/orchard-rover.yaml", &text);
+    let svg = railcheck::diagram::draw(&checked);
+    let doc = Document::parse(&svg).unwrap();
+    let part_texts = |part: &str| -> Vec<String> {
+        doc.descendants()
+            .find(|n| n.attribute("data-part") == Some(part))
+            .unwrap()
+            .descendants()
+            .filter(|n| n.has_tag_name("text"))
+            .map(|n| text_of(&n))
+            .collect()
+    };
+    let drawn: Vec<(String, String)> = doc
+        .descendants()
+        .filter(|n| has_class(n, "wire"))
+        .map(|n| {
+            (
+                n.attribute("class").unwrap().to_string(),
+                n.attribute("data-net").unwrap().to_string(),
+            )
+        })
+        .collect();
+    let plan = &checked.plan;
+    let mut bundled = 0;
+    for net in &plan.nets {
+        let signal = drawn
+            .iter()
+            .any(|(c, n)| c.contains("signal") && n == &net.name);
+        let bundle = drawn.iter().find(|(c, n)| {
+            c.contains("bundle")
+                && n.split(": ")
+                    .nth(1)
+                    .is_some_and(|members| members.split(", ").any(|m| m == net.name))
+        });
+        if !signal && bundle.is_none() {
+            continue;
+        }
+        assert!(!(signal && bundle.is_some()), "{} drawn twice", net.name);
+        // Where it leaves and where it enters each box, the pin says which
+        // signal it carries.
+        for pin in &net.pins {
+            let part = &plan.parts[pin.part];
+            let wanted = format!("{}: {}", part.pins[pin.pin].name, net.name);
+            assert!(
+                part_texts(&part.name).contains(&wanted),
+                "{wanted:?} not on `{}`",
+                part.name
+            );
+        }
+        if let Some((_, name)) = bundle {
+            bundled += 1;
+            // The bundle's tag lists every member.
+            let listed = tag_lines(&svg, name).join(" ");
+            assert!(listed.contains(&net.name), "{listed}");
+        }
+    }
+    // The rover's motor driver takes six signals from the controller (in1–in4,
+    // ena, enb), all between the same two parts: at least those run as one.
+    assert!(bundled >= 6, "{bundled} signals bundled");
 }
 
 fn examples() -> Vec<PathBuf> {

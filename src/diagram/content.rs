@@ -65,6 +65,7 @@ pub(crate) struct PartBox {
 }
 
 pub(crate) struct ShownPin {
+    /// The pin's name, and for a logic signal the net's after it, as shown.
     pub name: String,
     pub at: PinAt,
     /// For a ground pin when the plan has more than one ground: the name of
@@ -95,6 +96,9 @@ pub(crate) struct Tag {
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
 pub(crate) enum WireKind {
+    /// Logic signals that all run between the same two parts, drawn as one
+    /// line and listed on its tag.
+    Bundle,
     Rail,
     /// A ground net drawn as a line: one with a wire given, or one a battery
     /// negative is on.
@@ -172,11 +176,16 @@ pub(crate) fn gather(checked: &Checked) -> Content {
                 }
                 _ => None,
             };
-            pins.push(ShownPin {
-                name: truncate(&clean(&pin.name), PIN_CELLS),
-                at,
-                ground,
-            });
+            // A logic signal is named where it leaves and enters each box.
+            let name = match pin.net {
+                Some(net) if net_kind[net] == Some(WireKind::Signal) => format!(
+                    "{}: {}",
+                    truncate(&clean(&pin.name), PIN_CELLS),
+                    truncate(&clean(&plan.nets[net].name), PIN_CELLS)
+                ),
+                _ => truncate(&clean(&pin.name), PIN_CELLS),
+            };
+            pins.push(ShownPin { name, at, ground });
         }
         for (port_index, port) in part.ports.iter().enumerate() {
             let linked = plan
@@ -211,7 +220,62 @@ pub(crate) fn gather(checked: &Checked) -> Content {
     let mut tags = Vec::new();
     let mut wires = Vec::new();
     let mut edges = Vec::new();
+    let bundles = bundles(plan, &net_kind, &net_markers, &pin_slot);
+    let mut bundled = vec![false; plan.nets.len()];
+    for members in &bundles {
+        for &net in members {
+            bundled[net] = true;
+        }
+        let mut ends: Vec<End> = members
+            .iter()
+            .flat_map(|&net| &plan.nets[net].pins)
+            .filter_map(|p| {
+                Some(End {
+                    node: p.part,
+                    pin: Some(*pin_slot[p.part].get(&p.pin)?),
+                    source: false,
+                })
+            })
+            .collect();
+        let mut pair: Vec<PartId> = plan.nets[members[0]].pins.iter().map(|p| p.part).collect();
+        pair.sort_unstable();
+        pair.dedup();
+        let (a, b) = (pair[0], pair[pair.len() - 1]);
+        let names: Vec<String> = members
+            .iter()
+            .map(|&net| truncate(&clean(&plan.nets[net].name), PIN_CELLS))
+            .collect();
+        let title = format!(
+            "{} to {}",
+            truncate(&clean(&plan.parts[a].name), PIN_CELLS),
+            truncate(&clean(&plan.parts[b].name), PIN_CELLS)
+        );
+        let tag_node = part_count + tags.len();
+        let mut lines = vec![format!("bundle of {} signals:", members.len())];
+        lines.extend(super::text::wrap(&names.join(", "), LINE_CELLS));
+        tags.push(Tag {
+            net: clean(&format!("{title}: {}", names.join(", "))),
+            name: truncate(&title, NAME_CELLS),
+            lines,
+            markers: Vec::new(),
+            ground: false,
+        });
+        ends.push(End {
+            node: tag_node,
+            pin: None,
+            source: false,
+        });
+        flow_edges(&ends, WireKind::Signal, &mut edges);
+        wires.push(Wire {
+            kind: WireKind::Bundle,
+            name: format!("{title}: {}", names.join(", ")),
+            ends,
+        });
+    }
     for (net_id, net) in plan.nets.iter().enumerate() {
+        if bundled[net_id] {
+            continue;
+        }
         let Some(kind) = net_kind[net_id] else {
             if let Some(markers) = net_markers.remove(&net_id) {
                 // A ground net a finding names: a tag beside the part that
@@ -399,6 +463,43 @@ fn number_findings(checked: &Checked) -> (Vec<Listed>, Markers, BTreeMap<NetId, 
     (listed, part_markers, net_markers)
 }
 
+/// Groups of two or more logic signals that each run between the same two
+/// parts and nowhere else, and that no finding names: each group is drawn as
+/// one bundle. In net order, so the same plan gives the same bundles.
+fn bundles(
+    plan: &Plan,
+    net_kind: &[Option<WireKind>],
+    net_markers: &BTreeMap<NetId, Vec<Marker>>,
+    pin_slot: &[BTreeMap<usize, usize>],
+) -> Vec<Vec<NetId>> {
+    let mut by_pair: BTreeMap<(PartId, PartId), Vec<NetId>> = BTreeMap::new();
+    for (net_id, net) in plan.nets.iter().enumerate() {
+        if net_kind[net_id] != Some(WireKind::Signal) || net_markers.contains_key(&net_id) {
+            continue;
+        }
+        if net.pins.len() < 2
+            || net
+                .pins
+                .iter()
+                .any(|p| !pin_slot[p.part].contains_key(&p.pin))
+        {
+            continue;
+        }
+        let mut parts: Vec<PartId> = net.pins.iter().map(|p| p.part).collect();
+        parts.sort_unstable();
+        parts.dedup();
+        if let [a, b] = parts[..] {
+            by_pair.entry((a, b)).or_default().push(net_id);
+        }
+    }
+    let mut groups: Vec<Vec<NetId>> = by_pair
+        .into_values()
+        .filter(|members| members.len() >= 2)
+        .collect();
+    groups.sort_unstable();
+    groups
+}
+
 /// Message text as the drawing prints it: the backticks that mark names in
 /// the terminal report are dropped (the names stay).
 fn plain_words(text: &str) -> String {
@@ -483,7 +584,7 @@ fn net_sources(plan: &Plan, circuit: &Circuit, net: NetId, kind: WireKind) -> Ve
             sources
         }
         WireKind::Signal => with_role(&[PinRole::LogicOut, PinRole::OpenDrain]),
-        WireKind::Cable => Vec::new(),
+        WireKind::Bundle | WireKind::Cable => Vec::new(),
     }
 }
 

@@ -134,6 +134,8 @@ pub(crate) struct PlacedTag {
     pub markers: Vec<PlacedMarker>,
     /// Where a ground tag's symbol hangs.
     pub ground_icon: Option<(f64, f64)>,
+    /// The frame of a tag on a line: the line ends on it or runs through it.
+    pub frame: Option<Rect>,
 }
 
 /// A drawn connection: straight horizontal and vertical segments
@@ -473,6 +475,16 @@ impl Board {
         }
     }
 
+    fn reached_from_both_sides(&self, item: usize) -> bool {
+        let sides = || {
+            self.item_anchors[item]
+                .iter()
+                .filter(|&&a| self.groups[self.anchors[a].group].len() >= 2)
+                .map(|&a| self.anchors[a].side)
+        };
+        sides().any(|s| s == Side::Left) && sides().any(|s| s == Side::Right)
+    }
+
     fn anchor_y(&self, anchor: usize) -> f64 {
         let a = &self.anchors[anchor];
         self.items[a.item].top + a.dy
@@ -553,6 +565,10 @@ impl Board {
 
         let mut wires: Vec<PlacedWire> = (0..wire_count).map(|_| PlacedWire::default()).collect();
         for (g, members) in self.groups.iter().enumerate() {
+            // A lone end in a channel has nothing to meet there.
+            if members.len() < 2 {
+                continue;
+            }
             let track_x =
                 channel_x[self.group_channel[g]] + CHANNEL_PAD + TRACK_PITCH * track_of[g] as f64;
             let wire = &mut wires[self.group_wire[g]];
@@ -576,11 +592,16 @@ impl Board {
                 }
             }
         }
-        for item in &self.items {
+        for (i, item) in self.items.iter().enumerate() {
             let (y, w) = match item.kind {
                 ItemKind::Pass(w) => (item.top + pass_offset(item.column), w),
                 ItemKind::Tag(t) => match (tag_lines[t], self.tag_wire[t]) {
-                    (Some(line), Some(w)) => (item.top + line, w),
+                    // A tag reached from one side is where its line ends (on
+                    // the tag's frame); only a tag the line runs through
+                    // carries it across.
+                    (Some(line), Some(w)) if self.reached_from_both_sides(i) => {
+                        (item.top + line, w)
+                    }
                     _ => continue,
                 },
                 ItemKind::Part(_) => continue,
@@ -700,6 +721,12 @@ fn place_tag(shape: &TagShape, item: &Item) -> PlacedTag {
             .map(|m| m.shifted(item.x, item.top))
             .collect(),
         ground_icon: shape.ground_icon.map(|(x, y)| (x + item.x, y + item.top)),
+        frame: shape.line.map(|_| Rect {
+            x: item.x,
+            y: item.top,
+            width: item.width,
+            height: item.height,
+        }),
     }
 }
 

@@ -87,6 +87,7 @@ fn stroked(path: Path, line: &LineStyle, width: f64) -> Path {
 fn line_style(kind: WireKind) -> LineStyle {
     match kind {
         WireKind::Rail => style::RAIL,
+        WireKind::Bundle => style::BUNDLE,
         WireKind::Ground => style::GROUND,
         WireKind::MotorLead => style::MOTOR_LEAD,
         WireKind::Signal => style::SIGNAL,
@@ -97,6 +98,7 @@ fn line_style(kind: WireKind) -> LineStyle {
 fn kind_class(kind: WireKind) -> &'static str {
     match kind {
         WireKind::Rail => "rail",
+        WireKind::Bundle => "bundle",
         WireKind::Ground => "ground-lead",
         WireKind::MotorLead => "motor-lead",
         WireKind::Signal => "signal",
@@ -395,7 +397,13 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
         let name = text::clean(&wire.name);
         let mut group = connection(&d, wire.kind, &name).add(Title::new(name.clone()));
         let line = line_style(wire.kind);
-        for &(x, y) in &placed.dots {
+        // A bundle's signals only run together: where they meet is no join.
+        let dots: &[(f64, f64)] = if wire.kind == WireKind::Bundle {
+            &[]
+        } else {
+            &placed.dots
+        };
+        for &(x, y) in dots {
             group = group.add(
                 Circle::new()
                     .set("class", "junction")
@@ -454,6 +462,20 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
         let mut group = Group::new()
             .set("class", if tag.ground { "tag ground" } else { "tag" })
             .set("data-net", tag.net.clone());
+        if let Some(r) = placed.frame {
+            group = group.add(
+                Rectangle::new()
+                    .set("class", "tag-frame")
+                    .set("x", num(r.x + dx))
+                    .set("y", num(r.y + dy))
+                    .set("width", num(r.width))
+                    .set("height", num(r.height))
+                    .set("rx", "2")
+                    .set("fill", "none")
+                    .set("stroke", style::RULE_LINE)
+                    .set("stroke-width", "0.8"),
+            );
+        }
         for l in &placed.labels {
             group = group.add(label(&l.shifted(dx, dy), "tag-text"));
         }
@@ -560,7 +582,11 @@ fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
         ),
         (
             Sample::Line(WireKind::Signal),
-            "logic signal: thin short dashes",
+            "logic signal: thin short dashes; each pin it leaves or enters names it (pin: signal)",
+        ),
+        (
+            Sample::Line(WireKind::Bundle),
+            "signals between the same two parts, run together: wide medium dashes; its tag lists them, and each pin names its signal",
         ),
         (
             Sample::Line(WireKind::Cable),

@@ -61,6 +61,15 @@ pub(crate) const SIGNAL: LineStyle = LineStyle {
     core: None,
 };
 
+/// Logic signals between the same two parts, drawn together: wider than a
+/// motor lead, in medium dashes, in the signal's colour.
+pub(crate) const BUNDLE: LineStyle = LineStyle {
+    colour: "#3a6f4c",
+    width: 3.4,
+    dash: Some("6 2"),
+    core: None,
+};
+
 /// A USB cable: a hollow band (power, data and ground in one sheath).
 pub(crate) const CABLE: LineStyle = LineStyle {
     colour: "#4b3f78",
@@ -225,7 +234,7 @@ mod tests {
     fn connection_kinds_differ_without_colour() {
         // Each pair of line styles must differ in width, dash or hollowness,
         // so they stay apart in greyscale.
-        let styles = [RAIL, GROUND, MOTOR_LEAD, SIGNAL, CABLE];
+        let styles = [RAIL, GROUND, MOTOR_LEAD, SIGNAL, BUNDLE, CABLE];
         for (i, a) in styles.iter().enumerate() {
             for b in &styles[i + 1..] {
                 let differs =

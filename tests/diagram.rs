@@ -324,7 +324,14 @@ fn assert_line_ends_attached(svg: &str, what: &str) {
                     || path
                         .iter()
                         .enumerate()
-                        .any(|(j, other)| j != i && on_segment(*other, end));
+                        .any(|(j, other)| j != i && on_segment(*other, end))
+                    // A line cut at a sheet's edge goes on as its off-page
+                    // connector's lead, drawn as a path of the same net.
+                    || pic.paths.iter().any(|(other_net, other)| {
+                        other_net == net
+                            && !std::ptr::eq(other, path)
+                            && other.iter().any(|o| on_segment(*o, end))
+                    });
                 assert!(
                     attached,
                     "{what}: `{net}` ends in open space at {end:?} (segment {s:?})"
@@ -411,6 +418,235 @@ fn signals_are_named_at_their_pins_and_shared_runs_are_bundled() {
     // The rover's motor driver takes six signals from the controller (in1–in4,
     // ena, enb), all between the same two parts: at least those run as one.
     assert!(bundled >= 6, "{bundled} signals bundled");
+}
+
+/// Points per millimetre: 72 pt to the inch, 25.4 mm to the inch.
+const PT_PER_MM: f64 = 72.0 / 25.4;
+
+/// Printed size in points of every text element of one sheet: its font size
+/// in drawing units times the sheet's scale, which is the page width in
+/// points (from the `width` attribute in mm) over the viewBox width.
+fn printed_text_sizes(svg: &str) -> Vec<(String, f64)> {
+    let doc = Document::parse(svg).unwrap();
+    let root = doc.root_element();
+    let width = root.attribute("width").unwrap();
+    let millimetres: f64 = width
+        .strip_suffix("mm")
+        .unwrap_or_else(|| panic!("sheet width {width:?} is not in mm"))
+        .parse()
+        .unwrap();
+    let view: Vec<f64> = root
+        .attribute("viewBox")
+        .unwrap()
+        .split(' ')
+        .map(|v| v.parse().unwrap())
+        .collect();
+    let scale = millimetres * PT_PER_MM / view[2];
+    doc.descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| (text_of(&n), number(&n, "font-size") * scale))
+        .collect()
+}
+
+fn rover_plan() -> railcheck::Checked {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml"),
+    )
+    .unwrap();
+    check("examples/orchard-rover.yaml", &text)
+}
+
+#[test]
+fn the_rover_prints_on_a4_with_no_text_under_7_pt() {
+    use railcheck::diagram::{Page, Paper};
+    let checked = rover_plan();
+    for landscape in [false, true] {
+        let page = Page {
+            paper: Paper::A4,
+            landscape,
+        };
+        let sheets = railcheck::diagram::draw_pages(&checked, Some(page))
+            .unwrap_or_else(|e| panic!("{page}: {e}"));
+        assert!(
+            sheets.svgs.len() >= 2,
+            "{page}: the rover needs several sheets"
+        );
+        // ISO 216 A4: 210 × 297 mm.
+        let (w, h) = if landscape {
+            ("297mm", "210mm")
+        } else {
+            ("210mm", "297mm")
+        };
+        let mut connectors = 0;
+        let mut parts = std::collections::BTreeSet::new();
+        for (i, svg) in sheets.svgs.iter().enumerate() {
+            let what = format!("{page} sheet {}", i + 1);
+            let doc = Document::parse(svg).unwrap();
+            assert_eq!(doc.root_element().attribute("width"), Some(w), "{what}");
+            assert_eq!(doc.root_element().attribute("height"), Some(h), "{what}");
+            for (text, size) in printed_text_sizes(svg) {
+                // The 7 pt floor, with rounding of the written numbers.
+                assert!(
+                    size >= 7.0 - 1e-6,
+                    "{what}: {text:?} prints at {size:.2} pt"
+                );
+            }
+            assert_line_ends_attached(svg, &what);
+            // Every connector names a net and a sheet that exists.
+            for node in doc.descendants().filter(|n| has_class(n, "off-page")) {
+                connectors += 1;
+                let to: usize = node.attribute("data-sheet").unwrap().parse().unwrap();
+                assert!(
+                    to >= 1 && to <= sheets.svgs.len() && to != i + 1,
+                    "{what}: to {to}"
+                );
+                assert!(!node.attribute("data-net").unwrap().is_empty());
+            }
+            for node in doc.descendants().filter(|n| has_class(n, "part")) {
+                let part = node.attribute("data-part").unwrap().to_string();
+                assert!(parts.insert(part.clone()), "{what}: `{part}` drawn twice");
+            }
+        }
+        assert!(
+            connectors > 0,
+            "{page}: cut lines without off-page connectors"
+        );
+        assert_eq!(
+            parts.len(),
+            checked.plan.parts.len(),
+            "{page}: parts missing"
+        );
+        // A connector on one side of a cut has its partner on the other.
+        let flags = |sheet: usize| -> Vec<(String, usize)> {
+            let doc = Document::parse(&sheets.svgs[sheet]).unwrap();
+            doc.descendants()
+                .filter(|n| has_class(n, "off-page"))
+                .map(|n| {
+                    (
+                        n.attribute("data-net").unwrap().to_string(),
+                        n.attribute("data-sheet").unwrap().parse().unwrap(),
+                    )
+                })
+                .collect()
+        };
+        for sheet in 0..sheets.svgs.len() {
+            for (net, to) in flags(sheet) {
+                assert!(
+                    flags(to - 1).contains(&(net.clone(), sheet + 1)),
+                    "{page}: `{net}` goes from sheet {} to {to} but does not come back",
+                    sheet + 1
+                );
+            }
+        }
+        let again = railcheck::diagram::draw_pages(&checked, Some(page)).unwrap();
+        assert_eq!(again, sheets, "{page}: two runs differ");
+    }
+}
+
+#[test]
+fn without_a_page_the_smallest_that_holds_the_drawing_is_chosen() {
+    use railcheck::diagram::{Page, Paper};
+    // Papers by area: US Letter 215.9 × 279.4 mm, ISO A4 210 × 297 mm, US
+    // Tabloid 279.4 × 431.8 mm, ISO A3 297 × 420 mm (ANSI/ASME Y14.1, ISO 216).
+    let checked = check("chain.yaml", CHAIN);
+    let sheets = railcheck::diagram::draw_pages(&checked, None).unwrap();
+    let uncut = |svgs: &[String]| !svgs.iter().any(|s| s.contains(r#"class="off-page""#));
+    assert!(uncut(&sheets.svgs), "{}: the drawing is cut", sheets.page);
+    // Every smaller page, either way round, would have to cut it.
+    let order: Vec<Page> = Paper::ALL
+        .iter()
+        .flat_map(|&paper| [false, true].map(|landscape| Page { paper, landscape }))
+        .collect();
+    let chosen = order.iter().position(|p| *p == sheets.page).unwrap();
+    for &smaller in &order[..chosen] {
+        let on = railcheck::diagram::draw_pages(&checked, Some(smaller));
+        assert!(
+            on.as_ref().map_or(true, |s| !uncut(&s.svgs)),
+            "{smaller} holds the drawing uncut, yet {} was chosen",
+            sheets.page
+        );
+    }
+    for svg in &sheets.svgs {
+        for (text, size) in printed_text_sizes(svg) {
+            assert!(size >= 7.0 - 1e-6, "{text:?} prints at {size:.2} pt");
+        }
+    }
+    // Asked for a page, it keeps to it.
+    let a3 = Page {
+        paper: Paper::A3,
+        landscape: false,
+    };
+    let on_a3 = railcheck::diagram::draw_pages(&checked, Some(a3)).unwrap();
+    assert_eq!(on_a3.page, a3);
+    assert!(on_a3.svgs[0].contains(r#"width="297mm""#));
+}
+
+#[test]
+fn a_box_taller_than_the_page_names_the_page_it_needs() {
+    use railcheck::diagram::{Page, Paper};
+    // A logger with 48 signal inputs from one sensor head: its box is 49 pin
+    // rows of 16 units, about 800 units, taller than the 615 units an A4
+    // landscape sheet has at 7 pt (210 mm − 20 mm margins = 538.6 pt,
+    // / 0.875 pt per unit).
+    let mut plan = String::from(
+        "railcheck: 1\nname: tall logger\nparts:\n  pack: { use: battery/lipo-3s }\n  buck: { use: regulator/buck-5v-3a }\n  head:\n    class: sensor\n    pins:\n      vcc: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 10 mA } }\n      gnd: { role: ground }\n",
+    );
+    for i in 0..48 {
+        plan.push_str(&format!(
+            "      o{i}: {{ role: logic-out, ref: vcc, family: cmos5 }}\n"
+        ));
+    }
+    plan.push_str("  logger:\n    class: board\n    pins:\n      vin: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 50 mA } }\n      gnd: { role: ground }\n");
+    for i in 0..48 {
+        plan.push_str(&format!(
+            "      i{i}: {{ role: logic-in, ref: vin, family: cmos5 }}\n"
+        ));
+    }
+    plan.push_str("nets:\n  BATT+: [pack.pos, buck.vin]\n  GND: [pack.neg, buck.gnd, head.gnd, logger.gnd]\n  5V: [buck.vout, head.vcc, logger.vin]\n");
+    for i in 0..48 {
+        plan.push_str(&format!("  S{i}: [head.o{i}, logger.i{i}]\n"));
+    }
+    let checked = check("tall.yaml", &plan);
+    let page = Page {
+        paper: Paper::A4,
+        landscape: true,
+    };
+    let error = railcheck::diagram::draw_pages(&checked, Some(page)).unwrap_err();
+    let message = error.to_string();
+    assert!(message.contains("a4 landscape"), "{message}");
+    assert!(message.contains("7 pt"), "{message}");
+    let fits = error.fits.expect("a larger page holds it");
+    assert!(
+        message.contains(&format!("--page {}", fits.paper.name())),
+        "{message}"
+    );
+    // The page it names does take it.
+    assert!(railcheck::diagram::draw_pages(&checked, Some(fits)).is_ok());
+}
+
+#[test]
+fn the_pdf_has_a_page_per_sheet() {
+    use railcheck::diagram::{Page, Paper};
+    let checked = rover_plan();
+    let page = Page {
+        paper: Paper::A4,
+        landscape: false,
+    };
+    let sheets = railcheck::diagram::draw_pages(&checked, Some(page)).unwrap();
+    let mut options = resvg::usvg::Options::default();
+    options.fontdb_mut().load_system_fonts();
+    let pdf = railcheck::diagram::pdf(&sheets.svgs, &options).unwrap();
+    assert!(pdf.starts_with(b"%PDF-"), "not a PDF");
+    let text = String::from_utf8_lossy(&pdf);
+    let pages = text.matches("/Type /Page ").count();
+    assert_eq!(pages, sheets.svgs.len());
+    assert!(text.contains(&format!("/Count {pages}")));
+    // A4 portrait in points: 210 mm × 72 / 25.4 = 595.28, 297 mm → 841.89.
+    assert_eq!(
+        text.matches("/MediaBox [0 0 595.276 841.89]").count(),
+        pages
+    );
+    assert!(text.trim_end().ends_with("%%EOF"));
 }
 
 fn examples() -> Vec<PathBuf> {
@@ -1509,5 +1745,52 @@ mod command {
             &bytes[..8],
             &[0x89, b'P', b'N', b'G', 0x0d, 0x0a, 0x1a, 0x0a]
         );
+    }
+
+    #[test]
+    fn draw_on_a_page_writes_sheets_and_a_pdf() {
+        let dir = tempfile::tempdir().unwrap();
+        let rover = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml");
+        let svg = dir.path().join("rover.svg");
+        let pdf = dir.path().join("rover.pdf");
+        let run = railcheck()
+            .arg("draw")
+            .arg(&rover)
+            .args(["--page", "a4", "--landscape", "-o"])
+            .arg(&svg)
+            .arg("--pdf")
+            .arg(&pdf)
+            .assert()
+            .code(0);
+        let said = String::from_utf8_lossy(&run.get_output().stderr).to_string();
+        assert!(said.contains("sheets on a4 landscape"), "{said}");
+        // A PDF file starts with its header (ISO 32000-1 §7.5.2).
+        let bytes = std::fs::read(&pdf).unwrap();
+        assert!(bytes.starts_with(b"%PDF-"));
+        // The SVG holds every sheet, each 297 mm × 210 mm, one under another.
+        let text = std::fs::read_to_string(&svg).unwrap();
+        let doc = roxmltree::Document::parse(&text).unwrap();
+        let sheets = doc
+            .descendants()
+            .filter(|n| crate::has_class(n, "sheet"))
+            .count();
+        assert!(sheets >= 2);
+        assert_eq!(
+            doc.root_element().attribute("height"),
+            Some(format!("{}mm", 210 * sheets).as_str())
+        );
+        // The same count of pages in the PDF.
+        let pages = String::from_utf8_lossy(&bytes)
+            .matches("/Type /Page ")
+            .count();
+        assert_eq!(pages, sheets);
+        // --landscape needs a page.
+        railcheck()
+            .arg("draw")
+            .arg(&rover)
+            .args(["--landscape", "-o"])
+            .arg(&svg)
+            .assert()
+            .code(2);
     }
 }

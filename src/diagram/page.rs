@@ -155,6 +155,11 @@ const GUTTER: f64 =
 /// Keep-out either side of a line a cut must not run along.
 const LINE_CLEARANCE: f64 = 0.5;
 
+/// Rounded down to the two decimals the file writes.
+fn floor2(v: f64) -> f64 {
+    (v * 100.0).floor() / 100.0
+}
+
 /// Content area of a sheet in drawing units at the smallest scale.
 fn content_area(page: Page) -> (f64, f64) {
     let (w, h) = page.points();
@@ -576,7 +581,8 @@ pub(super) fn sheets(
 ) -> Result<Sheets, PageError> {
     let (area_w, area_h) = content_area(page);
     let (page_w, page_h) = page.points();
-    let (sheet_w, sheet_h) = (page_w / SCALE, page_h / SCALE);
+    // Rounded down, so the written viewBox never prints text under 7 pt.
+    let (sheet_w, sheet_h) = (floor2(page_w / SCALE), floor2(page_h / SCALE));
     let margin = (sheet_w - area_w) / 2.0;
     let size = (
         format!("{}mm", num(page.millimetres().0)),
@@ -593,7 +599,7 @@ pub(super) fn sheets(
     let scale = (page_w - 2.0 * MARGIN_MM * PT_PER_MM) / w;
     let scale = scale.min((page_h - 2.0 * MARGIN_MM * PT_PER_MM) / h);
     if scale >= SCALE {
-        let (vw, vh) = (page_w / scale, page_h / scale);
+        let (vw, vh) = (floor2(page_w / scale), floor2(page_h / scale));
         let view = (-(vw - w) / 2.0, -(vh - h) / 2.0, vw, vh);
         let svg = render::document(body.set("class", "sheet"), size.clone(), view);
         return Ok(Sheets {
@@ -615,7 +621,8 @@ pub(super) fn sheets(
                 .flat_map(|&paper| [false, true].map(|landscape| Page { paper, landscape }));
             let fits = fits.into_iter().find(|p| {
                 let (pw, ph) = p.millimetres();
-                pw >= needed.0 && ph >= needed.1
+                // Half a millimetre for rounding.
+                pw + 0.5 >= needed.0 && ph + 0.5 >= needed.1
             });
             PageError {
                 page,

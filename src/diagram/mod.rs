@@ -9,6 +9,9 @@
 //! cleans and measures labels and `style` holds the palette. `png`
 //! rasterises the SVG through the same renderer the tests use, with `fonts`
 //! choosing the installed face for the generic `monospace` family.
+//! [`draw_pages`] fits the diagram to paper (`page`), over several sheets
+//! with off-page connectors when it must, and [`pdf`] writes those sheets
+//! as a vector PDF from the same parsed SVG trees.
 //!
 //! No I/O here: the caller reads the plan, loads fonts and writes files.
 //! Not a schematic: pins are shown where nets attach, not by package.

@@ -335,8 +335,19 @@ fn tiles(
                 y_blocks.push((s[1] - LINE_CLEARANCE, s[1] + LINE_CLEARANCE));
             }
         }
+        // The strip starts where its first box, tag or line does.
+        let lines_top = segments
+            .iter()
+            .filter(|s| s[0].max(s[2]) >= xa && s[0].min(s[2]) <= xb)
+            .map(|s| s[1].min(s[3]))
+            .fold(f64::INFINITY, f64::min);
+        let first_top = y_blocks.iter().map(|b| b.0).fold(lines_top, f64::min);
+        let mut top = if first_top.is_finite() {
+            first_top.max(0.0)
+        } else {
+            0.0
+        };
         let mut rows: Vec<(f64, f64)> = Vec::new();
-        let mut top = 0.0;
         loop {
             let first = rows.is_empty();
             let tall = if strip == 0 && first {

@@ -682,7 +682,7 @@ pub(super) fn sheets(
         }
         start = end;
     }
-    let (_, legend_bottom) = render::legend(0.0, 0.0, area_w, marker_w);
+    let (_, legend_bottom) = render::legend(0.0, 0.0, area_w, marker_w, true);
     notes.push((Piece::Legend, legend_bottom));
     let (_, cautions_bottom) = render::cautions(&content.cautions, 0.0, 0.0, area_w);
     notes.push((Piece::Cautions, cautions_bottom));
@@ -746,7 +746,7 @@ pub(super) fn sheets(
                     y = bottom + MARGIN;
                 }
                 Piece::Legend => {
-                    let (g, bottom) = render::legend(margin, y, area_w, marker_w);
+                    let (g, bottom) = render::legend(margin, y, area_w, marker_w, true);
                     body = body.add(g);
                     y = bottom + MARGIN;
                 }

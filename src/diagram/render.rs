@@ -295,7 +295,7 @@ pub(super) fn compose(
     let (panel, bottom) = findings_panel(&content.findings, MARGIN, y, inner, marker_w);
     body = body.add(panel);
     y = bottom + MARGIN;
-    let (legend, bottom) = legend(MARGIN, y, inner, marker_w);
+    let (legend, bottom) = legend(MARGIN, y, inner, marker_w, false);
     body = body.add(legend);
     y = bottom + MARGIN;
     let (footer, bottom) = cautions(&content.cautions, MARGIN, y, inner);
@@ -632,9 +632,11 @@ enum Sample {
     Marker(Severity),
     Tint(Stage),
     FloatingBox,
+    OffPage,
 }
 
-pub(super) fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
+/// The legend; `paged` adds the off-page connector (only sheets have them).
+pub(super) fn legend(x: f64, top: f64, width: f64, marker_w: f64, paged: bool) -> (Group, f64) {
     let mut rows: Vec<(Sample, &str)> = vec![
         (
             Sample::Line(WireKind::Rail),
@@ -690,6 +692,12 @@ pub(super) fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64
         ),
     ];
     rows.extend(Stage::ALL.map(|stage| (Sample::Tint(stage), stage.describe())));
+    if paged {
+        rows.push((
+            Sample::OffPage,
+            "off-page connector: the line goes on, on the sheet numbered after its net's name",
+        ));
+    }
     let mut group = Group::new().set("class", "legend");
     let mut y = top + PANEL_PAD + HEADING_SIZE;
     group = group.add(label(
@@ -779,6 +787,41 @@ pub(super) fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64
                     .set("fill", stage.tint())
                     .set("stroke", style::INK)
                     .set("stroke-width", "1.2"),
+            ),
+            Sample::OffPage => group.add(
+                Group::new()
+                    .set("class", "legend-sample")
+                    .add(stroked(
+                        Path::new().set(
+                            "d",
+                            format!(
+                                "M{} {} L{} {}",
+                                num(sample_x),
+                                num(mid),
+                                num(sample_x + 14.0),
+                                num(mid)
+                            ),
+                        ),
+                        &style::RAIL,
+                        style::RAIL.width,
+                    ))
+                    .add(
+                        Rectangle::new()
+                            .set("x", num(sample_x + 14.0))
+                            .set("y", num(mid - 6.0))
+                            .set("width", "40")
+                            .set("height", "12")
+                            .set("fill", style::PAPER)
+                            .set("stroke", style::INK)
+                            .set("stroke-width", "1"),
+                    )
+                    .add(
+                        Text::new("5V → 2")
+                            .set("x", num(sample_x + 17.0))
+                            .set("y", num(mid + 3.0))
+                            .set("font-size", "8")
+                            .set("fill", style::INK),
+                    ),
             ),
             Sample::FloatingBox => group.add(
                 Rectangle::new()

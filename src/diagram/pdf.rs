@@ -5,7 +5,7 @@
 //! images and opacity are not used by the diagram and are left out.
 //!
 //! The file follows ISO 32000-1: a catalogue, a page tree, one page object
-//! and one uncompressed content stream per page, a cross-reference table.
+//! and one deflated content stream per page, a cross-reference table.
 //! The same trees give the same bytes (no dates or random identifiers).
 
 use resvg::usvg::{self, Node, Paint, tiny_skia_path::PathSegment};
@@ -186,8 +186,14 @@ pub(super) fn write(trees: &[usvg::Tree]) -> Vec<u8> {
             )
             .into_bytes(),
         );
-        let mut stream = format!("<< /Length {} >>\nstream\n", content.len()).into_bytes();
-        stream.extend_from_slice(content.as_bytes());
+        // Zlib-wrapped deflate, as FlateDecode reads it (ISO 32000-1 §7.4.4).
+        let packed = miniz_oxide::deflate::compress_to_vec_zlib(content.as_bytes(), 6);
+        let mut stream = format!(
+            "<< /Length {} /Filter /FlateDecode >>\nstream\n",
+            packed.len()
+        )
+        .into_bytes();
+        stream.extend_from_slice(&packed);
         stream.extend_from_slice(b"\nendstream");
         objects.push(stream);
     }
@@ -250,6 +256,11 @@ mod tests {
         }
         // 96 × 48 px at 96 px per inch is 72 × 36 pt.
         assert!(text.contains("/MediaBox [0 0 72 36]"), "{text}");
-        assert!(text.contains("1 0 0 rg"), "the red fill");
+        // The content inflates back to the red fill's operators.
+        let start = pdf.windows(7).position(|w| w == b"stream\n").unwrap() + 7;
+        let end = pdf.windows(10).position(|w| w == b"\nendstream").unwrap();
+        let content = miniz_oxide::inflate::decompress_to_vec_zlib(&pdf[start..end]).unwrap();
+        let content = String::from_utf8(content).unwrap();
+        assert!(content.contains("1 0 0 rg"), "{content}");
     }
 }

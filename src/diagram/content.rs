@@ -92,6 +92,9 @@ pub(crate) struct Tag {
     pub markers: Vec<Marker>,
     /// A ground net's tag: not on a line, drawn with a ground symbol.
     pub ground: bool,
+    /// A bundle's tag: placed between the two parts it joins when a column
+    /// lies between them, not after both.
+    pub between: bool,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
@@ -259,6 +262,7 @@ pub(crate) fn gather(checked: &Checked) -> Content {
             lines,
             markers: Vec::new(),
             ground: false,
+            between: true,
         });
         ends.push(End {
             node: tag_node,
@@ -292,6 +296,7 @@ pub(crate) fn gather(checked: &Checked) -> Content {
                     lines: ground_lines(plan, net_id),
                     markers,
                     ground: true,
+                    between: false,
                 });
                 if let Some(pin) = anchor {
                     edges.push((pin.part, tag_node));
@@ -325,6 +330,7 @@ pub(crate) fn gather(checked: &Checked) -> Content {
                 lines: net_lines(plan, checked.analysis.as_ref(), net_id, kind, has_source),
                 markers,
                 ground: false,
+                between: false,
             });
             ends.push(End {
                 node: tag_node,

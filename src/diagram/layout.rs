@@ -616,7 +616,29 @@ impl Board {
 pub(crate) fn place(content: &Content, marker_w: f64) -> Geometry {
     let part_count = content.parts.len();
     let node_count = part_count + content.tags.len();
-    let (column, discovery) = columns(node_count, &content.edges, &content.sources, part_count);
+    let (mut column, discovery) = columns(node_count, &content.edges, &content.sources, part_count);
+    // A bundle's tag stands in the first column after the nearer of its two
+    // parts (in the further one's column when they are neighbours), so the
+    // bundle does not loop round behind both.
+    for wire in &content.wires {
+        let Some(tag) = wire.ends.iter().find(|e| e.pin.is_none()).map(|e| e.node) else {
+            continue;
+        };
+        if !content.tags[tag - part_count].between {
+            continue;
+        }
+        let parts = wire
+            .ends
+            .iter()
+            .filter(|e| e.pin.is_some())
+            .map(|e| column[e.node]);
+        let (low, high) = (parts.clone().min(), parts.max());
+        if let (Some(low), Some(high)) = (low, high)
+            && high > low
+        {
+            column[tag] = low + 1;
+        }
+    }
     let mut board = Board::new(content, &column);
     let mut sides = board.pin_sides(content);
 

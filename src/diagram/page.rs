@@ -5,6 +5,9 @@
 //!
 //! Sheet 1 carries the title block and the first tile; every other sheet a
 //! header line; the findings, legend and cautions follow on their own sheets.
+//! Beside a vertical cut the flags stand in a fixed gutter, spread apart
+//! with jogged leads; under or over a horizontal cut they stack one per row,
+//! so that gutter is only as deep as the lines the cut crosses.
 //! The scale is the same on every sheet, so tiles join edge to edge. Cuts run
 //! only where no box, tag or label is, never along a line. Not for what is
 //! drawn: `render` draws each piece, this module says where.
@@ -289,14 +292,21 @@ fn cut_below(intervals: &[(f64, f64)], floor: f64, limit: f64) -> Result<f64, (f
     }
 }
 
-/// A strip's left and right and its rows' tops and bottoms.
-type Strip = (f64, f64, Vec<(f64, f64)>);
+/// A row's top and bottom, and the gutters kept above and below it.
+type Row = (f64, f64, f64, f64);
+/// A strip's left and right and its rows.
+type Strip = (f64, f64, Vec<Row>);
+
+/// Room under (or over) a cut for `count` flags stacked one per row.
+fn stack_gutter(count: usize) -> f64 {
+    6.0 + count as f64 * (FLAG_HEIGHT + 2.0)
+}
 
 #[derive(Clone, Copy, Debug)]
 struct Tile {
     window: Rect,
-    /// Cuts on the left, right, top and bottom.
-    cut: [bool; 4],
+    /// Room kept for off-page connectors on the left, right, top and bottom.
+    gutter: [f64; 4],
 }
 
 /// Cuts the drawing into tiles: strips across, then rows in each strip.
@@ -323,7 +333,7 @@ fn tiles(
     }
     // Rows of one strip: cuts across it where no box is, or the run of
     // boxes that leaves no room for one.
-    let rows_of = |strip: usize, xa: f64, xb: f64| -> Result<Vec<(f64, f64)>, (f64, f64)> {
+    let rows_of = |strip: usize, xa: f64, xb: f64| -> Result<Vec<Row>, (f64, f64)> {
         let overlaps = |b: &Bounds| b.x1 > xa && b.x0 < xb;
         let mut y_blocks: Vec<(f64, f64)> = blocks
             .iter()
@@ -347,7 +357,16 @@ fn tiles(
         } else {
             0.0
         };
-        let mut rows: Vec<(f64, f64)> = Vec::new();
+        // Lines a cut at `y` crosses in this strip: each needs a flag row.
+        let crossing = |y: f64| {
+            segments
+                .iter()
+                .filter(|s| s[0] == s[2] && s[0] >= xa && s[0] <= xb)
+                .filter(|s| s[1].min(s[3]) < y && s[1].max(s[3]) > y)
+                .count()
+        };
+        let mut rows: Vec<Row> = Vec::new();
+        let mut top_gutter = 0.0;
         loop {
             let first = rows.is_empty();
             let tall = if strip == 0 && first {
@@ -355,19 +374,30 @@ fn tiles(
             } else {
                 height
             };
-            let room = tall - if first { 0.0 } else { GUTTER };
+            let room = tall - top_gutter;
             if geometry.height - top <= room {
-                rows.push((top, geometry.height));
+                rows.push((top, geometry.height, top_gutter, 0.0));
                 return Ok(rows);
             }
-            let limit = top + room - GUTTER;
-            match cut_below(&y_blocks, top + 1.0, limit) {
-                Ok(cut) if cut > top + 1.0 => {
-                    rows.push((top, cut));
-                    top = cut;
+            // The gutter below grows with the lines the cut crosses; try
+            // again higher up until the cut leaves room for them.
+            let mut bottom_gutter = stack_gutter(1);
+            loop {
+                let limit = top + room - bottom_gutter;
+                match cut_below(&y_blocks, top + 1.0, limit) {
+                    Ok(cut) if cut > top + 1.0 => {
+                        let need = stack_gutter(crossing(cut));
+                        if need <= bottom_gutter {
+                            rows.push((top, cut, top_gutter, need));
+                            top = cut;
+                            top_gutter = need;
+                            break;
+                        }
+                        bottom_gutter = need;
+                    }
+                    Ok(_) => return Err((top, limit)),
+                    Err(run) => return Err(run),
                 }
-                Ok(_) => return Err((top, limit)),
-                Err(run) => return Err(run),
             }
         }
     };
@@ -418,8 +448,7 @@ fn tiles(
     let mut out = Vec::new();
     let strip_count = strips.len();
     for (strip, (xa, xb, rows)) in strips.iter().enumerate() {
-        let row_count = rows.len();
-        for (row, &(ya, yb)) in rows.iter().enumerate() {
+        for &(ya, yb, above, below) in rows {
             out.push(Tile {
                 window: Rect {
                     x: *xa,
@@ -427,11 +456,11 @@ fn tiles(
                     width: xb - xa,
                     height: yb - ya,
                 },
-                cut: [
-                    strip > 0,
-                    strip + 1 < strip_count,
-                    row > 0,
-                    row + 1 < row_count,
+                gutter: [
+                    if strip > 0 { GUTTER } else { 0.0 },
+                    if strip + 1 < strip_count { GUTTER } else { 0.0 },
+                    above,
+                    below,
                 ],
             });
         }
@@ -448,17 +477,9 @@ struct Crossing {
     sheet: usize,
 }
 
-/// Flags and the jogged lines leading to them along one edge. `edge` is the
-/// cut's coordinate; `outward` is +1 (right or down) or −1; `across` is true
-/// for a vertical edge (horizontal lines crossing it).
-fn flags(
-    crossings: &mut [Crossing],
-    edge: f64,
-    outward: f64,
-    across: bool,
-    dx: f64,
-    dy: f64,
-) -> Group {
+/// Flags and the jogged lines leading to them along a vertical cut at
+/// `edge`; `outward` is +1 (right) or −1 (left).
+fn flags(crossings: &mut [Crossing], edge: f64, outward: f64, dx: f64, dy: f64) -> Group {
     crossings.sort_by(|a, b| a.at.total_cmp(&b.at).then(a.name.cmp(&b.name)));
     // Where each flag sits along the edge: no closer than a flag's height.
     let mut slot: Vec<f64> = Vec::with_capacity(crossings.len());
@@ -488,21 +509,13 @@ fn flags(
     let flag_at = edge + outward * (8.0 + LANE * MAX_LANES as f64);
     for (n, c) in crossings.iter().enumerate() {
         let jog = edge + outward * (4.0 + LANE * lane[n] as f64);
-        let words = format!(
-            "{} → {}",
-            text::truncate(&c.name, FLAG_NAME_CELLS),
-            c.sheet + 1
-        );
+        let words = flag_words(c);
         let length = text::width(&words, FLAG_TEXT) + 6.0;
         let mut lead = vec![[edge, c.at, jog, c.at]];
         if slot[n] != c.at {
             lead.push([jog, c.at, jog, slot[n]]);
         }
         lead.push([jog, slot[n], flag_at, slot[n]]);
-        let lead: Vec<[f64; 4]> = lead
-            .into_iter()
-            .map(|[a, b, cc, d]| if across { [a, b, cc, d] } else { [b, a, d, cc] })
-            .collect();
         let d = render::segments_path(&lead, dx, dy);
         group = group.add(render::connection(&d, c.kind, &c.name));
         let near = if outward > 0.0 {
@@ -510,42 +523,65 @@ fn flags(
         } else {
             flag_at - length
         };
-        let (rx, ry, rw, rh) = if across {
-            (near, slot[n] - FLAG_HEIGHT / 2.0, length, FLAG_HEIGHT)
-        } else {
-            (slot[n] - FLAG_HEIGHT / 2.0, near, FLAG_HEIGHT, length)
-        };
-        let frame = Rectangle::new()
-            .set("class", "off-page")
-            .set("data-net", c.name.clone())
-            .set("data-sheet", c.sheet + 1)
-            .set("x", num(rx + dx))
-            .set("y", num(ry + dy))
-            .set("width", num(rw))
-            .set("height", num(rh))
-            .set("fill", super::style::PAPER)
-            .set("stroke", super::style::INK)
-            .set("stroke-width", "1");
-        let (tx, ty) = if across {
-            (rx + 3.0, slot[n] + 3.0)
-        } else {
-            (slot[n] - 3.0, ry + 3.0)
-        };
-        let mut words_node = Text::new(words)
-            .set("class", "off-page-text")
-            .set("x", num(tx + dx))
-            .set("y", num(ty + dy))
-            .set("font-size", num(FLAG_TEXT))
-            .set("fill", super::style::INK);
-        if !across {
-            words_node = words_node.set(
-                "transform",
-                format!("rotate(90 {} {})", num(tx + dx), num(ty + dy)),
-            );
-        }
-        group = group.add(frame).add(words_node);
+        let ry = slot[n] - FLAG_HEIGHT / 2.0;
+        group = group
+            .add(flag_frame(c, near + dx, ry + dy, length, FLAG_HEIGHT))
+            .add(flag_text(words, near + 3.0 + dx, slot[n] + 3.0 + dy));
     }
     group
+}
+
+/// Flags for the lines crossing a horizontal cut at `edge`, one per row
+/// going away from it (`outward` +1 down, −1 up): the rightmost line takes
+/// the nearest row and each flag reads rightwards from its line, so a line
+/// running on to a further row always passes left of the flags before it.
+fn stacked_flags(crossings: &mut [Crossing], edge: f64, outward: f64, dx: f64, dy: f64) -> Group {
+    crossings.sort_by(|a, b| b.at.total_cmp(&a.at).then(a.name.cmp(&b.name)));
+    let mut group = Group::new().set("class", "off-page-connectors");
+    for (row, c) in crossings.iter().enumerate() {
+        let mid = edge + outward * (6.0 + row as f64 * (FLAG_HEIGHT + 2.0) + FLAG_HEIGHT / 2.0);
+        let words = flag_words(c);
+        let length = text::width(&words, FLAG_TEXT) + 6.0;
+        let lead = [[c.at, edge, c.at, mid], [c.at, mid, c.at + 4.0, mid]];
+        let d = render::segments_path(&lead, dx, dy);
+        group = group.add(render::connection(&d, c.kind, &c.name));
+        let (rx, ry) = (c.at + 4.0, mid - FLAG_HEIGHT / 2.0);
+        group = group
+            .add(flag_frame(c, rx + dx, ry + dy, length, FLAG_HEIGHT))
+            .add(flag_text(words, rx + 3.0 + dx, mid + 3.0 + dy));
+    }
+    group
+}
+
+fn flag_words(c: &Crossing) -> String {
+    format!(
+        "{} → {}",
+        text::truncate(&c.name, FLAG_NAME_CELLS),
+        c.sheet + 1
+    )
+}
+
+fn flag_frame(c: &Crossing, x: f64, y: f64, width: f64, height: f64) -> Rectangle {
+    Rectangle::new()
+        .set("class", "off-page")
+        .set("data-net", c.name.clone())
+        .set("data-sheet", c.sheet + 1)
+        .set("x", num(x))
+        .set("y", num(y))
+        .set("width", num(width))
+        .set("height", num(height))
+        .set("fill", super::style::PAPER)
+        .set("stroke", super::style::INK)
+        .set("stroke-width", "1")
+}
+
+fn flag_text(words: String, x: f64, y: f64) -> Text {
+    Text::new(words)
+        .set("class", "off-page-text")
+        .set("x", num(x))
+        .set("y", num(y))
+        .set("font-size", num(FLAG_TEXT))
+        .set("fill", super::style::INK)
 }
 
 /// A header line: the plan's name and the sheet's number.
@@ -727,8 +763,8 @@ pub(super) fn sheets(
                 Piece::Tile(t) => {
                     let tile = tiles[*t];
                     let w = tile.window;
-                    let left = if tile.cut[0] { GUTTER } else { 0.0 };
-                    let top = if tile.cut[2] { GUTTER } else { 0.0 };
+                    let left = tile.gutter[0];
+                    let top = tile.gutter[2];
                     let dx = margin + left - w.x;
                     let dy = y + top - w.y;
                     body = body.add(render::drawing(content, geometry, dx, dy, Some(w)));
@@ -848,10 +884,10 @@ fn connectors(
     }
     let [mut left, mut right, mut up, mut down] = edges;
     Group::new()
-        .add(flags(&mut left, xa, -1.0, true, dx, dy))
-        .add(flags(&mut right, xb, 1.0, true, dx, dy))
-        .add(flags(&mut up, ya, -1.0, false, dx, dy))
-        .add(flags(&mut down, yb, 1.0, false, dx, dy))
+        .add(flags(&mut left, xa, -1.0, dx, dy))
+        .add(flags(&mut right, xb, 1.0, dx, dy))
+        .add(stacked_flags(&mut up, ya, -1.0, dx, dy))
+        .add(stacked_flags(&mut down, yb, 1.0, dx, dy))
 }
 
 /// The page for a plan when none is asked for: the smallest (either way

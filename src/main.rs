@@ -78,11 +78,13 @@ enum Command {
         #[arg(long, value_name = "OUT.svg")]
         diagram: Option<PathBuf>,
     },
-    /// Draw the plan's block diagram as SVG (or PNG) for build notes.
+    /// Draw the plan's block diagram as SVG, PNG or PDF for build notes.
     ///
-    /// One of `-o/--output` and `--png` is required.
+    /// One of `-o/--output`, `--png` and `--pdf` is required. With `--page`
+    /// (and always for `--pdf`) the diagram is fitted to that paper with no
+    /// text under 7 pt, over several sheets when it must be.
     #[command(group(
-        clap::ArgGroup::new("target").args(["output", "png"]).required(true).multiple(true)
+        clap::ArgGroup::new("target").args(["output", "png", "pdf"]).required(true).multiple(true)
     ))]
     Draw {
         #[command(flatten)]
@@ -94,6 +96,16 @@ enum Command {
         /// Also (or instead) write the diagram as a PNG picture.
         #[arg(long, value_name = "OUT.png")]
         png: Option<PathBuf>,
+        /// Also (or instead) write the diagram as a vector PDF, one page per sheet.
+        #[arg(long, value_name = "OUT.pdf")]
+        pdf: Option<PathBuf>,
+        /// Fit the diagram to this paper (default for --pdf: the smallest
+        /// that holds the drawing uncut).
+        #[arg(long, value_enum)]
+        page: Option<PaperArg>,
+        /// Turn the page: long side across.
+        #[arg(long, requires = "page")]
+        landscape: bool,
     },
     /// Show the power budget: per rail and per battery.
     Budget {
@@ -175,6 +187,39 @@ enum Command {
     Man,
 }
 
+/// Paper sizes for `draw --page`.
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum PaperArg {
+    /// ISO A4, 210 × 297 mm.
+    A4,
+    /// ISO A3, 297 × 420 mm.
+    A3,
+    /// US Letter, 8.5 × 11 in.
+    Letter,
+    /// US Tabloid, 11 × 17 in.
+    Tabloid,
+}
+
+impl PaperArg {
+    fn paper(self) -> railcheck::diagram::Paper {
+        use railcheck::diagram::Paper;
+        match self {
+            PaperArg::A4 => Paper::A4,
+            PaperArg::A3 => Paper::A3,
+            PaperArg::Letter => Paper::Letter,
+            PaperArg::Tabloid => Paper::Tabloid,
+        }
+    }
+}
+
+/// Where `draw` writes, and on what paper.
+struct DrawTargets<'a> {
+    output: Option<&'a Path>,
+    png: Option<&'a Path>,
+    pdf: Option<&'a Path>,
+    page: Option<railcheck::diagram::Page>,
+}
+
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
 enum Format {
     Human,
@@ -228,7 +273,25 @@ fn main() -> ExitCode {
             quiet,
             diagram,
         } => check(&run, &plan, strict, quiet, diagram.as_deref()),
-        Command::Draw { plan, output, png } => draw(&run, &plan, output.as_deref(), png.as_deref()),
+        Command::Draw {
+            plan,
+            output,
+            png,
+            pdf,
+            page,
+            landscape,
+        } => {
+            let targets = DrawTargets {
+                output: output.as_deref(),
+                png: png.as_deref(),
+                pdf: pdf.as_deref(),
+                page: page.map(|p| railcheck::diagram::Page {
+                    paper: p.paper(),
+                    landscape,
+                }),
+            };
+            draw(&run, &plan, &targets)
+        }
         Command::Budget { plan, quiet } => budget(&run, &plan, quiet),
         Command::Wires { plan } => wires(&run, &plan),
         Command::Bringup { plan } => bringup(&run, &plan),
@@ -565,18 +628,19 @@ fn check(
     }
 }
 
-fn draw(run: &Run, args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -> ExitCode {
+fn draw(run: &Run, args: &PlanArgs, targets: &DrawTargets) -> ExitCode {
     refuse_format(args, "draw", &[Format::Human, Format::Json, Format::Sarif]);
-    let to_stdout = output.is_some_and(is_stdin);
-    if to_stdout && png.is_some_and(is_stdin) {
+    let outputs = [targets.output, targets.png, targets.pdf];
+    let to_stdout = outputs.iter().filter(|o| o.is_some_and(is_stdin)).count();
+    if to_stdout > 1 {
         return fail_as(
             args,
-            "only one of `-o` and `--png` can be `-` (standard output)",
+            "only one of `-o`, `--png` and `--pdf` can be `-` (standard output)",
         );
     }
     // With the diagram on standard output, problems go to standard error so
-    // the output stays a clean SVG document.
-    let stream = if to_stdout || png.is_some_and(is_stdin) {
+    // the output stays a clean document.
+    let stream = if to_stdout > 0 {
         Stream::Stderr
     } else {
         Stream::Stdout
@@ -585,21 +649,49 @@ fn draw(run: &Run, args: &PlanArgs, output: Option<&Path>, png: Option<&Path>) -
         Ok(c) => c,
         Err(code) => return code,
     };
-    let svg = railcheck::diagram::draw(&checked);
-    if let Some(path) = output
+    // On paper when a page is asked for, and always for a PDF.
+    let sheets = if targets.page.is_some() || targets.pdf.is_some() {
+        match railcheck::diagram::draw_pages(&checked, targets.page) {
+            Ok(sheets) => Some(sheets),
+            Err(e) => return fail_as(args, &e.to_string()),
+        }
+    } else {
+        None
+    };
+    let svg = match (&sheets, targets.page) {
+        (Some(sheets), Some(_)) => sheets.combined.clone(),
+        _ => railcheck::diagram::draw(&checked),
+    };
+    if let Some(path) = targets.output
         && let Err(message) = deliver(path, &args.file, svg.as_bytes())
     {
         return fail_as(args, &message);
     }
-    if let Some(path) = png {
-        let mut options = resvg::usvg::Options::default();
+    let mut options = resvg::usvg::Options::default();
+    if targets.png.is_some() || targets.pdf.is_some() {
         options.fontdb_mut().load_system_fonts();
+    }
+    if let Some(path) = targets.png {
         let written = railcheck::diagram::png(&svg, &options)
             .map_err(|e| e.to_string())
             .and_then(|bytes| deliver(path, &args.file, &bytes));
         if let Err(message) = written {
             return fail_as(args, &message);
         }
+    }
+    if let (Some(path), Some(sheets)) = (targets.pdf, &sheets) {
+        let written = railcheck::diagram::pdf(&sheets.svgs, &options)
+            .map_err(|e| e.to_string())
+            .and_then(|bytes| deliver(path, &args.file, &bytes));
+        if let Err(message) = written {
+            return fail_as(args, &message);
+        }
+        eprintln!(
+            "{} sheet{} on {}",
+            sheets.svgs.len(),
+            if sheets.svgs.len() == 1 { "" } else { "s" },
+            sheets.page
+        );
     }
     ExitCode::SUCCESS
 }

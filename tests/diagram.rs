@@ -89,6 +89,12 @@ struct Picture {
     labels: Vec<Label>,
     /// (class, net, segment)
     segments: Vec<(String, String, [f64; 4])>,
+    /// Per drawn connection (one path each): its segments.
+    paths: Vec<(String, Vec<[f64; 4]>)>,
+    /// Frames of rail tags and off-page connectors: places a line may end on.
+    frames: Vec<Bounds>,
+    /// Centres of junction dots.
+    dots: Vec<(f64, f64)>,
 }
 
 fn has_class(node: &Node, class: &str) -> bool {
@@ -147,6 +153,9 @@ fn picture(svg: &str) -> Picture {
     let mut boxes = Vec::new();
     let mut labels = Vec::new();
     let mut segs = Vec::new();
+    let mut paths = Vec::new();
+    let mut frames = Vec::new();
+    let mut dots = Vec::new();
     for node in doc.descendants() {
         if node.has_tag_name("rect") && has_class(&node, "part-box") {
             let part = node
@@ -192,20 +201,40 @@ fn picture(svg: &str) -> Picture {
         if node.has_tag_name("path") && has_class(&node, "wire") {
             let class = node.attribute("class").unwrap_or_default().to_string();
             let net = node.attribute("data-net").unwrap_or_default().to_string();
-            for s in segments(node.attribute("d").expect("a wire path has d")) {
-                segs.push((class.clone(), net.clone(), s));
+            let path = segments(node.attribute("d").expect("a wire path has d"));
+            for s in &path {
+                segs.push((class.clone(), net.clone(), *s));
             }
+            paths.push((net, path));
+        }
+        if node.has_tag_name("rect")
+            && (has_class(&node, "tag-frame") || has_class(&node, "off-page"))
+        {
+            let (x, y) = (number(&node, "x"), number(&node, "y"));
+            frames.push(Bounds {
+                x0: x,
+                y0: y,
+                x1: x + number(&node, "width"),
+                y1: y + number(&node, "height"),
+            });
+        }
+        if node.has_tag_name("circle") && has_class(&node, "junction") {
+            dots.push((number(&node, "cx"), number(&node, "cy")));
         }
     }
     Picture {
         boxes,
         labels,
         segments: segs,
+        paths,
+        frames,
+        dots,
     }
 }
 
 /// Everything the issue asks of the picture's geometry.
 fn assert_clean_geometry(svg: &str, what: &str) {
+    assert_line_ends_attached(svg, what);
     let pic = picture(svg);
     assert!(!pic.boxes.is_empty(), "{what}: no part boxes");
     for (i, (a, ba)) in pic.boxes.iter().enumerate() {
@@ -259,6 +288,365 @@ fn assert_clean_geometry(svg: &str, what: &str) {
             );
         }
     }
+}
+
+/// Whether a point lies on the outline of a box.
+fn on_outline(b: &Bounds, (x, y): (f64, f64)) -> bool {
+    let within_y = y >= b.y0 - EPS && y <= b.y1 + EPS;
+    let within_x = x >= b.x0 - EPS && x <= b.x1 + EPS;
+    ((x - b.x0).abs() < EPS || (x - b.x1).abs() < EPS) && within_y
+        || ((y - b.y0).abs() < EPS || (y - b.y1).abs() < EPS) && within_x
+}
+
+/// Whether a point lies on an axis-parallel segment.
+fn on_segment([x1, y1, x2, y2]: [f64; 4], (x, y): (f64, f64)) -> bool {
+    x >= x1.min(x2) - EPS
+        && x <= x1.max(x2) + EPS
+        && y >= y1.min(y2) - EPS
+        && y <= y1.max(y2) + EPS
+        && ((x1 - x2).abs() < EPS || (y1 - y2).abs() < EPS)
+}
+
+/// No line ends in open space: every end of every segment of a connection
+/// lies on a part box's outline (a pin), on a tag's or off-page connector's
+/// frame, on a junction dot, or on another segment of the same connection.
+fn assert_line_ends_attached(svg: &str, what: &str) {
+    let pic = picture(svg);
+    for (net, path) in &pic.paths {
+        for (i, s) in path.iter().enumerate() {
+            for end in [(s[0], s[1]), (s[2], s[3])] {
+                let attached = pic.boxes.iter().any(|(_, b)| on_outline(b, end))
+                    || pic.frames.iter().any(|b| on_outline(b, end))
+                    || pic
+                        .dots
+                        .iter()
+                        .any(|d| (d.0 - end.0).abs() < EPS && (d.1 - end.1).abs() < EPS)
+                    || path
+                        .iter()
+                        .enumerate()
+                        .any(|(j, other)| j != i && on_segment(*other, end))
+                    // A line cut at a sheet's edge goes on as its off-page
+                    // connector's lead, drawn as a path of the same net.
+                    || pic.paths.iter().any(|(other_net, other)| {
+                        other_net == net
+                            && !std::ptr::eq(other, path)
+                            && other.iter().any(|o| on_segment(*o, end))
+                    });
+                assert!(
+                    attached,
+                    "{what}: `{net}` ends in open space at {end:?} (segment {s:?})"
+                );
+            }
+        }
+    }
+}
+
+#[test]
+#[should_panic(expected = "ends in open space")]
+fn a_line_left_hanging_is_caught() {
+    // A box with one line leaving its right edge and stopping short of
+    // anything: the check must refuse it.
+    let svg = r#"<svg xmlns="http://www.w3.org/2000/svg">
+<g class="part" data-part="a"><rect class="part-box" x="0" y="0" width="40" height="40"/></g>
+<path class="wire rail" data-net="X" d="M40 20 L90 20"/>
+</svg>"#;
+    assert_line_ends_attached(svg, "hanging");
+}
+
+#[test]
+fn signals_are_named_at_their_pins_and_shared_runs_are_bundled() {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml"),
+    )
+    .unwrap();
+    let checked = check("examples/orchard-rover.yaml", &text);
+    let svg = railcheck::diagram::draw(&checked);
+    let doc = Document::parse(&svg).unwrap();
+    let part_texts = |part: &str| -> Vec<String> {
+        doc.descendants()
+            .find(|n| n.attribute("data-part") == Some(part))
+            .unwrap()
+            .descendants()
+            .filter(|n| n.has_tag_name("text"))
+            .map(|n| text_of(&n))
+            .collect()
+    };
+    let drawn: Vec<(String, String)> = doc
+        .descendants()
+        .filter(|n| has_class(n, "wire"))
+        .map(|n| {
+            (
+                n.attribute("class").unwrap().to_string(),
+                n.attribute("data-net").unwrap().to_string(),
+            )
+        })
+        .collect();
+    let plan = &checked.plan;
+    let mut bundled = 0;
+    for net in &plan.nets {
+        let signal = drawn
+            .iter()
+            .any(|(c, n)| c.contains("signal") && n == &net.name);
+        let bundle = drawn.iter().find(|(c, n)| {
+            c.contains("bundle")
+                && n.split(": ")
+                    .nth(1)
+                    .is_some_and(|members| members.split(", ").any(|m| m == net.name))
+        });
+        if !signal && bundle.is_none() {
+            continue;
+        }
+        assert!(!(signal && bundle.is_some()), "{} drawn twice", net.name);
+        // Where it leaves and where it enters each box, the pin says which
+        // signal it carries.
+        for pin in &net.pins {
+            let part = &plan.parts[pin.part];
+            let wanted = format!("{}: {}", part.pins[pin.pin].name, net.name);
+            assert!(
+                part_texts(&part.name).contains(&wanted),
+                "{wanted:?} not on `{}`",
+                part.name
+            );
+        }
+        if let Some((_, name)) = bundle {
+            bundled += 1;
+            // The bundle's tag lists every member.
+            let listed = tag_lines(&svg, name).join(" ");
+            assert!(listed.contains(&net.name), "{listed}");
+        }
+    }
+    // The rover's motor driver takes six signals from the controller (in1–in4,
+    // ena, enb), all between the same two parts: at least those run as one.
+    assert!(bundled >= 6, "{bundled} signals bundled");
+}
+
+/// Points per millimetre: 72 pt to the inch, 25.4 mm to the inch.
+const PT_PER_MM: f64 = 72.0 / 25.4;
+
+/// Printed size in points of every text element of one sheet: its font size
+/// in drawing units times the sheet's scale, which is the page width in
+/// points (from the `width` attribute in mm) over the viewBox width.
+fn printed_text_sizes(svg: &str) -> Vec<(String, f64)> {
+    let doc = Document::parse(svg).unwrap();
+    let root = doc.root_element();
+    let width = root.attribute("width").unwrap();
+    let millimetres: f64 = width
+        .strip_suffix("mm")
+        .unwrap_or_else(|| panic!("sheet width {width:?} is not in mm"))
+        .parse()
+        .unwrap();
+    let view: Vec<f64> = root
+        .attribute("viewBox")
+        .unwrap()
+        .split(' ')
+        .map(|v| v.parse().unwrap())
+        .collect();
+    let scale = millimetres * PT_PER_MM / view[2];
+    doc.descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| (text_of(&n), number(&n, "font-size") * scale))
+        .collect()
+}
+
+fn rover_plan() -> railcheck::Checked {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml"),
+    )
+    .unwrap();
+    check("examples/orchard-rover.yaml", &text)
+}
+
+#[test]
+fn the_rover_prints_on_a4_with_no_text_under_7_pt() {
+    use railcheck::diagram::{Page, Paper};
+    let checked = rover_plan();
+    for landscape in [false, true] {
+        let page = Page {
+            paper: Paper::A4,
+            landscape,
+        };
+        let sheets = railcheck::diagram::draw_pages(&checked, Some(page))
+            .unwrap_or_else(|e| panic!("{page}: {e}"));
+        assert!(
+            sheets.svgs.len() >= 2,
+            "{page}: the rover needs several sheets"
+        );
+        // ISO 216 A4: 210 × 297 mm.
+        let (w, h) = if landscape {
+            ("297mm", "210mm")
+        } else {
+            ("210mm", "297mm")
+        };
+        let mut connectors = 0;
+        let mut parts = std::collections::BTreeSet::new();
+        for (i, svg) in sheets.svgs.iter().enumerate() {
+            let what = format!("{page} sheet {}", i + 1);
+            let doc = Document::parse(svg).unwrap();
+            assert_eq!(doc.root_element().attribute("width"), Some(w), "{what}");
+            assert_eq!(doc.root_element().attribute("height"), Some(h), "{what}");
+            for (text, size) in printed_text_sizes(svg) {
+                // The 7 pt floor, with rounding of the written numbers.
+                assert!(
+                    size >= 7.0 - 1e-6,
+                    "{what}: {text:?} prints at {size:.2} pt"
+                );
+            }
+            assert_line_ends_attached(svg, &what);
+            // Every connector names a net and a sheet that exists.
+            for node in doc.descendants().filter(|n| has_class(n, "off-page")) {
+                connectors += 1;
+                let to: usize = node.attribute("data-sheet").unwrap().parse().unwrap();
+                assert!(
+                    to >= 1 && to <= sheets.svgs.len() && to != i + 1,
+                    "{what}: to {to}"
+                );
+                assert!(!node.attribute("data-net").unwrap().is_empty());
+            }
+            for node in doc.descendants().filter(|n| has_class(n, "part")) {
+                let part = node.attribute("data-part").unwrap().to_string();
+                assert!(parts.insert(part.clone()), "{what}: `{part}` drawn twice");
+            }
+        }
+        assert!(
+            connectors > 0,
+            "{page}: cut lines without off-page connectors"
+        );
+        assert_eq!(
+            parts.len(),
+            checked.plan.parts.len(),
+            "{page}: parts missing"
+        );
+        // A connector on one side of a cut has its partner on the other.
+        let flags = |sheet: usize| -> Vec<(String, usize)> {
+            let doc = Document::parse(&sheets.svgs[sheet]).unwrap();
+            doc.descendants()
+                .filter(|n| has_class(n, "off-page"))
+                .map(|n| {
+                    (
+                        n.attribute("data-net").unwrap().to_string(),
+                        n.attribute("data-sheet").unwrap().parse().unwrap(),
+                    )
+                })
+                .collect()
+        };
+        for sheet in 0..sheets.svgs.len() {
+            for (net, to) in flags(sheet) {
+                assert!(
+                    flags(to - 1).contains(&(net.clone(), sheet + 1)),
+                    "{page}: `{net}` goes from sheet {} to {to} but does not come back",
+                    sheet + 1
+                );
+            }
+        }
+        let again = railcheck::diagram::draw_pages(&checked, Some(page)).unwrap();
+        assert_eq!(again, sheets, "{page}: two runs differ");
+    }
+}
+
+#[test]
+fn without_a_page_the_smallest_that_holds_the_drawing_is_chosen() {
+    use railcheck::diagram::{Page, Paper};
+    // Papers by area: US Letter 215.9 × 279.4 mm, ISO A4 210 × 297 mm, US
+    // Tabloid 279.4 × 431.8 mm, ISO A3 297 × 420 mm (ANSI/ASME Y14.1, ISO 216).
+    let checked = check("chain.yaml", CHAIN);
+    let sheets = railcheck::diagram::draw_pages(&checked, None).unwrap();
+    let uncut = |svgs: &[String]| !svgs.iter().any(|s| s.contains(r#"class="off-page""#));
+    assert!(uncut(&sheets.svgs), "{}: the drawing is cut", sheets.page);
+    // Every smaller page, either way round, would have to cut it.
+    let order: Vec<Page> = Paper::ALL
+        .iter()
+        .flat_map(|&paper| [false, true].map(|landscape| Page { paper, landscape }))
+        .collect();
+    let chosen = order.iter().position(|p| *p == sheets.page).unwrap();
+    for &smaller in &order[..chosen] {
+        let on = railcheck::diagram::draw_pages(&checked, Some(smaller));
+        assert!(
+            on.as_ref().map_or(true, |s| !uncut(&s.svgs)),
+            "{smaller} holds the drawing uncut, yet {} was chosen",
+            sheets.page
+        );
+    }
+    for svg in &sheets.svgs {
+        for (text, size) in printed_text_sizes(svg) {
+            assert!(size >= 7.0 - 1e-6, "{text:?} prints at {size:.2} pt");
+        }
+    }
+    // Asked for a page, it keeps to it.
+    let a3 = Page {
+        paper: Paper::A3,
+        landscape: false,
+    };
+    let on_a3 = railcheck::diagram::draw_pages(&checked, Some(a3)).unwrap();
+    assert_eq!(on_a3.page, a3);
+    assert!(on_a3.svgs[0].contains(r#"width="297mm""#));
+}
+
+#[test]
+fn a_box_taller_than_the_page_names_the_page_it_needs() {
+    use railcheck::diagram::{Page, Paper};
+    // A logger with 48 signal inputs from one sensor head: its box is 49 pin
+    // rows of 16 units, about 800 units, taller than the 615 units an A4
+    // landscape sheet has at 7 pt (210 mm − 20 mm margins = 538.6 pt,
+    // / 0.875 pt per unit).
+    let mut plan = String::from(
+        "railcheck: 1\nname: tall logger\nparts:\n  pack: { use: battery/lipo-3s }\n  buck: { use: regulator/buck-5v-3a }\n  head:\n    class: sensor\n    pins:\n      vcc: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 10 mA } }\n      gnd: { role: ground }\n",
+    );
+    for i in 0..48 {
+        plan.push_str(&format!(
+            "      o{i}: {{ role: logic-out, ref: vcc, family: cmos5 }}\n"
+        ));
+    }
+    plan.push_str("  logger:\n    class: board\n    pins:\n      vin: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 50 mA } }\n      gnd: { role: ground }\n");
+    for i in 0..48 {
+        plan.push_str(&format!(
+            "      i{i}: {{ role: logic-in, ref: vin, family: cmos5 }}\n"
+        ));
+    }
+    plan.push_str("nets:\n  BATT+: [pack.pos, buck.vin]\n  GND: [pack.neg, buck.gnd, head.gnd, logger.gnd]\n  5V: [buck.vout, head.vcc, logger.vin]\n");
+    for i in 0..48 {
+        plan.push_str(&format!("  S{i}: [head.o{i}, logger.i{i}]\n"));
+    }
+    let checked = check("tall.yaml", &plan);
+    let page = Page {
+        paper: Paper::A4,
+        landscape: true,
+    };
+    let error = railcheck::diagram::draw_pages(&checked, Some(page)).unwrap_err();
+    let message = error.to_string();
+    assert!(message.contains("a4 landscape"), "{message}");
+    assert!(message.contains("7 pt"), "{message}");
+    let fits = error.fits.expect("a larger page holds it");
+    assert!(
+        message.contains(&format!("--page {}", fits.paper.name())),
+        "{message}"
+    );
+    // The page it names does take it.
+    assert!(railcheck::diagram::draw_pages(&checked, Some(fits)).is_ok());
+}
+
+#[test]
+fn the_pdf_has_a_page_per_sheet() {
+    use railcheck::diagram::{Page, Paper};
+    let checked = rover_plan();
+    let page = Page {
+        paper: Paper::A4,
+        landscape: false,
+    };
+    let sheets = railcheck::diagram::draw_pages(&checked, Some(page)).unwrap();
+    let mut options = resvg::usvg::Options::default();
+    options.fontdb_mut().load_system_fonts();
+    let pdf = railcheck::diagram::pdf(&sheets.svgs, &options).unwrap();
+    assert!(pdf.starts_with(b"%PDF-"), "not a PDF");
+    let text = String::from_utf8_lossy(&pdf);
+    let pages = text.matches("/Type /Page ").count();
+    assert_eq!(pages, sheets.svgs.len());
+    assert!(text.contains(&format!("/Count {pages}")));
+    // A4 portrait in points: 210 mm × 72 / 25.4 = 595.28, 297 mm → 841.89.
+    assert_eq!(
+        text.matches("/MediaBox [0 0 595.276 841.89]").count(),
+        pages
+    );
+    assert!(text.trim_end().ends_with("%%EOF"));
 }
 
 fn examples() -> Vec<PathBuf> {
@@ -427,7 +815,7 @@ nets:
         vec![
             "BATT+",
             "8.99 V–12.6 V",
-            "400 mA typ / 600 mA peak",
+            "400 mA typical / 600 mA peak",
             "18 AWG · 1 m"
         ]
     );
@@ -481,13 +869,18 @@ nets:
             && n.attribute("data-finding") == Some(number.as_str())),
         "no error marker {number} on the part"
     );
-    // Grounded parts get the plain symbol, never the floating one.
+    // A grounded part is never marked floating; its ground here is the
+    // battery negative's lead, drawn as a line.
     let buck = doc
         .descendants()
         .find(|n| n.attribute("data-part") == Some("buck"))
         .unwrap();
-    assert!(buck.descendants().any(|n| has_class(&n, "ground-symbol")));
     assert!(!buck.descendants().any(|n| has_class(&n, "floating-ground")));
+    assert!(
+        doc.descendants()
+            .any(|n| has_class(&n, "ground-lead") && n.attribute("data-net") == Some("GND")),
+        "the battery negative's lead is not drawn"
+    );
     // With two grounds in the plan, each symbol says which one it is.
     let texts = |part: Node| -> Vec<String> {
         part.descendants()
@@ -495,11 +888,6 @@ nets:
             .map(|n| text_of(&n))
             .collect()
     };
-    assert!(
-        texts(buck).contains(&"GND".to_string()),
-        "{:?}",
-        texts(buck)
-    );
     assert!(
         texts(probe).contains(&"PROBE_GND".to_string()),
         "{:?}",
@@ -513,6 +901,92 @@ nets:
         .find(|n| n.attribute("data-part") == Some("buck"))
         .unwrap();
     assert!(!texts(chain_buck).contains(&"GND".to_string()));
+}
+
+/// A pack through a two-way power connector to a buck, and a probe whose
+/// ground comes through a header contact: BATT− and GND have wire sizes,
+/// PROBE_GND has none.
+const RETURNS: &str = "railcheck: 1
+name: greenhouse probe cart
+parts:
+  pack: { use: battery/lipo-3s }
+  plug: { use: connector/power-2pin-30a }
+  buck: { use: regulator/buck-5v-3a }
+  header: { use: connector/header-2pin-3a }
+  probe:
+    class: sensor
+    pins:
+      vcc: { role: supply-in, range: 4.5 V..5.5 V, draw: { typical: 20 mA } }
+      gnd: { role: ground }
+nets:
+  BATT+: { pins: [pack.pos, plug.a1], wire: 12 AWG, length: 20 cm }
+  BATT-: { pins: [pack.neg, plug.a2], wire: 12 AWG, length: 20 cm }
+  VBAT: { pins: [plug.b1, buck.vin], wire: 14 AWG, length: 30 cm }
+  GND: { pins: [plug.b2, buck.gnd, header.a1], wire: 14 AWG, length: 30 cm }
+  5V: [buck.vout, header.a2]
+  PROBE_5V: [header.b2, probe.vcc]
+  PROBE_GND: [header.b1, probe.gnd]
+";
+
+#[test]
+fn ground_leads_with_a_wire_are_drawn_through_their_contacts() {
+    let svg = draw("returns.yaml", RETURNS);
+    assert_clean_geometry(&svg, "returns");
+    let pic = picture(&svg);
+    let doc = Document::parse(&svg).unwrap();
+    // BATT− and GND are lines of their own kind, never a rail's.
+    for net in ["BATT-", "GND"] {
+        let classes: Vec<&str> = pic
+            .segments
+            .iter()
+            .filter(|(_, n, _)| n == net)
+            .map(|(c, _, _)| c.as_str())
+            .collect();
+        assert!(!classes.is_empty(), "{net} is not drawn");
+        assert!(
+            classes
+                .iter()
+                .all(|c| c.contains("ground-lead") && !c.contains("rail")),
+            "{net}: {classes:?}"
+        );
+    }
+    // Their tags give the wire: 12 AWG for 20 cm, 14 AWG for 30 cm.
+    assert!(tag_lines(&svg, "BATT-").contains(&"12 AWG · 0.2 m".to_string()));
+    assert!(tag_lines(&svg, "GND").contains(&"14 AWG · 0.3 m".to_string()));
+    // The power connector's ground contact sits on the path: a lead ends on
+    // each side of the plug's box, at pins a2 and b2.
+    let plug = part_box(&svg, "plug");
+    let on_edge = |net: &str, x: f64| {
+        pic.segments.iter().any(|(_, n, [x1, y1, x2, y2])| {
+            n == net
+                && [(x1, y1), (x2, y2)]
+                    .iter()
+                    .any(|(px, py)| (**px - x).abs() < EPS && **py > plug.y0 && **py < plug.y1)
+        })
+    };
+    assert!(on_edge("BATT-", plug.x0) || on_edge("BATT-", plug.x1));
+    assert!(on_edge("GND", plug.x0) || on_edge("GND", plug.x1));
+    let plug_texts: Vec<String> = doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("plug"))
+        .unwrap()
+        .descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| text_of(&n))
+        .collect();
+    for pin in ["a2", "b2"] {
+        assert!(
+            plug_texts.iter().any(|t| t.split(' ').next() == Some(pin)),
+            "{pin}: {plug_texts:?}"
+        );
+    }
+    // PROBE_GND has no wire given and no battery on it: a symbol at the probe.
+    assert!(!pic.segments.iter().any(|(_, n, _)| n == "PROBE_GND"));
+    let probe = doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("probe"))
+        .unwrap();
+    assert!(probe.descendants().any(|n| has_class(&n, "ground-symbol")));
 }
 
 #[test]
@@ -575,6 +1049,33 @@ fn every_finding_is_numbered_marked_and_listed() {
             );
         }
     }
+    // Each finding's fix is printed under its message, so the printed notes
+    // say what to change, not only what is wrong.
+    let fixes: String = panel
+        .descendants()
+        .filter(|n| has_class(n, "panel-fix"))
+        .map(|n| text_of(&n))
+        .collect::<Vec<_>>()
+        .join(" ");
+    for finding in &checked.findings {
+        let help = finding
+            .help
+            .as_deref()
+            .expect("every rule here suggests a fix");
+        let first_words: String = help
+            .replace('`', "")
+            .split(' ')
+            .take(4)
+            .collect::<Vec<_>>()
+            .join(" ");
+        assert!(
+            fixes.contains(&first_words),
+            "fix {first_words:?} of {} missing",
+            finding.rule
+        );
+    }
+    // No terminal markup reaches the paper.
+    assert!(!panel_texts(&doc).contains('`'));
     let severities: std::collections::BTreeSet<_> =
         checked.findings.iter().map(|f| f.severity).collect();
     assert!(severities.len() >= 2, "{severities:?}");
@@ -748,6 +1249,46 @@ fn title_block_and_cautions() {
         footer.contains("Lithium"),
         "a lipo pack needs the lithium caution"
     );
+}
+
+fn panel_texts(doc: &Document) -> String {
+    doc.descendants()
+        .filter(|n| has_class(n, "findings-panel"))
+        .flat_map(|g| g.descendants().filter(|n| n.has_tag_name("text")))
+        .map(|n| text_of(&n))
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+#[test]
+fn boxes_name_their_library_part_and_the_title_block_its_revision() {
+    // The rover's plan gives revision D, its date and its author; its pack is
+    // `use: battery/lipo-3s` (examples/orchard-rover.yaml).
+    let svg = rover_svg();
+    let doc = Document::parse(&svg).unwrap();
+    let title: String = doc
+        .descendants()
+        .filter(|n| has_class(n, "title"))
+        .map(|n| text_of(&n))
+        .collect::<Vec<_>>()
+        .join(" ");
+    assert!(
+        title.contains("revision D · dated 2026-11-20 · drawn by Orchard robotics group"),
+        "{title}"
+    );
+    let pack = doc
+        .descendants()
+        .find(|n| n.attribute("data-part") == Some("pack"))
+        .unwrap();
+    let lines: Vec<String> = pack
+        .descendants()
+        .filter(|n| n.has_tag_name("text"))
+        .map(|n| text_of(&n))
+        .collect();
+    assert_eq!(&lines[..2], ["pack", "battery/lipo-3s"], "{lines:?}");
+    // A plan without those fields prints no empty record line.
+    let chain = draw("chain.yaml", CHAIN);
+    assert!(!chain.contains("revision") && !chain.contains("drawn by"));
 }
 
 fn rover_svg() -> String {
@@ -1204,5 +1745,52 @@ mod command {
             &bytes[..8],
             &[0x89, b'P', b'N', b'G', 0x0d, 0x0a, 0x1a, 0x0a]
         );
+    }
+
+    #[test]
+    fn draw_on_a_page_writes_sheets_and_a_pdf() {
+        let dir = tempfile::tempdir().unwrap();
+        let rover = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml");
+        let svg = dir.path().join("rover.svg");
+        let pdf = dir.path().join("rover.pdf");
+        let run = railcheck()
+            .arg("draw")
+            .arg(&rover)
+            .args(["--page", "a4", "--landscape", "-o"])
+            .arg(&svg)
+            .arg("--pdf")
+            .arg(&pdf)
+            .assert()
+            .code(0);
+        let said = String::from_utf8_lossy(&run.get_output().stderr).to_string();
+        assert!(said.contains("sheets on a4 landscape"), "{said}");
+        // A PDF file starts with its header (ISO 32000-1 §7.5.2).
+        let bytes = std::fs::read(&pdf).unwrap();
+        assert!(bytes.starts_with(b"%PDF-"));
+        // The SVG holds every sheet, each 297 mm × 210 mm, one under another.
+        let text = std::fs::read_to_string(&svg).unwrap();
+        let doc = roxmltree::Document::parse(&text).unwrap();
+        let sheets = doc
+            .descendants()
+            .filter(|n| crate::has_class(n, "sheet"))
+            .count();
+        assert!(sheets >= 2);
+        assert_eq!(
+            doc.root_element().attribute("height"),
+            Some(format!("{}mm", 210 * sheets).as_str())
+        );
+        // The same count of pages in the PDF.
+        let pages = String::from_utf8_lossy(&bytes)
+            .matches("/Type /Page ")
+            .count();
+        assert_eq!(pages, sheets);
+        // --landscape needs a page.
+        railcheck()
+            .arg("draw")
+            .arg(&rover)
+            .args(["--landscape", "-o"])
+            .arg(&svg)
+            .assert()
+            .code(2);
     }
 }

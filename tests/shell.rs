@@ -176,18 +176,18 @@ fn draw_says_what_it_wrote_on_standard_error() {
 }
 
 #[test]
-fn draw_without_a_target_is_a_usage_error_that_names_both() {
-    railcheck()
-        .args(["draw", ROVER])
-        .assert()
-        .code(2)
-        .stderr(predicate::str::contains("--output").and(predicate::str::contains("--png")));
+fn draw_without_a_target_is_a_usage_error_that_names_all_three() {
+    railcheck().args(["draw", ROVER]).assert().code(2).stderr(
+        predicate::str::contains("--output")
+            .and(predicate::str::contains("--png"))
+            .and(predicate::str::contains("--pdf")),
+    );
     railcheck()
         .args(["draw", "--help"])
         .assert()
         .code(0)
         .stdout(predicate::str::contains(
-            "One of `-o/--output` and `--png` is required",
+            "One of `-o/--output`, `--png` and `--pdf` is required",
         ));
 }
 

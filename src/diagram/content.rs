@@ -39,6 +39,10 @@ pub(crate) struct Content {
 pub(crate) struct Heading {
     pub name: String,
     pub file: String,
+    /// Revision, date and author, as the plan gives them.
+    pub revision: Option<String>,
+    pub date: Option<String>,
+    pub author: Option<String>,
     pub summary: String,
     /// False when shorts or power loops kept the operating point from being solved.
     pub solved: bool,
@@ -50,6 +54,8 @@ pub(crate) struct PartBox {
     /// The name as shown (long names are cut).
     pub name: String,
     pub class: String,
+    /// The library part it was made from (its `use:`).
+    pub library: Option<String>,
     pub rating: Option<String>,
     pub stage: Stage,
     pub pins: Vec<ShownPin>,
@@ -59,6 +65,7 @@ pub(crate) struct PartBox {
 }
 
 pub(crate) struct ShownPin {
+    /// The pin's name, and for a logic signal the net's after it, as shown.
     pub name: String,
     pub at: PinAt,
     /// For a ground pin when the plan has more than one ground: the name of
@@ -85,11 +92,20 @@ pub(crate) struct Tag {
     pub markers: Vec<Marker>,
     /// A ground net's tag: not on a line, drawn with a ground symbol.
     pub ground: bool,
+    /// A bundle's tag: placed between the two parts it joins when a column
+    /// lies between them, not after both.
+    pub between: bool,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord)]
 pub(crate) enum WireKind {
+    /// Logic signals that all run between the same two parts, drawn as one
+    /// line and listed on its tag.
+    Bundle,
     Rail,
+    /// A ground net drawn as a line: one with a wire given, or one a battery
+    /// negative is on.
+    Ground,
     MotorLead,
     Signal,
     Cable,
@@ -121,6 +137,8 @@ pub(crate) struct Marker {
 pub(crate) struct Listed {
     pub marker: Marker,
     pub text: String,
+    /// How to fix it, when the rule suggests a fix.
+    pub fix: Option<String>,
 }
 
 pub(crate) fn gather(checked: &Checked) -> Content {
@@ -161,11 +179,16 @@ pub(crate) fn gather(checked: &Checked) -> Content {
                 }
                 _ => None,
             };
-            pins.push(ShownPin {
-                name: truncate(&clean(&pin.name), PIN_CELLS),
-                at,
-                ground,
-            });
+            // A logic signal is named where it leaves and enters each box.
+            let name = match pin.net {
+                Some(net) if net_kind[net] == Some(WireKind::Signal) => format!(
+                    "{}: {}",
+                    truncate(&clean(&pin.name), PIN_CELLS),
+                    truncate(&clean(&plan.nets[net].name), PIN_CELLS)
+                ),
+                _ => truncate(&clean(&pin.name), PIN_CELLS),
+            };
+            pins.push(ShownPin { name, at, ground });
         }
         for (port_index, port) in part.ports.iter().enumerate() {
             let linked = circuit.part_links[part_id].iter().any(|&l| {
@@ -185,6 +208,10 @@ pub(crate) fn gather(checked: &Checked) -> Content {
             id: clean(&part.name),
             name: truncate(&clean(&part.name), NAME_CELLS),
             class: part.kind_name().to_string(),
+            library: part
+                .library_id
+                .as_deref()
+                .map(|id| truncate(&clean(id), NAME_CELLS)),
             rating: rating(plan, part_id).map(|r| truncate(&r, LINE_CELLS)),
             stage: stage(&part.class),
             pins,
@@ -196,7 +223,63 @@ pub(crate) fn gather(checked: &Checked) -> Content {
     let mut tags = Vec::new();
     let mut wires = Vec::new();
     let mut edges = Vec::new();
+    let bundles = bundles(plan, &net_kind, &net_markers, &pin_slot);
+    let mut bundled = vec![false; plan.nets.len()];
+    for members in &bundles {
+        for &net in members {
+            bundled[net] = true;
+        }
+        let mut ends: Vec<End> = members
+            .iter()
+            .flat_map(|&net| &plan.nets[net].pins)
+            .filter_map(|p| {
+                Some(End {
+                    node: p.part,
+                    pin: Some(*pin_slot[p.part].get(&p.pin)?),
+                    source: false,
+                })
+            })
+            .collect();
+        let mut pair: Vec<PartId> = plan.nets[members[0]].pins.iter().map(|p| p.part).collect();
+        pair.sort_unstable();
+        pair.dedup();
+        let (a, b) = (pair[0], pair[pair.len() - 1]);
+        let names: Vec<String> = members
+            .iter()
+            .map(|&net| truncate(&clean(&plan.nets[net].name), PIN_CELLS))
+            .collect();
+        let title = format!(
+            "{} to {}",
+            truncate(&clean(&plan.parts[a].name), PIN_CELLS),
+            truncate(&clean(&plan.parts[b].name), PIN_CELLS)
+        );
+        let tag_node = part_count + tags.len();
+        let mut lines = vec![format!("bundle of {} signals:", members.len())];
+        lines.extend(super::text::wrap(&names.join(", "), LINE_CELLS));
+        tags.push(Tag {
+            net: clean(&format!("{title}: {}", names.join(", "))),
+            name: truncate(&title, NAME_CELLS),
+            lines,
+            markers: Vec::new(),
+            ground: false,
+            between: true,
+        });
+        ends.push(End {
+            node: tag_node,
+            pin: None,
+            source: false,
+        });
+        flow_edges(&ends, WireKind::Signal, &mut edges);
+        wires.push(Wire {
+            kind: WireKind::Bundle,
+            name: format!("{title}: {}", names.join(", ")),
+            ends,
+        });
+    }
     for (net_id, net) in plan.nets.iter().enumerate() {
+        if bundled[net_id] {
+            continue;
+        }
         let Some(kind) = net_kind[net_id] else {
             if let Some(markers) = net_markers.remove(&net_id) {
                 // A ground net a finding names: a tag beside the part that
@@ -213,6 +296,7 @@ pub(crate) fn gather(checked: &Checked) -> Content {
                     lines: ground_lines(plan, net_id),
                     markers,
                     ground: true,
+                    between: false,
                 });
                 if let Some(pin) = anchor {
                     edges.push((pin.part, tag_node));
@@ -239,13 +323,14 @@ pub(crate) fn gather(checked: &Checked) -> Content {
             let tag_node = part_count + tags.len();
             let has_source = ends.iter().any(|e| e.source);
             // A rail nobody feeds: its tag stands for the missing source.
-            let tag_is_source = !has_source && kind != WireKind::Signal;
+            let tag_is_source = !has_source && matches!(kind, WireKind::Rail | WireKind::MotorLead);
             tags.push(Tag {
                 net: clean(&net.name),
                 name: truncate(&clean(&net.name), NAME_CELLS),
                 lines: net_lines(plan, checked.analysis.as_ref(), net_id, kind, has_source),
                 markers,
                 ground: false,
+                between: false,
             });
             ends.push(End {
                 node: tag_node,
@@ -323,6 +408,9 @@ pub(crate) fn gather(checked: &Checked) -> Content {
         heading: Heading {
             name,
             file,
+            revision: plan.revision.as_deref().map(clean),
+            date: plan.date.as_deref().map(clean),
+            author: plan.author.as_deref().map(clean),
             summary: Summary::of(&checked.findings).line(),
             solved: checked.analysis.is_some(),
         },
@@ -371,10 +459,57 @@ fn number_findings(checked: &Checked) -> (Vec<Listed>, Markers, BTreeMap<NetId, 
         }
         listed.push(Listed {
             marker,
-            text: clean(&format!("{}: {}", finding.rule, finding.message)),
+            text: clean(&plain_words(&format!(
+                "{}: {}",
+                finding.rule, finding.message
+            ))),
+            fix: finding.help.as_deref().map(|h| clean(&plain_words(h))),
         });
     }
     (listed, part_markers, net_markers)
+}
+
+/// Groups of two or more logic signals that each run between the same two
+/// parts and nowhere else, and that no finding names: each group is drawn as
+/// one bundle. In net order, so the same plan gives the same bundles.
+fn bundles(
+    plan: &Plan,
+    net_kind: &[Option<WireKind>],
+    net_markers: &BTreeMap<NetId, Vec<Marker>>,
+    pin_slot: &[BTreeMap<usize, usize>],
+) -> Vec<Vec<NetId>> {
+    let mut by_pair: BTreeMap<(PartId, PartId), Vec<NetId>> = BTreeMap::new();
+    for (net_id, net) in plan.nets.iter().enumerate() {
+        if net_kind[net_id] != Some(WireKind::Signal) || net_markers.contains_key(&net_id) {
+            continue;
+        }
+        if net.pins.len() < 2
+            || net
+                .pins
+                .iter()
+                .any(|p| !pin_slot[p.part].contains_key(&p.pin))
+        {
+            continue;
+        }
+        let mut parts: Vec<PartId> = net.pins.iter().map(|p| p.part).collect();
+        parts.sort_unstable();
+        parts.dedup();
+        if let [a, b] = parts[..] {
+            by_pair.entry((a, b)).or_default().push(net_id);
+        }
+    }
+    let mut groups: Vec<Vec<NetId>> = by_pair
+        .into_values()
+        .filter(|members| members.len() >= 2)
+        .collect();
+    groups.sort_unstable();
+    groups
+}
+
+/// Message text as the drawing prints it: the backticks that mark names in
+/// the terminal report are dropped (the names stay).
+fn plain_words(text: &str) -> String {
+    text.replace('`', "")
 }
 
 /// How a net is drawn; `None` for a ground net (symbols, no line). A node
@@ -383,7 +518,13 @@ fn number_findings(checked: &Checked) -> (Vec<Listed>, Markers, BTreeMap<NetId, 
 fn net_kind(plan: &Plan, circuit: &Circuit, net: NetId) -> Option<WireKind> {
     let node = &circuit.nodes[circuit.node_of_net[net]];
     if node.is_ground() && node.supply_outs.is_empty() {
-        return None;
+        // A ground lead with a wire size, and the lead off a battery
+        // negative, are drawn like rails; other grounds are symbols.
+        let on_battery = plan.nets[net].pins.iter().any(|p| {
+            matches!(plan.parts[p.part].class, Class::Battery(_))
+                && plan.parts[p.part].pins[p.pin].role == PinRole::Ground
+        });
+        return (plan.nets[net].wire.is_some() || on_battery).then_some(WireKind::Ground);
     }
     let roles = || {
         plan.nets[net]
@@ -433,14 +574,38 @@ fn net_sources(plan: &Plan, circuit: &Circuit, net: NetId, kind: WireKind) -> Ve
                 bridges
             }
         }
+        WireKind::Ground => {
+            // The return flows back to the battery negative: the end towards
+            // it (the battery's own pin, or the part joining this net to the
+            // net nearer the battery) is where the lead starts.
+            let mut sources: Vec<(PartId, usize)> = pins
+                .iter()
+                .filter(|p| {
+                    matches!(plan.parts[p.part].class, Class::Battery(_))
+                        && plan.parts[p.part].pins[p.pin].role == PinRole::Ground
+                })
+                .map(|p| (p.part, p.pin))
+                .collect();
+            sources.extend(from_parent());
+            sources
+        }
         WireKind::Signal => with_role(&[PinRole::LogicOut, PinRole::OpenDrain]),
-        WireKind::Cable => Vec::new(),
+        WireKind::Bundle | WireKind::Cable => Vec::new(),
     }
 }
 
 /// Power-flow edges of a drawn connection: from each source end to every
 /// other end. A signal flows no power; only its tag is placed after its parts.
 fn flow_edges(ends: &[End], kind: WireKind, edges: &mut Vec<(usize, usize)>) {
+    if kind == WireKind::Ground {
+        // The return follows the power's columns; only its tag is placed by it.
+        for from in ends.iter().filter(|e| e.source) {
+            for tag in ends.iter().filter(|e| e.pin.is_none()) {
+                edges.push((from.node, tag.node));
+            }
+        }
+        return;
+    }
     if kind == WireKind::Signal {
         let Some(tag) = ends.iter().find(|e| e.pin.is_none()) else {
             return;
@@ -483,7 +648,11 @@ fn several_grounds(circuit: &Circuit, net_kind: &[Option<WireKind>]) -> bool {
     let ground_nodes = circuit
         .nodes
         .iter()
-        .filter(|node| node.nets.iter().any(|&net| net_kind[net].is_none()))
+        .filter(|node| {
+            node.nets
+                .iter()
+                .any(|&net| matches!(net_kind[net], None | Some(WireKind::Ground)))
+        })
         .count();
     ground_nodes >= 2
 }
@@ -559,7 +728,8 @@ fn rating(plan: &Plan, part_id: PartId) -> Option<String> {
             s
         }
         Class::Driver(d) => {
-            let mut s = format!("{} ch", d.channels.len());
+            let channels = d.channels.len();
+            let mut s = format!("{channels} channel{}", if channels == 1 { "" } else { "s" });
             if let Some(current) = d.channel_current {
                 s.push(' ');
                 s.push_str(&show_current(current.value));
@@ -595,7 +765,7 @@ fn rating(plan: &Plan, part_id: PartId) -> Option<String> {
             });
             let draw = pin_draw.or(port_draw)?;
             format!(
-                "draws {} typ, {} peak",
+                "draws {} typical, {} peak",
                 show_current(draw.typical),
                 show_current(draw.peak)
             )
@@ -615,8 +785,9 @@ fn net_lines(
 ) -> Vec<String> {
     let mut lines = Vec::new();
     match kind {
-        WireKind::Rail if !has_source => lines.push("no source".to_string()),
+        WireKind::Rail if !has_source => lines.push("nothing feeds this rail".to_string()),
         WireKind::Signal => lines.push("signal".to_string()),
+        WireKind::Ground => lines.push("ground return".to_string()),
         _ => {}
     }
     if let Some(analysis) = analysis {
@@ -634,7 +805,7 @@ fn net_lines(
             && let Some((typical, peak)) = currents(plan, analysis, net)
         {
             lines.push(format!(
-                "{} typ / {} peak",
+                "{} typical / {} peak",
                 show_current(typical),
                 show_current(peak)
             ));

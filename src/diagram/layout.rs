@@ -134,6 +134,8 @@ pub(crate) struct PlacedTag {
     pub markers: Vec<PlacedMarker>,
     /// Where a ground tag's symbol hangs.
     pub ground_icon: Option<(f64, f64)>,
+    /// The frame of a tag on a line: the line ends on it or runs through it.
+    pub frame: Option<Rect>,
 }
 
 /// A drawn connection: straight horizontal and vertical segments
@@ -473,6 +475,16 @@ impl Board {
         }
     }
 
+    fn reached_from_both_sides(&self, item: usize) -> bool {
+        let sides = || {
+            self.item_anchors[item]
+                .iter()
+                .filter(|&&a| self.groups[self.anchors[a].group].len() >= 2)
+                .map(|&a| self.anchors[a].side)
+        };
+        sides().any(|s| s == Side::Left) && sides().any(|s| s == Side::Right)
+    }
+
     fn anchor_y(&self, anchor: usize) -> f64 {
         let a = &self.anchors[anchor];
         self.items[a.item].top + a.dy
@@ -553,6 +565,10 @@ impl Board {
 
         let mut wires: Vec<PlacedWire> = (0..wire_count).map(|_| PlacedWire::default()).collect();
         for (g, members) in self.groups.iter().enumerate() {
+            // A lone end in a channel has nothing to meet there.
+            if members.len() < 2 {
+                continue;
+            }
             let track_x =
                 channel_x[self.group_channel[g]] + CHANNEL_PAD + TRACK_PITCH * track_of[g] as f64;
             let wire = &mut wires[self.group_wire[g]];
@@ -576,11 +592,16 @@ impl Board {
                 }
             }
         }
-        for item in &self.items {
+        for (i, item) in self.items.iter().enumerate() {
             let (y, w) = match item.kind {
                 ItemKind::Pass(w) => (item.top + pass_offset(item.column), w),
                 ItemKind::Tag(t) => match (tag_lines[t], self.tag_wire[t]) {
-                    (Some(line), Some(w)) => (item.top + line, w),
+                    // A tag reached from one side is where its line ends (on
+                    // the tag's frame); only a tag the line runs through
+                    // carries it across.
+                    (Some(line), Some(w)) if self.reached_from_both_sides(i) => {
+                        (item.top + line, w)
+                    }
                     _ => continue,
                 },
                 ItemKind::Part(_) => continue,
@@ -595,7 +616,29 @@ impl Board {
 pub(crate) fn place(content: &Content, marker_w: f64) -> Geometry {
     let part_count = content.parts.len();
     let node_count = part_count + content.tags.len();
-    let (column, discovery) = columns(node_count, &content.edges, &content.sources, part_count);
+    let (mut column, discovery) = columns(node_count, &content.edges, &content.sources, part_count);
+    // A bundle's tag stands in the first column after the nearer of its two
+    // parts (in the further one's column when they are neighbours), so the
+    // bundle does not loop round behind both.
+    for wire in &content.wires {
+        let Some(tag) = wire.ends.iter().find(|e| e.pin.is_none()).map(|e| e.node) else {
+            continue;
+        };
+        if !content.tags[tag - part_count].between {
+            continue;
+        }
+        let parts = wire
+            .ends
+            .iter()
+            .filter(|e| e.pin.is_some())
+            .map(|e| column[e.node]);
+        let (low, high) = (parts.clone().min(), parts.max());
+        if let (Some(low), Some(high)) = (low, high)
+            && high > low
+        {
+            column[tag] = low + 1;
+        }
+    }
     let mut board = Board::new(content, &column);
     let mut sides = board.pin_sides(content);
 
@@ -700,6 +743,12 @@ fn place_tag(shape: &TagShape, item: &Item) -> PlacedTag {
             .map(|m| m.shifted(item.x, item.top))
             .collect(),
         ground_icon: shape.ground_icon.map(|(x, y)| (x + item.x, y + item.top)),
+        frame: shape.line.map(|_| Rect {
+            x: item.x,
+            y: item.top,
+            width: item.width,
+            height: item.height,
+        }),
     }
 }
 

@@ -9,6 +9,9 @@
 //! cleans and measures labels and `style` holds the palette. `png`
 //! rasterises the SVG through the same renderer the tests use, with `fonts`
 //! choosing the installed face for the generic `monospace` family.
+//! [`draw_pages`] fits the diagram to paper (`page`), over several sheets
+//! with off-page connectors when it must, and [`pdf`] writes those sheets
+//! as a vector PDF from the same parsed SVG trees.
 //!
 //! No I/O here: the caller reads the plan, loads fonts and writes files.
 //! Not a schematic: pins are shown where nets attach, not by package.
@@ -16,6 +19,8 @@
 mod content;
 mod fonts;
 mod layout;
+mod page;
+mod pdf;
 mod render;
 mod shape;
 mod style;
@@ -23,6 +28,8 @@ mod text;
 
 use crate::Checked;
 use std::fmt;
+
+pub use page::{MIN_TEXT_PT, Page, PageError, Paper, Sheets};
 
 /// The plan's block diagram as an SVG document. The same plan always gives
 /// the same bytes.
@@ -60,6 +67,48 @@ pub fn draw(checked: &Checked) -> String {
     render::write(&content, &geometry, marker_w)
 }
 
+/// The diagram on sheets of `page` (or, with `None`, of the smallest page
+/// that holds the drawing uncut, else the page that needs the fewest
+/// sheets), no text smaller than
+/// [`MIN_TEXT_PT`]. When the drawing is too big for one sheet it is cut
+/// between boxes into tiles, and every line a cut crosses ends on an
+/// off-page connector naming its net and the sheet it goes on to. An error
+/// names what does not fit and the page that would take it.
+pub fn draw_pages(checked: &Checked, page: Option<Page>) -> Result<Sheets, PageError> {
+    let content = content::gather(checked);
+    let marker_w = layout::marker_width(content.findings.len());
+    let geometry = layout::place(&content, marker_w);
+    match page {
+        Some(page) => page::sheets(&content, &geometry, marker_w, page),
+        None => page::best(&content, &geometry, marker_w),
+    }
+}
+
+/// A vector PDF of the sheets, one page each, drawn from the same SVG trees
+/// the PNG renderer draws (text as outlines, so the PDF needs no fonts).
+/// `options` carries the fonts, as for [`png`].
+pub fn pdf(svgs: &[String], options: &resvg::usvg::Options) -> Result<Vec<u8>, PngError> {
+    let trees = svgs
+        .iter()
+        .map(|svg| tree(svg, options))
+        .collect::<Result<Vec<_>, _>>()?;
+    Ok(pdf::write(&trees))
+}
+
+/// Parses SVG text with the fonts of `options`, the generic monospace family
+/// mapped onto an installed monospaced face (see [`png`]).
+fn tree(svg: &str, options: &resvg::usvg::Options) -> Result<resvg::usvg::Tree, PngError> {
+    let remapped;
+    let options = match fonts::with_monospace(&options.fontdb) {
+        Some(fontdb) => {
+            remapped = with_fonts(options, fontdb);
+            &remapped
+        }
+        None => options,
+    };
+    resvg::usvg::Tree::from_str(svg, options).map_err(|e| PngError::Svg(e.to_string()))
+}
+
 /// Largest PNG drawn at full scale, in pixels; a larger diagram is scaled
 /// down to this area so a plan of thousands of parts cannot exhaust memory.
 const MAX_PIXELS: f64 = 40_000_000.0;
@@ -94,16 +143,7 @@ impl std::error::Error for PngError {}
 /// labels keep the widths the layout counted on. Text without any matching
 /// font is left out, the rest still draws.
 pub fn png(svg: &str, options: &resvg::usvg::Options) -> Result<Vec<u8>, PngError> {
-    let remapped;
-    let options = match fonts::with_monospace(&options.fontdb) {
-        Some(fontdb) => {
-            remapped = with_fonts(options, fontdb);
-            &remapped
-        }
-        None => options,
-    };
-    let tree =
-        resvg::usvg::Tree::from_str(svg, options).map_err(|e| PngError::Svg(e.to_string()))?;
+    let tree = tree(svg, options)?;
     let size = tree.size();
     let area = f64::from(size.width()) * f64::from(size.height());
     let scale = if area > MAX_PIXELS {

@@ -11,7 +11,8 @@
 
 use super::content::{Content, Listed, Marker, WireKind};
 use super::layout::{
-    Align, GROUND_SYMBOL, Geometry, Label, MARKER_HEIGHT, MARKER_TEXT_SIZE, PlacedMarker, Tone,
+    Align, GROUND_SYMBOL, Geometry, Label, MARKER_HEIGHT, MARKER_TEXT_SIZE, PlacedMarker, Rect,
+    Tone,
 };
 use super::style::{self, LineStyle, MarkerShape, Stage};
 use super::text;
@@ -19,16 +20,16 @@ use crate::rules::Severity;
 use svg::Document;
 use svg::node::element::{Circle, Group, Path, Polygon, Rectangle, Text, Title};
 
-const MARGIN: f64 = 24.0;
-const MIN_WIDTH: f64 = 880.0;
-const PANEL_PAD: f64 = 10.0;
-const TITLE_SIZE: f64 = 16.0;
-const HEADING_SIZE: f64 = 12.0;
-const BODY_SIZE: f64 = 10.0;
-const LINE_STEP: f64 = 14.0;
+pub(super) const MARGIN: f64 = 24.0;
+pub(super) const MIN_WIDTH: f64 = 880.0;
+pub(super) const PANEL_PAD: f64 = 10.0;
+pub(super) const TITLE_SIZE: f64 = 16.0;
+pub(super) const HEADING_SIZE: f64 = 12.0;
+pub(super) const BODY_SIZE: f64 = 10.0;
+pub(super) const LINE_STEP: f64 = 14.0;
 
 /// A number as the file writes it: at most two decimals, no trailing zeros.
-fn num(v: f64) -> String {
+pub(super) fn num(v: f64) -> String {
     let rounded = (v * 100.0).round() / 100.0;
     let rounded = if rounded == 0.0 { 0.0 } else { rounded };
     let text = format!("{rounded:.2}");
@@ -36,7 +37,7 @@ fn num(v: f64) -> String {
     text.to_string()
 }
 
-fn label(l: &Label, class: &str) -> Text {
+pub(super) fn label(l: &Label, class: &str) -> Text {
     let anchor = match l.align {
         Align::Start => "start",
         Align::Middle => "middle",
@@ -60,7 +61,7 @@ fn label(l: &Label, class: &str) -> Text {
     t
 }
 
-fn plain(x: f64, y: f64, size: f64, content: &str, bold: bool) -> Label {
+pub(super) fn plain(x: f64, y: f64, size: f64, content: &str, bold: bool) -> Label {
     Label {
         x,
         y,
@@ -72,7 +73,7 @@ fn plain(x: f64, y: f64, size: f64, content: &str, bold: bool) -> Label {
     }
 }
 
-fn stroked(path: Path, line: &LineStyle, width: f64) -> Path {
+pub(super) fn stroked(path: Path, line: &LineStyle, width: f64) -> Path {
     let mut path = path
         .set("fill", "none")
         .set("stroke", line.colour)
@@ -84,18 +85,22 @@ fn stroked(path: Path, line: &LineStyle, width: f64) -> Path {
     path
 }
 
-fn line_style(kind: WireKind) -> LineStyle {
+pub(super) fn line_style(kind: WireKind) -> LineStyle {
     match kind {
         WireKind::Rail => style::RAIL,
+        WireKind::Bundle => style::BUNDLE,
+        WireKind::Ground => style::GROUND,
         WireKind::MotorLead => style::MOTOR_LEAD,
         WireKind::Signal => style::SIGNAL,
         WireKind::Cable => style::CABLE,
     }
 }
 
-fn kind_class(kind: WireKind) -> &'static str {
+pub(super) fn kind_class(kind: WireKind) -> &'static str {
     match kind {
         WireKind::Rail => "rail",
+        WireKind::Bundle => "bundle",
+        WireKind::Ground => "ground-lead",
         WireKind::MotorLead => "motor-lead",
         WireKind::Signal => "signal",
         WireKind::Cable => "cable",
@@ -104,7 +109,7 @@ fn kind_class(kind: WireKind) -> &'static str {
 
 /// A connection drawn along `d`: one stroke, or for a cable a dark band with
 /// a paper stripe down its middle.
-fn connection(d: &str, kind: WireKind, name: &str) -> Group {
+pub(super) fn connection(d: &str, kind: WireKind, name: &str) -> Group {
     let line = line_style(kind);
     let class = format!("wire {}", kind_class(kind));
     let mut group = Group::new().add(stroked(
@@ -129,7 +134,7 @@ fn connection(d: &str, kind: WireKind, name: &str) -> Group {
     group
 }
 
-fn segments_path(segments: &[[f64; 4]], dx: f64, dy: f64) -> String {
+pub(super) fn segments_path(segments: &[[f64; 4]], dx: f64, dy: f64) -> String {
     let mut d = String::new();
     for [x1, y1, x2, y2] in segments {
         if !d.is_empty() {
@@ -150,7 +155,7 @@ fn severity_class(severity: Severity) -> &'static str {
     severity.name()
 }
 
-fn marker(m: &PlacedMarker) -> Group {
+pub(super) fn marker(m: &PlacedMarker) -> Group {
     let look = style::marker(m.marker.severity);
     let (x, y, w, h) = (m.x, m.y, m.width, MARKER_HEIGHT);
     let shape: Box<dyn svg::Node> = match look.shape {
@@ -259,7 +264,21 @@ fn ground_symbol(x: f64, y: f64, reaches_battery: bool) -> Path {
 
 /// Stacks the panels and writes the document.
 pub(crate) fn write(content: &Content, geometry: &Geometry, marker_w: f64) -> String {
-    let width = geometry.width.max(MIN_WIDTH);
+    let (body, total_width, total_height) = compose(content, geometry, marker_w, MIN_WIDTH);
+    let size = (num(total_width), num(total_height));
+    document(body, size, (0.0, 0.0, total_width, total_height))
+}
+
+/// The whole diagram on one sheet: title block, drawing, findings, legend
+/// and cautions stacked, at least `min_width` wide inside the margins.
+/// Returns the body and its width and height.
+pub(super) fn compose(
+    content: &Content,
+    geometry: &Geometry,
+    marker_w: f64,
+    min_width: f64,
+) -> (Group, f64, f64) {
+    let width = geometry.width.max(min_width);
     let inner = width;
     let mut body = Group::new().set("font-family", text::FONT_FAMILY);
     let mut y = MARGIN;
@@ -270,35 +289,39 @@ pub(crate) fn write(content: &Content, geometry: &Geometry, marker_w: f64) -> St
     y = (bottom + MARGIN).ceil();
     let origin_x = MARGIN + (inner - geometry.width) / 2.0;
     let origin_y = (y / 16.0).ceil() * 16.0;
-    body = body.add(drawing(content, geometry, origin_x, origin_y));
+    body = body.add(drawing(content, geometry, origin_x, origin_y, None));
     y = origin_y + geometry.height + MARGIN;
 
     let (panel, bottom) = findings_panel(&content.findings, MARGIN, y, inner, marker_w);
     body = body.add(panel);
     y = bottom + MARGIN;
-    let (legend, bottom) = legend(MARGIN, y, inner, marker_w);
+    let (legend, bottom) = legend(MARGIN, y, inner, marker_w, false);
     body = body.add(legend);
     y = bottom + MARGIN;
     let (footer, bottom) = cautions(&content.cautions, MARGIN, y, inner);
     body = body.add(footer);
     y = bottom + MARGIN;
+    (body, width + 2.0 * MARGIN, y.ceil())
+}
 
-    let total_width = width + 2.0 * MARGIN;
-    let total_height = y.ceil();
+/// An SVG document of `size` (width and height attributes as written) showing
+/// `view` (x, y, width, height) of `body` on white paper.
+pub(super) fn document(body: Group, size: (String, String), view: (f64, f64, f64, f64)) -> String {
+    let (x, y, w, h) = view;
     let document = Document::new()
-        .set("width", num(total_width))
-        .set("height", num(total_height))
+        .set("width", size.0)
+        .set("height", size.1)
         .set(
             "viewBox",
-            format!("0 0 {} {}", num(total_width), num(total_height)),
+            format!("{} {} {} {}", num(x), num(y), num(w), num(h)),
         )
         .add(
             Rectangle::new()
                 .set("class", "paper")
-                .set("x", 0)
-                .set("y", 0)
-                .set("width", num(total_width))
-                .set("height", num(total_height))
+                .set("x", num(x))
+                .set("y", num(y))
+                .set("width", num(w))
+                .set("height", num(h))
                 .set("fill", style::PAPER),
         )
         .add(body);
@@ -307,7 +330,17 @@ pub(crate) fn write(content: &Content, geometry: &Geometry, marker_w: f64) -> St
     out
 }
 
-fn frame(x: f64, y: f64, width: f64, height: f64, class: &str) -> Rectangle {
+/// The part of an axis-parallel segment inside a window, if any.
+pub(super) fn clip([x1, y1, x2, y2]: [f64; 4], w: Rect) -> Option<[f64; 4]> {
+    let (lx, hx) = (x1.min(x2).max(w.x), x1.max(x2).min(w.x + w.width));
+    let (ly, hy) = (y1.min(y2).max(w.y), y1.max(y2).min(w.y + w.height));
+    if lx > hx || ly > hy || (lx == hx && ly == hy && (x1 != x2 || y1 != y2)) {
+        return None;
+    }
+    Some([lx, ly, hx, hy])
+}
+
+pub(super) fn frame(x: f64, y: f64, width: f64, height: f64, class: &str) -> Rectangle {
     Rectangle::new()
         .set("class", class)
         .set("x", num(x))
@@ -323,7 +356,7 @@ fn cells_for(width: f64, size: f64) -> usize {
     ((width / (text::ADVANCE_EM * size)).floor() as usize).max(8)
 }
 
-fn title_block(content: &Content, x: f64, top: f64, width: f64) -> (Group, f64) {
+pub(super) fn title_block(content: &Content, x: f64, top: f64, width: f64) -> (Group, f64) {
     let heading = &content.heading;
     let mut group = Group::new().set("class", "title-block");
     let text_x = x + PANEL_PAD;
@@ -340,6 +373,19 @@ fn title_block(content: &Content, x: f64, top: f64, width: f64) -> (Group, f64) 
     );
     for line in text::wrap(&file, cells_for(text_width, BODY_SIZE)) {
         lines.push((line, BODY_SIZE, false));
+    }
+    let record: Vec<String> = [
+        heading.revision.as_ref().map(|r| format!("revision {r}")),
+        heading.date.as_ref().map(|d| format!("dated {d}")),
+        heading.author.as_ref().map(|a| format!("drawn by {a}")),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
+    if !record.is_empty() {
+        for line in text::wrap(&record.join(" · "), cells_for(text_width, BODY_SIZE)) {
+            lines.push((line, BODY_SIZE, false));
+        }
     }
     lines.push((heading.summary.clone(), BODY_SIZE, false));
     let note = if heading.solved {
@@ -365,7 +411,21 @@ fn title_block(content: &Content, x: f64, top: f64, width: f64) -> (Group, f64) 
     (group, bottom)
 }
 
-fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
+/// The drawing moved by (dx, dy); with a window, only the boxes and tags
+/// inside it and the lines clipped to it.
+pub(super) fn drawing(
+    content: &Content,
+    geometry: &Geometry,
+    dx: f64,
+    dy: f64,
+    window: Option<Rect>,
+) -> Group {
+    let inside = |r: Rect| {
+        window.is_none_or(|w| {
+            let (cx, cy) = (r.x + r.width / 2.0, r.y + r.height / 2.0);
+            cx >= w.x && cx <= w.x + w.width && cy >= w.y && cy <= w.y + w.height
+        })
+    };
     let mut wires = Group::new().set("class", "wires");
     // Signals under power, cables on top: draw by kind.
     let mut by_kind: Vec<usize> = (0..content.wires.len()).collect();
@@ -373,14 +433,39 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
     for w in by_kind {
         let wire = &content.wires[w];
         let placed = &geometry.wires[w];
-        if placed.segments.is_empty() {
+        let clipped: Vec<[f64; 4]>;
+        let segments = match window {
+            Some(win) => {
+                clipped = placed
+                    .segments
+                    .iter()
+                    .filter_map(|s| clip(*s, win))
+                    .collect();
+                &clipped
+            }
+            None => &placed.segments,
+        };
+        if segments.is_empty() {
             continue;
         }
-        let d = segments_path(&placed.segments, dx, dy);
+        let d = segments_path(segments, dx, dy);
         let name = text::clean(&wire.name);
         let mut group = connection(&d, wire.kind, &name).add(Title::new(name.clone()));
         let line = line_style(wire.kind);
-        for &(x, y) in &placed.dots {
+        // A bundle's signals only run together: where they meet is no join.
+        let dots: &[(f64, f64)] = if wire.kind == WireKind::Bundle {
+            &[]
+        } else {
+            &placed.dots
+        };
+        for &(x, y) in dots.iter().filter(|(x, y)| {
+            inside(Rect {
+                x: *x,
+                y: *y,
+                width: 0.0,
+                height: 0.0,
+            })
+        }) {
             group = group.add(
                 Circle::new()
                     .set("class", "junction")
@@ -396,6 +481,9 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
     let mut boxes = Group::new().set("class", "parts");
     for (part, placed) in content.parts.iter().zip(&geometry.parts) {
         let r = placed.rect;
+        if !inside(r) {
+            continue;
+        }
         let mut rect = Rectangle::new()
             .set("class", "part-box")
             .set("x", num(r.x + dx))
@@ -436,9 +524,26 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
 
     let mut tags = Group::new().set("class", "tags");
     for (tag, placed) in content.tags.iter().zip(&geometry.tags) {
+        if !inside(super::page::tag_bounds(placed)) {
+            continue;
+        }
         let mut group = Group::new()
             .set("class", if tag.ground { "tag ground" } else { "tag" })
             .set("data-net", tag.net.clone());
+        if let Some(r) = placed.frame {
+            group = group.add(
+                Rectangle::new()
+                    .set("class", "tag-frame")
+                    .set("x", num(r.x + dx))
+                    .set("y", num(r.y + dy))
+                    .set("width", num(r.width))
+                    .set("height", num(r.height))
+                    .set("rx", "2")
+                    .set("fill", "none")
+                    .set("stroke", style::RULE_LINE)
+                    .set("stroke-width", "0.8"),
+            );
+        }
         for l in &placed.labels {
             group = group.add(label(&l.shifted(dx, dy), "tag-text"));
         }
@@ -457,7 +562,7 @@ fn drawing(content: &Content, geometry: &Geometry, dx: f64, dy: f64) -> Group {
         .add(tags)
 }
 
-fn findings_panel(
+pub(super) fn findings_panel(
     findings: &[Listed],
     x: f64,
     top: f64,
@@ -501,6 +606,16 @@ fn findings_panel(
             ));
             baseline += LINE_STEP;
         }
+        if let Some(fix) = &listed.fix {
+            let fix_x = text_x + 2.0 * text::ADVANCE_EM * BODY_SIZE;
+            let fix_cells = cells_for(x + width - PANEL_PAD - fix_x, BODY_SIZE);
+            for line in text::wrap(&format!("fix: {fix}"), fix_cells) {
+                let mut l = plain(fix_x, baseline, BODY_SIZE, &line, false);
+                l.tone = Tone::Soft;
+                group = group.add(label(&l, "panel-fix"));
+                baseline += LINE_STEP;
+            }
+        }
         let text_bottom = baseline - LINE_STEP + BODY_SIZE * text::DESCENT_EM;
         y = text_bottom.max(row_top + MARKER_HEIGHT) + 3.0;
     }
@@ -517,13 +632,19 @@ enum Sample {
     Marker(Severity),
     Tint(Stage),
     FloatingBox,
+    OffPage,
 }
 
-fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
+/// The legend; `paged` adds the off-page connector (only sheets have them).
+pub(super) fn legend(x: f64, top: f64, width: f64, marker_w: f64, paged: bool) -> (Group, f64) {
     let mut rows: Vec<(Sample, &str)> = vec![
         (
             Sample::Line(WireKind::Rail),
-            "supply rail: heavy solid line; its tag gives name, voltage window (lowest–highest over battery states), current (typical / peak) and wire",
+            "supply rail: heavy solid line; its tag gives the name, the lowest and highest voltage (battery empty to full), the current (typical / peak) and the wire size and length",
+        ),
+        (
+            Sample::Line(WireKind::Ground),
+            "ground return: heavy grey dash-dot line; its tag gives the name, the current and the wire size and length",
         ),
         (
             Sample::Line(WireKind::MotorLead),
@@ -531,7 +652,11 @@ fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
         ),
         (
             Sample::Line(WireKind::Signal),
-            "logic signal: thin short dashes",
+            "logic signal: thin short dashes; each pin it leaves or enters names it (pin: signal)",
+        ),
+        (
+            Sample::Line(WireKind::Bundle),
+            "signals between the same two parts, run together: wide medium dashes; its tag lists them, and each pin names its signal",
         ),
         (
             Sample::Line(WireKind::Cable),
@@ -567,6 +692,12 @@ fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
         ),
     ];
     rows.extend(Stage::ALL.map(|stage| (Sample::Tint(stage), stage.describe())));
+    if paged {
+        rows.push((
+            Sample::OffPage,
+            "off-page connector: the line goes on, on the sheet numbered after its net's name",
+        ));
+    }
     let mut group = Group::new().set("class", "legend");
     let mut y = top + PANEL_PAD + HEADING_SIZE;
     group = group.add(label(
@@ -657,6 +788,41 @@ fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
                     .set("stroke", style::INK)
                     .set("stroke-width", "1.2"),
             ),
+            Sample::OffPage => group.add(
+                Group::new()
+                    .set("class", "legend-sample")
+                    .add(stroked(
+                        Path::new().set(
+                            "d",
+                            format!(
+                                "M{} {} L{} {}",
+                                num(sample_x),
+                                num(mid),
+                                num(sample_x + 14.0),
+                                num(mid)
+                            ),
+                        ),
+                        &style::RAIL,
+                        style::RAIL.width,
+                    ))
+                    .add(
+                        Rectangle::new()
+                            .set("x", num(sample_x + 14.0))
+                            .set("y", num(mid - 6.0))
+                            .set("width", "40")
+                            .set("height", "12")
+                            .set("fill", style::PAPER)
+                            .set("stroke", style::INK)
+                            .set("stroke-width", "1"),
+                    )
+                    .add(
+                        Text::new("5V → 2")
+                            .set("x", num(sample_x + 17.0))
+                            .set("y", num(mid + 3.0))
+                            .set("font-size", "8")
+                            .set("fill", style::INK),
+                    ),
+            ),
             Sample::FloatingBox => group.add(
                 Rectangle::new()
                     .set("class", "legend-sample")
@@ -687,7 +853,7 @@ fn legend(x: f64, top: f64, width: f64, marker_w: f64) -> (Group, f64) {
     (group, bottom)
 }
 
-fn cautions(cautions: &[String], x: f64, top: f64, width: f64) -> (Group, f64) {
+pub(super) fn cautions(cautions: &[String], x: f64, top: f64, width: f64) -> (Group, f64) {
     let mut group = Group::new().set("class", "cautions");
     let mut y = top + PANEL_PAD + HEADING_SIZE;
     group = group.add(label(

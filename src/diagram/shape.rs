@@ -13,7 +13,7 @@ use super::text;
 /// Size of the ground's name under its symbol, when there are several grounds.
 const GROUND_LABEL_SIZE: f64 = 8.0;
 /// Text of the line a floating part carries in its box.
-const FLOATING_TEXT: &str = "ground not at battery −";
+const FLOATING_TEXT: &str = "ground not joined to the battery negative";
 
 const BOX_PAD: f64 = 6.0;
 const TAG_PAD: f64 = 5.0;
@@ -102,6 +102,9 @@ pub(super) fn box_shape(
     marker_w: f64,
 ) -> BoxShape {
     let mut lines = vec![(part.name.clone(), NAME_SIZE, true, Tone::Strong)];
+    if let Some(library) = &part.library {
+        lines.push((library.clone(), TEXT_SIZE, false, Tone::Soft));
+    }
     lines.push((part.class.clone(), TEXT_SIZE, false, Tone::Soft));
     if let Some(rating) = &part.rating {
         lines.push((rating.clone(), TEXT_SIZE, false, Tone::Soft));

@@ -36,6 +36,15 @@ pub(crate) const RAIL: LineStyle = LineStyle {
     core: None,
 };
 
+/// A ground return with its own lead: as heavy as a rail, in long and short
+/// dashes (a dash-dot), and a neutral grey lighter than the rail's ink.
+pub(crate) const GROUND: LineStyle = LineStyle {
+    colour: "#6b6b6b",
+    width: 2.6,
+    dash: Some("12 3 2 3"),
+    core: None,
+};
+
 /// A motor lead: as heavy as a rail, in long dashes.
 pub(crate) const MOTOR_LEAD: LineStyle = LineStyle {
     colour: "#6e3f0c",
@@ -49,6 +58,15 @@ pub(crate) const SIGNAL: LineStyle = LineStyle {
     colour: "#3a6f4c",
     width: 1.2,
     dash: Some("3 2.5"),
+    core: None,
+};
+
+/// Logic signals between the same two parts, drawn together: wider than a
+/// motor lead, in medium dashes, in the signal's colour.
+pub(crate) const BUNDLE: LineStyle = LineStyle {
+    colour: "#3a6f4c",
+    width: 3.4,
+    dash: Some("6 2"),
     core: None,
 };
 
@@ -216,7 +234,7 @@ mod tests {
     fn connection_kinds_differ_without_colour() {
         // Each pair of line styles must differ in width, dash or hollowness,
         // so they stay apart in greyscale.
-        let styles = [RAIL, MOTOR_LEAD, SIGNAL, CABLE];
+        let styles = [RAIL, GROUND, MOTOR_LEAD, SIGNAL, BUNDLE, CABLE];
         for (i, a) in styles.iter().enumerate() {
             for b in &styles[i + 1..] {
                 let differs =
@@ -227,6 +245,18 @@ mod tests {
         // Lines must stand out from paper: WCAG 2.1 SC 1.4.11 asks 3:1 for graphics.
         for style in styles {
             assert!(contrast(style.colour, PAPER) >= 3.0, "{style:?}");
+        }
+    }
+
+    #[test]
+    fn ground_leads_differ_from_power_in_grey_level_too() {
+        // Supply and return are the two leads a builder must never swap: apart
+        // from the dash, their grey levels stay a clear step apart (1.5:1,
+        // a design choice) so greyscale print keeps them apart twice.
+        for power in [RAIL, MOTOR_LEAD] {
+            let ratio = contrast(GROUND.colour, power.colour);
+            assert!(ratio >= 1.5, "{power:?}: {ratio:.2}");
+            assert_ne!(GROUND.dash, power.dash);
         }
     }
 }

@@ -571,6 +571,17 @@ impl Analysis {
         Analysis::solve_on(plan, circuit, threads)
     }
 
+    /// The points of one mode only (each battery state and tolerance corner,
+    /// `worst` once per stall group): for a question about a single mode,
+    /// such as the bench point of the bring-up procedure.
+    pub fn solve_one_mode(plan: &Plan, circuit: &Circuit, mode: ModeId) -> Analysis {
+        let groups = stall_groups(plan, circuit);
+        let lookup = Lookup::build(plan, circuit);
+        Analysis {
+            points: solve_mode(plan, circuit, &lookup, groups.as_deref(), mode),
+        }
+    }
+
     /// [`solve`](Analysis::solve) on at most `threads` threads: each mode's
     /// points are solved on one thread, modes side by side. The points do
     /// not depend on each other, so the result is the same on any number of

@@ -284,8 +284,8 @@ pub fn procedure(checked: &Checked) -> Procedure {
     }
     let plan = &checked.plan;
     let bench_plan = bench_plan(plan);
-    let bench = Analysis::solve(&bench_plan, &checked.circuit);
     let bench_mode = ModeId(bench_plan.modes.len() + 1);
+    let bench = Analysis::solve_one_mode(&bench_plan, &checked.circuit, bench_mode);
     let bench_points: Vec<&OperatingPoint> = bench.settled().collect();
     let bench_nominal = at_nominal(&bench_points, bench_mode);
 

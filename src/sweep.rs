@@ -381,10 +381,17 @@ impl Sweep {
                     });
                     continue;
                 }
-                if let Err((message, hint)) = self.try_value(&target, value, library) {
+                if let Err((message, hint, offset)) = self.try_value(&target, value, library) {
+                    // Pointed within the value when it is written plain.
+                    let plain = self.text.get(item.span.start..item.span.end) == Some(value);
+                    let span = if plain {
+                        item.span.within(offset..item.span.end - item.span.start)
+                    } else {
+                        item.span
+                    };
                     errors.push(InputError {
                         message,
-                        span: at(item.span),
+                        span: at(span),
                         hint,
                     });
                     continue;
@@ -422,7 +429,8 @@ impl Sweep {
             if values.iter().any(|v| v == value) {
                 return Err(format!("`{value}` is given twice"));
             }
-            self.try_value(&target, value, library).map_err(with_hint)?;
+            self.try_value(&target, value, library)
+                .map_err(|(message, hint, _)| with_hint((message, hint)))?;
             values.push(value.to_string());
         }
         Ok(Axis {
@@ -577,21 +585,38 @@ impl Sweep {
         }
     }
 
-    /// Reads the plan with one value written in; the first problem it
-    /// causes, with its hint.
+    /// Reads the plan with one value written in; the first problem found
+    /// at the value itself, with its hint and its byte offset within the
+    /// value as written. A problem elsewhere (a net given a length before
+    /// another axis gives its wire) is left to the combinations, whose rows
+    /// say when values do not go together.
     fn try_value(
         &self,
         target: &Target,
         value: &str,
         library: &Library,
-    ) -> Result<(), (String, Option<String>)> {
-        let text = edit_text(&self.text, &self.root, &[(target, value)]);
-        match crate::read(&self.file_name, &text, library) {
-            Ok(_) => Ok(()),
-            Err(failure) => {
-                let error = &failure.errors[0];
-                Err((error.message.clone(), error.hint.clone()))
-            }
+    ) -> Result<(), (String, Option<String>, usize)> {
+        let changes = splices(&self.text, &self.root, &[(target, value)]);
+        let written = scalar(value);
+        // One value makes one change, and the value is its last occurrence.
+        let at = changes
+            .first()
+            .and_then(|s| s.text.rfind(&written).map(|i| s.start + i))
+            .unwrap_or(usize::MAX);
+        let text = apply(&self.text, changes);
+        let Err(failure) = crate::read(&self.file_name, &text, library) else {
+            return Ok(());
+        };
+        match failure.errors.iter().find(|e| {
+            e.span.source == failure.plan_source
+                && (at..=at.saturating_add(written.len())).contains(&e.span.start)
+        }) {
+            Some(error) => Err((
+                error.message.clone(),
+                error.hint.clone(),
+                error.span.start - at,
+            )),
+            None => Ok(()),
         }
     }
 }
@@ -677,6 +702,21 @@ struct Splice {
 /// mapping (or a new entry of its `{ }` mapping), a net written as a list of
 /// pins as a mapping; everything else, comments too, stays as written.
 fn edit_text(text: &str, root: &Node, edits: &[(&Target, &str)]) -> String {
+    apply(text, splices(text, root, edits))
+}
+
+/// The text with the splices made (they never overlap).
+fn apply(text: &str, mut splices: Vec<Splice>) -> String {
+    splices.sort_by_key(|s| std::cmp::Reverse((s.start, s.end)));
+    let mut out = text.to_string();
+    for s in splices {
+        out.replace_range(s.start..s.end, &s.text);
+    }
+    out
+}
+
+/// The changes that write the values into the text.
+fn splices(text: &str, root: &Node, edits: &[(&Target, &str)]) -> Vec<Splice> {
     let mut edited = root.clone();
     let mut anchors: Vec<Vec<String>> = Vec::new();
     let mut splices = Vec::new();
@@ -718,12 +758,7 @@ fn edit_text(text: &str, root: &Node, edits: &[(&Target, &str)]) -> String {
         let changed = lookup(&edited, &anchor);
         splices.push(insertion(text, original, &changed, anchor.is_empty()));
     }
-    splices.sort_by_key(|s| std::cmp::Reverse((s.start, s.end)));
-    let mut out = text.to_string();
-    for s in splices {
-        out.replace_range(s.start..s.end, &s.text);
-    }
-    out
+    splices
 }
 
 /// How the text changes where an existing node gains what it lacks.

@@ -290,10 +290,11 @@ fn the_sweep_section_of_a_plan_is_read_and_its_mistakes_placed() {
     let doc: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(doc["kind"], "input-errors");
     let error = &doc["errors"][0];
-    // `  buck.current: [3 A, 5 Q]` is the next-to-last line; `5 Q` starts
-    // at column 23 (2 spaces, 13 for `buck.current:`, ` [3 A, `).
+    // `  buck.current: [3 A, 5 Q]` is the next-to-last line; as in any
+    // plan value the unit is marked: `Q` is at column 25 (2 spaces, 13 for
+    // `buck.current:`, ` [3 A, 5 `).
     assert_eq!(error["line"], lines - 1, "{doc:#}");
-    assert_eq!(error["column"], 23, "{doc:#}");
+    assert_eq!(error["column"], 25, "{doc:#}");
     assert!(
         error["hint"].as_str().is_some_and(|h| h.contains("A")),
         "{doc:#}"
@@ -371,4 +372,45 @@ fn json_and_csv_carry_every_row() {
     let records: Vec<csv::StringRecord> = reader.records().map(Result::unwrap).collect();
     assert_eq!(records.len(), doc["passing"].as_u64().unwrap() as usize);
     assert!(records.iter().all(|r| &r[4] == "true"));
+}
+
+#[test]
+fn a_value_that_needs_another_axis_is_left_to_the_combinations() {
+    // A net with a length needs a wire size too (format reference §4): the
+    // length alone would not read, but the sweep also gives the wire.
+    let dir = tempfile::tempdir().unwrap();
+    let plan = dir.path().join("lamp.yaml");
+    std::fs::write(
+        &plan,
+        "railcheck: 1\nparts:\n  pack: { use: battery/lipo-3s }\n  fuse: { use: fuse/blade-15a }\n  \
+         lamp:\n    class: load\n    pins:\n      vin: { role: supply-in, range: 9 V..13 V, max: 14 V, draw: 0.5 A }\n      \
+         gnd: { role: ground }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  V: [fuse.b, lamp.vin]\n  GND: [pack.neg, lamp.gnd]\n",
+    )
+    .unwrap();
+    let best = dir.path().join("best.yaml");
+    railcheck()
+        .args([
+            "sweep",
+            "--vary",
+            "V.length=1 m",
+            "--vary",
+            "V.wire=16 AWG,14 AWG",
+        ])
+        .arg("--write-best")
+        .arg(&best)
+        .arg(&plan)
+        .assert()
+        .code(0);
+    // The list-form net became a mapping with both fields; the inline part
+    // and everything else are as written.
+    let written = std::fs::read_to_string(&best).unwrap();
+    assert!(
+        written.contains("  V: { pins: [fuse.b, lamp.vin], length: 1 m, wire: 16 AWG }\n"),
+        "{written}"
+    );
+    railcheck()
+        .args(["check", "-q"])
+        .arg(&best)
+        .assert()
+        .code(0);
 }

@@ -683,9 +683,18 @@ fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
         Ok(loaded) => loaded,
         Err(code) => return code,
     };
-    let sweep = match Sweep::new(&checked, &library, &options.vary) {
+    let too_many = |counted: Option<usize>| {
+        let count = counted.map_or("more than 2^64".to_string(), |n| n.to_string());
+        format!(
+            "{count} combinations are more than the {} a sweep checks; \
+             vary fewer values, or allow them with `--max N`",
+            options.max
+        )
+    };
+    let sweep = match Sweep::new(&checked, &library, &options.vary, options.max) {
         Ok(sweep) => sweep,
         Err(SweepError::Usage(message)) => return fail_as(args, &message),
+        Err(SweepError::TooMany(counted)) => return fail_as(args, &too_many(counted)),
         Err(SweepError::Input(errors)) => {
             let failure = railcheck::InputFailure {
                 sources: checked.sources.clone(),
@@ -703,17 +712,7 @@ fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
     }
     let total = match sweep.combinations() {
         Some(n) if n <= options.max => n,
-        counted => {
-            let count = counted.map_or("more than 2^64".to_string(), |n| n.to_string());
-            return fail_as(
-                args,
-                &format!(
-                    "{count} combinations are more than the {} a sweep checks; \
-                     vary fewer values, or allow them with `--max N`",
-                    options.max
-                ),
-            );
-        }
+        counted => return fail_as(args, &too_many(counted)),
     };
     let threads = options
         .jobs

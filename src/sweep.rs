@@ -96,6 +96,9 @@ pub enum SweepError {
     Usage(String),
     /// The plan's `sweep:` section is wrong: each problem at its place.
     Input(Vec<InputError>),
+    /// The axes make more combinations than allowed (`None`: more than
+    /// a `usize` counts). Said before any value is read.
+    TooMany(Option<usize>),
 }
 
 /// A sweep ready to run: the plan's text and tree, and its axes.
@@ -215,8 +218,14 @@ impl Sweep {
     /// plan's `sweep:` section and the `--vary` arguments (`KEY=V1,V2,…`),
     /// and reads every value once in a variant of its own, so a value the
     /// plan would refuse is refused here, naming its `--vary` argument or
-    /// its place in the section.
-    pub fn new(base: &Checked, library: &Library, vary: &[String]) -> Result<Sweep, SweepError> {
+    /// its place in the section. More than `max` combinations are refused
+    /// before any value is read.
+    pub fn new(
+        base: &Checked,
+        library: &Library,
+        vary: &[String],
+        max: usize,
+    ) -> Result<Sweep, SweepError> {
         let file_name = base.sources.name(base.plan_source).to_string();
         let text = base.sources.text(base.plan_source).to_string();
         let root = syntax::parse(SourceId(0), &text).map_err(|e| {
@@ -228,6 +237,10 @@ impl Sweep {
             root,
             axes: Vec::new(),
         };
+        match sweep.count_as_written(vary) {
+            Some(n) if n <= max => {}
+            counted => return Err(SweepError::TooMany(counted)),
+        }
         let mut errors = Vec::new();
         if let Some(section) = sweep.root.get("sweep") {
             let section = section.clone();
@@ -248,6 +261,34 @@ impl Sweep {
             }
         }
         Ok(sweep)
+    }
+
+    /// How many combinations the section and arguments ask for, counted
+    /// from how they are written (a `--vary` replacing a section key of the
+    /// same spelling), before anything is read: a sweep too large to run is
+    /// refused without reading its values.
+    fn count_as_written(&self, vary: &[String]) -> Option<usize> {
+        let mut counts: Vec<(String, usize)> = Vec::new();
+        let section = self
+            .root
+            .get("sweep")
+            .and_then(Node::as_map)
+            .unwrap_or_default();
+        for (key, body) in section {
+            let n = body.as_seq().map_or(1, <[Node]>::len).max(1);
+            counts.push((key.as_scalar().unwrap_or_default().to_string(), n));
+        }
+        for argument in vary {
+            let (key, list) = argument.split_once('=').unwrap_or((argument, ""));
+            let n = list.split(',').count();
+            match counts.iter_mut().find(|(k, _)| k == key.trim()) {
+                Some(entry) => entry.1 = n,
+                None => counts.push((key.trim().to_string(), n)),
+            }
+        }
+        counts
+            .iter()
+            .try_fold(1usize, |n, (_, c)| n.checked_mul(*c))
     }
 
     /// How many combinations the axes make; `None` when the count overflows.

@@ -29,7 +29,7 @@ fn vary() -> Vec<String> {
 fn rover_sweep() -> (Sweep, Library) {
     let library = Library::builtin();
     let checked = railcheck::check(ROVER, &rover_text(), &library).expect("the rover reads");
-    let sweep = Sweep::new(&checked, &library, &vary()).expect("the keys and values read");
+    let sweep = Sweep::new(&checked, &library, &vary(), 10_000).expect("the keys and values read");
     (sweep, library)
 }
 
@@ -200,10 +200,11 @@ fn passing_rows_come_first_and_rank_orders_them() {
 fn a_bad_value_or_key_is_refused_naming_its_argument_with_the_readers_hint() {
     let library = Library::builtin();
     let checked = railcheck::check(ROVER, &rover_text(), &library).unwrap();
-    let refuse = |argument: &str| match Sweep::new(&checked, &library, &[argument.to_string()]) {
-        Err(SweepError::Usage(message)) => message,
-        other => panic!("{argument}: {other:?}"),
-    };
+    let refuse =
+        |argument: &str| match Sweep::new(&checked, &library, &[argument.to_string()], 10_000) {
+            Err(SweepError::Usage(message)) => message,
+            other => panic!("{argument}: {other:?}"),
+        };
     let message = refuse("buck.current=3 Q");
     assert!(message.contains("`--vary buck.current=3 Q`"), "{message}");
     assert!(
@@ -247,6 +248,16 @@ fn the_command_refuses_too_many_combinations_and_bad_arguments_with_exit_2() {
         .unwrap();
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("--vary buck.current=3 Q"));
+    // Refused before a value is read: a thousand bad values cost nothing.
+    let many: Vec<String> = (0..1000).map(|i| format!("{i} Q")).collect();
+    let out = railcheck()
+        .args(["sweep", ROVER, "--vary"])
+        .arg(format!("buck.current={}", many.join(",")))
+        .args(["--max", "999"])
+        .output()
+        .unwrap();
+    assert_eq!(out.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&out.stderr).contains("1000 combinations"));
     let out = railcheck().args(["sweep", ROVER]).output().unwrap();
     assert_eq!(out.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&out.stderr).contains("nothing to vary"));

@@ -220,6 +220,46 @@ impl Sweep {
     /// plan would refuse is refused here, naming its `--vary` argument or
     /// its place in the section. More than `max` combinations are refused
     /// before any value is read.
+    ///
+    /// ```
+    /// use railcheck::model::Library;
+    /// use railcheck::sweep::{Outcome, Sweep};
+    ///
+    /// // A greenhouse grow lamp taking 2.5 A from a 5 V buck: rated 2 A or 5 A?
+    /// let plan = "\
+    /// railcheck: 1
+    /// parts:
+    ///   pack: { use: battery/lipo-3s }
+    ///   fuse: { use: fuse/blade-15a }
+    ///   buck: { use: regulator/buck-5v-5a }
+    ///   lamp:
+    ///     class: load
+    ///     pins:
+    ///       vin: { role: supply-in, range: 4.5 V..5.5 V, draw: 2.5 A }
+    ///       gnd: { role: ground }
+    /// nets:
+    ///   BATT+: [pack.pos, fuse.a]
+    ///   VBUS: [fuse.b, buck.vin]
+    ///   5V: [buck.vout, lamp.vin]
+    ///   GND: [pack.neg, buck.gnd, lamp.gnd]
+    /// ";
+    /// let library = Library::builtin();
+    /// let base = railcheck::check("lamp.yaml", plan, &library).unwrap();
+    /// let vary = ["buck.current=2 A,5 A".to_string()];
+    /// let sweep = Sweep::new(&base, &library, &vary, 100).unwrap();
+    /// let rows = sweep.run(&library, 1);
+    /// assert!(!rows[0].passes(false) && rows[1].passes(false));
+    /// let headroom = |i: usize| match &rows[i].outcome {
+    ///     Outcome::Checked(v) => v.headroom.as_ref().unwrap().1.value,
+    ///     Outcome::Unreadable(_) => unreachable!(),
+    /// };
+    /// // What is left of the rating at 2.5 A: 1 − 2.5 / 2 = −25 %, and
+    /// // 1 − 2.5 / 5 = 50 %.
+    /// assert!((headroom(0) - -0.25).abs() < 1e-6);
+    /// assert!((headroom(1) - 0.5).abs() < 1e-6);
+    /// // The 5 A row's plan is the original with `with: { current: 5 A }`.
+    /// assert!(sweep.variant(1).contains("buck: { use: regulator/buck-5v-5a, with: { current: 5 A } }"));
+    /// ```
     pub fn new(
         base: &Checked,
         library: &Library,

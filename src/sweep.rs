@@ -1211,4 +1211,70 @@ mod tests {
         assert_eq!(scalar("16 AWG"), "16 AWG");
         assert_eq!(scalar("-5 V"), "-5 V");
     }
+
+    #[test]
+    fn every_part_and_net_of_the_examples_takes_a_value_and_reads_back() {
+        for text in [
+            include_str!("../examples/orchard-rover.yaml"),
+            include_str!("../examples/greenhouse-picker.yaml"),
+            include_str!("../examples/first-draft.yaml"),
+            "parts:\n  p: { use: x }\nnets:\n  X:\n    - a.b   # first\n    - c.d\n  Y: []\n",
+        ] {
+            let root = tree(text);
+            let names = |section: &str| -> Vec<String> {
+                lookup(&root, &[section])
+                    .as_map()
+                    .unwrap_or_default()
+                    .iter()
+                    .filter_map(|(k, _)| k.as_scalar().map(str::to_string))
+                    .collect()
+            };
+            let mut targets = Vec::new();
+            for part in names("parts") {
+                let library = root
+                    .get("parts")
+                    .and_then(|p| p.get(&part))
+                    .and_then(|p| p.get("use"))
+                    .is_some();
+                targets.push(part_field(&part, "current", library));
+                if library {
+                    targets.push(Target::PartId { part });
+                }
+            }
+            for net in names("nets") {
+                targets.push(Target::NetField {
+                    net: net.clone(),
+                    field: "wire".into(),
+                });
+                targets.push(Target::NetField {
+                    net,
+                    field: "insulation".into(),
+                });
+            }
+            targets.push(Target::Limit {
+                field: "derate".into(),
+            });
+            // Each alone, and all at once.
+            let all: Vec<(&Target, &str)> = targets.iter().map(|t| (t, "7 A")).collect();
+            for edits in all.iter().map(|e| vec![*e]).chain([all.clone()]) {
+                let out = edit_text(text, &root, &edits);
+                let back = syntax::parse(SourceId(0), &out)
+                    .unwrap_or_else(|e| panic!("{}:\n{out}", e.message));
+                for (target, value) in &edits {
+                    assert_eq!(
+                        lookup(&back, &target.path()).as_scalar(),
+                        Some(*value),
+                        "{target:?}:\n{out}"
+                    );
+                }
+                // Nothing else changed: every other part and net is still there.
+                for section in ["parts", "nets"] {
+                    assert_eq!(
+                        lookup(&back, &[section]).as_map().map(<[_]>::len),
+                        lookup(&root, &[section]).as_map().map(<[_]>::len)
+                    );
+                }
+            }
+        }
+    }
 }

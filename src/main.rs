@@ -218,7 +218,7 @@ enum Format {
     Json,
     /// SARIF 2.1.0 for code-scanning services (`check` and `draw` only).
     Sarif,
-    /// CSV rows for a spreadsheet (`wires` only).
+    /// CSV rows for a spreadsheet (`wires` and `sweep`).
     Csv,
     /// A Markdown checklist (`bringup` only).
     Markdown,
@@ -995,7 +995,7 @@ fn refuse_format(args: &PlanArgs, command: &str, allowed: &[Format]) {
     };
     let why = match args.format {
         Format::Sarif => " (SARIF carries findings)",
-        Format::Csv => " (CSV is the wire list's rows)",
+        Format::Csv => " (CSV is the rows of the wire list or a sweep)",
         Format::Markdown => " (Markdown is the bring-up checklist)",
         _ => "",
     };

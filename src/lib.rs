@@ -20,6 +20,7 @@ pub mod rules;
 pub mod safety;
 mod spelling;
 pub mod starter;
+pub mod sweep;
 pub mod syntax;
 pub mod units;
 pub mod wire;

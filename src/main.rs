@@ -151,6 +151,43 @@ enum Command {
         #[command(flatten)]
         plan: PlanArgs,
     },
+    /// Check every combination of design choices and tabulate which pass.
+    ///
+    /// Each combination is the plan with the chosen values written in,
+    /// checked like `railcheck check` would; rows that pass come first.
+    #[command(after_help = SWEEP_HELP)]
+    Sweep {
+        #[command(flatten)]
+        plan: PlanArgs,
+        /// A design choice and the values to try, `KEY=V1,V2,…`; repeat for
+        /// more. KEY is a part (its library id: `pack=battery/lipo-3s,battery/lipo-4s`),
+        /// a part's field (`buck.current=3 A,5 A`), a net's field
+        /// (`VMOT.wire=16 AWG,14 AWG`), a limit (`limits.wire_drop=3 %,5 %`)
+        /// or a mode's length (`modes.climb.lasts=2 s,4 s`). Adds to, or
+        /// replaces, the plan's `sweep:` section.
+        #[arg(long = "vary", value_name = "KEY=V1,V2,…")]
+        vary: Vec<String>,
+        /// Order the passing rows (and the failing ones) by runtime (longest
+        /// first) or peak battery current (lowest first); without it, fewest
+        /// warnings first, then in combination order.
+        #[arg(long, value_enum, value_name = "BY")]
+        rank: Option<RankBy>,
+        /// Show only the combinations that pass.
+        #[arg(long)]
+        only_passing: bool,
+        /// Count warnings as failing too.
+        #[arg(long)]
+        strict: bool,
+        /// The most combinations to check.
+        #[arg(long, value_name = "N", default_value_t = railcheck::sweep::MAX_COMBINATIONS)]
+        max: usize,
+        /// How many combinations to check at once (default: one per core).
+        #[arg(long, value_name = "N")]
+        jobs: Option<usize>,
+        /// Write the best passing combination (the first row) as a whole plan.
+        #[arg(long, value_name = "OUT.yaml")]
+        write_best: Option<PathBuf>,
+    },
     /// List the rules, or explain one (`railcheck rules fuse/undersized`).
     Rules {
         /// A rule id.
@@ -226,10 +263,37 @@ enum Format {
     Json,
     /// SARIF 2.1.0 for code-scanning services (`check` and `draw` only).
     Sarif,
-    /// CSV rows for a spreadsheet (`wires` only).
+    /// CSV rows for a spreadsheet (`wires` and `sweep`).
     Csv,
     /// A Markdown checklist (`bringup` only).
     Markdown,
+}
+
+#[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
+enum RankBy {
+    /// Longest runtime first.
+    Runtime,
+    /// Lowest peak battery current first.
+    Peak,
+}
+
+/// Shown under `--help` of `sweep`.
+const SWEEP_HELP: &str = "\
+Exit codes:
+  0  at least one combination passes
+  1  no combination passes (or --write-best found none to write)
+  2  the plan or a --vary argument could not be read, too many combinations,
+     or a file could not be written";
+
+/// What `railcheck sweep` was asked for besides the plan.
+struct SweepOptions {
+    vary: Vec<String>,
+    rank: Option<RankBy>,
+    only_passing: bool,
+    strict: bool,
+    max: usize,
+    jobs: Option<usize>,
+    write_best: Option<PathBuf>,
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -302,6 +366,28 @@ fn main() -> ExitCode {
             page,
             parts,
         } => notes(&run, file, &output, format, page, parts),
+        Command::Sweep {
+            plan,
+            vary,
+            rank,
+            only_passing,
+            strict,
+            max,
+            jobs,
+            write_best,
+        } => sweep(
+            &run,
+            &plan,
+            SweepOptions {
+                vary,
+                rank,
+                only_passing,
+                strict,
+                max,
+                jobs,
+                write_best,
+            },
+        ),
         Command::Rules { id } => rules(id.as_deref()),
         Command::Schema => {
             emit(&report::plan_schema_text());
@@ -519,13 +605,23 @@ fn read_bounded(path: &Path) -> Result<Vec<u8>, String> {
 /// Reads and checks the plan; on input errors prints them (to `stream`) and
 /// returns the exit code to end with.
 fn load(run: &Run, args: &PlanArgs, stream: Stream) -> Result<railcheck::Checked, ExitCode> {
+    load_with_library(run, args, stream).map(|(checked, _)| checked)
+}
+
+/// `load`, also handing back the library the plan was read with.
+fn load_with_library(
+    run: &Run,
+    args: &PlanArgs,
+    stream: Stream,
+) -> Result<(railcheck::Checked, Library), ExitCode> {
     let bytes = read_bounded(&args.file).map_err(|message| fail_as(args, &message))?;
     let name = plan_name(&args.file);
     let text = railcheck::decode(&name, bytes)
         .map_err(|failure| report_input(run, args, &failure, stream))?;
     let library = library(args.parts.as_deref()).map_err(|message| fail_as(args, &message))?;
-    railcheck::check(&name, &text, &library)
-        .map_err(|failure| report_input(run, args, &failure, stream))
+    let checked = railcheck::check(&name, &text, &library)
+        .map_err(|failure| report_input(run, args, &failure, stream))?;
+    Ok((checked, library))
 }
 
 /// The built-in parts plus a user folder, if given.
@@ -625,6 +721,125 @@ fn check(
         ExitCode::from(EXIT_FINDINGS)
     } else {
         ExitCode::SUCCESS
+    }
+}
+
+fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
+    use railcheck::sweep::{Rank, Sweep, SweepError, order};
+    refuse_format(args, "sweep", &[Format::Human, Format::Json, Format::Csv]);
+    if let Some(path) = &options.write_best {
+        if is_stdin(path) {
+            return fail_as(
+                args,
+                "`--write-best -` would mix the plan into the table: give a file name",
+            );
+        }
+        if is_same_file(path, &args.file) {
+            return fail_as(
+                args,
+                &format!(
+                    "refusing to write the best combination over the plan {}",
+                    args.file.display()
+                ),
+            );
+        }
+    }
+    // CSV on standard output stays clean: problems go to standard error.
+    let stream = if args.format == Format::Csv {
+        Stream::Stderr
+    } else {
+        Stream::Stdout
+    };
+    let (checked, library) = match load_with_library(run, args, stream) {
+        Ok(loaded) => loaded,
+        Err(code) => return code,
+    };
+    let too_many = |counted: Option<usize>| {
+        let count = counted.map_or("more than 2^64".to_string(), |n| n.to_string());
+        format!(
+            "{count} combinations are more than the {} a sweep checks; \
+             vary fewer values, or allow them with `--max N`",
+            options.max
+        )
+    };
+    let sweep = match Sweep::new(&checked, &library, &options.vary, options.max) {
+        Ok(sweep) => sweep,
+        Err(SweepError::Usage(message)) => return fail_as(args, &message),
+        Err(SweepError::TooMany(counted)) => return fail_as(args, &too_many(counted)),
+        Err(SweepError::Input(errors)) => {
+            let failure = railcheck::InputFailure {
+                sources: checked.sources.clone(),
+                plan_source: checked.plan_source,
+                errors,
+            };
+            return report_input(run, args, &failure, stream);
+        }
+    };
+    if sweep.axes.is_empty() {
+        return fail_as(
+            args,
+            "nothing to vary: give `--vary KEY=V1,V2,…` or a `sweep:` section in the plan",
+        );
+    }
+    let total = match sweep.combinations() {
+        Some(n) if n <= options.max => n,
+        counted => return fail_as(args, &too_many(counted)),
+    };
+    let threads = options
+        .jobs
+        .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
+        .clamp(1, total.max(1));
+    eprintln!(
+        "railcheck: checking {total} combination{} on {threads} thread{}",
+        if total == 1 { "" } else { "s" },
+        if threads == 1 { "" } else { "s" }
+    );
+    let mut rows = sweep.run(&library, threads);
+    let rank = options.rank.map(|r| match r {
+        RankBy::Runtime => Rank::Runtime,
+        RankBy::Peak => Rank::Peak,
+    });
+    order(&mut rows, rank, options.strict);
+    let best = rows
+        .first()
+        .filter(|r| r.passes(options.strict))
+        .map(|r| r.index);
+    // The best plan is written first, so that a failure to write it is the
+    // one document a machine-readable format prints.
+    if let Some(path) = &options.write_best
+        && let Some(index) = best
+    {
+        let text = sweep.variant(index);
+        if let Err(message) = write_output(path, &args.file, text.as_bytes()) {
+            return fail_as(args, &message);
+        }
+        wrote(path, text.len());
+    }
+    if options.only_passing {
+        rows.retain(|r| r.passes(options.strict));
+    }
+    let name = checked.sources.name(checked.plan_source);
+    emit(&match args.format {
+        Format::Json => report::sweep_json(name, &sweep.axes, &rows, total, options.strict),
+        Format::Csv => report::sweep_csv(&sweep.axes, &rows, options.strict),
+        _ => shown(report::sweep_table(
+            name,
+            &sweep.axes,
+            &rows,
+            total,
+            options.strict,
+        )),
+    });
+    match (best, &options.write_best) {
+        (Some(_), _) => ExitCode::SUCCESS,
+        (None, Some(path)) => {
+            eprintln!(
+                "railcheck: no combination passes; {} was not written",
+                syntax::visible(&path.display().to_string())
+            );
+            ExitCode::from(EXIT_FINDINGS)
+        }
+        (None, None) => ExitCode::from(EXIT_FINDINGS),
     }
 }
 
@@ -880,7 +1095,7 @@ fn refuse_format(args: &PlanArgs, command: &str, allowed: &[Format]) {
     };
     let why = match args.format {
         Format::Sarif => " (SARIF carries findings)",
-        Format::Csv => " (CSV is the wire list's rows)",
+        Format::Csv => " (CSV is the rows of the wire list or a sweep)",
         Format::Markdown => " (Markdown is the bring-up checklist)",
         _ => "",
     };

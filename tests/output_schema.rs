@@ -161,6 +161,25 @@ fn the_examples_check_and_budget_documents_are_valid() {
 }
 
 #[test]
+fn a_sweep_document_is_valid() {
+    let strict = strict_validator();
+    let (sweep, code) = run(&[
+        "sweep",
+        "examples/orchard-rover.yaml",
+        "--format",
+        "json",
+        "--vary",
+        "buck.current=2 A,5 A",
+        "--vary",
+        "pack=battery/lipo-3s,battery/lipo-4s",
+    ]);
+    assert_eq!(code, 0, "the shipped rover passes");
+    assert_eq!(sweep["kind"], "sweep");
+    assert_eq!(sweep["rows"].as_array().expect("rows").len(), 4);
+    assert_valid(&strict, &sweep, "sweep of the rover");
+}
+
+#[test]
 fn every_fixture_checks_into_a_valid_document() {
     let strict = strict_validator();
     let files = fixture_files();

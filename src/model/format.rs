@@ -67,6 +67,8 @@ pub enum Section {
     Modes,
     /// `profile:`: the share of time spent in each mode.
     Profile,
+    /// `sweep:`: design choices for `railcheck sweep`, each key with its values.
+    Sweep,
 }
 
 /// One key of the format.
@@ -212,6 +214,12 @@ pub const TOP_LEVEL: &[Field] = &[
         Value::Section(Section::Profile),
         "{ typical: 70 %, climb: 30 % }",
         "the share of time spent in each mode, for the runtime (§6)",
+    ),
+    field(
+        "sweep",
+        Value::Section(Section::Sweep),
+        "{ pack: [battery/lipo-3s, battery/lipo-4s], VMOT.wire: [16 AWG, 14 AWG] }",
+        "design choices that `railcheck sweep` tries in every combination (§10); `check` ignores it",
     ),
 ];
 

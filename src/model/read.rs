@@ -255,6 +255,9 @@ impl Reader<'_> {
             .get("profile")
             .map(|n| self.profile(n, &modes))
             .unwrap_or_default();
+        if let Some(section) = root.get("sweep") {
+            self.sweep_shape(section);
+        }
 
         Some(Plan {
             name,
@@ -1808,6 +1811,48 @@ impl Reader<'_> {
             modes.push(mode);
         }
         modes
+    }
+
+    /// `sweep:` is `railcheck sweep`'s: here only its shape is checked, a
+    /// mapping of keys to values or lists of values (`sweep` reads the keys
+    /// and values themselves).
+    fn sweep_shape(&mut self, node: &Node) {
+        let Some(entries) = self.mapping(node, "`sweep:`") else {
+            return;
+        };
+        for (key, value) in entries {
+            let items: Vec<&Node> = match &value.kind {
+                NodeKind::Seq(items) if !items.is_empty() => items.iter().collect(),
+                NodeKind::Scalar(_) => vec![value],
+                _ => {
+                    self.error(
+                        if matches!(value.kind, NodeKind::Null) {
+                            key.span
+                        } else {
+                            value.span
+                        },
+                        format!(
+                            "a `sweep:` entry takes a list of values, found {}",
+                            value.describe()
+                        ),
+                        Some("write the values to try: `VMOT.wire: [16 AWG, 14 AWG]`".into()),
+                    );
+                    continue;
+                }
+            };
+            for item in items {
+                if item.as_scalar().is_none() {
+                    self.error(
+                        item.span,
+                        format!(
+                            "a value to try must be a single value, found {}",
+                            item.describe()
+                        ),
+                        Some("write each value as the plan would: `3 A`, `battery/lipo-4s`".into()),
+                    );
+                }
+            }
+        }
     }
 
     fn profile(&mut self, node: &Node, modes: &[Mode]) -> Vec<ProfileShare> {

@@ -27,6 +27,7 @@ pub(super) enum Kind {
     Budget,
     Wires,
     Bringup,
+    Sweep,
 }
 
 /// The keys every JSON document starts with.

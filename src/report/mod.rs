@@ -15,6 +15,7 @@ mod quiet;
 mod reference;
 mod sarif;
 mod schema;
+mod sweep;
 mod wires;
 
 pub use bringup::{bringup_json, bringup_markdown, bringup_text};
@@ -28,6 +29,7 @@ pub use quiet::{quiet_budget, quiet_findings};
 pub use reference::{describe, fill_generated_blocks, format_tables};
 pub use sarif::{findings_sarif, input_errors_sarif, unplaced_input_error_sarif};
 pub use schema::{plan_schema, plan_schema_text};
+pub use sweep::{sweep_csv, sweep_json, sweep_table};
 pub use wires::{wires_csv, wires_json, wires_table};
 
 use crate::rules::{Finding, Severity};

@@ -263,6 +263,20 @@ fn section(section: Section) -> Value {
                 },
             })
         }
+        Section::Sweep => json!({
+            "type": ["object", "null"],
+            "propertyNames": { "type": "string", "pattern": r"^[^.\s]+(\.[^.\s]+){0,2}$" },
+            "additionalProperties": {
+                "oneOf": [
+                    { "type": ["string", "number"] },
+                    {
+                        "type": "array",
+                        "minItems": 1,
+                        "items": { "type": ["string", "number"] },
+                    },
+                ],
+            },
+        }),
         Section::Profile => json!({
             "type": ["object", "null"],
             "propertyNames": { "$ref": "#/$defs/name" },

@@ -6,8 +6,9 @@
 //! `exec`s the binary: the cap is the binary's own). Each run must:
 //!
 //! - exit with the code the case declares (a crash or a kill fails);
-//! - when the plan is at fault (exit 2), give the line and column of the
-//!   problem, in the JSON document and in the terminal report;
+//! - when the plan is at fault, give the line and column of the problem:
+//!   for an input error (exit 2) in the JSON document and in the terminal
+//!   report, for each finding in the JSON document;
 //! - under `--format json`, print exactly one JSON document;
 //! - leave the plan and the parts folder byte for byte as they were;
 //! - write nothing but the chosen output (nothing in the working folder,
@@ -263,6 +264,14 @@ fn exercise(case: &Case) -> Vec<String> {
                         position = Some((line, column));
                     }
                     _ => fail(format!("no line and column in {first}")),
+                }
+            } else if let Some(findings) = docs[0]["findings"].as_array() {
+                // Each finding is at fault somewhere in the plan (or a part file).
+                for finding in findings {
+                    let placed = |key: &str| finding[key].as_u64().is_some_and(|n| n >= 1);
+                    if !placed("line") || !placed("column") {
+                        fail(format!("a finding without its line and column: {finding}"));
+                    }
                 }
             }
         }

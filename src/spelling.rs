@@ -9,6 +9,45 @@
 /// from costing time in proportion to its length squared.
 pub(crate) const LONGEST_TYPO: usize = 64;
 
+/// The work one plan's suggestions may take, in candidates looked at plus
+/// cells of the edit-distance tables filled. Each unknown name is compared
+/// with every name declared, so a plan of thousands of misspelt references
+/// to thousands of parts would cost the product of the two; with the
+/// budget spent, later unknown names are still reported, with the plain
+/// hint. About 0.1 s of work: a plan with a few hundred parts and dozens of
+/// typos uses a fraction of it.
+pub(crate) const SUGGESTION_WORK: u64 = 20_000_000;
+
+/// The suggestion search for one plan, within [`SUGGESTION_WORK`].
+pub(crate) struct Speller {
+    left: u64,
+}
+
+impl Speller {
+    pub(crate) fn new() -> Speller {
+        Speller::with_budget(SUGGESTION_WORK)
+    }
+
+    pub(crate) fn with_budget(work: u64) -> Speller {
+        Speller { left: work }
+    }
+
+    /// As [`closest`], while work is left; `None` once it is spent. A search
+    /// that runs out part way suggests nothing rather than the best of the
+    /// candidates it happened to reach.
+    pub(crate) fn closest<'c>(
+        &mut self,
+        word: &str,
+        candidates: impl IntoIterator<Item = &'c str>,
+    ) -> Option<&'c str> {
+        if self.left == 0 {
+            return None;
+        }
+        let found = search(word, candidates, &mut self.left);
+        if self.left == 0 { None } else { found }
+    }
+}
+
 /// The candidate `word` most likely stands for, if one is close enough to be
 /// a typo: at most a third of the word's length in edits (at least one).
 /// Swapping two neighbouring letters is one edit (optimal string alignment),
@@ -16,9 +55,20 @@ pub(crate) const LONGEST_TYPO: usize = 64;
 /// candidates equally close otherwise, so `mv` finds `mV` before `mA`.
 /// Remaining ties go to the earlier candidate: callers list candidates in a
 /// fixed order (declaration order, or likeliest first), never a hash map's.
+/// Unbudgeted: for short, fixed lists (units, keys, library ids); names a
+/// plan declares go through a [`Speller`].
 pub(crate) fn closest<'c>(
     word: &str,
     candidates: impl IntoIterator<Item = &'c str>,
+) -> Option<&'c str> {
+    let mut unlimited = u64::MAX;
+    search(word, candidates, &mut unlimited)
+}
+
+fn search<'c>(
+    word: &str,
+    candidates: impl IntoIterator<Item = &'c str>,
+    left: &mut u64,
 ) -> Option<&'c str> {
     let folded = word.to_lowercase();
     let length = folded.chars().count();
@@ -26,26 +76,41 @@ pub(crate) fn closest<'c>(
         return None;
     }
     let limit = (length / 3).max(1);
-    candidates
-        .into_iter()
-        .enumerate()
-        .filter_map(|(position, candidate)| {
-            // Lowercasing never shortens a text, so a candidate already too
-            // long is skipped before it is copied; the length difference is a
-            // lower bound of the distance, so one beyond the limit cannot match.
-            if candidate.chars().take(length + limit + 1).count() > length + limit {
-                return None;
-            }
-            let candidate_folded = candidate.to_lowercase();
-            if candidate_folded.chars().count().abs_diff(length) > limit {
-                return None;
-            }
-            let distance = strsim::osa_distance(&folded, &candidate_folded);
-            let case_distance = strsim::osa_distance(word, candidate);
-            (distance <= limit).then_some((distance, case_distance, position, candidate))
-        })
-        .min()
-        .map(|(_, _, _, candidate)| candidate)
+    let mut best = None;
+    for (position, candidate) in candidates.into_iter().enumerate() {
+        // Looking at a candidate costs one unit, comparing it the cells of
+        // the two tables; a search that cannot pay stops.
+        if *left == 0 {
+            return None;
+        }
+        *left -= 1;
+        // Lowercasing never shortens a text, so a candidate already too
+        // long is skipped before it is copied; the length difference is a
+        // lower bound of the distance, so one beyond the limit cannot match.
+        if candidate.chars().take(length + limit + 1).count() > length + limit {
+            continue;
+        }
+        let candidate_folded = candidate.to_lowercase();
+        let candidate_length = candidate_folded.chars().count();
+        if candidate_length.abs_diff(length) > limit {
+            continue;
+        }
+        let cells = 2 * ((length + 1) * (candidate_length + 1)) as u64;
+        if *left < cells {
+            *left = 0;
+            return None;
+        }
+        *left -= cells;
+        let distance = strsim::osa_distance(&folded, &candidate_folded);
+        if distance > limit {
+            continue;
+        }
+        let key = (distance, strsim::osa_distance(word, candidate), position);
+        if best.is_none_or(|(b, _)| key < b) {
+            best = Some((key, candidate));
+        }
+    }
+    best.map(|(_, candidate)| candidate)
 }
 
 #[cfg(test)]
@@ -95,5 +160,31 @@ mod tests {
         let huge = "q".repeat(60_000);
         let other = format!("{}r", "q".repeat(59_999));
         assert_eq!(closest(&huge, [other.as_str()]), None);
+    }
+
+    #[test]
+    fn a_spent_budget_suggests_nothing_but_a_fresh_one_does() {
+        // `capacty` (7 letters, 2 edits allowed) is compared with `cells`
+        // (8 × 6 cells a table) and `capacity` (8 × 9), two tables each, plus
+        // one unit per candidate looked at: one unit is left over.
+        let mut speller = Speller::with_budget(2 + 2 * 8 * 6 + 2 * 8 * 9 + 1);
+        assert_eq!(
+            speller.closest("capacty", ["cells", "capacity"]),
+            Some("capacity")
+        );
+        assert_eq!(speller.closest("capacty", ["cells", "capacity"]), None);
+        assert_eq!(speller.closest("pak", ["pack"]), None);
+        let mut fresh = Speller::new();
+        assert_eq!(fresh.closest("pak", ["pack"]), Some("pack"));
+    }
+
+    #[test]
+    fn a_search_that_runs_out_part_way_suggests_nothing() {
+        // Enough to look at `car` and compare it (2 × 4 × 4 cells), not to
+        // reach `cat`: the nearer `cat` would win a full search, so a partial
+        // one must not offer `car`.
+        let mut speller = Speller::with_budget(1 + 2 * 4 * 4 + 1);
+        assert_eq!(speller.closest("cat", ["car", "cat"]), None);
+        assert_eq!(closest("cat", ["car", "cat"]), Some("cat"));
     }
 }

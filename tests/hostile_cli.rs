@@ -300,3 +300,42 @@ fn every_exit_2_under_json_prints_one_document() {
         assert!(documents.next().is_none(), "{args:?}: one document only");
     }
 }
+
+#[test]
+fn a_parts_folder_past_its_entry_or_depth_ceiling_is_refused_by_name() {
+    // Ceilings of docs/format.md §9: `MAX_PARTS_ENTRIES` files and folders,
+    // `MAX_PARTS_DEPTH` folders deep.
+    let (_dir, plan, parts) = setup("mine/fuse");
+    let many = parts.join("many");
+    std::fs::create_dir(&many).unwrap();
+    for i in 0..railcheck::MAX_PARTS_ENTRIES {
+        std::fs::write(many.join(format!("e{i}.txt")), "").unwrap();
+    }
+    let out = check(&plan, &parts);
+    assert_eq!(out.status.code(), Some(2));
+    let message = json(&out)["errors"][0]["message"]
+        .as_str()
+        .unwrap()
+        .to_string();
+    assert!(
+        message.contains("holds more than 10000 files and folders"),
+        "{message}"
+    );
+
+    let (_dir, plan, parts) = setup("mine/fuse");
+    let mut deep = parts.clone();
+    for i in 0..=railcheck::MAX_PARTS_DEPTH {
+        deep.push(format!("d{i}"));
+    }
+    std::fs::create_dir_all(&deep).unwrap();
+    let out = check(&plan, &parts);
+    assert_eq!(out.status.code(), Some(2));
+    let message = json(&out)["errors"][0]["message"]
+        .as_str()
+        .unwrap()
+        .to_string();
+    assert!(
+        message.contains("nests folders more than 16 deep"),
+        "{message}"
+    );
+}

@@ -92,3 +92,40 @@ fn every_one_of_many_long_unknown_part_names_is_reported() {
             .all(|e| e.hint.as_deref() == Some("declare it under `parts:`"))
     );
 }
+
+#[test]
+fn thousands_of_misspelt_references_cost_a_bounded_search() {
+    // 1,500 parts and 1,500 references, each one letter from its part
+    // (`qart00042` for `part00042`): a search of every declared name per
+    // unknown one is 1,500² comparisons. The search has one budget per plan;
+    // once it is spent, later unknown names keep their error and get the
+    // plain hint.
+    const PARTS: usize = 1_500;
+    let mut plan = String::from("railcheck: 1\nparts:\n");
+    for i in 0..PARTS {
+        plan.push_str(&format!("  part{i:05}: {{ use: load/fan-12v }}\n"));
+    }
+    plan.push_str("nets:\n");
+    for i in 0..PARTS {
+        plan.push_str(&format!("  N{i}: [qart{i:05}.vin]\n"));
+    }
+    let errors = input_errors(&plan);
+    let unknown = mentioning(&errors, "unknown part `qart");
+    assert_eq!(unknown.len(), PARTS, "{} errors", errors.len());
+    assert_eq!(
+        unknown[0].hint.as_deref(),
+        Some("did you mean `part00000`?")
+    );
+    let suggested = unknown
+        .iter()
+        .filter(|e| e.hint.as_deref().unwrap_or("").starts_with("did you mean"))
+        .count();
+    // Each search looks at 1,500 names and fills two tables of 10 × 10
+    // cells for each (all have nine letters): about 301,500 units of the
+    // 20,000,000, so some 66 searches are paid for.
+    assert!((50..100).contains(&suggested), "{suggested} suggested");
+    assert_eq!(
+        unknown[PARTS - 1].hint.as_deref(),
+        Some("declare it under `parts:`")
+    );
+}

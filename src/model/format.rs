@@ -219,7 +219,7 @@ pub const TOP_LEVEL: &[Field] = &[
         "sweep",
         Value::Section(Section::Sweep),
         "{ pack: [battery/lipo-3s, battery/lipo-4s], VMOT.wire: [16 AWG, 14 AWG] }",
-        "design choices that `railcheck sweep` tries in every combination (§10); `check` ignores it",
+        "design choices that `railcheck sweep` tries in every combination (§11); `check` ignores it",
     ),
 ];
 

@@ -65,6 +65,7 @@ pub fn read_plan(
         refused_pins: HashSet::new(),
         pin_names: HashMap::new(),
         loaded: HashMap::new(),
+        speller: Speller::new(),
     };
     let plan = reader.plan(root);
     if reader.errors.is_empty() {
@@ -115,6 +116,9 @@ struct Reader<'a> {
     /// Library parts parsed so far, by id: each file is parsed (and added
     /// to the sources) once however many parts use it.
     loaded: HashMap<String, Option<Result<Node, LibraryError>>>,
+    /// "Did you mean" for names the plan declares, within one budget of work
+    /// for the whole plan.
+    speller: Speller,
 }
 
 /// A logic pin's `ref`, resolved once all pins of the part are known.
@@ -544,7 +548,7 @@ impl Reader<'_> {
                 }
             };
             let Some(loaded) = loaded else {
-                let hint = match closest(&id, self.library.ids()) {
+                let hint = match self.speller.closest(&id, self.library.ids()) {
                     Some(s) => format!("did you mean `{s}`?"),
                     None => "write the part inline with `class:` and `pins:`, or add it with `--parts DIR`".into(),
                 };
@@ -1441,7 +1445,10 @@ impl Reader<'_> {
             return None;
         }
         let Some(&part) = index.get(part_name) else {
-            let hint = match closest(part_name, parts.iter().map(|p| p.name.as_str())) {
+            let hint = match self
+                .speller
+                .closest(part_name, parts.iter().map(|p| p.name.as_str()))
+            {
                 Some(s) => format!("did you mean `{s}`?"),
                 None => "declare it under `parts:`".into(),
             };
@@ -1467,7 +1474,7 @@ impl Reader<'_> {
             .copied();
         let Some(pin) = found else {
             let names: Vec<&str> = parts[part].pins.iter().map(|p| p.name.as_str()).collect();
-            let hint = match closest(pin_name, names.iter().copied()) {
+            let hint = match self.speller.closest(pin_name, names.iter().copied()) {
                 Some(s) => format!("did you mean `{part_name}.{s}`?"),
                 None => format!("pins of `{part_name}`: {}", list(&names)),
             };
@@ -1661,7 +1668,10 @@ impl Reader<'_> {
                     continue;
                 }
                 let Some(&part) = index.get(part_name) else {
-                    let hint = match closest(part_name, parts.iter().map(|p| p.name.as_str())) {
+                    let hint = match self
+                        .speller
+                        .closest(part_name, parts.iter().map(|p| p.name.as_str()))
+                    {
                         Some(s) => format!("did you mean `{s}`?"),
                         None => "declare it under `parts:`".into(),
                     };
@@ -1773,7 +1783,9 @@ impl Reader<'_> {
                     continue;
                 }
                 let Some(&part) = index.get(part_name) else {
-                    let hint = closest(part_name, parts.iter().map(|p| p.name.as_str()))
+                    let hint = self
+                        .speller
+                        .closest(part_name, parts.iter().map(|p| p.name.as_str()))
                         .map(|s| format!("did you mean `{s}`?"))
                         .unwrap_or_else(|| "name a part declared under `parts:`".into());
                     self.error(
@@ -1866,7 +1878,9 @@ impl Reader<'_> {
             if name != "typical" && name != "worst" && !modes.iter().any(|m| m.name == name) {
                 let mut names: Vec<&str> = vec!["typical", "worst"];
                 names.extend(modes.iter().map(|m| m.name.as_str()));
-                let hint = closest(&name, names.iter().copied())
+                let hint = self
+                    .speller
+                    .closest(&name, names.iter().copied())
                     .map(|s| format!("did you mean `{s}`?"))
                     .unwrap_or_else(|| format!("modes: {}", list(&names)));
                 self.error(key.span, format!("unknown mode `{name}`"), Some(hint));
@@ -2083,7 +2097,7 @@ fn list(names: &[&str]) -> String {
 }
 
 // The "did you mean" search is shared with the quantity parser.
-use crate::spelling::closest;
+use crate::spelling::{Speller, closest};
 
 #[cfg(test)]
 mod tests {

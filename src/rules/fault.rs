@@ -109,7 +109,8 @@ fn chain_up(cx: &Context, net: NetId) -> Vec<NetId> {
     let mut chain = vec![net];
     let mut here = net;
     while let Some(parent) = cx.circuit.parent[here] {
-        if chain.contains(&parent.net) {
+        // The net tree has no cycle; the bound only guards against one.
+        if chain.len() > cx.plan.nets.len() {
             break;
         }
         chain.push(parent.net);
@@ -385,9 +386,10 @@ fn check_fuse_distance(cx: &Context, out: &mut Vec<Finding>) {
 fn capacitors_below(cx: &Context, start: NetId) -> Vec<(PartId, Capacitance)> {
     let mut found = Vec::new();
     let mut stack = vec![start];
-    let mut seen = vec![false; cx.plan.nets.len()];
+    // A set, not a flag per net of the plan: one switch's subtree is small.
+    let mut seen = std::collections::HashSet::new();
     while let Some(net) = stack.pop() {
-        if std::mem::replace(&mut seen[net], true) {
+        if !seen.insert(net) {
             continue;
         }
         for pin in &cx.plan.nets[net].pins {
@@ -567,6 +569,14 @@ fn openers(cx: &Context, net: NetId) -> Vec<String> {
 }
 
 fn check_regeneration(cx: &Context, out: &mut Vec<Finding>) {
+    // Each driver's motors, gathered in one pass over the motors.
+    let mut motors_of: std::collections::HashMap<PartId, Vec<PartId>> =
+        std::collections::HashMap::new();
+    for (motor, feed) in cx.circuit.motor_feed.iter().enumerate() {
+        if let Some(MotorFeed::Driver { driver, .. }) = feed {
+            motors_of.entry(*driver).or_default().push(motor);
+        }
+    }
     for (part_id, part) in cx.plan.parts.iter().enumerate() {
         let Class::Driver(driver) = &part.class else {
             continue;
@@ -574,17 +584,9 @@ fn check_regeneration(cx: &Context, out: &mut Vec<Finding>) {
         if driver.clamp {
             continue;
         }
-        let motors: Vec<PartId> = cx
-            .circuit
-            .motor_feed
-            .iter()
-            .enumerate()
-            .filter(|(_, feed)| matches!(feed, Some(MotorFeed::Driver { driver, .. }) if *driver == part_id))
-            .map(|(m, _)| m)
-            .collect();
-        if motors.is_empty() {
+        let Some(motors) = motors_of.get(&part_id) else {
             continue;
-        }
+        };
         let Some((vm, net)) = part
             .pins_with_role(PinRole::SupplyIn)
             .find_map(|(i, p)| p.net.map(|n| (i, n)))

@@ -1389,3 +1389,22 @@ fn the_title_date_is_a_calendar_date() {
         );
     }
 }
+
+/// §1 limits: a wire drop limit of nothing would report every wire; it is
+/// refused at its value with the default offered.
+#[test]
+fn a_wire_drop_limit_of_zero_is_refused() {
+    for zero in ["0 %", "-0 %", "0"] {
+        let plan = format!(
+            "railcheck: 1\nlimits:\n  wire_drop: {zero}\nparts:\n  pack: {{ use: battery/lipo-3s, with: {{ cutoff: true }} }}\nnets: {{}}\n"
+        );
+        let reported = input_errors(&plan);
+        assert_eq!(reported.len(), 1, "{zero}: {reported:?}");
+        assert_eq!(reported[0].line, 3, "{zero}");
+        assert!(reported[0].message.contains("above 0 %"), "{zero}");
+        assert!(
+            reported[0].hint.as_deref().unwrap_or("").contains("5 %"),
+            "{zero}"
+        );
+    }
+}

@@ -503,7 +503,20 @@ impl Reader<'_> {
         }
         self.check_keys(node, &format::keys(format::LIMITS), "`limits:`");
         if let Some(v) = self.quantity(node, "wire_drop", units::share) {
-            limits.wire_drop = v;
+            if v.get::<ratio>() > 0.0 {
+                limits.wire_drop = v;
+            } else if let Some(at) = node.get("wire_drop") {
+                // Every wire drops some voltage: a limit of nothing would
+                // report every wire in the plan.
+                self.error(
+                    at.span,
+                    "`wire_drop` must be above 0 %: every wire drops some voltage",
+                    Some(format!(
+                        "write the largest drop you accept, e.g. `wire_drop: {} %` (the default)",
+                        DEFAULT_WIRE_DROP * 100.0
+                    )),
+                );
+            }
         }
         if let Some(v) = self.quantity(node, "derate", units::share) {
             limits.derate = v;

@@ -549,7 +549,13 @@ impl Sizing {
             show_current(continuous),
             show_current(minimum_rating(continuous))
         )];
-        for b in &self.brief {
+        // A brief peak below the rating the continuous current already asks
+        // for cannot open the fuse: only the ones above it constrain it.
+        for b in self
+            .brief
+            .iter()
+            .filter(|b| exceeds(amps(b.current), amps(minimum_rating(continuous))))
+        {
             needs.push(format!(
                 "rides through {} for {} in mode `{}`",
                 show_current(b.current),

@@ -1408,3 +1408,18 @@ fn a_wire_drop_limit_of_zero_is_refused() {
         );
     }
 }
+
+/// §1: `notes:` is free text; a list there is a misplaced block, refused at
+/// its place.
+#[test]
+fn notes_must_be_text() {
+    let plan = "railcheck: 1\nnotes:\n  - pack: { use: battery/lipo-3s }\nparts:\n  pack: { use: battery/lipo-3s, with: { cutoff: true } }\nnets: {}\n";
+    let reported = input_errors(plan);
+    assert_eq!(reported.len(), 1, "{reported:?}");
+    assert_eq!(reported[0].line, 3);
+    assert!(
+        reported[0].message.contains("must be text"),
+        "{}",
+        reported[0].message
+    );
+}

@@ -286,7 +286,7 @@ impl Reader<'_> {
         let Some(entries) = node.as_map() else {
             return;
         };
-        for (key, _) in entries {
+        for (key, value) in entries {
             let Some(k) = key.as_scalar() else {
                 self.error(
                     key.span,
@@ -295,7 +295,19 @@ impl Reader<'_> {
                 );
                 continue;
             };
-            if k == "notes" || allowed.contains(&k) {
+            if k == "notes" {
+                // Free text, shown nowhere the checks read: a list or a
+                // mapping there is a misplaced block of the plan.
+                if value.as_scalar().is_none() && !matches!(value.kind, NodeKind::Null) {
+                    self.error(
+                        value.span,
+                        format!("`notes` in {context} must be text, found {}", value.describe()),
+                        Some("write the notes as one text, e.g. `notes: >-` followed by indented lines".into()),
+                    );
+                }
+                continue;
+            }
+            if allowed.contains(&k) {
                 continue;
             }
             let hint = match closest(k, allowed.iter().copied()) {

@@ -744,12 +744,7 @@ fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
             );
         }
     }
-    // CSV on standard output stays clean: problems go to standard error.
-    let stream = if args.format == Format::Csv {
-        Stream::Stderr
-    } else {
-        Stream::Stdout
-    };
+    let stream = problems_beside(args, Format::Csv);
     let (checked, library) = match load_with_library(run, args, stream) {
         Ok(loaded) => loaded,
         Err(code) => return code,
@@ -1112,17 +1107,24 @@ fn refuse_format(args: &PlanArgs, command: &str, allowed: &[Format]) {
         .exit();
 }
 
+/// Where input problems go: to standard error when the output is a
+/// document in `document` format (CSV, a Markdown checklist) that they would
+/// break, else to standard output with the report.
+fn problems_beside(args: &PlanArgs, document: Format) -> Stream {
+    if args.format == document {
+        Stream::Stderr
+    } else {
+        Stream::Stdout
+    }
+}
+
 fn bringup(run: &Run, args: &PlanArgs) -> ExitCode {
     refuse_format(
         args,
         "bringup",
         &[Format::Human, Format::Markdown, Format::Json],
     );
-    let stream = if args.format == Format::Markdown {
-        Stream::Stderr
-    } else {
-        Stream::Stdout
-    };
+    let stream = problems_beside(args, Format::Markdown);
     let checked = match load(run, args, stream) {
         Ok(c) => c,
         Err(code) => return code,
@@ -1143,12 +1145,7 @@ fn bringup(run: &Run, args: &PlanArgs) -> ExitCode {
 
 fn wires(run: &Run, args: &PlanArgs) -> ExitCode {
     refuse_format(args, "wires", &[Format::Human, Format::Csv, Format::Json]);
-    // CSV on standard output stays clean: problems go to standard error.
-    let stream = if args.format == Format::Csv {
-        Stream::Stderr
-    } else {
-        Stream::Stdout
-    };
+    let stream = problems_beside(args, Format::Csv);
     let checked = match load(run, args, stream) {
         Ok(c) => c,
         Err(code) => return code,

@@ -475,6 +475,12 @@ impl Quantity {
 // Public formatters
 // ---------------------------------------------------------------------------------------------
 
+/// `470 µF`, `2200 µF`, `100 nF`, `1 F`: capacitors are named in
+/// microfarads up to a farad.
+pub fn show_capacitance(c: uom::si::f64::Capacitance) -> String {
+    show_scaled(c.get::<uom::si::capacitance::farad>(), FARADS)
+}
+
 /// `12.6 V`, `5.25 V`, `212 mV`, `1.2 kV`.
 ///
 /// ```
@@ -1709,6 +1715,11 @@ const DEGREES_CELSIUS_PER_WATT: &[Prefix] = &[prefix(i32::MIN, 0, "\u{b0}C/W")];
 const AMPERE_HOURS: &[Prefix] = &[prefix(0, 0, "Ah"), prefix(-3, -3, "mAh")];
 // Lengths in a plan read best in metres (`0.8 m`); millimetres only below a centimetre.
 const METERS: &[Prefix] = &[prefix(-2, 0, "m"), prefix(-3, -3, "mm")];
+const FARADS: &[Prefix] = &[
+    prefix(0, 0, "F"),
+    prefix(-6, -6, "\u{b5}F"),
+    prefix(-9, -9, "nF"),
+];
 const SECONDS: &[Prefix] = &[prefix(0, 0, "s"), prefix(-3, -3, "ms")];
 const PERCENT: &[Prefix] = &[prefix(i32::MIN, 0, "%")];
 const SQUARE_MILLIMETERS: &[Prefix] = &[prefix(i32::MIN, 0, "mm\u{b2}")];

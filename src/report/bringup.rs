@@ -2,6 +2,7 @@
 //! or keep with the build notes) or a JSON document (`kind: "bringup"`).
 
 use super::json::{Envelope, Kind, Rounded};
+use super::notes::markdown_escaped;
 use crate::bringup::{Figure, Procedure};
 use serde::Serialize;
 use std::collections::BTreeMap;
@@ -33,35 +34,16 @@ pub fn bringup_text(file: &str, procedure: &Procedure) -> String {
     out
 }
 
-/// Text as Markdown shows it literally.
-fn literal(text: &str) -> String {
-    let mut out = String::with_capacity(text.len());
-    for c in text.chars() {
-        match c {
-            '&' => out.push_str("&amp;"),
-            '<' => out.push_str("&lt;"),
-            '>' => out.push_str("&gt;"),
-            '\\' | '*' | '_' | '[' | ']' | '|' | '#' | '~' | '!' => {
-                out.push('\\');
-                out.push(c);
-            }
-            '\n' | '\r' => out.push(' '),
-            c => out.push(c),
-        }
-    }
-    out
-}
-
 /// The procedure as a Markdown checklist.
 pub fn bringup_markdown(file: &str, procedure: &Procedure) -> String {
-    let mut out = format!("# First power-on of {}\n", literal(file));
+    let mut out = format!("# First power-on of {}\n", markdown_escaped(file));
     if !procedure.solved {
         out.push_str("\nNo operating point: the plan has a short circuit or a power loop; fix it first. Only the checks before power follow.\n");
     }
     for (number, stage) in procedure.stages.iter().enumerate() {
         out.push_str(&format!("\n## {}. {}\n\n", number + 1, stage.title));
         for step in &stage.steps {
-            out.push_str(&format!("- [ ] {}\n", literal(&step.text)));
+            out.push_str(&format!("- [ ] {}\n", markdown_escaped(&step.text)));
         }
     }
     out

@@ -140,6 +140,33 @@ pub(super) fn battery_row(b: &BatteryBudget) -> Vec<String> {
     ]
 }
 
+/// The rail table's columns (also the build notes').
+pub(super) const RAIL_HEADER: &[&str] = &[
+    "rail",
+    "source",
+    "window",
+    "nominal",
+    "typical",
+    "peak (mode)",
+    "rating",
+    "headroom",
+    "power",
+    "loss",
+];
+
+/// The battery table's columns (also the build notes').
+pub(super) const BATTERY_HEADER: &[&str] = &[
+    "battery",
+    "pack",
+    "capacity",
+    "full / nominal / empty",
+    "energy",
+    "typical",
+    "peak of max",
+    "mean",
+    "runtime",
+];
+
 /// The budget as terminal text for the plan `file`: a table of rails and one of
 /// batteries, or why there are no figures.
 pub fn budget_table(file: &str, budget: &Budget) -> String {
@@ -161,39 +188,10 @@ pub fn budget_table(file: &str, budget: &Budget) -> String {
          regulators at the low end of their tolerance to a full battery at the high end):\n",
     );
     let rails: Vec<Vec<String>> = budget.rails.iter().map(rail_row).collect();
-    out.push_str(&table(
-        &[
-            "rail",
-            "source",
-            "window",
-            "nominal",
-            "typical",
-            "peak (mode)",
-            "rating",
-            "headroom",
-            "power",
-            "loss",
-        ],
-        &rails,
-        2,
-    ));
+    out.push_str(&table(RAIL_HEADER, &rails, 2));
     out.push_str("\nBatteries:\n");
     let batteries: Vec<Vec<String>> = budget.batteries.iter().map(battery_row).collect();
-    out.push_str(&table(
-        &[
-            "battery",
-            "pack",
-            "capacity",
-            "full / nominal / empty",
-            "energy",
-            "typical",
-            "peak of max",
-            "mean",
-            "runtime",
-        ],
-        &batteries,
-        2,
-    ));
+    out.push_str(&table(BATTERY_HEADER, &batteries, 2));
     for b in &budget.batteries {
         if let Some(r) = &b.runtime {
             out.push_str(&format!(

@@ -11,6 +11,8 @@
 //! escapes as it writes it, is placed as markup.
 
 use super::Summary;
+use super::budget::{BATTERY_HEADER, RAIL_HEADER};
+use super::wires::{PINOUT_HEADER, RUN_HEADER, TOTAL_HEADER};
 use crate::Checked;
 use crate::budget::Budget;
 use crate::wirelist::WireList;
@@ -93,45 +95,6 @@ struct NotesContext {
     pinouts: Vec<PinoutItem>,
     bringup: Vec<StageItem>,
 }
-
-const RAIL_HEADER: &[&str] = &[
-    "rail",
-    "source",
-    "window",
-    "nominal",
-    "typical",
-    "peak (mode)",
-    "rating",
-    "headroom",
-    "power",
-    "loss",
-];
-const BATTERY_HEADER: &[&str] = &[
-    "battery",
-    "pack",
-    "capacity",
-    "full / nominal / empty",
-    "energy",
-    "typical",
-    "peak of max",
-    "mean",
-    "runtime",
-];
-const RUN_HEADER: &[&str] = &[
-    "#",
-    "net",
-    "from → to",
-    "role",
-    "wire",
-    "length",
-    "colour",
-    "continuous",
-    "peak",
-    "fuse",
-    "drop",
-];
-const TOTAL_HEADER: &[&str] = &["size", "length", "runs"];
-const PINOUT_HEADER: &[&str] = &["contact", "plug side", "socket side", "continuous", "peak"];
 
 fn context(
     checked: &Checked,
@@ -236,7 +199,7 @@ fn context(
 /// Text as Markdown shows it literally: characters Markdown or the HTML
 /// inside it would read as markup become escapes or entities, and line
 /// breaks (which would end a table row) become spaces.
-fn markdown_escaped(text: &str) -> String {
+pub(super) fn markdown_escaped(text: &str) -> String {
     let mut out = String::with_capacity(text.len());
     for c in text.chars() {
         match c {

@@ -68,6 +68,26 @@ pub(super) fn pinout_rows(pinout: &Pinout) -> Vec<Vec<String>> {
         .collect()
 }
 
+/// Columns of the wire list (also the build notes').
+pub(super) const RUN_HEADER: &[&str] = &[
+    "#",
+    "net",
+    "from → to",
+    "role",
+    "wire",
+    "length",
+    "colour",
+    "continuous",
+    "peak",
+    "fuse",
+    "drop",
+];
+/// Columns of the wire list (also the build notes').
+pub(super) const TOTAL_HEADER: &[&str] = &["size", "length", "runs"];
+/// Columns of the wire list (also the build notes').
+pub(super) const PINOUT_HEADER: &[&str] =
+    &["contact", "plug side", "socket side", "continuous", "peak"];
+
 /// The wire list as terminal text for the plan `file`: the runs in cutting
 /// order, the length of each size to buy, and each connector's pinout.
 pub fn wires_table(file: &str, list: &WireList) -> String {
@@ -88,23 +108,7 @@ pub fn wires_table(file: &str, list: &WireList) -> String {
         .enumerate()
         .map(|(i, run)| run_row(i + 1, run))
         .collect();
-    out.push_str(&table(
-        &[
-            "#",
-            "net",
-            "from → to",
-            "role",
-            "wire",
-            "length",
-            "colour",
-            "continuous",
-            "peak",
-            "fuse",
-            "drop",
-        ],
-        &rows,
-        3,
-    ));
+    out.push_str(&table(RUN_HEADER, &rows, 3));
     out.push_str(
         "\nTo buy (one-way lengths added up; allow extra for routing and strip length):\n",
     );
@@ -112,7 +116,7 @@ pub fn wires_table(file: &str, list: &WireList) -> String {
     if totals.is_empty() {
         out.push_str("  no run gives both a wire size and a length\n");
     } else {
-        out.push_str(&table(&["size", "length", "runs"], &totals, 1));
+        out.push_str(&table(TOTAL_HEADER, &totals, 1));
     }
     for pinout in &list.pinouts {
         out.push_str(&format!(
@@ -123,11 +127,7 @@ pub fn wires_table(file: &str, list: &WireList) -> String {
                 .as_ref()
                 .map_or(String::new(), |id| format!(" ({id})"))
         ));
-        out.push_str(&table(
-            &["contact", "plug side", "socket side", "continuous", "peak"],
-            &pinout_rows(pinout),
-            3,
-        ));
+        out.push_str(&table(PINOUT_HEADER, &pinout_rows(pinout), 3));
     }
     out
 }

@@ -185,26 +185,9 @@ impl Loop {
             "{} (full `{}`) / ({} pack + {} of wire)",
             show_voltage(self.voltage),
             cx.part_name(self.battery),
-            show_milliohms(self.pack),
-            show_milliohms(self.wires)
+            crate::units::show_resistance(self.pack),
+            crate::units::show_resistance(self.wires)
         )
-    }
-}
-
-fn show_milliohms(r: ElectricalResistance) -> String {
-    format!("{} mΩ", trim(r.get::<ohm>() * 1000.0))
-}
-
-fn rated_span<Q>(
-    cx: &Context,
-    rated: &crate::model::Rated<Q>,
-    part: PartId,
-) -> crate::syntax::Span {
-    let part_span = cx.plan.parts[part].span;
-    if rated.span.source == part_span.source {
-        rated.span
-    } else {
-        part_span
     }
 }
 
@@ -256,7 +239,7 @@ fn check_short_circuit(cx: &Context, out: &mut Vec<Finding>) {
             ));
         }
         let span = match breaking {
-            Some(rated) => rated_span(cx, &rated, part_id),
+            Some(rated) => cx.rated_span(&rated, part_id),
             None => part.span,
         };
         // Resistance that would bring the current down to the lower limit.
@@ -281,12 +264,12 @@ fn check_short_circuit(cx: &Context, out: &mut Vec<Finding>) {
         .help(if breaking.is_some() {
             format!(
                 "use a fuse with a higher breaking capacity (a high-breaking-capacity or DC-rated cartridge fuse), or add {} of resistance to the battery leads (longer or thinner leads raise their drop too)",
-                show_milliohms(needed)
+                crate::units::show_resistance(needed)
             )
         } else {
             format!(
                 "the fuse can break it, but the pack must survive until it does: choose a pack (or protection board) rated for the fault current, or add {} of resistance to its leads",
-                show_milliohms(needed)
+                crate::units::show_resistance(needed)
             )
         })
         .part(&part.name)
@@ -501,7 +484,13 @@ fn check_inrush(cx: &Context, out: &mut Vec<Finding>) {
         };
         let parts: Vec<String> = capacitors
             .iter()
-            .map(|(p, c)| format!("`{}` {} µF", cx.part_name(*p), trim(c.get::<farad>() * 1e6)))
+            .map(|(p, c)| {
+                format!(
+                    "`{}` {}",
+                    cx.part_name(*p),
+                    crate::units::show_capacitance(*c)
+                )
+            })
             .collect();
         let kind = if switch.stop { "stop switch" } else { "switch" };
         let mut finding = Finding::new(
@@ -510,7 +499,7 @@ fn check_inrush(cx: &Context, out: &mut Vec<Finding>) {
             format!(
                 "closing {kind} `{}` charges {} ({}) with a surge of {} = {}, {}; {:.3} J is left as heat in the path",
                 part.name,
-                format_args!("{} µF", trim(capacitance.get::<farad>() * 1e6)),
+                crate::units::show_capacitance(capacitance),
                 parts.join(", "),
                 show_current(peak),
                 surge_loop.explained(cx),
@@ -530,20 +519,6 @@ fn check_inrush(cx: &Context, out: &mut Vec<Finding>) {
             finding = finding.part(cx.part_name(*p));
         }
         out.push(finding);
-    }
-}
-
-/// Three significant figures, no trailing zeros.
-fn trim(v: f64) -> String {
-    if v == 0.0 {
-        return "0".into();
-    }
-    let decimals = (2 - v.abs().log10().floor() as i32).max(0) as usize;
-    let text = format!("{v:.decimals$}");
-    if text.contains('.') {
-        text.trim_end_matches('0').trim_end_matches('.').to_string()
-    } else {
-        text
     }
 }
 

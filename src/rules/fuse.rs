@@ -30,8 +30,7 @@ use super::{
 };
 use crate::analysis::{BatteryState, ModeId, OperatingPoint, battery_voltage};
 use crate::graph::{MotorFeed, through_pairs};
-use crate::model::{Class, Fuse, FuseSpeed, MotorState, NetId, PartId, PinRef, PinRole, Rated};
-use crate::syntax::Span;
+use crate::model::{Class, Fuse, FuseSpeed, MotorState, NetId, PartId, PinRef, PinRole};
 use crate::units::{WireSize, show_current, show_duration, show_share, show_voltage};
 use crate::wire::{AmpacityTable, ampacity_at};
 use uom::si::electric_current::ampere;
@@ -700,17 +699,6 @@ fn fuses<'a>(cx: &'a Context) -> Vec<PlacedFuse<'a>> {
     found
 }
 
-/// Where a finding about a value points: where the plan writes it, else the
-/// part's name (a value that came from the library).
-fn rated_span<Q>(cx: &Context, rated: &Rated<Q>, part: PartId) -> Span {
-    let part_span = cx.plan.parts[part].span;
-    if rated.span.source == part_span.source {
-        rated.span
-    } else {
-        part_span
-    }
-}
-
 fn continuous_through<'p>(cx: &'p Context, net: NetId) -> Option<(&'p OperatingPoint, f64)> {
     worst_point(cx.points().filter(continuous), |p| {
         Some(amps(p.net_current[net]).abs())
@@ -1100,7 +1088,7 @@ fn check_undersized(cx: &Context, out: &mut Vec<Finding>) {
                 show_current(rating.value)
             )
         };
-        let mut finding = Finding::new(&UNDERSIZED, rated_span(cx, &rating, fuse.part), message);
+        let mut finding = Finding::new(&UNDERSIZED, cx.rated_span(&rating, fuse.part), message);
         if blows {
             finding.severity = Severity::Error;
         }
@@ -1131,7 +1119,7 @@ fn check_oversized(cx: &Context, out: &mut Vec<Finding>) {
         let sizing = sizing_at(cx, net, fuse.spec.speed);
         let mut finding = Finding::new(
             &OVERSIZED,
-            rated_span(cx, &rating, fuse.part),
+            cx.rated_span(&rating, fuse.part),
             format!(
                 "`{}` is rated {}, above the {} ampacity of {} ({}, {}) that it protects: {}",
                 fuse.name,
@@ -1240,7 +1228,7 @@ fn check_voltage(cx: &Context, out: &mut Vec<Finding>) {
             .map_or(String::new(), |s| format!("; {}", s.advice(cx)));
         let mut finding = Finding::new(
             &VOLTAGE,
-            rated_span(cx, &rated, fuse.part),
+            cx.rated_span(&rated, fuse.part),
             format!(
                 "`{}` is rated {}, below {} ({}) that it must break when it opens",
                 fuse.name,
@@ -1333,7 +1321,7 @@ fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
             };
             let finding = Finding::new(
                 &NUISANCE,
-                rated_span(cx, &rating, fuse.part),
+                cx.rated_span(&rating, fuse.part),
                 format!(
                     "`{}` is a {} fuse rated {} and carries {} ({} of its rating) for {} {}: {band}, so it may blow {what}",
                     fuse.name,
@@ -1384,7 +1372,7 @@ fn check_nuisance(cx: &Context, out: &mut Vec<Finding>) {
         };
         let finding = Finding::new(
             &NUISANCE,
-            rated_span(cx, &rating, fuse.part),
+            cx.rated_span(&rating, fuse.part),
             format!(
                 "`{}` is a {} fuse rated {} and carries {} peak{cause} {}{how}: {risk}",
                 fuse.name,

@@ -227,6 +227,17 @@ impl Context<'_> {
         loads
     }
 
+    /// Where a finding about a part's value points: where the plan writes
+    /// it, else the part's name (a value that came from the library).
+    pub fn rated_span<Q>(&self, rated: &crate::model::Rated<Q>, part: PartId) -> Span {
+        let part_span = self.plan.parts[part].span;
+        if rated.span.source == part_span.source {
+            rated.span
+        } else {
+            part_span
+        }
+    }
+
     /// The net on the far side (seen from the source) of a conducting pin
     /// pair `a`/`b` of a fuse, switch or connector: its current is the
     /// current through that pair. `None` when the pair carries no current

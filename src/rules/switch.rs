@@ -38,11 +38,7 @@ fn check_voltage(cx: &Context, out: &mut Vec<Finding>) {
         if !exceeds(circuit.get::<volt>(), rated.value.get::<volt>()) {
             continue;
         }
-        let span = if rated.span.source == part.span.source {
-            rated.span
-        } else {
-            part.span
-        };
+        let span = cx.rated_span(&rated, part_id);
         let kind = if switch.stop { "stop switch" } else { "switch" };
         let mut finding = Finding::new(
             &VOLTAGE,

@@ -153,69 +153,88 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
-        let hit = |limit| Hit {
+        let hit = |limit, severity| Hit {
             pin: pin_ref,
             point,
             voltage: highest,
             limit,
-            severity: Severity::Error,
+            severity,
         };
         if let Some(max) = pin.max
             && exceeds(highest, volts(max))
         {
-            over_max.push(hit(max));
+            over_max.push(hit(max, OVER_MAX.severity));
         } else if let Some(range) = pin.range
             && exceeds(highest, volts(range.max))
         {
-            over_range.push(hit(range.max));
+            over_range.push(hit(range.max, OVER_RANGE.severity));
         }
     }
-    for mut hits in by_rail(cx, over_max) {
-        worst_first(&mut hits, 1.0);
-        let first = &hits[0];
-        let rail = cx.net_name(net_of(cx, first.pin)).to_string();
-        let (shown, limit) =
-            show_voltages_apart(ElectricPotential::new::<volt>(first.voltage), first.limit);
-        let mut finding = Finding::new(
+    for hits in by_rail(cx, over_max) {
+        out.push(rail_finding(
+            cx,
             &OVER_MAX,
-            cx.pin_span(first.pin),
-            format!(
-                "rail `{rail}` reaches {shown} {}, above {}",
-                mode_label(cx.plan, first.point.mode, first.point.battery),
-                limits_of(cx, &hits, "absolute maximum", &limit),
-            ),
-        )
-        .at_point(cx.plan, first.point)
-        .help("feed this part from a lower rail (a regulator), or choose a part rated for the full battery voltage")
-        .net(&rail)
-        .value("voltage", first.voltage)
-        .value("max", volts(first.limit));
-        finding = with_pins(cx, finding, &hits);
-        out.push(finding);
+            hits,
+            Side::Above,
+            ("absolute maximum", "max"),
+            "feed this part from a lower rail (a regulator), or choose a part rated for the full battery voltage",
+        ));
     }
-    for mut hits in by_rail(cx, over_range) {
-        worst_first(&mut hits, 1.0);
-        let first = &hits[0];
-        let rail = cx.net_name(net_of(cx, first.pin)).to_string();
-        let (shown, top) =
-            show_voltages_apart(ElectricPotential::new::<volt>(first.voltage), first.limit);
-        let mut finding = Finding::new(
+    for hits in by_rail(cx, over_range) {
+        out.push(rail_finding(
+            cx,
             &OVER_RANGE,
-            cx.pin_span(first.pin),
-            format!(
-                "rail `{rail}` reaches {shown} {}, above {}",
-                mode_label(cx.plan, first.point.mode, first.point.battery),
-                limits_of(cx, &hits, "operating maximum", &top),
-            ),
-        )
-        .at_point(cx.plan, first.point)
-        .help("regulate this rail, or choose a part whose operating range covers the full battery voltage")
-        .net(&rail)
-        .value("voltage", first.voltage)
-        .value("range_max", volts(first.limit));
-        finding = with_pins(cx, finding, &hits);
-        out.push(finding);
+            hits,
+            Side::Above,
+            ("operating maximum", "range_max"),
+            "regulate this rail, or choose a part whose operating range covers the full battery voltage",
+        ));
     }
+}
+
+/// Which side of its limits a rail goes.
+#[derive(Clone, Copy, PartialEq)]
+enum Side {
+    Above,
+    Below,
+}
+
+/// One finding for a rail's hits, written from the pin past its limit by
+/// most and naming every pin; `limit` is how the message names the limit
+/// and the key its value is stored under.
+fn rail_finding(
+    cx: &Context,
+    rule: &Rule,
+    mut hits: Vec<Hit>,
+    side: Side,
+    (limit_name, limit_key): (&str, &str),
+    help: &str,
+) -> Finding {
+    worst_first(&mut hits, if side == Side::Above { 1.0 } else { -1.0 });
+    let first = &hits[0];
+    let rail = cx.net_name(net_of(cx, first.pin)).to_string();
+    let (shown, limit) =
+        show_voltages_apart(ElectricPotential::new::<volt>(first.voltage), first.limit);
+    let (goes, past) = match side {
+        Side::Above => ("reaches", "above"),
+        Side::Below => ("falls to", "below"),
+    };
+    let mut finding = Finding::new(
+        rule,
+        cx.pin_span(first.pin),
+        format!(
+            "rail `{rail}` {goes} {shown} {}, {past} {}",
+            mode_label(cx.plan, first.point.mode, first.point.battery),
+            limits_of(cx, &hits, limit_name, &limit),
+        ),
+    )
+    .at_point(cx.plan, first.point)
+    .help(help)
+    .net(&rail)
+    .value("voltage", first.voltage)
+    .value(limit_key, volts(first.limit));
+    finding.severity = first.severity;
+    with_pins(cx, finding, &hits)
 }
 
 fn net_of(cx: &Context, pin: PinRef) -> NetId {
@@ -269,33 +288,19 @@ fn check_under(cx: &Context, out: &mut Vec<Finding>) {
             severity,
         });
     }
-    for mut hits in by_rail(cx, hits) {
-        worst_first(&mut hits, -1.0);
-        let first = &hits[0];
-        let severity = first.severity;
-        let rail = cx.net_name(net_of(cx, first.pin)).to_string();
-        let (shown, bottom) =
-            show_voltages_apart(ElectricPotential::new::<volt>(first.voltage), first.limit);
-        let mut finding = Finding::new(
-            &UNDER_RANGE,
-            cx.pin_span(first.pin),
-            format!(
-                "rail `{rail}` falls to {shown} {}, below {}",
-                mode_label(cx.plan, first.point.mode, first.point.battery),
-                limits_of(cx, &hits, "minimum", &bottom),
-            ),
-        )
-        .at_point(cx.plan, first.point)
-        .help(if severity == Severity::Error {
+    for hits in by_rail(cx, hits) {
+        let help = if hits[0].severity == Severity::Error {
             "reduce the drop (heavier wire, a battery with lower internal resistance, a regulator with less dropout) or feed this part from a rail that stays in range"
         } else {
             "only an empty battery gets here: set the low-voltage cut-off above this point, or accept a brown-out near the end of a run"
-        })
-        .net(&rail)
-        .value("voltage", first.voltage)
-        .value("range_min", volts(first.limit));
-        finding = with_pins(cx, finding, &hits);
-        finding.severity = severity;
-        out.push(finding);
+        };
+        out.push(rail_finding(
+            cx,
+            &UNDER_RANGE,
+            hits,
+            Side::Below,
+            ("minimum", "range_min"),
+            help,
+        ));
     }
 }

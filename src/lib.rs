@@ -18,6 +18,7 @@ pub mod model;
 pub mod report;
 pub mod rules;
 pub mod safety;
+pub mod scenario;
 mod spelling;
 pub mod starter;
 pub mod sweep;
@@ -62,6 +63,8 @@ pub struct Checked {
     pub circuit: Circuit,
     /// `None` when shorts or power loops made the operating point meaningless.
     pub analysis: Option<Analysis>,
+    /// Normal running and every other power scenario, with what each powers.
+    pub scenarios: scenario::Scenarios,
     /// Every problem found, sorted by place in the plan, then severity and rule.
     pub findings: Vec<Finding>,
 }
@@ -291,10 +294,12 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
     let circuit = Circuit::build(&plan);
     // Shorts and loops are decided on the graph first; with either, there is
     // no meaningful operating point to solve.
+    let scenarios = scenario::Scenarios::solve(&plan, &circuit);
     let topology = Context {
         plan: &plan,
         circuit: &circuit,
         analysis: None,
+        scenarios: Some(&scenarios),
     };
     // Only the two rules that decide it run here; every rule runs below.
     let mut topology_findings = Vec::new();
@@ -311,6 +316,7 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         plan: &plan,
         circuit: &circuit,
         analysis: analysis.as_ref(),
+        scenarios: Some(&scenarios),
     });
     Ok(Checked {
         sources,
@@ -318,6 +324,7 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         plan,
         circuit,
         analysis,
+        scenarios,
         findings,
     })
 }

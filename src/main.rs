@@ -122,6 +122,13 @@ enum Command {
         #[command(flatten)]
         plan: PlanArgs,
     },
+    /// List the power scenarios: the plan's own, each switch open, each
+    /// supply from outside connected with the batteries in and out; for
+    /// each, the nets that lose power and the parts that go off.
+    Scenarios {
+        #[command(flatten)]
+        plan: PlanArgs,
+    },
     /// Write the build notes: title block, verdict, safety cautions, findings
     /// with their fixes, the diagram, the power budget, the wire list and the
     /// connector pinouts, as one self-contained HTML file (or Markdown with
@@ -358,6 +365,7 @@ fn main() -> ExitCode {
         }
         Command::Budget { plan, quiet } => budget(&run, &plan, quiet),
         Command::Wires { plan } => wires(&run, &plan),
+        Command::Scenarios { plan } => scenarios(&run, &plan),
         Command::Bringup { plan } => bringup(&run, &plan),
         Command::Notes {
             file,
@@ -1156,6 +1164,21 @@ fn wires(run: &Run, args: &PlanArgs) -> ExitCode {
         Format::Json => report::wires_json(name, &list),
         Format::Csv => report::wires_csv(&list),
         _ => shown(report::wires_table(name, &list)),
+    });
+    ExitCode::SUCCESS
+}
+
+fn scenarios(run: &Run, args: &PlanArgs) -> ExitCode {
+    refuse_format(args, "scenarios", &[Format::Human, Format::Json]);
+    let stream = problems_beside(args, Format::Json);
+    let checked = match load(run, args, stream) {
+        Ok(c) => c,
+        Err(code) => return code,
+    };
+    let name = checked.sources.name(checked.plan_source);
+    emit(&match args.format {
+        Format::Json => report::scenarios_json(name, &checked),
+        _ => shown(report::scenarios_table(name, &checked)),
     });
     ExitCode::SUCCESS
 }

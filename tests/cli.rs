@@ -58,6 +58,8 @@ const CONTRACT_RULES: &[(&str, &[&str])] = &[
     ("wire/ampacity", &["error"]),
     ("wire/drop", &["warning"]),
     ("safety/no-stop", &["warning"]),
+    ("scenario/back-feed", &["error"]),
+    ("scenario/phantom-power", &["error", "warning"]),
     ("ground/offset", &["warning"]),
     ("analysis/no-convergence", &["error"]),
 ];

@@ -1,5 +1,5 @@
 //! The greenhouse picker (`examples/greenhouse-picker.yaml`): a realistic
-//! robot of 41 parts with a mixed 5 V / 3.3 V I²C bus, brief stall modes and
+//! robot of 47 parts with a mixed 5 V / 3.3 V I²C bus, brief stall modes and
 //! six servos. Sound, it gives no finding at all; broken in one way at a
 //! time, it gives exactly one finding, from the rule that owns that mistake.
 //! Each mistake's hand calculation and source is beside it.
@@ -241,8 +241,8 @@ const MISTAKES: &[Mistake] = &[
         // line the controller also drives.
         what: "two outputs on one line",
         edits: &[(
-            "GRIP_PWM: [mcu.d18, gripper.sig]",
-            "GRIP_PWM: [mcu.d18, gripper.sig, imu.int]",
+            "GRIP_PWM: [mcu.d18, gripper_r.a]",
+            "GRIP_PWM: [mcu.d18, gripper_r.a, imu.int]",
         )],
         rule: "logic/contention",
     },

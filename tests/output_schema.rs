@@ -157,6 +157,11 @@ fn the_examples_check_and_budget_documents_are_valid() {
         assert_eq!(code, 0, "{example}: the procedure is written");
         assert_eq!(bringup["kind"], "bringup");
         assert_valid(&strict, &bringup, &format!("bring-up of {example}"));
+
+        let (scenarios, code) = run(&["scenarios", "--format", "json", example]);
+        assert_eq!(code, 0, "{example}: the scenarios are listed");
+        assert_eq!(scenarios["kind"], "scenarios");
+        assert_valid(&strict, &scenarios, &format!("scenarios of {example}"));
     }
 }
 

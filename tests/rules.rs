@@ -61,6 +61,8 @@ const CONTRACT_RULES: &[(&str, Severity)] = &[
     ("wire/ampacity", Severity::Error),
     ("wire/drop", Severity::Warning),
     ("safety/no-stop", Severity::Warning),
+    ("scenario/back-feed", Severity::Error),
+    ("scenario/phantom-power", Severity::Error),
     ("ground/offset", Severity::Warning),
     ("analysis/no-convergence", Severity::Error),
 ];

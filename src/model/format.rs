@@ -44,6 +44,12 @@ pub enum Value {
     PinList,
     /// Two ports `part.port`.
     PortPair,
+    /// One port `part.port`.
+    Port,
+    /// A net's name, as written under `nets:`.
+    NetName,
+    /// A list of names (parts, supplies), as written elsewhere in the plan.
+    NameList,
     /// A library part id (`battery/lipo-3s`).
     PartId,
     /// Field values laid over a library part.
@@ -69,6 +75,10 @@ pub enum Section {
     Profile,
     /// `sweep:`: design choices for `railcheck sweep`, each key with its values.
     Sweep,
+    /// `supplies:`: supplies from outside the robot that may be connected ([`SUPPLY`]).
+    Supplies,
+    /// `scenarios:`: named power scenarios ([`SCENARIO`]).
+    Scenarios,
 }
 
 /// One key of the format.
@@ -221,6 +231,18 @@ pub const TOP_LEVEL: &[Field] = &[
         "{ pack: [battery/lipo-3s, battery/lipo-4s], VMOT.wire: [16 AWG, 14 AWG] }",
         "design choices that `railcheck sweep` tries in every combination (§11); `check` ignores it",
     ),
+    field(
+        "supplies",
+        Value::Section(Section::Supplies),
+        "{ laptop: { kind: usb-host, port: mcu.usb } }",
+        "supplies from outside the robot that may be connected: a laptop's USB port, a bench supply, a charger (§12)",
+    ),
+    field(
+        "scenarios",
+        Value::Section(Section::Scenarios),
+        "{ flashing: { connected: [laptop], removed: [pack] } }",
+        "named power scenarios: which supplies are connected, which batteries removed, which switches open (§12)",
+    ),
 ];
 
 /// `limits:`.
@@ -320,6 +342,80 @@ pub const LINK: &[Field] = &[
         "the size of the cable's VBUS and ground conductors",
     ),
     field("length", Qty(Q::Length), "1 m", "the cable's length"),
+];
+
+/// The kinds of supply from outside the robot.
+pub const SUPPLY_KINDS: &[&str] = &["usb-host", "bench", "charger"];
+
+/// An entry of `supplies:`.
+pub const SUPPLY: &[Field] = &[
+    field(
+        "kind",
+        Value::Choice(SUPPLY_KINDS),
+        "bench",
+        "`usb-host`: a computer's USB port plugged into a device port of the robot; `bench`: a laboratory supply clipped onto a net; `charger`: a charger on a charge connector",
+    )
+    .required(),
+    field(
+        "port",
+        Value::Port,
+        "mcu.usb",
+        "for `usb-host`: the `usb-device` port it plugs into; a cable linked there in `links:` is unplugged while it is connected",
+    )
+    .unless("net"),
+    field(
+        "net",
+        Value::NetName,
+        "VBAT",
+        "for `bench` and `charger`: the net its positive lead joins (its negative goes to the battery negative)",
+    )
+    .unless("port"),
+    field(
+        "voltage",
+        Qty(Q::VoltageBand),
+        "12 V",
+        "the voltage it is set to; required for `bench` and `charger`; a `usb-host` gives 4.75 V..5.25 V (USB 2.0 §7.2.1)",
+    ),
+    field(
+        "current",
+        Qty(Q::Current),
+        "3 A",
+        "its current limit; a `usb-host` left without one is a USB 2.0 high-power port, 500 mA (USB 2.0 §7.2.1)",
+    ),
+    field(
+        "or",
+        Value::Choice(&["diode"]),
+        "diode",
+        "`diode`: it joins the robot through a diode and cannot be back-fed",
+    ),
+    field(
+        "replaces",
+        Value::NameList,
+        "[pack]",
+        "batteries that are always removed while it is connected (a bench supply on the battery plug)",
+    ),
+];
+
+/// An entry of `scenarios:`.
+pub const SCENARIO: &[Field] = &[
+    field(
+        "connected",
+        Value::NameList,
+        "[laptop]",
+        "supplies from `supplies:` connected in this scenario",
+    ),
+    field(
+        "removed",
+        Value::NameList,
+        "[pack]",
+        "batteries taken out or unplugged in this scenario",
+    ),
+    field(
+        "open",
+        Value::NameList,
+        "[estop]",
+        "switches open in this scenario (every other switch is closed)",
+    ),
 ];
 
 /// The kinds of cable port.
@@ -685,6 +781,13 @@ const SURGE: Field = field(
     "the current its contacts may carry for a moment (motor start, a brief mode, `worst`); without it brief peaks are not checked against the contacts",
 );
 
+const CONTACT_RESISTANCE: Field = field(
+    "contact_resistance",
+    Qty(Q::Resistance),
+    "2 mohm",
+    "the resistance of one closed contact, from its data sheet: added to the battery's loop for the short-circuit and inrush currents",
+);
+
 /// Every part class a plan may write, in the order the format reference lists
 /// them.
 ///
@@ -731,6 +834,7 @@ pub const CLASSES: &[ClassSpec] = &[
             RATING_VOLTAGE,
             field("speed", Value::Choice(FUSE_SPEEDS), "slow", "`fast` or `slow` (time-delay) blow").or_else("fast"),
             field("breaking", Qty(Q::Current), "1000 A", "its breaking capacity: the largest fault current it can interrupt"),
+            CONTACT_RESISTANCE,
         ],
     },
     ClassSpec {
@@ -742,6 +846,7 @@ pub const CLASSES: &[ClassSpec] = &[
             SURGE,
             RATING_VOLTAGE,
             field("stop", Value::Flag, "true", "an emergency stop or kill switch").or_else("false"),
+            CONTACT_RESISTANCE,
         ],
     },
     ClassSpec {
@@ -751,6 +856,7 @@ pub const CLASSES: &[ClassSpec] = &[
         fields: &[
             field("rating", Qty(Q::Current), "3 A", "the continuous current rating of each contact"),
             SURGE,
+            CONTACT_RESISTANCE,
         ],
     },
     ClassSpec {

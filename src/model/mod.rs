@@ -82,6 +82,11 @@ pub struct Plan {
     /// The share of time spent in each mode (`profile:`), for the runtime; empty
     /// when the plan gives none.
     pub profile: Vec<ProfileShare>,
+    /// Supplies from outside the robot that may be connected (`supplies:`),
+    /// in file order; none of them is connected in normal running.
+    pub supplies: Vec<ExternalSupply>,
+    /// Named power scenarios (`scenarios:`), in file order.
+    pub scenarios: Vec<DeclaredScenario>,
     /// The whole document, for findings about the plan as a whole.
     pub span: Span,
 }
@@ -565,6 +570,8 @@ pub struct Fuse {
     pub speed: FuseSpeed,
     /// Its breaking capacity: the largest fault current it can interrupt.
     pub breaking: Option<Rated<ElectricCurrent>>,
+    /// The resistance of its closed contact, where the plan gives it.
+    pub contact_resistance: Option<Rated<ElectricalResistance>>,
 }
 
 /// A switch's fields (`class: switch`).
@@ -578,6 +585,8 @@ pub struct Switch {
     pub voltage: Option<Rated<ElectricPotential>>,
     /// An emergency stop or kill switch.
     pub stop: bool,
+    /// The resistance of its closed contact, where the plan gives it.
+    pub contact_resistance: Option<Rated<ElectricalResistance>>,
 }
 
 /// A connector's fields (`class: connector`).
@@ -587,6 +596,8 @@ pub struct Connector {
     pub rating: Option<Rated<ElectricCurrent>>,
     /// Per contact, for a moment (motor start, stall).
     pub surge: Option<Rated<ElectricCurrent>>,
+    /// The resistance of one closed contact, where the plan gives it.
+    pub contact_resistance: Option<Rated<ElectricalResistance>>,
 }
 
 /// How a regulator converts (`topology:`).
@@ -734,6 +745,20 @@ pub struct Net {
     pub sheathed: bool,
 }
 
+impl Class {
+    /// The resistance of one closed contact of a fuse, switch or connector,
+    /// where the plan gives it.
+    pub fn contact_resistance(&self) -> Option<ElectricalResistance> {
+        match self {
+            Class::Fuse(f) => f.contact_resistance,
+            Class::Switch(s) => s.contact_resistance,
+            Class::Connector(c) => c.contact_resistance,
+            _ => None,
+        }
+        .map(|r| r.value)
+    }
+}
+
 impl Plan {
     /// The temperature a net's copper is taken at: its own `ambient`, else
     /// the plan's when written; `None` means the 20 °C reference of the
@@ -835,4 +860,73 @@ pub struct ProfileShare {
     pub share: Ratio,
     /// Where it is written in the plan.
     pub span: Span,
+}
+
+/// What kind of supply from outside the robot a `supplies:` entry is.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum SupplyKind {
+    /// A computer's USB host port, plugged into a device port of the robot.
+    UsbHost,
+    /// A laboratory bench supply clipped onto a net.
+    Bench,
+    /// A battery charger on a charge connector: meant to push current into
+    /// the battery.
+    Charger,
+}
+
+impl SupplyKind {
+    /// The kind as a plan writes it (`usb-host`).
+    pub fn name(self) -> &'static str {
+        match self {
+            SupplyKind::UsbHost => "usb-host",
+            SupplyKind::Bench => "bench",
+            SupplyKind::Charger => "charger",
+        }
+    }
+}
+
+/// Where a supply from outside the robot joins it.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum SupplyAttach {
+    /// A `usb-device` port: (part, port index).
+    Port(PartId, usize),
+    /// A net its positive lead joins.
+    Net(NetId),
+}
+
+/// A supply from outside the robot (`supplies:`): a laptop's USB port, a
+/// bench supply, a charger.
+#[derive(Clone, Debug)]
+pub struct ExternalSupply {
+    /// Its name under `supplies:`.
+    pub name: String,
+    /// Where it is named in the plan.
+    pub span: Span,
+    /// What it is.
+    pub kind: SupplyKind,
+    /// Where it joins the robot.
+    pub attach: SupplyAttach,
+    /// The voltage it gives.
+    pub voltage: Band<ElectricPotential>,
+    /// Its current limit, when known.
+    pub current: Option<Rated<ElectricCurrent>>,
+    /// `or: diode`: it cannot be back-fed.
+    pub diode_or: bool,
+    /// Batteries always removed while it is connected.
+    pub replaces: Vec<PartId>,
+}
+
+/// A named power scenario (`scenarios:`).
+#[derive(Clone, Debug)]
+pub struct DeclaredScenario {
+    /// Its name under `scenarios:`.
+    pub name: String,
+    /// Where it is named in the plan.
+    pub span: Span,
+    /// The supplies connected, as indices into [`Plan::supplies`].
+    pub connected: Vec<usize>,
+    /// The batteries removed.
+    pub removed: Vec<PartId>,
+    /// The switches open.
+    pub open: Vec<PartId>,
 }

@@ -16,6 +16,14 @@ use uom::si::electrical_resistance::ohm;
 use uom::si::ratio::ratio;
 use uom::si::thermodynamic_temperature::degree_celsius;
 
+fn is_battery(class: &Class) -> bool {
+    matches!(class, Class::Battery(_))
+}
+
+fn is_switch(class: &Class) -> bool {
+    matches!(class, Class::Switch(_))
+}
+
 /// A temperature a plan can mean: above absolute zero and below 1000 °C.
 fn plausible_temperature(text: &str) -> Result<ThermodynamicTemperature, UnitError> {
     let t = units::temperature(text)?;
@@ -262,6 +270,14 @@ impl Reader<'_> {
         if let Some(section) = root.get("sweep") {
             self.sweep_shape(section);
         }
+        let supplies = root
+            .get("supplies")
+            .map(|n| self.supplies(n, &parts, &part_index, &nets))
+            .unwrap_or_default();
+        let scenarios = root
+            .get("scenarios")
+            .map(|n| self.scenarios(n, &parts, &part_index, &supplies))
+            .unwrap_or_default();
 
         Some(Plan {
             name,
@@ -276,6 +292,8 @@ impl Reader<'_> {
             links,
             modes,
             profile,
+            supplies,
+            scenarios,
             span: root.span,
         })
     }
@@ -1094,6 +1112,7 @@ impl Reader<'_> {
                     None => FuseSpeed::Fast,
                 },
                 breaking: self.rated(body, "breaking", units::current, at),
+                contact_resistance: self.rated(body, "contact_resistance", units::resistance, at),
             }),
             "switch" => Class::Switch(Switch {
                 rating: self.rated(body, "rating", units::current, at),
@@ -1103,6 +1122,7 @@ impl Reader<'_> {
                     .get("stop")
                     .and_then(|n| self.boolean(n))
                     .unwrap_or(false),
+                contact_resistance: self.rated(body, "contact_resistance", units::resistance, at),
             }),
             "connector" => {
                 for pin in pins.iter() {
@@ -1120,6 +1140,12 @@ impl Reader<'_> {
                 Class::Connector(Connector {
                     rating: self.rated(body, "rating", units::current, at),
                     surge: self.rated(body, "surge", units::current, at),
+                    contact_resistance: self.rated(
+                        body,
+                        "contact_resistance",
+                        units::resistance,
+                        at,
+                    ),
                 })
             }
             "regulator" => self.regulator(&what, at, body, pins)?,
@@ -1848,6 +1874,370 @@ impl Reader<'_> {
             modes.push(mode);
         }
         modes
+    }
+
+    /// A part named in a list of `supplies:` or `scenarios:`, which must be of
+    /// the class `want` accepts.
+    fn named_part(
+        &mut self,
+        node: &Node,
+        parts: &[Part],
+        index: &HashMap<String, PartId>,
+        want: fn(&Class) -> bool,
+        what: &str,
+    ) -> Option<PartId> {
+        let name = node.as_scalar().unwrap_or("");
+        if self.refused_parts.contains(name) {
+            return None;
+        }
+        let candidates = || {
+            parts
+                .iter()
+                .filter(|p| want(&p.class))
+                .map(|p| p.name.as_str())
+        };
+        let Some(&part) = index.get(name) else {
+            let hint = match self.speller.closest(name, candidates()) {
+                Some(s) => format!("did you mean `{s}`?"),
+                None => format!("name {what} declared under `parts:`"),
+            };
+            self.error(node.span, format!("unknown part `{name}`"), Some(hint));
+            return None;
+        };
+        if !want(&parts[part].class) {
+            let names: Vec<&str> = candidates().collect();
+            self.error(
+                node.span,
+                format!("`{name}` is a {}, not {what}", parts[part].class.name()),
+                Some(if names.is_empty() {
+                    format!("the plan has no {what}")
+                } else {
+                    format!("name {what}: {}", list(&names))
+                }),
+            );
+            return None;
+        }
+        Some(part)
+    }
+
+    /// A list of names (`[pack, spare]`); a single name is taken as a list
+    /// of one.
+    fn name_list<'n>(&mut self, node: &'n Node, key: &str) -> Vec<&'n Node> {
+        match &node.kind {
+            NodeKind::Seq(items) => items.iter().collect(),
+            NodeKind::Scalar(_) => vec![node],
+            NodeKind::Null => Vec::new(),
+            _ => {
+                self.error(
+                    node.span,
+                    format!("`{key}` takes a list of names, found {}", node.describe()),
+                    Some(format!("write `{key}: [name, other]`")),
+                );
+                Vec::new()
+            }
+        }
+    }
+
+    fn supplies(
+        &mut self,
+        node: &Node,
+        parts: &[Part],
+        index: &HashMap<String, PartId>,
+        nets: &[Net],
+    ) -> Vec<ExternalSupply> {
+        let mut supplies = Vec::new();
+        let Some(entries) = self.mapping(node, "`supplies:`") else {
+            return supplies;
+        };
+        let net_index: HashMap<&str, NetId> = nets
+            .iter()
+            .enumerate()
+            .map(|(i, n)| (n.name.as_str(), i))
+            .collect();
+        let mut ports_taken: HashMap<(PartId, usize), Span> = HashMap::new();
+        for (key, body) in entries {
+            let Some(name) = self.name(key, "supply") else {
+                continue;
+            };
+            let what = format!("supply `{name}`");
+            if self.mapping(body, &what).is_none() {
+                continue;
+            }
+            self.check_keys(body, &format::keys(format::SUPPLY), &what);
+            let kind = match body.get("kind") {
+                None => {
+                    self.error(
+                        key.span,
+                        format!("{what} needs `kind`"),
+                        Some("add `kind: usb-host`, `kind: bench` or `kind: charger`".into()),
+                    );
+                    continue;
+                }
+                Some(k) => self.choice(
+                    k,
+                    &[
+                        ("usb-host", SupplyKind::UsbHost),
+                        ("bench", SupplyKind::Bench),
+                        ("charger", SupplyKind::Charger),
+                    ],
+                    "supply kind",
+                ),
+            };
+            let Some(kind) = kind else { continue };
+            let attach = match kind {
+                SupplyKind::UsbHost => {
+                    if let Some(net) = body.get("net") {
+                        self.error(
+                            net.span,
+                            "a `usb-host` supply plugs into a port, not a net",
+                            Some("write `port: part.port`, naming a `usb-device` port".into()),
+                        );
+                    }
+                    let Some(port_node) = body.get("port") else {
+                        self.error(
+                            key.span,
+                            format!("{what} needs `port`"),
+                            Some(
+                                "add `port: part.port`, the `usb-device` port it plugs into".into(),
+                            ),
+                        );
+                        continue;
+                    };
+                    let Some((part, port)) = self.device_port(port_node, parts, index) else {
+                        continue;
+                    };
+                    if let Some(previous) = ports_taken.insert((part, port), port_node.span) {
+                        let (line, _) = self.sources.line_column(previous);
+                        self.error(
+                            port_node.span,
+                            format!("another supply plugs into this port already (line {line})"),
+                            Some("a port takes one cable at a time: declare each host as its own scenario".into()),
+                        );
+                        continue;
+                    }
+                    SupplyAttach::Port(part, port)
+                }
+                SupplyKind::Bench | SupplyKind::Charger => {
+                    if let Some(port) = body.get("port") {
+                        self.error(
+                            port.span,
+                            format!("a `{}` supply clips onto a net, not a port", kind.name()),
+                            Some("write `net: NAME`, the net its positive lead joins".into()),
+                        );
+                    }
+                    let Some(net_node) = body.get("net") else {
+                        self.error(
+                            key.span,
+                            format!("{what} needs `net`"),
+                            Some("add `net: NAME`, the net its positive lead joins".into()),
+                        );
+                        continue;
+                    };
+                    let net_name = net_node.as_scalar().unwrap_or("");
+                    let Some(&net) = net_index.get(net_name) else {
+                        let hint = match self
+                            .speller
+                            .closest(net_name, nets.iter().map(|n| n.name.as_str()))
+                        {
+                            Some(s) => format!("did you mean `{s}`?"),
+                            None => "name a net declared under `nets:`".into(),
+                        };
+                        self.error(
+                            net_node.span,
+                            format!("unknown net `{net_name}`"),
+                            Some(hint),
+                        );
+                        continue;
+                    };
+                    SupplyAttach::Net(net)
+                }
+            };
+            let voltage = match (kind, body.get("voltage")) {
+                (_, Some(v)) => match self.scalar_quantity(v, units::voltage_band) {
+                    Some(band) if band.min.get::<volt>() > 0.0 => band,
+                    Some(_) => {
+                        self.error(
+                            v.span,
+                            format!("{what} must give a voltage above zero"),
+                            Some("write the voltage it is set to, e.g. `12 V`".into()),
+                        );
+                        continue;
+                    }
+                    None => continue,
+                },
+                // USB 2.0 §7.2.1: a host port gives 4.75 V to 5.25 V.
+                (SupplyKind::UsbHost, None) => Band {
+                    min: ElectricPotential::new::<volt>(4.75),
+                    nominal: ElectricPotential::new::<volt>(5.0),
+                    max: ElectricPotential::new::<volt>(5.25),
+                },
+                (_, None) => {
+                    self.error(
+                        key.span,
+                        format!("{what} needs `voltage`"),
+                        Some("add the voltage it is set to, e.g. `voltage: 12 V`".into()),
+                    );
+                    continue;
+                }
+            };
+            let current = self.rated(body, "current", units::current, key.span);
+            let diode_or = match body.get("or") {
+                Some(n) => self
+                    .choice(n, &[("diode", true)], "`or` value")
+                    .unwrap_or(false),
+                None => false,
+            };
+            let replaces = match body.get("replaces") {
+                Some(n) => self
+                    .name_list(n, "replaces")
+                    .into_iter()
+                    .filter_map(|item| self.named_part(item, parts, index, is_battery, "a battery"))
+                    .collect(),
+                None => Vec::new(),
+            };
+            supplies.push(ExternalSupply {
+                name,
+                span: key.span,
+                kind,
+                attach,
+                voltage,
+                current,
+                diode_or,
+                replaces,
+            });
+        }
+        supplies
+    }
+
+    /// A `usb-device` port named `part.port`.
+    fn device_port(
+        &mut self,
+        node: &Node,
+        parts: &[Part],
+        index: &HashMap<String, PartId>,
+    ) -> Option<(PartId, usize)> {
+        let text = node.as_scalar().unwrap_or("");
+        let Some((part_name, port_name)) = text.split_once('.') else {
+            self.error(
+                node.span,
+                format!("`{text}` is not a port"),
+                Some("write `part.port`, naming a `usb-device` port".into()),
+            );
+            return None;
+        };
+        if self.refused_parts.contains(part_name) {
+            return None;
+        }
+        let Some(&part) = index.get(part_name) else {
+            let hint = match self
+                .speller
+                .closest(part_name, parts.iter().map(|p| p.name.as_str()))
+            {
+                Some(s) => format!("did you mean `{s}`?"),
+                None => "declare it under `parts:`".into(),
+            };
+            self.error(node.span, format!("unknown part `{part_name}`"), Some(hint));
+            return None;
+        };
+        let devices: Vec<&str> = parts[part]
+            .ports
+            .iter()
+            .filter(|p| matches!(p.kind, PortKind::UsbDevice { .. }))
+            .map(|p| p.name.as_str())
+            .collect();
+        match parts[part].ports.iter().position(|p| p.name == port_name) {
+            Some(port) if matches!(parts[part].ports[port].kind, PortKind::UsbDevice { .. }) => {
+                Some((part, port))
+            }
+            found => {
+                self.error(
+                    node.span,
+                    if found.is_some() {
+                        format!("port `{text}` is a host port: a USB host plugs into a `usb-device` port")
+                    } else {
+                        format!("part `{part_name}` has no port `{port_name}`")
+                    },
+                    Some(if devices.is_empty() {
+                        format!("`{part_name}` has no `usb-device` port: declare one under its `ports:`")
+                    } else {
+                        format!("device ports of `{part_name}`: {}", list(&devices))
+                    }),
+                );
+                None
+            }
+        }
+    }
+
+    fn scenarios(
+        &mut self,
+        node: &Node,
+        parts: &[Part],
+        index: &HashMap<String, PartId>,
+        supplies: &[ExternalSupply],
+    ) -> Vec<DeclaredScenario> {
+        let mut scenarios = Vec::new();
+        let Some(entries) = self.mapping(node, "`scenarios:`") else {
+            return scenarios;
+        };
+        for (key, body) in entries {
+            let Some(name) = self.name(key, "scenario") else {
+                continue;
+            };
+            let what = format!("scenario `{name}`");
+            if self.mapping(body, &what).is_none() {
+                continue;
+            }
+            self.check_keys(body, &format::keys(format::SCENARIO), &what);
+            let mut scenario = DeclaredScenario {
+                name,
+                span: key.span,
+                connected: Vec::new(),
+                removed: Vec::new(),
+                open: Vec::new(),
+            };
+            if let Some(n) = body.get("connected") {
+                for item in self.name_list(n, "connected") {
+                    let name = item.as_scalar().unwrap_or("");
+                    match supplies.iter().position(|s| s.name == name) {
+                        Some(i) => {
+                            if !scenario.connected.contains(&i) {
+                                scenario.connected.push(i);
+                            }
+                        }
+                        None => {
+                            let hint = match self
+                                .speller
+                                .closest(name, supplies.iter().map(|s| s.name.as_str()))
+                            {
+                                Some(s) => format!("did you mean `{s}`?"),
+                                None => "declare it under `supplies:`".into(),
+                            };
+                            self.error(item.span, format!("unknown supply `{name}`"), Some(hint));
+                        }
+                    }
+                }
+            }
+            if let Some(n) = body.get("removed") {
+                for item in self.name_list(n, "removed") {
+                    if let Some(p) = self.named_part(item, parts, index, is_battery, "a battery")
+                        && !scenario.removed.contains(&p)
+                    {
+                        scenario.removed.push(p);
+                    }
+                }
+            }
+            if let Some(n) = body.get("open") {
+                for item in self.name_list(n, "open") {
+                    if let Some(p) = self.named_part(item, parts, index, is_switch, "a switch")
+                        && !scenario.open.contains(&p)
+                    {
+                        scenario.open.push(p);
+                    }
+                }
+            }
+            scenarios.push(scenario);
+        }
+        scenarios
     }
 
     /// `sweep:` is `railcheck sweep`'s: here only its shape is checked, a

@@ -28,6 +28,7 @@ pub(super) enum Kind {
     Wires,
     Bringup,
     Sweep,
+    Scenarios,
 }
 
 /// The keys every JSON document starts with.

@@ -14,6 +14,8 @@ pub fn format_tables(rules: &[Rule]) -> Vec<(String, String)> {
         ("limits".to_string(), fields_table(format::LIMITS)),
         ("net".to_string(), fields_table(format::NET)),
         ("link".to_string(), fields_table(format::LINK)),
+        ("supply".to_string(), fields_table(format::SUPPLY)),
+        ("scenario".to_string(), fields_table(format::SCENARIO)),
         ("port usb-host".to_string(), fields_table(format::USB_HOST)),
         (
             "port usb-device".to_string(),
@@ -49,6 +51,9 @@ pub fn describe(value: Value) -> String {
         Value::Ports => "ports by name".into(),
         Value::PinList => "list of `part.pin`".into(),
         Value::PortPair => "two ports `part.port`".into(),
+        Value::Port => "a port `part.port`".into(),
+        Value::NetName => "a net's name".into(),
+        Value::NameList => "list of names".into(),
         Value::PartId => "library part id".into(),
         Value::Overrides => "field values".into(),
         Value::Section(Section::Links) => "list".into(),

@@ -189,6 +189,9 @@ fn value(kind: Kind) -> Value {
             "minItems": 2,
             "maxItems": 2,
         }),
+        Kind::Port => json!({ "type": "string", "pattern": format!("^{NAME}\\.{NAME}$") }),
+        Kind::NetName => json!({ "$ref": "#/$defs/name" }),
+        Kind::NameList => json!({ "type": "array", "items": { "$ref": "#/$defs/name" } }),
         Kind::PartId => json!({ "type": "string", "pattern": "^[^/\\s]+(/[^/\\s]+)*$" }),
         Kind::Overrides => {
             // A key means one thing in every class that has it, but its
@@ -276,6 +279,16 @@ fn section(section: Section) -> Value {
                     },
                 ],
             },
+        }),
+        Section::Supplies => json!({
+            "type": ["object", "null"],
+            "propertyNames": { "$ref": "#/$defs/name" },
+            "additionalProperties": Value::Object(closed_object(format::SUPPLY)),
+        }),
+        Section::Scenarios => json!({
+            "type": ["object", "null"],
+            "propertyNames": { "$ref": "#/$defs/name" },
+            "additionalProperties": Value::Object(closed_object(format::SCENARIO)),
         }),
         Section::Profile => json!({
             "type": ["object", "null"],

@@ -28,7 +28,7 @@ pub const SHORT_CIRCUIT: Rule = Rule {
     severity: Severity::Error,
     summary: "a short just past a fuse draws more than the fuse can break or the pack may give",
     doc: RuleDoc {
-        what: "For each fuse fed straight from a battery: the prospective short-circuit current of a short at its load side, I = V_full / (R_pack + R_supply + R_return), with the pack's full open-circuit voltage, its `internal_resistance`, the sized wires from the battery's positive terminal to the fuse and the battery's negative lead (copper at 20 °C). Against the fuse's `breaking` capacity (an error when exceeded) and the battery's `short_circuit` rating (a warning when only that is exceeded). Without a pack resistance or any sized wire the current is not bounded by the plan and the check is skipped.",
+        what: "For each fuse fed straight from a battery: the prospective short-circuit current of a short at its load side, I = V_full / (R_pack + R_supply + R_return + R_contacts), with the pack's full open-circuit voltage, its `internal_resistance`, the sized wires from the battery's positive terminal to the fuse and the battery's negative lead (copper at 20 °C), and the `contact_resistance` of the fuse and of the switches and connector contacts on the way, where the plan gives them. Against the fuse's `breaking` capacity (an error when exceeded) and the battery's `short_circuit` rating (a warning when only that is exceeded). Without a pack resistance or any sized wire the current is not bounded by the plan and the check is skipped.",
         why: "A fuse asked to interrupt more current than its breaking capacity may not clear the fault: the arc inside it keeps conducting, or the fuse bursts. A lithium pack shorted through thick, short leads can deliver more than a thousand amperes.",
         example: "railcheck: 1\nname: warehouse tug, 6S\nparts:\n  pack: { use: battery/lipo-6s, with: { cutoff: true, internal_resistance: 5 mohm } }   # 25.2 V / (5 + 0.31) mohm = 4750 A\n  fuse: { use: fuse/blade-30a }   # breaks 1000 A (ISO 8820-3)\n  lamp: { class: load, pins: { vin: { role: supply-in, range: 18..26 V, draw: 1 A }, gnd: { role: ground } } }\nnets:\n  BATT+: { pins: [pack.pos, fuse.a], wire: 8 AWG, length: 5 cm }\n  LAMP:  [fuse.b, lamp.vin]\n  BATT-: { pins: [pack.neg, lamp.gnd], wire: 8 AWG, length: 10 cm }\n",
         fix: "railcheck: 1\nname: warehouse tug, 6S\nparts:\n  pack: { use: battery/lipo-6s, with: { cutoff: true, internal_resistance: 5 mohm } }\n  fuse: { class: fuse, rating: 30 A, voltage: 58 V, breaking: 6000 A }   # a high-breaking-capacity fuse\n  lamp: { class: load, pins: { vin: { role: supply-in, range: 18..26 V, draw: 1 A }, gnd: { role: ground } } }\nnets:\n  BATT+: { pins: [pack.pos, fuse.a], wire: 8 AWG, length: 5 cm }\n  LAMP:  [fuse.b, lamp.vin]\n  BATT-: { pins: [pack.neg, lamp.gnd], wire: 8 AWG, length: 10 cm }\n",
@@ -58,7 +58,7 @@ pub const INRUSH: Rule = Rule {
     severity: Severity::Warning,
     summary: "closing a switch onto capacitors draws a surge beyond a rating",
     doc: RuleDoc {
-        what: "For each switch with converters or drivers below it that declare input `capacitance`: closing it charges that capacitance with a peak of I = V_full / (R_pack + R_wires), the battery's full voltage over the pack's resistance and the sized wires from its terminals to the switch's load side (no capacitor ESR: the largest surge), and leaves ½CV² of heat in the charging path. Against the switch's `surge` rating and the battery's `short_circuit` rating when given; with neither, against the pack's voltage: above 20 V (common practice) the spark at closing pits the contacts. The fix names a precharge resistor: its value, its pulse energy and the time to 5τ (99.3 % charged).",
+        what: "For each switch with converters or drivers below it that declare input `capacitance`: closing it charges that capacitance with a peak of I = V_full / (R_pack + R_wires + R_contacts), the battery's full voltage over the pack's resistance, the sized wires from its terminals to the switch's load side and the `contact_resistance` of the contacts on the way where given (no capacitor ESR: the largest surge), and leaves ½CV² of heat in the charging path. Against the switch's `surge` rating and the battery's `short_circuit` rating when given; with neither, against the pack's voltage: above 20 V (common practice) the spark at closing pits the contacts. The fix names a precharge resistor: its value, its pulse energy and the time to 5τ (99.3 % charged).",
         why: "A capacitor bank looks like a short for its first microseconds: the switch closes into hundreds of amperes, its contacts spark and weld, and a battery protection board may take it for a short and shut the pack off on every power-up.",
         example: "railcheck: 1\nname: orchard mower, 6S\nparts:\n  pack:  { use: battery/lipo-6s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-20a }\n  stop:  { use: switch/estop-20a, with: { voltage: 48 V, surge: 100 A } }\n  drive: { use: driver/mosfet-dual-hbridge, with: { capacitance: 1000 uF, clamp: true } }\nnets:\n  BATT+: { pins: [pack.pos, fuse.a], wire: 12 AWG, length: 10 cm }\n  VBAT:  { pins: [fuse.b, stop.a], wire: 12 AWG, length: 20 cm }\n  VMOT:  { pins: [stop.b, drive.vm], wire: 12 AWG, length: 30 cm }\n  GND:   { pins: [pack.neg, drive.gnd], wire: 12 AWG, length: 60 cm }\n",
         fix: "railcheck: 1\nname: orchard mower, 6S\nparts:\n  pack:  { use: battery/lipo-6s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-20a }\n  stop:  { use: switch/estop-20a, with: { voltage: 48 V, surge: 1000 A } }   # a contactor rated to make into capacitors\n  drive: { use: driver/mosfet-dual-hbridge, with: { capacitance: 1000 uF, clamp: true } }\nnets:\n  BATT+: { pins: [pack.pos, fuse.a], wire: 12 AWG, length: 10 cm }\n  VBAT:  { pins: [fuse.b, stop.a], wire: 12 AWG, length: 20 cm }\n  VMOT:  { pins: [stop.b, drive.vm], wire: 12 AWG, length: 30 cm }\n  GND:   { pins: [pack.neg, drive.gnd], wire: 12 AWG, length: 60 cm }\n",
@@ -151,26 +151,58 @@ struct Loop {
     voltage: ElectricPotential,
     pack: ElectricalResistance,
     wires: ElectricalResistance,
+    /// Closed contacts on the way (fuses, switches, connectors) whose
+    /// resistance the plan gives.
+    contacts: ElectricalResistance,
 }
 
 impl Loop {
     fn to(cx: &Context, net: NetId) -> Option<Loop> {
         let battery = battery_feeding(cx, net)?;
         let voltage = battery_voltage(cx.plan, battery, BatteryState::Full)?;
-        let supply: ElectricalResistance = chain_up(cx, net)
-            .into_iter()
-            .map(|n| net_resistance(cx, n))
+        let chain = chain_up(cx, net);
+        let supply: ElectricalResistance = chain
+            .iter()
+            .map(|&n| net_resistance(cx, n))
             .fold(ElectricalResistance::new::<ohm>(0.0), |a, b| a + b);
+        // Each net below the root hangs from the contact that joins it up.
+        let contact = |part: PartId| {
+            cx.plan.parts[part]
+                .class
+                .contact_resistance()
+                .unwrap_or(ElectricalResistance::new::<ohm>(0.0))
+        };
+        let mut contacts = chain
+            .iter()
+            .filter_map(|&n| cx.circuit.parent[n].map(|p| contact(p.part)))
+            .fold(ElectricalResistance::new::<ohm>(0.0), |a, b| a + b);
+        // The negative lead's own contact (a plug on the pack lead).
+        let part = &cx.plan.parts[battery];
+        if let Some(neg) = part.pin("neg").and_then(|p| part.pins[p].net) {
+            let mut seen = Vec::new();
+            for pin in &cx.plan.nets[neg].pins {
+                let class = &cx.plan.parts[pin.part].class;
+                if cx.plan.parts[pin.part].pins[pin.pin].role == crate::model::PinRole::Through
+                    && !seen.contains(&pin.part)
+                {
+                    seen.push(pin.part);
+                    if let Some(r) = class.contact_resistance() {
+                        contacts += r;
+                    }
+                }
+            }
+        }
         Some(Loop {
             battery,
             voltage,
             pack: internal_resistance(cx, battery),
             wires: supply + negative_lead(cx, battery),
+            contacts,
         })
     }
 
     fn total(&self) -> ElectricalResistance {
-        self.pack + self.wires
+        self.pack + self.wires + self.contacts
     }
 
     /// `None` when the plan gives no resistance at all: the current is not
@@ -181,8 +213,16 @@ impl Loop {
     }
 
     fn explained(&self, cx: &Context) -> String {
+        let contacts = if self.contacts.get::<ohm>() > 0.0 {
+            format!(
+                " + {} of contacts",
+                crate::units::show_resistance(self.contacts)
+            )
+        } else {
+            String::new()
+        };
         format!(
-            "{} (full `{}`) / ({} pack + {} of wire)",
+            "{} (full `{}`) / ({} pack + {} of wire{contacts})",
             show_voltage(self.voltage),
             cx.part_name(self.battery),
             crate::units::show_resistance(self.pack),
@@ -212,9 +252,13 @@ fn check_short_circuit(cx: &Context, out: &mut Vec<Finding>) {
         let Some(upstream) = cx.circuit.parent[downstream].map(|p| p.net) else {
             continue;
         };
-        let Some(fault) = Loop::to(cx, upstream) else {
+        let Some(mut fault) = Loop::to(cx, upstream) else {
             continue;
         };
+        // The fault current runs through the fuse's own contact too.
+        if let Some(r) = fuse.contact_resistance {
+            fault.contacts += r.value;
+        }
         let Some(current) = fault.current() else {
             continue;
         };

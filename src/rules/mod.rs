@@ -17,6 +17,7 @@ mod logic;
 pub(crate) mod power;
 mod regulator;
 mod safety;
+mod scenario;
 mod switch;
 mod thermal;
 mod unit;
@@ -29,6 +30,7 @@ pub use unit::{Reading, Unit, declared_unit};
 use crate::analysis::{Analysis, BatteryState, ModeId, OperatingPoint};
 use crate::graph::Circuit;
 use crate::model::{NetId, PartId, PinRef, PinRole, Plan};
+use crate::scenario::Scenarios;
 use crate::syntax::Span;
 use std::collections::BTreeMap;
 use uom::si::electric_current::ampere;
@@ -144,6 +146,8 @@ pub static RULES: &[Rule] = &[
     wire::AMPACITY,
     wire::DROP,
     safety::NO_STOP,
+    scenario::BACK_FEED,
+    scenario::PHANTOM_POWER,
     ground::OFFSET,
     analysis::NO_CONVERGENCE,
 ];
@@ -161,6 +165,9 @@ pub struct Context<'a> {
     pub circuit: &'a Circuit,
     /// `None` when shorts or loops keep the operating point from being solved.
     pub analysis: Option<&'a Analysis>,
+    /// The power scenarios (switches open, batteries removed, supplies from
+    /// outside connected) and what each leaves powered.
+    pub scenarios: Option<&'a Scenarios>,
 }
 
 impl Context<'_> {

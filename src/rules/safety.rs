@@ -1,25 +1,27 @@
 //! Safety: every actuator's supply path passes through a stop switch.
 //!
-//! Actuators are motors, servos and loads marked `moves: true`. The path is
-//! traced from the motor's driver `vm` pin (or the rail a motor sits on
-//! directly; a servo's or moving load's own supply input) back to every
-//! battery that can power it: up its net
-//! tree to the rail's source, and through converters (regulators, boards,
-//! USB hosts) to their own inputs. A `stop: true` switch anywhere on a path
-//! clears it; every path must be cleared. Only the supply side counts: a
-//! switch in the return lead leaves the motor wiring live at pack voltage.
+//! Actuators are motors, servos and loads marked `moves: true`. Their power
+//! enters at the motor's driver `vm` pin (or the rail a motor sits on
+//! directly; a servo's or moving load's own supply input). The rule reads the
+//! power scenarios (`crate::scenario`): an actuator is stopped when opening one
+//! `stop: true` switch on its own leaves that entry with no power — through
+//! converters and USB cables too. Only the supply side counts: a switch in
+//! the return lead leaves the motor wiring live at pack voltage.
 //! Not for the plan's printed cautions (that is `crate::safety`).
 
 use super::{Context, Finding, Rule, RuleDoc, Severity};
-use crate::graph::MotorFeed;
+use crate::graph::{MotorFeed, Stage};
 use crate::model::{Class, NetId, PartId, PinRef, PinRole};
+use crate::scenario::{Origin, Scenarios};
+use petgraph::visit::{Dfs, Reversed};
+use std::collections::HashSet;
 
 pub const NO_STOP: Rule = Rule {
     id: "safety/no-stop",
     severity: Severity::Warning,
     summary: "motors, servos or other actuators with no stop switch in their supply path",
     doc: RuleDoc {
-        what: "Traces each actuator's supply — a motor's driver `vm` pin or the rail it sits on directly, a servo's or a `moves: true` load's own supply input — back through the net wiring and any converters to every battery that powers it, and looks for a switch marked `stop: true` on the way. Every such path must pass one.",
+        what: "Takes each actuator's supply — a motor's driver `vm` pin or the rail it sits on directly, a servo's or a `moves: true` load's own supply input — and opens each switch marked `stop: true` in turn (the switch-open power scenarios of format reference §12): one of them alone must leave that supply with no power, through the net wiring, any converters and USB cables. Two stops in parallel, or a second battery that bypasses the stop, leave the actuator running.",
         why: "A robot that runs away, pins a hand or drives off a bench must be stoppable at once, whatever the software is doing; a stop switch that cuts the motors' power is the one control that does not depend on the firmware.",
         example: "railcheck: 1\nname: warehouse tug\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-15a }\n  buck:  { use: regulator/buck-5v-3a }\n  drive: { use: driver/mosfet-dual-hbridge }\n  left:  { use: motor/gearmotor-medium }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, buck.vin, drive.vm]   # nothing but the fuse between the pack and the motor\n  5V:    [buck.vout, drive.vlogic]\n  GND:   [pack.neg, buck.gnd, drive.gnd]\n  LA:    [drive.out1a, left.a]\n  LB:    [drive.out1b, left.b]\n",
         fix: "railcheck: 1\nname: warehouse tug\nparts:\n  pack:  { use: battery/lipo-3s, with: { cutoff: true } }\n  fuse:  { use: fuse/blade-15a }\n  estop: { use: switch/estop-20a }\n  buck:  { use: regulator/buck-5v-3a }\n  drive: { use: driver/mosfet-dual-hbridge }\n  left:  { use: motor/gearmotor-medium }\nnets:\n  BATT+: [pack.pos, fuse.a]\n  VBAT:  [fuse.b, estop.a, buck.vin]\n  VMOT:  [estop.b, drive.vm]   # the stop cuts the motor; the electronics stay up\n  5V:    [buck.vout, drive.vlogic]\n  GND:   [pack.neg, buck.gnd, drive.gnd]\n  LA:    [drive.out1a, left.a]\n  LB:    [drive.out1b, left.b]\n",
@@ -29,106 +31,40 @@ pub const NO_STOP: Rule = Rule {
     check: check_no_stop,
 };
 
-/// The parts a current passes between two nets of one electrical node: the
-/// edges from each up to their common ancestor in the node's tree. `None`
-/// when the nets do not meet in one tree.
-fn parts_between(cx: &Context, a: NetId, b: NetId) -> Option<Vec<PartId>> {
-    let ancestors = |start: NetId| {
-        let mut chain = vec![(start, None)];
-        let mut net = start;
-        while let Some(parent) = cx.circuit.parent[net] {
-            // A through loop cannot make a tree cycle, but never trust a walk.
-            if chain.len() > cx.plan.nets.len() {
-                break;
-            }
-            chain.push((parent.net, Some(parent.part)));
-            net = parent.net;
+/// A battery whose power reaches `net`: the first found walking the
+/// power-flow graph upstream from the net's rail.
+fn feeding_battery(cx: &Context, net: NetId) -> Option<PartId> {
+    let plan = cx.plan;
+    let circuit = cx.circuit;
+    let start = circuit.rail_stage[circuit.node_of_net[net]]?;
+    let upstream = Reversed(&circuit.flow);
+    let mut dfs = Dfs::new(upstream, start);
+    while let Some(stage) = dfs.next(upstream) {
+        if let Stage::Rail(node) = circuit.flow[stage]
+            && let Some(pin) = circuit.nodes[node]
+                .supply_outs
+                .iter()
+                .find(|p| matches!(plan.parts[p.part].class, Class::Battery(_)))
+        {
+            return Some(pin.part);
         }
-        chain
-    };
-    let up_a = ancestors(a);
-    let up_b = ancestors(b);
-    let (i, j) = up_a
+    }
+    None
+}
+
+/// The nets that opening some stop switch on its own leaves with no power.
+fn stopped_nets(cx: &Context, scenarios: &Scenarios) -> HashSet<NetId> {
+    scenarios
         .iter()
-        .enumerate()
-        .find_map(|(i, (net, _))| up_b.iter().position(|(n, _)| n == net).map(|j| (i, j)))?;
-    // Each entry holds the part that joins it to the entry before it.
-    Some(
-        up_a[1..=i]
-            .iter()
-            .chain(&up_b[1..=j])
-            .filter_map(|(_, part)| *part)
-            .collect(),
-    )
+        .filter(|powered| {
+            matches!(powered.scenario.origin, Origin::SwitchOpen(switch) if is_stop(cx, switch))
+        })
+        .flat_map(|powered| powered.nets_turned_off())
+        .collect()
 }
 
 fn is_stop(cx: &Context, part: PartId) -> bool {
     matches!(&cx.plan.parts[part].class, Class::Switch(s) if s.stop)
-}
-
-/// Follows power back from `net` toward the batteries; returns a battery it
-/// reaches with no stop switch on the way.
-fn unstopped_battery(cx: &Context, net: NetId, visited: &mut Vec<PartId>) -> Option<PartId> {
-    let plan = cx.plan;
-    let node_id = cx.circuit.node_of_net[net];
-    let node = &cx.circuit.nodes[node_id];
-    // Sources on this rail, and the host parts of USB cables that feed it.
-    let mut feeders: Vec<(PartId, NetId)> = node
-        .supply_outs
-        .iter()
-        .filter_map(|p: &PinRef| plan.parts[p.part].pins[p.pin].net.map(|n| (p.part, n)))
-        .collect();
-    for &link in &cx.circuit.vbus[node_id] {
-        let (device, port) = plan.links[link].device;
-        let fed = match plan.parts[device].ports[port].kind {
-            crate::model::PortKind::UsbDevice {
-                feeds: Some(pin), ..
-            } => plan.parts[device].pins[pin].net,
-            _ => None,
-        };
-        if let Some(fed) = fed {
-            feeders.push((plan.links[link].host.0, fed));
-        }
-    }
-    for (source, source_net) in feeders {
-        let Some(between) = parts_between(cx, net, source_net) else {
-            continue;
-        };
-        if between.iter().any(|&p| is_stop(cx, p)) {
-            continue;
-        }
-        if let Some(found) = unstopped_part(cx, source, visited) {
-            return Some(found);
-        }
-    }
-    None
-}
-
-/// A battery reached from `part` (itself, or through its inputs) with no stop.
-fn unstopped_part(cx: &Context, part: PartId, visited: &mut Vec<PartId>) -> Option<PartId> {
-    let plan = cx.plan;
-    if matches!(plan.parts[part].class, Class::Battery(_)) {
-        return Some(part);
-    }
-    if visited.contains(&part) {
-        return None;
-    }
-    visited.push(part);
-    for (_, pin) in plan.parts[part].pins_with_role(PinRole::SupplyIn) {
-        if let Some(input) = pin.net
-            && let Some(found) = unstopped_battery(cx, input, visited)
-        {
-            return Some(found);
-        }
-    }
-    // A part powered through a USB cable: its host feeds it.
-    let links = cx.circuit.part_links[part].iter().map(|&l| &plan.links[l]);
-    for link in links.filter(|l| l.device.0 == part) {
-        if let Some(found) = unstopped_part(cx, link.host.0, visited) {
-            return Some(found);
-        }
-    }
-    None
 }
 
 /// Where an actuator's power enters: a motor's driver and its supply pin,
@@ -192,8 +128,16 @@ fn check_no_stop(cx: &Context, out: &mut Vec<Finding>) {
             None => rails.push((net, vec![entry], actuators)),
         }
     }
+    let Some(scenarios) = cx.scenarios else {
+        return;
+    };
+    let stopped = stopped_nets(cx, scenarios);
     for (net, entries, actuators) in rails {
-        let Some(battery) = unstopped_battery(cx, net, &mut Vec::new()) else {
+        // Off in normal running too: `power/unfed` says so.
+        if !scenarios.running_net_on(net) || stopped.contains(&net) {
+            continue;
+        }
+        let Some(battery) = feeding_battery(cx, net) else {
             continue;
         };
         let names: Vec<String> = actuators
@@ -234,7 +178,7 @@ fn check_no_stop(cx: &Context, out: &mut Vec<Finding>) {
             &NO_STOP,
             cx.pin_span(entries[0]),
             format!(
-                "{who}{through} {verb} power from `{}` with no stop switch on the way: in an emergency nothing cuts {them} off short of unplugging the battery",
+                "{who}{through} {verb} power from `{}` and no stop switch cuts {them} off on its own: in an emergency nothing stops {them} short of unplugging the battery",
                 cx.part_name(battery)
             ),
         )

@@ -1,0 +1,259 @@
+//! Power scenarios: which scenarios a plan gets and what each leaves
+//! powered, against the wiring read by hand.
+//!
+//! A rail has power when a present source reaches it through closed
+//! contacts (a battery, a supply from outside, the output of a part that has
+//! power, the VBUS of a cable whose host has power): Kirchhoff's current law
+//! needs a closed path from a source, and an open switch breaks it.
+
+use railcheck::model::Library;
+use railcheck::scenario::Origin;
+use std::path::Path;
+
+fn example(name: &str) -> String {
+    std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("examples")
+            .join(name),
+    )
+    .expect("the example is shipped")
+}
+
+fn checked(text: &str) -> railcheck::Checked {
+    railcheck::check("plan.yaml", text, &Library::builtin()).expect("the plan reads")
+}
+
+#[test]
+fn the_rover_gets_its_own_and_the_derived_scenarios() {
+    let rover = checked(&example("orchard-rover.yaml"));
+    let labels: Vec<&str> = rover
+        .scenarios
+        .iter()
+        .map(|p| p.scenario.label.as_str())
+        .collect();
+    // The plan's `flashing`; its one switch, the stop; the laptop with the
+    // pack in and with it out.
+    assert_eq!(
+        labels,
+        [
+            "in scenario `flashing`",
+            "with `estop` open",
+            "with `laptop` connected",
+            "with `laptop` connected and `pack` removed",
+        ]
+    );
+}
+
+#[test]
+fn the_stop_takes_the_motor_bus_and_nothing_else() {
+    let rover = checked(&example("orchard-rover.yaml"));
+    let plan = &rover.plan;
+    let net = |name: &str| plan.nets.iter().position(|n| n.name == name).unwrap();
+    let part = |name: &str| plan.parts.iter().position(|p| p.name == name).unwrap();
+    let stop = rover
+        .scenarios
+        .iter()
+        .find(|p| matches!(p.scenario.origin, Origin::SwitchOpen(_)))
+        .expect("the stop's scenario");
+    // VMOT hangs on the stop's load side only; VBAT keeps the pack through
+    // the fuse and the plug, and the buck (on VBAT) keeps 5 V up.
+    assert!(!stop.net_on(net("VMOT")));
+    assert!(stop.net_on(net("VBAT")));
+    assert!(stop.net_on(net("5V")));
+    assert!(stop.net_on(net("3V3")));
+    // The driver keeps its logic supply (`vlogic` on 5 V): it has power.
+    assert!(stop.part_on(part("drive")));
+    assert!(stop.part_on(part("sbc")));
+    // What changed from normal running: only the motor bus.
+    assert_eq!(stop.nets_turned_off(), vec![net("VMOT")]);
+}
+
+#[test]
+fn flashing_from_the_laptop_powers_the_controller_side_only() {
+    let rover = checked(&example("orchard-rover.yaml"));
+    let plan = &rover.plan;
+    let net = |name: &str| plan.nets.iter().position(|n| n.name == name).unwrap();
+    let part = |name: &str| plan.parts.iter().position(|p| p.name == name).unwrap();
+    let flashing = rover
+        .scenarios
+        .iter()
+        .find(|p| p.scenario.origin == Origin::Declared(0))
+        .unwrap();
+    // Pack out: nothing on the battery side has a source.
+    for off in ["BATT+", "VBAT", "VMOT", "5V"] {
+        assert!(!flashing.net_on(net(off)), "{off} has no source");
+    }
+    for off in ["sbc", "buck", "drive", "ranger", "left_enc", "camera"] {
+        assert!(!flashing.part_on(part(off)), "{off} is off");
+    }
+    // The laptop's VBUS powers the controller through its socket (the
+    // computer's cable is unplugged there); its onboard 3.3 V regulator
+    // feeds 3V3, the inertial sensor and the shifters' low sides.
+    assert!(flashing.part_on(part("mcu")));
+    assert!(flashing.net_on(net("3V3")));
+    assert!(flashing.part_on(part("imu")));
+    assert!(flashing.part_on(part("enc_shifter")));
+}
+
+/// A switch-open scenario is solved over what the switch can reach only;
+/// the same switch opened in a declared scenario is solved over the whole
+/// plan. Both must agree on every net and part.
+#[test]
+fn a_switch_opened_alone_agrees_with_the_whole_plan_solved() {
+    let picker = example("greenhouse-picker.yaml");
+    let mut text = picker.clone();
+    text.push_str("\nscenarios:\n  stop_struck: { open: [estop] }\n");
+    let plan = checked(&text);
+    let whole = plan
+        .scenarios
+        .iter()
+        .find(|p| p.scenario.origin == Origin::Declared(0))
+        .unwrap();
+    let alone = plan
+        .scenarios
+        .iter()
+        .find(|p| matches!(p.scenario.origin, Origin::SwitchOpen(_)))
+        .unwrap();
+    for net in 0..plan.plan.nets.len() {
+        assert_eq!(
+            whole.net_on(net),
+            alone.net_on(net),
+            "net {}",
+            plan.plan.nets[net].name
+        );
+    }
+    for part in 0..plan.plan.parts.len() {
+        assert_eq!(
+            whole.part_on(part),
+            alone.part_on(part),
+            "part {}",
+            plan.plan.parts[part].name
+        );
+    }
+    // And the stop does take the wheels and both servo rails.
+    let net = |name: &str| plan.plan.nets.iter().position(|n| n.name == name).unwrap();
+    for off in ["VSTOP", "VMOT", "7V4", "SERVO_5V"] {
+        assert!(!alone.net_on(net(off)), "{off}");
+    }
+    assert!(alone.net_on(net("5V")));
+}
+
+/// (3.3 V × 1.03 − 0.3 V) / 1 kΩ = 3.099 mA: the controller's 3.3 V ± 3 %
+/// output at its highest into an input held at VDD + 0.3 V with VDD = 0 V
+/// (JEDEC JESD8), through the series resistor (Ohm's law).
+#[test]
+fn the_clamp_current_through_a_series_resistor_is_ohms_law() {
+    let text = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("tests/fixtures/scenario__phantom-power/fires-series-1k-warning.yaml"),
+    )
+    .unwrap();
+    let plan = checked(&text);
+    let finding = plan
+        .findings
+        .iter()
+        .find(|f| f.rule == "scenario/phantom-power")
+        .unwrap();
+    let amps = finding.values["clamp_current"];
+    assert!((amps - 3.099e-3).abs() < 1e-6, "{amps}");
+    assert_eq!(finding.severity, railcheck::rules::Severity::Warning);
+}
+
+#[test]
+fn a_supply_from_outside_is_read_with_its_place_and_defaults() {
+    let rover = checked(&example("orchard-rover.yaml"));
+    let laptop = &rover.plan.supplies[0];
+    assert_eq!(laptop.name, "laptop");
+    // USB 2.0 §7.2.1: a host port gives 4.75 V to 5.25 V.
+    use uom::si::electric_potential::volt;
+    assert!((laptop.voltage.min.get::<volt>() - 4.75).abs() < 1e-12);
+    assert!((laptop.voltage.max.get::<volt>() - 5.25).abs() < 1e-12);
+}
+
+#[test]
+fn supplies_and_scenarios_refuse_names_they_cannot_mean() {
+    let base = example("orchard-rover.yaml");
+    let cases = [
+        // A bench supply on a net that does not exist.
+        (
+            "laptop: { kind: usb-host, port: mcu.usb, current: 500 mA }",
+            "laptop: { kind: bench, net: VBATT, voltage: 12 V }",
+            "unknown net `VBATT`",
+        ),
+        // A USB host into a host port.
+        (
+            "laptop: { kind: usb-host, port: mcu.usb, current: 500 mA }",
+            "laptop: { kind: usb-host, port: sbc.usb2 }",
+            "is a host port",
+        ),
+        // A bench supply with no voltage.
+        (
+            "laptop: { kind: usb-host, port: mcu.usb, current: 500 mA }",
+            "laptop: { kind: bench, net: VBAT }",
+            "needs `voltage`",
+        ),
+        // Removing a part that is no battery.
+        (
+            "removed: [pack]",
+            "removed: [buck]",
+            "`buck` is a regulator, not a battery",
+        ),
+        // Opening a part that is no switch.
+        (
+            "removed: [pack] }",
+            "removed: [pack], open: [main_fuse] }",
+            "`main_fuse` is a fuse, not a switch",
+        ),
+        // Connecting a supply never declared.
+        (
+            "connected: [laptop]",
+            "connected: [lapto]",
+            "unknown supply `lapto`",
+        ),
+    ];
+    for (from, to, expected) in cases {
+        assert!(base.contains(from), "{from}");
+        let text = base.replace(from, to);
+        let failure = railcheck::check("plan.yaml", &text, &Library::builtin())
+            .err()
+            .unwrap_or_else(|| panic!("{to} is refused"));
+        let errors: Vec<String> = failure.errors.iter().map(|e| e.message.clone()).collect();
+        assert!(
+            errors.iter().any(|m| m.contains(expected)),
+            "{to}: {errors:?}"
+        );
+        // Each error points at the offending name, on the line it is written.
+        let error = failure
+            .errors
+            .iter()
+            .find(|e| e.message.contains(expected))
+            .unwrap();
+        let line = failure.sources.line_column(error.span).0;
+        let written = text.lines().nth(line - 1).unwrap();
+        assert!(written.contains(to), "line {line}: {written}");
+    }
+}
+
+#[test]
+fn the_listing_names_what_each_scenario_takes_away() {
+    let rover = checked(&example("orchard-rover.yaml"));
+    let text = railcheck::report::scenarios_table("orchard-rover.yaml", &rover);
+    // The stop's block: VMOT is the one net it takes; no part goes off
+    // (the driver keeps its logic supply on 5 V).
+    let stop = text
+        .split("\n\n")
+        .find(|block| block.starts_with("with `estop` open"))
+        .expect("the stop's block");
+    assert!(stop.contains("nets without power: VMOT\n"), "{stop}");
+    assert!(stop.contains("parts off: none"), "{stop}");
+    // Pack out, laptop in: the battery side is dark, the controller is not.
+    let alone = text
+        .split("\n\n")
+        .find(|block| block.starts_with("with `laptop` connected and `pack` removed"))
+        .expect("the laptop's block");
+    assert!(
+        alone.contains("nets without power: BATT+, PACK_LEAD, VBAT, VMOT, 5V"),
+        "{alone}"
+    );
+    assert!(!alone.contains("mcu"), "{alone}");
+}

@@ -23,8 +23,7 @@
 use crate::graph::{Circuit, Stage, through_pairs};
 use crate::model::{Class, NetId, PartId, PinRole, Plan, PortKind, SupplyAttach};
 use petgraph::unionfind::UnionFind;
-use petgraph::visit::Dfs;
-use std::collections::HashMap;
+use std::collections::{HashMap, HashSet};
 
 /// Where a scenario comes from.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -335,12 +334,19 @@ impl<'a> Solver<'a> {
         let node = self.circuit.node_of_net[start];
         let mut region_nodes = vec![node];
         if let Some(stage) = self.circuit.rail_stage[node] {
-            let mut dfs = Dfs::new(&self.circuit.flow, stage);
-            while let Some(next) = dfs.next(&self.circuit.flow) {
-                if let Stage::Rail(n) = self.circuit.flow[next]
-                    && n != node
-                {
-                    region_nodes.push(n);
+            // A walk of its own rather than petgraph's `Dfs`, whose visited
+            // set is as large as the whole graph: each switch pays only for
+            // what it feeds.
+            let mut visited = HashSet::from([stage]);
+            let mut stack = vec![stage];
+            while let Some(here) = stack.pop() {
+                for next in self.circuit.flow.neighbors(here) {
+                    if visited.insert(next) {
+                        if let Stage::Rail(n) = self.circuit.flow[next] {
+                            region_nodes.push(n);
+                        }
+                        stack.push(next);
+                    }
                 }
             }
         }

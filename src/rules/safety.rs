@@ -14,7 +14,7 @@ use crate::graph::{MotorFeed, Stage};
 use crate::model::{Class, NetId, PartId, PinRef, PinRole};
 use crate::scenario::{Origin, Scenarios};
 use petgraph::visit::{Dfs, Reversed};
-use std::collections::HashSet;
+use std::collections::{HashMap, HashSet};
 
 pub const NO_STOP: Rule = Rule {
     id: "safety/no-stop",
@@ -73,6 +73,7 @@ fn is_stop(cx: &Context, part: PartId) -> bool {
 fn supply_entries(cx: &Context) -> Vec<(PinRef, Vec<PartId>)> {
     let plan = cx.plan;
     let mut entries: Vec<(PinRef, Vec<PartId>)> = Vec::new();
+    let mut index: HashMap<PinRef, usize> = HashMap::new();
     for (part_id, part) in plan.parts.iter().enumerate() {
         if !part.actuator || matches!(part.class, Class::Motor(_)) {
             continue;
@@ -81,7 +82,9 @@ fn supply_entries(cx: &Context) -> Vec<(PinRef, Vec<PartId>)> {
             .pins_with_role(PinRole::SupplyIn)
             .find(|(_, p)| p.net.is_some())
         {
-            entries.push((PinRef { part: part_id, pin }, vec![part_id]));
+            let entry = PinRef { part: part_id, pin };
+            index.insert(entry, entries.len());
+            entries.push((entry, vec![part_id]));
         }
     }
     for (motor, feed) in cx.circuit.motor_feed.iter().enumerate() {
@@ -103,9 +106,12 @@ fn supply_entries(cx: &Context) -> Vec<(PinRef, Vec<PartId>)> {
             None => None,
         };
         let Some(entry) = entry else { continue };
-        match entries.iter_mut().find(|(e, _)| *e == entry) {
-            Some((_, motors)) => motors.push(motor),
-            None => entries.push((entry, vec![motor])),
+        match index.get(&entry) {
+            Some(&i) => entries[i].1.push(motor),
+            None => {
+                index.insert(entry, entries.len());
+                entries.push((entry, vec![motor]));
+            }
         }
     }
     entries
@@ -116,16 +122,20 @@ fn check_no_stop(cx: &Context, out: &mut Vec<Finding>) {
     // Actuators whose power enters on one rail share one cause: that rail's
     // path from the battery misses the stop. One finding per rail.
     let mut rails: Vec<(NetId, Vec<PinRef>, Vec<PartId>)> = Vec::new();
+    let mut rail_index: HashMap<NetId, usize> = HashMap::new();
     for (entry, actuators) in supply_entries(cx) {
         let Some(net) = plan.parts[entry.part].pins[entry.pin].net else {
             continue;
         };
-        match rails.iter_mut().find(|(n, _, _)| *n == net) {
-            Some((_, entries, all)) => {
-                entries.push(entry);
-                all.extend(actuators);
+        match rail_index.get(&net) {
+            Some(&i) => {
+                rails[i].1.push(entry);
+                rails[i].2.extend(actuators);
             }
-            None => rails.push((net, vec![entry], actuators)),
+            None => {
+                rail_index.insert(net, rails.len());
+                rails.push((net, vec![entry], actuators));
+            }
         }
     }
     let Some(scenarios) = cx.scenarios else {

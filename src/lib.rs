@@ -64,6 +64,9 @@ pub struct Checked {
     pub analysis: Option<Analysis>,
     /// Every problem found, sorted by place in the plan, then severity and rule.
     pub findings: Vec<Finding>,
+    /// The tightest comparison the rules made against each kind of rating
+    /// or limit, tightest first (empty without an operating point).
+    pub margins: Vec<rules::Margin>,
 }
 
 /// A plan that could not be read: every input problem found.
@@ -295,6 +298,7 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         plan: &plan,
         circuit: &circuit,
         analysis: None,
+        margins: None,
     };
     // Only the two rules that decide it run here; every rule runs below.
     let mut topology_findings = Vec::new();
@@ -307,10 +311,12 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         .iter()
         .any(|f| f.rule == "power/short" || f.rule == "power/loop");
     let analysis = (!blocking).then(|| Analysis::solve(&plan, &circuit));
+    let margins = rules::Margins::default();
     let findings = rules::run(&Context {
         plan: &plan,
         circuit: &circuit,
         analysis: analysis.as_ref(),
+        margins: Some(&margins),
     });
     Ok(Checked {
         sources,
@@ -319,5 +325,6 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         circuit,
         analysis,
         findings,
+        margins: margins.into_sorted(),
     })
 }

@@ -248,6 +248,7 @@ pub fn wire_list(checked: &Checked) -> WireList {
         plan,
         circuit: &checked.circuit,
         analysis: checked.analysis.as_ref(),
+        margins: None,
     };
     let protecting = crate::rules::fuse::protecting_fuses(&cx);
     let settled = || checked.analysis.iter().flat_map(|a| a.settled());

@@ -13,6 +13,7 @@ pub fn format_tables(rules: &[Rule]) -> Vec<(String, String)> {
         ("top-level".to_string(), fields_table(format::TOP_LEVEL)),
         ("limits".to_string(), fields_table(format::LIMITS)),
         ("net".to_string(), fields_table(format::NET)),
+        ("part-fields".to_string(), fields_table(format::PART_FIELDS)),
         ("link".to_string(), fields_table(format::LINK)),
         ("port usb-host".to_string(), fields_table(format::USB_HOST)),
         (
@@ -41,6 +42,7 @@ pub fn describe(value: Value) -> String {
         Value::Cells => "whole number, 1 to 1000".into(),
         Value::Count => "whole number, 0 to 1000".into(),
         Value::Version => "`1`".into(),
+        Value::Amount => "plain number, 0 or more".into(),
         Value::Text => "text".into(),
         Value::PinOfPart => "a pin of the same part".into(),
         Value::Draw => "current, or `{ idle, typical, peak }`".into(),

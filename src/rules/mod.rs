@@ -14,6 +14,7 @@ mod fault;
 pub(crate) mod fuse;
 mod ground;
 mod logic;
+mod margin;
 pub(crate) mod power;
 mod regulator;
 mod safety;
@@ -24,6 +25,7 @@ mod voltage;
 mod wire;
 
 pub use fuse::minimum_rating;
+pub use margin::{Margin, Margins, RatingKind};
 pub use unit::{Reading, Unit, declared_unit};
 
 use crate::analysis::{Analysis, BatteryState, ModeId, OperatingPoint};
@@ -161,9 +163,20 @@ pub struct Context<'a> {
     pub circuit: &'a Circuit,
     /// `None` when shorts or loops keep the operating point from being solved.
     pub analysis: Option<&'a Analysis>,
+    /// Where the rules record the comparisons they make against ratings
+    /// and limits; `None` skips recording.
+    pub margins: Option<&'a Margins>,
 }
 
 impl Context<'_> {
+    /// Records a comparison against a rating or limit (built only when a
+    /// recorder is present).
+    pub fn margin(&self, margin: impl FnOnce() -> Margin) {
+        if let Some(margins) = self.margins {
+            margins.record(margin());
+        }
+    }
+
     /// Settled operating points (none when the analysis was skipped).
     pub fn points(&self) -> impl Iterator<Item = &OperatingPoint> {
         self.analysis.into_iter().flat_map(|a| a.settled())

@@ -219,9 +219,24 @@ pub fn read(
     text: &str,
     library: &Library,
 ) -> Result<(Sources, SourceId, Plan), InputFailure> {
+    read_tree(file_name, text, None, library)
+}
+
+/// [`read`] with the plan's tree already parsed (its spans in the first
+/// source, the plan's); `None` parses `text`.
+fn read_tree(
+    file_name: &str,
+    text: &str,
+    tree: Option<syntax::Node>,
+    library: &Library,
+) -> Result<(Sources, SourceId, Plan), InputFailure> {
     let mut sources = Sources::default();
     let plan_source = sources.add(file_name, text);
-    let root = match syntax::parse(plan_source, text) {
+    let parsed = match tree {
+        Some(tree) => Ok(tree),
+        None => syntax::parse(plan_source, text),
+    };
+    let root = match parsed {
         Ok(root) => root,
         Err(e) => {
             let too_large = e.is_size_limit();
@@ -290,7 +305,19 @@ pub fn read(
 /// assert!(checked.findings.iter().any(|f| f.rule == "fuse/missing"));
 /// ```
 pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, InputFailure> {
-    let (sources, plan_source, plan) = read(file_name, text, library)?;
+    check_tree(file_name, text, None, library)
+}
+
+/// [`check`] of a plan whose tree is already parsed: `tree` must be what
+/// `syntax::parse(SourceId(0), text)` gives (a sweep builds it from the
+/// base plan's tree and the few entries a variant changes).
+pub(crate) fn check_tree(
+    file_name: &str,
+    text: &str,
+    tree: Option<syntax::Node>,
+    library: &Library,
+) -> Result<Checked, InputFailure> {
+    let (sources, plan_source, plan) = read_tree(file_name, text, tree, library)?;
     let circuit = Circuit::build(&plan);
     // Shorts and loops are decided on the graph first; with either, there is
     // no meaningful operating point to solve.

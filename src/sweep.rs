@@ -10,6 +10,8 @@
 //!
 //! Not for: printing the table (that is `report::sweep_*`).
 
+mod tree;
+
 use crate::budget::budget;
 use crate::model::{InputError, Library, format};
 use crate::rules::{Margin, Severity};
@@ -159,6 +161,9 @@ pub struct Sweep {
     root: Node,
     /// Each part's class, by name, as the plan reads.
     classes: Vec<(String, &'static str)>,
+    /// Where the plan's sections and entries are, so a variant re-parses
+    /// only the entries it changes (`None`: parse every variant whole).
+    layout: Option<tree::Layout>,
     /// The axes: the plan's `sweep:` section first, then each `--vary`
     /// (a `--vary` of a key the section also names replaces it).
     pub axes: Vec<Axis>,
@@ -403,10 +408,12 @@ impl Sweep {
         let root = syntax::parse(SourceId(0), &text).map_err(|e| {
             SweepError::Usage(format!("the plan could not be read again: {}", e.message))
         })?;
+        let layout = tree::Layout::of(&text, &root);
         let mut sweep = Sweep {
             file_name,
             text,
             root,
+            layout,
             classes: base
                 .plan
                 .parts
@@ -489,13 +496,30 @@ impl Sweep {
 
     /// The plan's text with combination `index` written in: a whole plan.
     pub fn variant(&self, index: usize) -> String {
+        apply(&self.text, self.changes(index))
+    }
+
+    fn changes(&self, index: usize) -> Vec<Splice> {
         let edits: Vec<(&Target, &str)> = self
             .axes
             .iter()
             .zip(self.choice(index))
             .map(|(axis, i)| (&axis.target, axis.values[i].as_str()))
             .collect();
-        edit_text(&self.text, &self.root, &edits)
+        splices(&self.text, &self.root, &edits)
+    }
+
+    /// The variant's text and, when it can be built from the plan's tree
+    /// (see `tree`), its YAML tree: the same as parsing the text.
+    fn variant_and_tree(&self, index: usize) -> (String, Option<Node>) {
+        let mut changes = self.changes(index);
+        changes.sort_by_key(|s| (s.start, s.end));
+        let text = apply(&self.text, changes.iter().map(Splice::clone).collect());
+        let tree = self
+            .layout
+            .as_ref()
+            .and_then(|layout| tree::variant_tree(layout, &self.root, &changes, &text));
+        (text, tree)
     }
 
     /// Checks one combination.
@@ -506,7 +530,8 @@ impl Sweep {
             .zip(self.choice(index))
             .map(|(axis, i)| axis.values[i].clone())
             .collect();
-        let outcome = match crate::check(&self.file_name, &self.variant(index), library) {
+        let (text, tree) = self.variant_and_tree(index);
+        let outcome = match crate::check_tree(&self.file_name, &text, tree, library) {
             Ok(checked) => Outcome::Checked(Box::new(verdict(&checked))),
             Err(failure) => Outcome::Unreadable(first_problem(&failure)),
         };
@@ -1046,6 +1071,7 @@ fn verdict(checked: &Checked) -> Verdict {
 // ----- writing values into the text ----------------------------------------
 
 /// One change to the text: bytes `start..end` become `text`.
+#[derive(Clone, Debug)]
 struct Splice {
     start: usize,
     end: usize,
@@ -1056,6 +1082,7 @@ struct Splice {
 /// rewritten: a value in place, a missing key as a new line of its block
 /// mapping (or a new entry of its `{ }` mapping), a net written as a list of
 /// pins as a mapping; everything else, comments too, stays as written.
+#[cfg(test)]
 fn edit_text(text: &str, root: &Node, edits: &[(&Target, &str)]) -> String {
     apply(text, splices(text, root, edits))
 }
@@ -1535,10 +1562,21 @@ mod tests {
             });
             // Each alone, and all at once.
             let all: Vec<(&Target, &str)> = targets.iter().map(|t| (t, "7 A")).collect();
+            let layout = tree::Layout::of(text, &root);
             for edits in all.iter().map(|e| vec![*e]).chain([all.clone()]) {
                 let out = edit_text(text, &root, &edits);
                 let back = syntax::parse(SourceId(0), &out)
                     .unwrap_or_else(|e| panic!("{}:\n{out}", e.message));
+                // The tree built from the plan's and the changed entries is
+                // the tree of the whole variant, spans and all.
+                let mut changes = splices(text, &root, &edits);
+                changes.sort_by_key(|s| (s.start, s.end));
+                if let Some(layout) = &layout {
+                    match tree::variant_tree(layout, &root, &changes, &out) {
+                        Some(built) => assert_eq!(built, back, "{edits:?}:\n{out}"),
+                        None => assert!(edits.len() > 1, "{edits:?}:\n{out}"),
+                    }
+                }
                 for (target, value) in &edits {
                     assert_eq!(
                         lookup(&back, &target.path()).as_scalar(),

@@ -6,9 +6,10 @@
 //! only when a plan uses them.
 
 use super::{Part, Plan};
-use crate::syntax::{self, Node, Sources, Span};
+use crate::syntax::{self, Node, NodeKind, SourceId, Sources, Span};
 use include_dir::{Dir, include_dir};
 use std::collections::BTreeMap;
+use std::sync::OnceLock;
 
 static BUILTIN: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/parts");
 
@@ -19,6 +20,10 @@ struct Entry {
     /// The file's text, or why it could not be read: a file that is too
     /// large or not UTF-8 is reported only when a plan uses it.
     text: Result<String, String>,
+    /// The file's tree, parsed the first time a plan uses it (`None` when
+    /// it is not valid YAML): a sweep reads the same parts thousands of
+    /// times and parses each once.
+    parsed: OnceLock<Option<Node>>,
 }
 
 /// All known part ids and their YAML texts.
@@ -55,6 +60,7 @@ impl Library {
             Entry {
                 file_name,
                 text: Ok(text),
+                parsed: OnceLock::new(),
             },
         );
     }
@@ -67,6 +73,7 @@ impl Library {
             Entry {
                 file_name,
                 text: Err(reason),
+                parsed: OnceLock::new(),
             },
         );
     }
@@ -159,11 +166,39 @@ impl Library {
             }
         };
         let source = sources.add(entry.file_name.clone(), text.as_str());
+        let parsed = entry
+            .parsed
+            .get_or_init(|| syntax::parse(source, text).ok());
+        if let Some(tree) = parsed {
+            let mut tree = tree.clone();
+            move_to(&mut tree, source);
+            return Some(Ok(tree));
+        }
         Some(syntax::parse(source, text).map_err(|e| LibraryError {
             message: e.message,
             span: e.span,
             unreadable: false,
         }))
+    }
+}
+
+/// Points every span of a tree into `source` (a cached tree taken into
+/// another plan's sources).
+fn move_to(node: &mut Node, source: SourceId) {
+    node.span.source = source;
+    match &mut node.kind {
+        NodeKind::Map(entries) => {
+            for (key, value) in entries {
+                move_to(key, source);
+                move_to(value, source);
+            }
+        }
+        NodeKind::Seq(items) => {
+            for item in items {
+                move_to(item, source);
+            }
+        }
+        NodeKind::Scalar(_) | NodeKind::Null => {}
     }
 }
 

@@ -877,14 +877,20 @@ fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
     let interrupted = summary.checked < total;
     let best = summary.best_passing().map(|r| r.index);
     // The best plan is written before the table, so that a failure to write
-    // it is the one document a machine-readable format prints.
+    // it is the one document a machine-readable format prints (streamed
+    // rows are out already: then the failure is said on standard error).
     if !interrupted
         && let Some(path) = &options.write_best
         && let Some(index) = best
     {
         let text = sweep.variant(index);
         if let Err(message) = write_output(path, &args.file, text.as_bytes()) {
-            return fail_as(args, &message);
+            // Streamed rows are already out: the message goes beside them.
+            return if streamed {
+                fail(&message)
+            } else {
+                fail_as(args, &message)
+            };
         }
         wrote(path, text.len());
     }

@@ -572,7 +572,9 @@ impl Sweep {
         let total = self.combinations().unwrap_or(0);
         let threads = threads.clamp(1, total.max(1));
         let next = AtomicUsize::new(0);
-        let (send, receive) = std::sync::mpsc::channel::<Row>();
+        // Bounded: when rows are written slower than they are checked (a
+        // slow pipe), the workers wait instead of piling rows up.
+        let (send, receive) = std::sync::mpsc::sync_channel::<Row>(threads * 4);
         let mut done = 0;
         std::thread::scope(|scope| {
             for _ in 0..threads {

@@ -198,6 +198,9 @@ fn a_cost_is_a_plain_number_and_a_mass_needs_its_unit() {
             error.message
         );
         assert!(error.hint.is_some(), "{}", error.message);
+        if column == "cost" {
+            assert!(error.message.contains("`12 EUR`"), "{}", error.message);
+        }
     }
 }
 

@@ -3,7 +3,8 @@
 //! Built-in parts are the YAML files under `parts/`, compiled into the binary so
 //! nothing is needed at run time. A user folder (`--parts DIR`) is read by the
 //! binary and handed in as texts; its ids shadow built-in ones. Files are parsed
-//! only when a plan uses them.
+//! only when a plan uses them, and once: the tree is kept for the next plan
+//! (a sweep reads the same parts for every variant).
 
 use super::{Part, Plan};
 use crate::syntax::{self, Node, NodeKind, SourceId, Sources, Span};

@@ -788,10 +788,16 @@ impl Reader<'_> {
             _ => {
                 self.error(
                     node.span,
-                    format!(
-                        "`{key}` takes a plain number, 0 or more, found {}",
-                        node.describe()
-                    ),
+                    match node.as_scalar() {
+                        Some(text) => format!(
+                            "`{key}` takes a plain number, 0 or more, found `{}`",
+                            crate::syntax::visible(text)
+                        ),
+                        None => format!(
+                            "`{key}` takes a plain number, 0 or more, found {}",
+                            node.describe()
+                        ),
+                    },
                     Some(format!(
                         "write the number alone, in the plan's own currency: `{key}: 24.50`"
                     )),

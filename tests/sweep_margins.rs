@@ -401,3 +401,44 @@ fn ctrl_c_writes_the_rows_checked_so_far_and_exits_130() {
         assert_eq!(record[0], (i + 1).to_string());
     }
 }
+
+#[test]
+fn piped_output_has_no_progress_bar_and_quiet_says_nothing() {
+    let dir = tempfile::tempdir().unwrap();
+    let plan = dir.path().join("heater.yaml");
+    std::fs::write(&plan, HEATER).unwrap();
+    let lengths: Vec<String> = (1..=40).map(|i| format!("{i} cm")).collect();
+    let run = |quiet: bool| {
+        let mut command = railcheck();
+        command
+            .args(["sweep", "--format", "csv", "--vary"])
+            .arg(format!("HEAT.length={}", lengths.join(",")));
+        if quiet {
+            command.arg("--quiet");
+        }
+        command.arg(&plan).output().unwrap()
+    };
+    let out = run(false);
+    assert_eq!(out.status.code(), Some(0));
+    let stderr = String::from_utf8(out.stderr).unwrap();
+    // Standard error is a pipe here: one line saying what runs, no bar
+    // and no carriage returns redrawing one.
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    assert!(stderr.starts_with("railcheck: checking 40 combinations"));
+    assert!(!stderr.contains(['\r', '█', '░']), "{stderr:?}");
+    // Rows stream in combination order.
+    let mut reader = csv::Reader::from_reader(&out.stdout[..]);
+    let numbers: Vec<String> = reader
+        .records()
+        .map(|r| r.unwrap()[0].to_string())
+        .collect();
+    let expected: Vec<String> = (1..=40).map(|i| i.to_string()).collect();
+    assert_eq!(numbers, expected);
+    let quiet = run(true);
+    assert!(
+        quiet.stderr.is_empty(),
+        "{:?}",
+        String::from_utf8_lossy(&quiet.stderr)
+    );
+    assert_eq!(quiet.stdout, out.stdout);
+}

@@ -59,17 +59,16 @@ fn check_discharge(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
-        cx.margin(|| {
+        cx.margin(
             Margin::below(
                 RatingKind::BatteryDischarge,
                 DISCHARGE.id,
                 peak,
                 limit.get::<ampere>(),
                 Unit::Ampere,
-            )
-            .at(&part.name)
-            .at_point(plan, point)
-        });
+            ),
+            |m| m.at(&part.name).at_point(plan, point),
+        );
         if !exceeds(peak, limit.get::<ampere>()) {
             continue;
         }

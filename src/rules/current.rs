@@ -366,11 +366,10 @@ fn check_ratings(cx: &Context, out: &mut Vec<Finding>) {
                 (Class::Switch(_) | Class::Connector(_), _) => RatingKind::ContactCurrent,
                 _ => RatingKind::OutputCurrent,
             };
-            cx.margin(|| {
-                Margin::below(kind, OVER_RATING.id, current, rating, Unit::Ampere)
-                    .at(&path.subject)
-                    .at_point(cx.plan, point)
-            });
+            cx.margin(
+                Margin::below(kind, OVER_RATING.id, current, rating, Unit::Ampere),
+                |m| m.at(&path.subject).at_point(cx.plan, point),
+            );
         }
         if let Some((point, current)) = over
             && exceeds(current, rating)

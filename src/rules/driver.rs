@@ -57,17 +57,19 @@ fn check_stall(cx: &Context, out: &mut Vec<Finding>) {
             let Some((point, stall)) = worst_point(cx.points(), stalled) else {
                 continue;
             };
-            cx.margin(|| {
+            cx.margin(
                 Margin::below(
                     RatingKind::DriverPeak,
                     STALL.id,
                     stall,
                     peak.value.get::<ampere>(),
                     Unit::Ampere,
-                )
-                .at(&format!("{} channel {number}", driver_part.name))
-                .at_point(plan, point)
-            });
+                ),
+                |m| {
+                    m.at(&format!("{} channel {number}", driver_part.name))
+                        .at_point(plan, point)
+                },
+            );
             if !exceeds(stall, peak.value.get::<ampere>()) {
                 continue;
             }

@@ -1062,17 +1062,16 @@ fn check_undersized(cx: &Context, out: &mut Vec<Finding>) {
             continue;
         };
         let minimum = minimum_rating(ElectricCurrent::new::<ampere>(current));
-        cx.margin(|| {
+        cx.margin(
             Margin::below(
                 RatingKind::FuseRating,
                 UNDERSIZED.id,
                 amps(minimum),
                 amps(rating.value),
                 Unit::Ampere,
-            )
-            .at(fuse.name)
-            .at_point(cx.plan, point)
-        });
+            ),
+            |m| m.at(fuse.name).at_point(cx.plan, point),
+        );
         if !exceeds(amps(minimum), amps(rating.value)) {
             continue;
         }

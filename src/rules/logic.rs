@@ -1062,16 +1062,14 @@ fn record_margins(cx: &Context, comparisons: &[Link]) {
         return;
     }
     for link in comparisons {
-        let at = cx.pin_name(link.sense.pin);
         let record = |kind, rule: &Rule, value: &Level, limit: &Level, upper: bool| {
-            cx.margin(|| {
-                let margin = if upper {
-                    Margin::below(kind, rule.id, v(value.value), v(limit.value), Unit::Volt)
-                } else {
-                    Margin::above(kind, rule.id, v(value.value), v(limit.value), Unit::Volt)
-                };
-                margin
-                    .at(&at)
+            let margin = if upper {
+                Margin::below(kind, rule.id, v(value.value), v(limit.value), Unit::Volt)
+            } else {
+                Margin::above(kind, rule.id, v(value.value), v(limit.value), Unit::Volt)
+            };
+            cx.margin(margin, |m| {
+                m.at(&cx.pin_name(link.sense.pin))
                     .at_some_point(cx.plan, value.point.or(limit.point))
             });
         };

@@ -198,6 +198,20 @@ impl Margins {
         }
     }
 
+    /// Keeps `margin`, once `place` has named where and when, when it is
+    /// the tightest of its kind so far; `place` is not run otherwise.
+    pub fn offer(&self, margin: Margin, place: impl FnOnce(Margin) -> Margin) {
+        let tighter = self
+            .tightest
+            .borrow()
+            .iter()
+            .find(|m| m.kind == margin.kind)
+            .is_none_or(|kept| margin.tighter_than(kept));
+        if tighter {
+            self.record(place(margin));
+        }
+    }
+
     /// The tightest margin of each kind, tightest first.
     pub fn into_sorted(self) -> Vec<Margin> {
         let mut margins = self.tightest.into_inner();

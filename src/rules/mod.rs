@@ -169,11 +169,12 @@ pub struct Context<'a> {
 }
 
 impl Context<'_> {
-    /// Records a comparison against a rating or limit (built only when a
-    /// recorder is present).
-    pub fn margin(&self, margin: impl FnOnce() -> Margin) {
+    /// Records a comparison against a rating or limit; `place` names where
+    /// and when, and runs only when the margin is the tightest of its kind
+    /// so far (and a recorder is present).
+    pub fn margin(&self, margin: Margin, place: impl FnOnce(Margin) -> Margin) {
         if let Some(margins) = self.margins {
-            margins.record(margin());
+            margins.offer(margin, place);
         }
     }
 

@@ -160,32 +160,29 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
             limit,
             severity,
         };
-        let name = cx.pin_name(pin_ref);
         if let Some(max) = pin.max {
-            cx.margin(|| {
+            cx.margin(
                 Margin::below(
                     RatingKind::SupplyMax,
                     OVER_MAX.id,
                     highest,
                     volts(max),
                     Unit::Volt,
-                )
-                .at(&name)
-                .at_point(cx.plan, point)
-            });
+                ),
+                |m| m.at(&cx.pin_name(pin_ref)).at_point(cx.plan, point),
+            );
         }
         if let Some(range) = pin.range {
-            cx.margin(|| {
+            cx.margin(
                 Margin::below(
                     RatingKind::SupplyRangeMax,
                     OVER_RANGE.id,
                     highest,
                     volts(range.max),
                     Unit::Volt,
-                )
-                .at(&name)
-                .at_point(cx.plan, point)
-            });
+                ),
+                |m| m.at(&cx.pin_name(pin_ref)).at_point(cx.plan, point),
+            );
         }
         if let Some(max) = pin.max
             && exceeds(highest, volts(max))
@@ -292,17 +289,16 @@ fn check_under(cx: &Context, out: &mut Vec<Finding>) {
                 .get(pin_ref.part, pin_ref.pin)
                 .map(|v| -volts(v))
         }) {
-            cx.margin(|| {
+            cx.margin(
                 Margin::above(
                     RatingKind::SupplyRangeMin,
                     UNDER_RANGE.id,
                     -negated,
                     volts(range.min),
                     Unit::Volt,
-                )
-                .at(&cx.pin_name(pin_ref))
-                .at_point(cx.plan, point)
-            });
+                ),
+                |m| m.at(&cx.pin_name(pin_ref)).at_point(cx.plan, point),
+            );
         }
         let lowest_where = |keep: fn(BatteryState) -> bool| {
             worst_point(cx.points().filter(|p| keep(p.battery)), |p| {

@@ -176,17 +176,16 @@ fn check_ampacity(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
-        cx.margin(|| {
+        cx.margin(
             Margin::below(
                 RatingKind::WireAmpacity,
                 AMPACITY.id,
                 current,
                 amps(rating),
                 Unit::Ampere,
-            )
-            .at(&conductor.subject)
-            .at_point(cx.plan, point)
-        });
+            ),
+            |m| m.at(&conductor.subject).at_point(cx.plan, point),
+        );
         if !exceeds(current, amps(rating)) {
             continue;
         }
@@ -452,17 +451,19 @@ fn check_drop(cx: &Context, out: &mut Vec<Finding>) {
         let Some(drop) = wiring_drop(cx, &resistance, point, &load) else {
             continue;
         };
-        cx.margin(|| {
+        cx.margin(
             Margin::below(
                 RatingKind::WireDrop,
                 DROP.id,
                 volts(drop.total()),
                 volts(drop.source) * limit.get::<ratio>(),
                 Unit::Volt,
-            )
-            .at(&format!("to {}", cx.pin_name(load.pin)))
-            .at_point(plan, point)
-        });
+            ),
+            |m| {
+                m.at(&format!("to {}", cx.pin_name(load.pin)))
+                    .at_point(plan, point)
+            },
+        );
         if !exceeds(share, limit.get::<ratio>()) {
             continue;
         }

@@ -162,9 +162,11 @@ enum Command {
         /// A design choice and the values to try, `KEY=V1,V2,…`; repeat for
         /// more. KEY is a part (its library id: `pack=battery/lipo-3s,battery/lipo-4s`),
         /// a part's field (`buck.current=3 A,5 A`), a net's field
-        /// (`VMOT.wire=16 AWG,14 AWG`), a limit (`limits.wire_drop=3 %,5 %`)
-        /// or a mode's length (`modes.climb.lasts=2 s,4 s`). Adds to, or
-        /// replaces, the plan's `sweep:` section.
+        /// (`VMOT.wire=16 AWG,14 AWG`), several nets' field at once
+        /// (`VMOT+GND_MOT.wire=18 AWG,16 AWG`), a limit
+        /// (`limits.wire_drop=3 %,5 %`) or a mode's length
+        /// (`modes.climb.lasts=2 s,4 s`). Adds to, or replaces, the plan's
+        /// `sweep:` section.
         #[arg(long = "vary", value_name = "KEY=V1,V2,…")]
         vary: Vec<String>,
         /// Order the passing rows (and the failing ones) by runtime (longest
@@ -186,7 +188,8 @@ enum Command {
         /// How many combinations to check at once (default: one per core).
         #[arg(long, value_name = "N")]
         jobs: Option<usize>,
-        /// Write the best passing combination (the first row) as a whole plan.
+        /// Write the best passing combination (the first row, or the best by
+        /// `--rank` when rows stream) as a whole plan.
         #[arg(long, value_name = "OUT.yaml")]
         write_best: Option<PathBuf>,
         /// No progress bar and no line saying how many combinations run.

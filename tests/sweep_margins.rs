@@ -442,3 +442,48 @@ fn piped_output_has_no_progress_bar_and_quiet_says_nothing() {
     );
     assert_eq!(quiet.stdout, out.stdout);
 }
+
+#[test]
+fn logic_margins_are_the_noise_margins_of_the_levels() {
+    // TTL levels as written on the pins: VOH 2.4 V, VOL 0.4 V out; VIH
+    // 2.0 V, VIL 0.8 V in. The noise margins are NMH = VOH − VIH = 0.4 V
+    // and NML = VIL − VOL = 0.4 V (JEDEC JESD8 definitions; the TTL values
+    // are the standard TTL table's). As shares: 0.4 / 2.0 = 20 % of VIH,
+    // 0.4 / 0.8 = 50 % of VIL.
+    let plan = "\
+railcheck: 1
+parts:
+  pack: { use: battery/lipo-3s }
+  fuse: { use: fuse/blade-5a }
+  buck: { use: regulator/buck-5v-3a }
+  tx:
+    class: sensor
+    pins:
+      vcc: { role: supply-in, range: 4.5 V..5.5 V, draw: 10 mA }
+      gnd: { role: ground }
+      out: { role: logic-out, voh: 2.4 V, vol: 0.4 V }
+  rx:
+    class: sensor
+    pins:
+      vcc: { role: supply-in, range: 4.5 V..5.5 V, draw: 10 mA }
+      gnd: { role: ground }
+      in: { role: logic-in, vih: 2.0 V, vil: 0.8 V, max: 7 V }
+nets:
+  BATT+: [pack.pos, fuse.a]
+  VB: [fuse.b, buck.vin]
+  5V: [buck.vout, tx.vcc, rx.vcc]
+  GND: [pack.neg, buck.gnd, tx.gnd, rx.gnd]
+  SIG: [tx.out, rx.in]
+";
+    let checked = railcheck::check("ttl.yaml", plan, &Library::builtin()).unwrap();
+    let high = margin(&checked.margins, RatingKind::LogicHigh);
+    assert!(!high.upper && close(high.left(), 0.4, 1e-9), "{high:?}");
+    assert!(close(high.share().unwrap(), 0.2, 1e-9));
+    assert_eq!(high.at, "rx.in");
+    let low = margin(&checked.margins, RatingKind::LogicLow);
+    assert!(low.upper && close(low.left(), 0.4, 1e-9), "{low:?}");
+    assert!(close(low.share().unwrap(), 0.5, 1e-9));
+    // The 3 A buck feeds 2 × 10 mA: 3 − 0.02 = 2.98 A left, 99.3 %.
+    let buck = margin(&checked.margins, RatingKind::RegulatorCurrent);
+    assert!(close(buck.left(), 2.98, 1e-9), "{buck:?}");
+}

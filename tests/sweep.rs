@@ -111,6 +111,13 @@ fn every_row_is_what_check_says_of_that_variant_written_out() {
             "{:?}",
             row.values
         );
+        // The tightest margin is the first of the variant's own.
+        assert_eq!(
+            verdict.margin.as_ref(),
+            checked.margins.first(),
+            "{:?}",
+            row.values
+        );
         // The written variant is the hand-made one, byte for byte.
         assert_eq!(sweep.variant(row.index), text, "{:?}", row.values);
     }

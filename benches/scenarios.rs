@@ -50,6 +50,7 @@ fn scenarios(c: &mut Criterion) {
                         circuit: &checked.circuit,
                         analysis: checked.analysis.as_ref(),
                         scenarios: Some(&scenarios),
+                        margins: None,
                     };
                     let mut findings = Vec::new();
                     for id in SCENARIO_RULES {

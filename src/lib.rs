@@ -67,6 +67,9 @@ pub struct Checked {
     pub scenarios: scenario::Scenarios,
     /// Every problem found, sorted by place in the plan, then severity and rule.
     pub findings: Vec<Finding>,
+    /// The tightest comparison the rules made against each kind of rating
+    /// or limit, tightest first (empty without an operating point).
+    pub margins: Vec<rules::Margin>,
 }
 
 /// A plan that could not be read: every input problem found.
@@ -219,9 +222,24 @@ pub fn read(
     text: &str,
     library: &Library,
 ) -> Result<(Sources, SourceId, Plan), InputFailure> {
+    read_tree(file_name, text, None, library)
+}
+
+/// [`read`] with the plan's tree already parsed (its spans in the first
+/// source, the plan's); `None` parses `text`.
+fn read_tree(
+    file_name: &str,
+    text: &str,
+    tree: Option<syntax::Node>,
+    library: &Library,
+) -> Result<(Sources, SourceId, Plan), InputFailure> {
     let mut sources = Sources::default();
     let plan_source = sources.add(file_name, text);
-    let root = match syntax::parse(plan_source, text) {
+    let parsed = match tree {
+        Some(tree) => Ok(tree),
+        None => syntax::parse(plan_source, text),
+    };
+    let root = match parsed {
         Ok(root) => root,
         Err(e) => {
             let too_large = e.is_size_limit();
@@ -290,7 +308,19 @@ pub fn read(
 /// assert!(checked.findings.iter().any(|f| f.rule == "fuse/missing"));
 /// ```
 pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, InputFailure> {
-    let (sources, plan_source, plan) = read(file_name, text, library)?;
+    check_tree(file_name, text, None, library)
+}
+
+/// [`check`] of a plan whose tree is already parsed: `tree` must be what
+/// `syntax::parse(SourceId(0), text)` gives (a sweep builds it from the
+/// base plan's tree and the few entries a variant changes).
+pub(crate) fn check_tree(
+    file_name: &str,
+    text: &str,
+    tree: Option<syntax::Node>,
+    library: &Library,
+) -> Result<Checked, InputFailure> {
+    let (sources, plan_source, plan) = read_tree(file_name, text, tree, library)?;
     let circuit = Circuit::build(&plan);
     // Shorts and loops are decided on the graph first; with either, there is
     // no meaningful operating point to solve.
@@ -300,6 +330,7 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         circuit: &circuit,
         analysis: None,
         scenarios: Some(&scenarios),
+        margins: None,
     };
     // Only the two rules that decide it run here; every rule runs below.
     let mut topology_findings = Vec::new();
@@ -312,11 +343,13 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         .iter()
         .any(|f| f.rule == "power/short" || f.rule == "power/loop");
     let analysis = (!blocking).then(|| Analysis::solve(&plan, &circuit));
+    let margins = rules::Margins::default();
     let findings = rules::run(&Context {
         plan: &plan,
         circuit: &circuit,
         analysis: analysis.as_ref(),
         scenarios: Some(&scenarios),
+        margins: Some(&margins),
     });
     Ok(Checked {
         sources,
@@ -326,5 +359,6 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
         analysis,
         scenarios,
         findings,
+        margins: margins.into_sorted(),
     })
 }

@@ -169,14 +169,18 @@ enum Command {
         /// A design choice and the values to try, `KEY=V1,V2,…`; repeat for
         /// more. KEY is a part (its library id: `pack=battery/lipo-3s,battery/lipo-4s`),
         /// a part's field (`buck.current=3 A,5 A`), a net's field
-        /// (`VMOT.wire=16 AWG,14 AWG`), a limit (`limits.wire_drop=3 %,5 %`)
-        /// or a mode's length (`modes.climb.lasts=2 s,4 s`). Adds to, or
-        /// replaces, the plan's `sweep:` section.
+        /// (`VMOT.wire=16 AWG,14 AWG`), several nets' field at once
+        /// (`VMOT+GND_MOT.wire=18 AWG,16 AWG`), a limit
+        /// (`limits.wire_drop=3 %,5 %`) or a mode's length
+        /// (`modes.climb.lasts=2 s,4 s`). Adds to, or replaces, the plan's
+        /// `sweep:` section.
         #[arg(long = "vary", value_name = "KEY=V1,V2,…")]
         vary: Vec<String>,
         /// Order the passing rows (and the failing ones) by runtime (longest
-        /// first) or peak battery current (lowest first); without it, fewest
-        /// warnings first, then in combination order.
+        /// first), peak battery current, mass or cost (lowest first); without
+        /// it, fewest warnings first, then in combination order. With
+        /// `--format csv` or `json-lines` rows stream in combination order
+        /// and the ranking picks the best.
         #[arg(long, value_enum, value_name = "BY")]
         rank: Option<RankBy>,
         /// Show only the combinations that pass.
@@ -191,9 +195,13 @@ enum Command {
         /// How many combinations to check at once (default: one per core).
         #[arg(long, value_name = "N")]
         jobs: Option<usize>,
-        /// Write the best passing combination (the first row) as a whole plan.
+        /// Write the best passing combination (the first row, or the best by
+        /// `--rank` when rows stream) as a whole plan.
         #[arg(long, value_name = "OUT.yaml")]
         write_best: Option<PathBuf>,
+        /// No progress bar and no line saying how many combinations run.
+        #[arg(long, short = 'q')]
+        quiet: bool,
     },
     /// List the rules, or explain one (`railcheck rules fuse/undersized`).
     Rules {
@@ -272,6 +280,8 @@ enum Format {
     Sarif,
     /// CSV rows for a spreadsheet (`wires` and `sweep`).
     Csv,
+    /// One JSON object per line, streamed as rows finish (`sweep` only).
+    JsonLines,
     /// A Markdown checklist (`bringup` only).
     Markdown,
 }
@@ -282,15 +292,25 @@ enum RankBy {
     Runtime,
     /// Lowest peak battery current first.
     Peak,
+    /// Lightest first (the parts that give a `mass`).
+    Mass,
+    /// Cheapest first (the parts that give a `cost`).
+    Cost,
 }
 
 /// Shown under `--help` of `sweep`.
 const SWEEP_HELP: &str = "\
+Output:
+  the table and --format json hold every row and order them (passing first,
+  then --rank); --format csv and json-lines stream each row as it is checked,
+  in combination order, keeping only the best in memory.
+
 Exit codes:
-  0  at least one combination passes
-  1  no combination passes (or --write-best found none to write)
-  2  the plan or a --vary argument could not be read, too many combinations,
-     or a file could not be written";
+  0    at least one combination passes
+  1    no combination passes (or --write-best found none to write)
+  2    the plan or a --vary argument could not be read, too many combinations,
+       or a file could not be written
+  130  interrupted (Ctrl-C): the rows checked so far are written first";
 
 /// What `railcheck sweep` was asked for besides the plan.
 struct SweepOptions {
@@ -301,6 +321,7 @@ struct SweepOptions {
     max: usize,
     jobs: Option<usize>,
     write_best: Option<PathBuf>,
+    quiet: bool,
 }
 
 #[derive(Clone, Copy, ValueEnum, PartialEq, Eq)]
@@ -321,6 +342,8 @@ enum NotesPaper {
 
 const EXIT_FINDINGS: u8 = 1;
 const EXIT_INPUT: u8 = 2;
+/// A sweep stopped by Ctrl-C (128 + SIGINT, the shells' convention).
+const EXIT_INTERRUPTED: u8 = 130;
 
 /// The plan path that means standard input, and its name in reports.
 const STDIN_PATH: &str = "-";
@@ -383,6 +406,7 @@ fn main() -> ExitCode {
             max,
             jobs,
             write_best,
+            quiet,
         } => sweep(
             &run,
             &plan,
@@ -394,6 +418,7 @@ fn main() -> ExitCode {
                 max,
                 jobs,
                 write_best,
+                quiet,
             },
         ),
         Command::Rules { id } => rules(id.as_deref()),
@@ -475,7 +500,9 @@ fn fail(message: &str) -> ExitCode {
 fn fail_as(args: &PlanArgs, message: &str) -> ExitCode {
     let file = plan_name(&args.file);
     match args.format {
-        Format::Json => emit(&report::unplaced_input_error_json(&file, message)),
+        Format::Json | Format::JsonLines => {
+            emit(&report::unplaced_input_error_json(&file, message))
+        }
         Format::Sarif => emit(&report::unplaced_input_error_sarif(
             &file,
             railcheck::rules::RULES,
@@ -649,7 +676,7 @@ fn report_input(
     stream: Stream,
 ) -> ExitCode {
     let out = match args.format {
-        Format::Json => {
+        Format::Json | Format::JsonLines => {
             report::input_errors_json(&failure.sources, failure.plan_source, &failure.errors)
         }
         Format::Sarif => {
@@ -712,13 +739,15 @@ fn check(
             &checked.findings,
             &cautions,
         ),
-        Format::Human | Format::Csv | Format::Markdown => report::render_findings(
-            &checked.sources,
-            checked.plan_source,
-            &checked.findings,
-            &cautions,
-            style(run, Stream::Stdout),
-        ),
+        Format::Human | Format::Csv | Format::Markdown | Format::JsonLines => {
+            report::render_findings(
+                &checked.sources,
+                checked.plan_source,
+                &checked.findings,
+                &cautions,
+                style(run, Stream::Stdout),
+            )
+        }
     };
     emit(&out);
     let failing = checked
@@ -733,8 +762,12 @@ fn check(
 }
 
 fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
-    use railcheck::sweep::{Rank, Sweep, SweepError, order};
-    refuse_format(args, "sweep", &[Format::Human, Format::Json, Format::Csv]);
+    use railcheck::sweep::{Rank, Summary, Sweep, SweepError, order};
+    refuse_format(
+        args,
+        "sweep",
+        &[Format::Human, Format::Json, Format::Csv, Format::JsonLines],
+    );
     if let Some(path) = &options.write_best {
         if is_stdin(path) {
             return fail_as(
@@ -752,7 +785,12 @@ fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
             );
         }
     }
-    let stream = problems_beside(args, Format::Csv);
+    // Streamed formats keep standard output for their rows.
+    let stream = if args.format == Format::JsonLines {
+        Stream::Stderr
+    } else {
+        problems_beside(args, Format::Csv)
+    };
     let (checked, library) = match load_with_library(run, args, stream) {
         Ok(loaded) => loaded,
         Err(code) => return code,
@@ -792,47 +830,114 @@ fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
         .jobs
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, |n| n.get()))
         .clamp(1, total.max(1));
-    eprintln!(
-        "railcheck: checking {total} combination{} on {threads} thread{}",
-        if total == 1 { "" } else { "s" },
-        if threads == 1 { "" } else { "s" }
-    );
-    let mut rows = sweep.run(&library, threads);
+    if !options.quiet {
+        eprintln!(
+            "railcheck: checking {total} combination{} on {threads} thread{}",
+            if total == 1 { "" } else { "s" },
+            if threads == 1 { "" } else { "s" }
+        );
+    }
     let rank = options.rank.map(|r| match r {
         RankBy::Runtime => Rank::Runtime,
         RankBy::Peak => Rank::Peak,
+        RankBy::Mass => Rank::Mass,
+        RankBy::Cost => Rank::Cost,
     });
-    order(&mut rows, rank, options.strict);
-    let best = rows
-        .first()
-        .filter(|r| r.passes(options.strict))
-        .map(|r| r.index);
-    // The best plan is written first, so that a failure to write it is the
-    // one document a machine-readable format prints.
-    if let Some(path) = &options.write_best
+    let stop = interrupt_flag();
+    let progress = SweepProgress::new(total, options.quiet);
+    let mut summary = Summary::new(rank, options.strict);
+    let name = checked.sources.name(checked.plan_source).to_string();
+    let streamed = matches!(args.format, Format::Csv | Format::JsonLines);
+    let mut rows = Vec::new();
+    if streamed {
+        // Each row is written as soon as the rows before it are: nothing but
+        // the summary is kept.
+        emit(&match args.format {
+            Format::Csv => report::sweep_csv_header(&sweep.axes),
+            _ => report::sweep_jsonl_start(&name, &sweep.axes, total, options.strict),
+        });
+        sweep.run_streaming(
+            &library,
+            threads,
+            stop,
+            |row| {
+                summary.add(&row);
+                if options.only_passing && !row.passes(options.strict) {
+                    return;
+                }
+                emit(&match args.format {
+                    Format::Csv => report::sweep_csv_record(&row, options.strict),
+                    _ => report::sweep_jsonl_row(&row, options.strict),
+                });
+            },
+            |done| progress.tick(done),
+        );
+    } else {
+        sweep.run_streaming(
+            &library,
+            threads,
+            stop,
+            |row| {
+                summary.add(&row);
+                rows.push(row);
+            },
+            |done| progress.tick(done),
+        );
+    }
+    progress.finish();
+    let interrupted = summary.checked < total;
+    let best = summary.best_passing().map(|r| r.index);
+    // The best plan is written before the table, so that a failure to write
+    // it is the one document a machine-readable format prints (streamed
+    // rows are out already: then the failure is said on standard error).
+    if !interrupted
+        && let Some(path) = &options.write_best
         && let Some(index) = best
     {
         let text = sweep.variant(index);
         if let Err(message) = write_output(path, &args.file, text.as_bytes()) {
-            return fail_as(args, &message);
+            // Streamed rows are already out: the message goes beside them.
+            return if streamed {
+                fail(&message)
+            } else {
+                fail_as(args, &message)
+            };
         }
         wrote(path, text.len());
     }
-    if options.only_passing {
-        rows.retain(|r| r.passes(options.strict));
+    if streamed {
+        if args.format == Format::JsonLines {
+            emit(&report::sweep_jsonl_end(&summary, total));
+        }
+    } else {
+        order(&mut rows, rank, options.strict);
+        if options.only_passing {
+            rows.retain(|r| r.passes(options.strict));
+        }
+        let counts = (summary.checked, total);
+        emit(&match args.format {
+            Format::Json => report::sweep_json(&name, &sweep.axes, &rows, counts, options.strict),
+            _ => shown(report::sweep_table(
+                &name,
+                &sweep.axes,
+                &rows,
+                counts,
+                options.strict,
+            )),
+        });
     }
-    let name = checked.sources.name(checked.plan_source);
-    emit(&match args.format {
-        Format::Json => report::sweep_json(name, &sweep.axes, &rows, total, options.strict),
-        Format::Csv => report::sweep_csv(&sweep.axes, &rows, options.strict),
-        _ => shown(report::sweep_table(
-            name,
-            &sweep.axes,
-            &rows,
-            total,
-            options.strict,
-        )),
-    });
+    if interrupted {
+        eprintln!(
+            "railcheck: interrupted: {} of {total} combinations were checked{}",
+            summary.checked,
+            if options.write_best.is_some() {
+                "; no best plan was written"
+            } else {
+                ""
+            }
+        );
+        return ExitCode::from(EXIT_INTERRUPTED);
+    }
     match (best, &options.write_best) {
         (Some(_), _) => ExitCode::SUCCESS,
         (None, Some(path)) => {
@@ -843,6 +948,68 @@ fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCode {
             ExitCode::from(EXIT_FINDINGS)
         }
         (None, None) => ExitCode::from(EXIT_FINDINGS),
+    }
+}
+
+/// Set by Ctrl-C: a sweep stops taking new combinations and writes what it
+/// has. A second Ctrl-C ends the program at once.
+fn interrupt_flag() -> &'static std::sync::atomic::AtomicBool {
+    use std::sync::atomic::{AtomicBool, Ordering};
+    static STOP: AtomicBool = AtomicBool::new(false);
+    // Without a handler (one already set, or no signals here) Ctrl-C simply
+    // ends the program, as it would anyway.
+    let _ = ctrlc::set_handler(|| {
+        if STOP.swap(true, Ordering::SeqCst) {
+            std::process::exit(i32::from(EXIT_INTERRUPTED));
+        }
+    });
+    &STOP
+}
+
+/// The progress bar of a sweep: drawn on standard error only when it is a
+/// terminal, the sweep has run for more than a second and `--quiet` is not
+/// given.
+struct SweepProgress {
+    bar: indicatif::ProgressBar,
+    started: std::time::Instant,
+    shown: std::cell::Cell<bool>,
+    allowed: bool,
+}
+
+impl SweepProgress {
+    fn new(total: usize, quiet: bool) -> SweepProgress {
+        use std::io::IsTerminal;
+        let bar = indicatif::ProgressBar::with_draw_target(
+            Some(total as u64),
+            indicatif::ProgressDrawTarget::hidden(),
+        );
+        if let Ok(style) = indicatif::ProgressStyle::with_template(
+            "{bar:30} {pos}/{len} combinations, {elapsed} so far, about {eta} left",
+        ) {
+            bar.set_style(style);
+        }
+        SweepProgress {
+            bar,
+            started: std::time::Instant::now(),
+            shown: std::cell::Cell::new(false),
+            allowed: !quiet && std::io::stderr().is_terminal(),
+        }
+    }
+
+    fn tick(&self, done: usize) {
+        self.bar.set_position(done as u64);
+        if self.allowed
+            && !self.shown.get()
+            && self.started.elapsed() > std::time::Duration::from_secs(1)
+        {
+            self.shown.set(true);
+            self.bar
+                .set_draw_target(indicatif::ProgressDrawTarget::stderr());
+        }
+    }
+
+    fn finish(&self) {
+        self.bar.finish_and_clear();
     }
 }
 
@@ -1095,11 +1262,13 @@ fn refuse_format(args: &PlanArgs, command: &str, allowed: &[Format]) {
         Format::Sarif => "`sarif`",
         Format::Csv => "`csv`",
         Format::Markdown => "`markdown`",
+        Format::JsonLines => "`json-lines`",
     };
     let why = match args.format {
         Format::Sarif => " (SARIF carries findings)",
         Format::Csv => " (CSV is the rows of the wire list or a sweep)",
         Format::Markdown => " (Markdown is the bring-up checklist)",
+        Format::JsonLines => " (JSON lines stream the rows of a sweep)",
         _ => "",
     };
     let choices: Vec<&str> = allowed.iter().map(name).collect();

@@ -10,14 +10,16 @@
 //!
 //! Not for: printing the table (that is `report::sweep_*`).
 
+mod tree;
+
 use crate::budget::budget;
 use crate::model::{InputError, Library, format};
-use crate::rules::Severity;
+use crate::rules::{Margin, Severity};
 use crate::spelling::closest;
 use crate::syntax::{self, Node, NodeKind, SourceId, Span};
 use crate::{Checked, InputFailure};
-use uom::si::f64::{ElectricCurrent, Ratio, Time};
-use uom::si::ratio::ratio;
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
+use uom::si::f64::{ElectricCurrent, Mass, Time};
 
 /// The most combinations a sweep checks unless told otherwise (`--max`): at
 /// a few tens of milliseconds per check, about ten minutes on one core.
@@ -48,6 +50,14 @@ pub enum Target {
         /// The field (`wire`, `length`).
         field: String,
     },
+    /// The same field of several nets at once (`VMOT+GND_MOT.wire`): each
+    /// net gets the value.
+    NetsField {
+        /// The nets' names, in the order written.
+        nets: Vec<String>,
+        /// The field (`wire`, `length`).
+        field: String,
+    },
     /// A project-wide limit (`limits.wire_drop`).
     Limit {
         /// The limit's key.
@@ -72,10 +82,52 @@ impl Target {
             } => vec!["parts", part, "with", field],
             Target::PartField { part, field, .. } => vec!["parts", part, field],
             Target::NetField { net, field } => vec!["nets", net, field],
+            // Expanded into one `NetField` per net before any edit (`each`).
+            Target::NetsField { field, .. } => vec!["nets", field],
             Target::Limit { field } => vec!["limits", field],
             Target::ModeLasts { mode } => vec!["modes", mode, "lasts"],
         }
     }
+}
+
+impl Target {
+    /// The single targets this one edits: a `NetsField` is one `NetField`
+    /// per net.
+    fn each(&self) -> Vec<Target> {
+        match self {
+            Target::NetsField { nets, field } => nets
+                .iter()
+                .map(|net| Target::NetField {
+                    net: net.clone(),
+                    field: field.clone(),
+                })
+                .collect(),
+            other => vec![other.clone()],
+        }
+    }
+}
+
+/// Splits `VMOT+GND_MOT` into net names, trying longer names first so a
+/// net whose own name has a `+` (`BATT+`) is found whole. `None` when no
+/// split names only nets of the plan.
+fn split_nets(key: &str, nets: &[String]) -> Option<Vec<String>> {
+    let pieces: Vec<&str> = key.split('+').collect();
+    fn from(at: usize, pieces: &[&str], nets: &[String]) -> Option<Vec<String>> {
+        if at == pieces.len() {
+            return Some(Vec::new());
+        }
+        for end in (at + 1..=pieces.len()).rev() {
+            let name = pieces[at..end].join("+");
+            if nets.contains(&name)
+                && let Some(mut rest) = from(end, pieces, nets)
+            {
+                rest.insert(0, name);
+                return Some(rest);
+            }
+        }
+        None
+    }
+    from(0, &pieces, nets)
 }
 
 /// One design choice and the values it takes.
@@ -107,6 +159,11 @@ pub struct Sweep {
     file_name: String,
     text: String,
     root: Node,
+    /// Each part's class, by name, as the plan reads.
+    classes: Vec<(String, &'static str)>,
+    /// Where the plan's sections and entries are, so a variant re-parses
+    /// only the entries it changes (`None`: parse every variant whole).
+    layout: Option<tree::Layout>,
     /// The axes: the plan's `sweep:` section first, then each `--vary`
     /// (a `--vary` of a key the section also names replaces it).
     pub axes: Vec<Axis>,
@@ -128,7 +185,7 @@ pub struct Row {
 #[derive(Clone, Debug, PartialEq)]
 pub enum Outcome {
     /// The variant read and was checked.
-    Checked(Verdict),
+    Checked(Box<Verdict>),
     /// The variant could not be read (values that do not go together, such
     /// as a field the chosen part's class does not have): the first problem.
     Unreadable(String),
@@ -150,10 +207,21 @@ pub struct Verdict {
     pub runtime: Option<Time>,
     /// The highest peak current out of any battery.
     pub peak_current: Option<ElectricCurrent>,
-    /// The tightest headroom: the smallest share of a source's current
-    /// rating (a rail's regulator or battery, a battery's discharge rating)
-    /// left at peak, and where. Negative when a rating is exceeded.
-    pub headroom: Option<(String, Ratio)>,
+    /// The tightest margin: of every comparison the rules made against a
+    /// rating or limit (wire ampacity and drop, fuse, regulator, driver
+    /// channel and battery currents, supply-pin voltages, logic levels), the
+    /// one with the smallest share of its limit left, with where and when.
+    /// Negative when a limit is passed.
+    pub margin: Option<Margin>,
+    /// The parts' masses added up, when any part gives one.
+    pub mass: Option<Mass>,
+    /// How many parts give no mass (the sum leaves them out).
+    pub without_mass: usize,
+    /// The parts' costs added up (in the plan's own currency), when any
+    /// part gives one.
+    pub cost: Option<f64>,
+    /// How many parts give no cost.
+    pub without_cost: usize,
 }
 
 impl Row {
@@ -166,7 +234,8 @@ impl Row {
         }
     }
 
-    fn verdict(&self) -> Option<&Verdict> {
+    /// The verdict, when the variant read.
+    pub fn verdict(&self) -> Option<&Verdict> {
         match &self.outcome {
             Outcome::Checked(v) => Some(v),
             Outcome::Unreadable(_) => None,
@@ -181,36 +250,96 @@ pub enum Rank {
     Runtime,
     /// Lowest peak battery current first.
     Peak,
+    /// Lightest first (the parts that give a mass).
+    Mass,
+    /// Cheapest first (the parts that give a cost).
+    Cost,
+}
+
+/// How a row sorts: passing first; then by `rank` when given (a missing
+/// figure last), fewer warnings, combination order.
+fn rank_key(r: &Row, rank: Option<Rank>, strict: bool) -> (bool, f64, usize, usize) {
+    let v = r.verdict();
+    let ranked = match rank {
+        // Higher is better: negate.
+        Some(Rank::Runtime) => v
+            .and_then(|v| v.runtime)
+            .map_or(f64::INFINITY, |t| -t.value),
+        Some(Rank::Peak) => v
+            .and_then(|v| v.peak_current)
+            .map_or(f64::INFINITY, |i| i.value),
+        Some(Rank::Mass) => v.and_then(|v| v.mass).map_or(f64::INFINITY, |m| m.value),
+        Some(Rank::Cost) => v.and_then(|v| v.cost).unwrap_or(f64::INFINITY),
+        None => 0.0,
+    };
+    (
+        !r.passes(strict),
+        ranked,
+        v.map_or(usize::MAX, |v| v.warnings),
+        r.index,
+    )
+}
+
+fn compare(a: &Row, b: &Row, rank: Option<Rank>, strict: bool) -> std::cmp::Ordering {
+    let (ka, kb) = (rank_key(a, rank, strict), rank_key(b, rank, strict));
+    ka.0.cmp(&kb.0)
+        .then(ka.1.total_cmp(&kb.1))
+        .then(ka.2.cmp(&kb.2))
+        .then(ka.3.cmp(&kb.3))
 }
 
 /// Orders rows for the table: passing rows first; within each group by
 /// `rank` when given, then fewer warnings, then combination order. The best
 /// combination is the first row when it passes.
 pub fn order(rows: &mut [Row], rank: Option<Rank>, strict: bool) {
-    rows.sort_by(|a, b| {
-        let key = |r: &Row| {
-            let v = r.verdict();
-            let runtime = v.and_then(|v| v.runtime).map(|t| t.value);
-            let peak = v.and_then(|v| v.peak_current).map(|i| i.value);
-            let ranked = match rank {
-                // Higher is better: negate; a missing figure sorts last.
-                Some(Rank::Runtime) => runtime.map_or(f64::INFINITY, |t| -t),
-                Some(Rank::Peak) => peak.unwrap_or(f64::INFINITY),
-                None => 0.0,
-            };
-            (
-                !r.passes(strict),
-                ranked,
-                v.map_or(usize::MAX, |v| v.warnings),
-                r.index,
-            )
-        };
-        let (ka, kb) = (key(a), key(b));
-        ka.0.cmp(&kb.0)
-            .then(ka.1.total_cmp(&kb.1))
-            .then(ka.2.cmp(&kb.2))
-            .then(ka.3.cmp(&kb.3))
-    });
+    rows.sort_by(|a, b| compare(a, b, rank, strict));
+}
+
+/// What a streamed sweep keeps of its rows: how many were checked and
+/// passed, and the best row by the same order as [`order`] — a few numbers,
+/// whatever the number of combinations.
+#[derive(Clone, Debug)]
+pub struct Summary {
+    /// How many rows were checked.
+    pub checked: usize,
+    /// How many of them pass.
+    pub passing: usize,
+    /// The first row in [`order`]'s order among those seen.
+    pub best: Option<Row>,
+    rank: Option<Rank>,
+    strict: bool,
+}
+
+impl Summary {
+    /// An empty summary ranking by `rank`.
+    pub fn new(rank: Option<Rank>, strict: bool) -> Summary {
+        Summary {
+            checked: 0,
+            passing: 0,
+            best: None,
+            rank,
+            strict,
+        }
+    }
+
+    /// Counts a row, keeping it when it is the best so far.
+    pub fn add(&mut self, row: &Row) {
+        self.checked += 1;
+        if row.passes(self.strict) {
+            self.passing += 1;
+        }
+        let better = self.best.as_ref().is_none_or(|best| {
+            compare(row, best, self.rank, self.strict) == std::cmp::Ordering::Less
+        });
+        if better {
+            self.best = Some(row.clone());
+        }
+    }
+
+    /// The best row when it passes.
+    pub fn best_passing(&self) -> Option<&Row> {
+        self.best.as_ref().filter(|r| r.passes(self.strict))
+    }
 }
 
 impl Sweep {
@@ -249,14 +378,22 @@ impl Sweep {
     /// let sweep = Sweep::new(&base, &library, &vary, 100).unwrap();
     /// let rows = sweep.run(&library, 1);
     /// assert!(!rows[0].passes(false) && rows[1].passes(false));
-    /// let headroom = |i: usize| match &rows[i].outcome {
-    ///     Outcome::Checked(v) => v.headroom.as_ref().unwrap().1.value,
+    /// let margin = |i: usize| match &rows[i].outcome {
+    ///     Outcome::Checked(v) => v.margin.clone().unwrap(),
     ///     Outcome::Unreadable(_) => unreachable!(),
     /// };
-    /// // What is left of the rating at 2.5 A: 1 − 2.5 / 2 = −25 %, and
-    /// // 1 − 2.5 / 5 = 50 %.
-    /// assert!((headroom(0) - -0.25).abs() < 1e-6);
-    /// assert!((headroom(1) - 0.5).abs() < 1e-6);
+    /// // The tightest rating is the buck's output current at 2.5 A: what is
+    /// // left of it is 2 A − 2.5 A = −0.5 A, −25 % of 2 A; and 5 A − 2.5 A
+    /// // = 2.5 A, 50 % of 5 A.
+    /// assert_eq!(margin(0).at, "buck output");
+    /// assert!((margin(0).left() - -0.5).abs() < 1e-6);
+    /// assert!((margin(0).share().unwrap() - -0.25).abs() < 1e-6);
+    /// // With 5 A the buck has 50 % left, and the tightest is the lamp's
+    /// // supply range instead: the buck's `5 V ±2%` reaches 5.1 V, 0.4 V
+    /// // under the lamp's 5.5 V top, 0.4 / 5.5 = 7.3 %.
+    /// assert_eq!(margin(1).at, "lamp.vin");
+    /// assert!((margin(1).left() - 0.4).abs() < 1e-6);
+    /// assert!((margin(1).share().unwrap() - 0.4 / 5.5).abs() < 1e-6);
     /// // The 5 A row's plan is the original with `with: { current: 5 A }`.
     /// assert!(sweep.variant(1).contains("buck: { use: regulator/buck-5v-5a, with: { current: 5 A } }"));
     /// ```
@@ -271,10 +408,18 @@ impl Sweep {
         let root = syntax::parse(SourceId(0), &text).map_err(|e| {
             SweepError::Usage(format!("the plan could not be read again: {}", e.message))
         })?;
+        let layout = tree::Layout::of(&text, &root);
         let mut sweep = Sweep {
             file_name,
             text,
             root,
+            layout,
+            classes: base
+                .plan
+                .parts
+                .iter()
+                .map(|p| (p.name.clone(), p.class.name()))
+                .collect(),
             axes: Vec::new(),
         };
         match sweep.count_as_written(vary) {
@@ -351,13 +496,30 @@ impl Sweep {
 
     /// The plan's text with combination `index` written in: a whole plan.
     pub fn variant(&self, index: usize) -> String {
+        apply(&self.text, self.changes(index))
+    }
+
+    fn changes(&self, index: usize) -> Vec<Splice> {
         let edits: Vec<(&Target, &str)> = self
             .axes
             .iter()
             .zip(self.choice(index))
             .map(|(axis, i)| (&axis.target, axis.values[i].as_str()))
             .collect();
-        edit_text(&self.text, &self.root, &edits)
+        splices(&self.text, &self.root, &edits)
+    }
+
+    /// The variant's text and, when it can be built from the plan's tree
+    /// (see `tree`), its YAML tree: the same as parsing the text.
+    fn variant_and_tree(&self, index: usize) -> (String, Option<Node>) {
+        let mut changes = self.changes(index);
+        changes.sort_by_key(|s| (s.start, s.end));
+        let text = apply(&self.text, changes.iter().map(Splice::clone).collect());
+        let tree = self
+            .layout
+            .as_ref()
+            .and_then(|layout| tree::variant_tree(layout, &self.root, &changes, &text));
+        (text, tree)
     }
 
     /// Checks one combination.
@@ -368,8 +530,9 @@ impl Sweep {
             .zip(self.choice(index))
             .map(|(axis, i)| axis.values[i].clone())
             .collect();
-        let outcome = match crate::check(&self.file_name, &self.variant(index), library) {
-            Ok(checked) => Outcome::Checked(verdict(&checked)),
+        let (text, tree) = self.variant_and_tree(index);
+        let outcome = match crate::check_tree(&self.file_name, &text, tree, library) {
+            Ok(checked) => Outcome::Checked(Box::new(verdict(&checked))),
             Err(failure) => Outcome::Unreadable(first_problem(&failure)),
         };
         Row {
@@ -382,37 +545,75 @@ impl Sweep {
     /// Checks every combination on `threads` threads (at least one); rows
     /// come back in combination order, the same for any number of threads.
     pub fn run(&self, library: &Library, threads: usize) -> Vec<Row> {
+        let mut rows = Vec::new();
+        let never = AtomicBool::new(false);
+        self.run_streaming(library, threads, &never, |row| rows.push(row), |_| {});
+        rows
+    }
+
+    /// Checks every combination on `threads` worker threads (at least one),
+    /// handing each row to `on_row` on the calling thread in combination
+    /// order as soon as every row before it is done: only the rows finished
+    /// out of order wait, never the whole sweep. `tick` is called with how
+    /// many rows are done after each row and about ten times a second.
+    ///
+    /// Setting `stop` stops the workers taking new combinations; the rows
+    /// already finished are still handed over (in combination order, with
+    /// gaps where a combination was never started). Returns whether every
+    /// combination was checked.
+    pub fn run_streaming(
+        &self,
+        library: &Library,
+        threads: usize,
+        stop: &AtomicBool,
+        mut on_row: impl FnMut(Row),
+        mut tick: impl FnMut(usize),
+    ) -> bool {
         let total = self.combinations().unwrap_or(0);
         let threads = threads.clamp(1, total.max(1));
-        if threads == 1 {
-            return (0..total).map(|i| self.row(i, library)).collect();
-        }
-        let next = std::sync::atomic::AtomicUsize::new(0);
-        let mut rows: Vec<Row> = std::thread::scope(|scope| {
-            let workers: Vec<_> = (0..threads)
-                .map(|_| {
-                    scope.spawn(|| {
-                        let mut mine = Vec::new();
-                        loop {
-                            let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-                            if i >= total {
-                                break mine;
-                            }
-                            mine.push(self.row(i, library));
+        let next = AtomicUsize::new(0);
+        // Bounded: when rows are written slower than they are checked (a
+        // slow pipe), the workers wait instead of piling rows up.
+        let (send, receive) = std::sync::mpsc::sync_channel::<Row>(threads * 4);
+        let mut done = 0;
+        std::thread::scope(|scope| {
+            for _ in 0..threads {
+                let send = send.clone();
+                let next = &next;
+                scope.spawn(move || {
+                    while !stop.load(Ordering::Relaxed) {
+                        let i = next.fetch_add(1, Ordering::Relaxed);
+                        if i >= total || send.send(self.row(i, library)).is_err() {
+                            break;
                         }
-                    })
-                })
-                .collect();
-            workers
-                .into_iter()
-                .flat_map(|w| match w.join() {
-                    Ok(rows) => rows,
-                    Err(panic) => std::panic::resume_unwind(panic),
-                })
-                .collect()
+                    }
+                });
+            }
+            drop(send);
+            // Rows finished ahead of one still being checked wait here.
+            let mut waiting: std::collections::BTreeMap<usize, Row> = Default::default();
+            let mut due = 0;
+            loop {
+                match receive.recv_timeout(std::time::Duration::from_millis(100)) {
+                    Ok(row) => {
+                        done += 1;
+                        waiting.insert(row.index, row);
+                        while let Some(row) = waiting.remove(&due) {
+                            on_row(row);
+                            due += 1;
+                        }
+                        tick(done);
+                    }
+                    Err(std::sync::mpsc::RecvTimeoutError::Timeout) => tick(done),
+                    Err(std::sync::mpsc::RecvTimeoutError::Disconnected) => break,
+                }
+            }
+            // Stopped: what finished after a gap, in order.
+            for (_, row) in waiting {
+                on_row(row);
+            }
         });
-        rows.sort_by_key(|r| r.index);
-        rows
+        done == total
     }
 
     // ----- reading the axes ------------------------------------------------
@@ -611,6 +812,47 @@ impl Sweep {
                     ))
                 }
             }
+            [name, field]
+                if name.contains('+')
+                    && !parts.iter().any(|p| p == name)
+                    && !nets.iter().any(|n| n == name) =>
+            {
+                let Some(named) = split_nets(name, &nets) else {
+                    let unknown = name
+                        .split('+')
+                        .find(|piece| !piece.is_empty() && !nets.iter().any(|n| n == piece))
+                        .unwrap_or(name);
+                    return Err((
+                        format!("the plan has no net `{unknown}` (in `{name}`)"),
+                        suggest(unknown, &nets, "nets").or(Some(
+                            "join the nets to vary together with `+`: `VMOT+GND_MOT.wire`".into(),
+                        )),
+                    ));
+                };
+                if let Some(twice) = named
+                    .iter()
+                    .enumerate()
+                    .find_map(|(i, n)| named[..i].contains(n).then_some(n))
+                {
+                    return Err((format!("`{twice}` is named twice in `{name}`"), None));
+                }
+                let keys = format::keys(format::NET);
+                if !keys.contains(field) || *field == "pins" {
+                    let keys: Vec<String> = keys
+                        .iter()
+                        .filter(|k| **k != "pins")
+                        .map(|k| k.to_string())
+                        .collect();
+                    return Err((
+                        format!("a net's `{field}` is not a value to vary"),
+                        suggest(field, &keys, "net fields"),
+                    ));
+                }
+                Ok(Target::NetsField {
+                    nets: named,
+                    field: field.to_string(),
+                })
+            }
             [name, field] if parts.iter().any(|p| p == name) => {
                 let part = base.plan.parts.iter().find(|p| p.name == *name);
                 let Some(part) = part else {
@@ -621,6 +863,7 @@ impl Sweep {
                     .map(|c| format::keys(c.fields))
                     .unwrap_or_default()
                     .iter()
+                    .chain(&format::keys(format::PART_FIELDS))
                     .map(|k| k.to_string())
                     .collect();
                 if keys.iter().any(|k| k == field) {
@@ -645,7 +888,7 @@ impl Sweep {
                 names.push("limits".into());
                 names.push("modes".into());
                 let shape = "keys are `PART` (its library id), `PART.FIELD`, `NET.wire`, \
-                             `NET.length`, `limits.KEY` and `modes.MODE.lasts`";
+                             `NET.length`, `NET+NET.wire`, `limits.KEY` and `modes.MODE.lasts`";
                 let known = parts.iter().chain(&nets).any(|n| n == name)
                     || matches!(*name, "limits" | "modes");
                 if known {
@@ -677,28 +920,85 @@ impl Sweep {
         value: &str,
         library: &Library,
     ) -> Result<(), (String, Option<String>, usize)> {
+        if let Target::PartId { part } = target {
+            self.same_class(part, value, library)?;
+        }
         let changes = splices(&self.text, &self.root, &[(target, value)]);
         let written = scalar(value);
-        // One value makes one change, and the value is its last occurrence.
-        let at = changes
-            .first()
-            .and_then(|s| s.text.rfind(&written).map(|i| s.start + i))
-            .unwrap_or(usize::MAX);
+        // Where the value sits in the text after each change (a key naming
+        // several nets makes one change per net).
+        let mut shift: isize = 0;
+        let mut sorted: Vec<&Splice> = changes.iter().collect();
+        sorted.sort_by_key(|s| s.start);
+        let mut ats = Vec::new();
+        for change in sorted {
+            if let Some(i) = change.text.rfind(&written) {
+                ats.push((change.start as isize + shift) as usize + i);
+            }
+            shift += change.text.len() as isize - (change.end - change.start) as isize;
+        }
         let text = apply(&self.text, changes);
         let Err(failure) = crate::read(&self.file_name, &text, library) else {
             return Ok(());
         };
-        match failure.errors.iter().find(|e| {
-            e.span.source == failure.plan_source
-                && (at..=at.saturating_add(written.len())).contains(&e.span.start)
-        }) {
-            Some(error) => Err((
-                error.message.clone(),
-                error.hint.clone(),
-                error.span.start - at,
-            )),
-            None => Ok(()),
+        for error in &failure.errors {
+            if error.span.source != failure.plan_source {
+                continue;
+            }
+            if let Some(at) = ats
+                .iter()
+                .find(|&&at| (at..=at.saturating_add(written.len())).contains(&error.span.start))
+            {
+                return Err((
+                    error.message.clone(),
+                    error.hint.clone(),
+                    error.span.start - at,
+                ));
+            }
         }
+        Ok(())
+    }
+
+    /// A part's library id can change only to a part of the same class: a
+    /// regulator where a battery was would not be the same design choice,
+    /// and the part's nets and modes would not read.
+    fn same_class(
+        &self,
+        part: &str,
+        id: &str,
+        library: &Library,
+    ) -> Result<(), (String, Option<String>, usize)> {
+        let Some((_, class)) = self.classes.iter().find(|(name, _)| name == part) else {
+            return Ok(());
+        };
+        // An unknown or unreadable id is the reader's to report.
+        let Some(Ok(chosen)) = library.read_part(id) else {
+            return Ok(());
+        };
+        let chosen = chosen.class.name();
+        if chosen == *class {
+            return Ok(());
+        }
+        let same: Vec<String> = library
+            .ids()
+            .filter(|other| {
+                library
+                    .read_part(other)
+                    .is_some_and(|p| p.is_ok_and(|p| p.class.name() == *class))
+            })
+            .take(8)
+            .map(str::to_string)
+            .collect();
+        let hint = if same.is_empty() {
+            format!("choose a library part of class `{class}`")
+        } else {
+            format!("choose a `{class}` part: {}", quoted(&same))
+        };
+        Err((
+            format!("`{id}` is a {chosen}, but `{part}` is a {class}"),
+            Some(hint),
+            0,
+        ))
     }
 }
 
@@ -717,6 +1017,12 @@ fn first_problem(failure: &InputFailure) -> String {
     )
 }
 
+/// The sum of some values; `None` when there are none.
+fn sum<T: std::ops::Add<Output = T>>(mut values: impl Iterator<Item = T>) -> Option<T> {
+    let first = values.next()?;
+    Some(values.fold(first, |total, v| total + v))
+}
+
 /// The row's figures from a checked variant.
 fn verdict(checked: &Checked) -> Verdict {
     let count = |s: Severity| checked.findings.iter().filter(|f| f.severity == s).count();
@@ -726,28 +1032,9 @@ fn verdict(checked: &Checked) -> Verdict {
         .find(|f| f.severity == Severity::Error)
         .map(|f| (f.rule.to_string(), f.message.clone()));
     let budget = budget(checked);
-    let (mut runtime, mut peak_current, mut headroom) = (None, None, None);
+    let (mut runtime, mut peak_current) = (None, None);
     if budget.solved {
-        let mut tightest = |at: String, peak: ElectricCurrent, rating: Option<ElectricCurrent>| {
-            if let Some(rating) = rating.filter(|r| r.value > 0.0) {
-                let left: Ratio = (rating - peak) / rating;
-                if headroom
-                    .as_ref()
-                    .is_none_or(|(_, h): &(String, Ratio)| left.get::<ratio>() < h.get::<ratio>())
-                {
-                    headroom = Some((at, left));
-                }
-            }
-        };
-        for rail in &budget.rails {
-            tightest(rail.source.clone(), rail.peak_current, rail.rating);
-        }
         for battery in &budget.batteries {
-            tightest(
-                battery.name.clone(),
-                battery.peak_current,
-                battery.max_discharge,
-            );
             if let Some(r) = &battery.runtime
                 && runtime.is_none_or(|t: Time| r.time < t)
             {
@@ -765,13 +1052,28 @@ fn verdict(checked: &Checked) -> Verdict {
         first_error,
         runtime,
         peak_current,
-        headroom,
+        margin: checked.margins.first().cloned(),
+        mass: sum(checked.plan.parts.iter().filter_map(|p| p.mass)),
+        without_mass: checked
+            .plan
+            .parts
+            .iter()
+            .filter(|p| p.mass.is_none())
+            .count(),
+        cost: sum(checked.plan.parts.iter().filter_map(|p| p.cost)),
+        without_cost: checked
+            .plan
+            .parts
+            .iter()
+            .filter(|p| p.cost.is_none())
+            .count(),
     }
 }
 
 // ----- writing values into the text ----------------------------------------
 
 /// One change to the text: bytes `start..end` become `text`.
+#[derive(Clone, Debug)]
 struct Splice {
     start: usize,
     end: usize,
@@ -782,6 +1084,7 @@ struct Splice {
 /// rewritten: a value in place, a missing key as a new line of its block
 /// mapping (or a new entry of its `{ }` mapping), a net written as a list of
 /// pins as a mapping; everything else, comments too, stays as written.
+#[cfg(test)]
 fn edit_text(text: &str, root: &Node, edits: &[(&Target, &str)]) -> String {
     apply(text, splices(text, root, edits))
 }
@@ -798,10 +1101,15 @@ fn apply(text: &str, mut splices: Vec<Splice>) -> String {
 
 /// The changes that write the values into the text.
 fn splices(text: &str, root: &Node, edits: &[(&Target, &str)]) -> Vec<Splice> {
+    let expanded: Vec<(Target, &str)> = edits
+        .iter()
+        .flat_map(|(target, value)| target.each().into_iter().map(move |t| (t, *value)))
+        .collect();
+    let edits: Vec<(&Target, &str)> = expanded.iter().map(|(t, v)| (t, *v)).collect();
     let mut edited = root.clone();
     let mut anchors: Vec<Vec<String>> = Vec::new();
     let mut splices = Vec::new();
-    for (target, value) in edits {
+    for (target, value) in &edits {
         let path = target.path();
         set(&mut edited, &path, value);
         // The deepest node of the path the text already has.
@@ -1256,10 +1564,21 @@ mod tests {
             });
             // Each alone, and all at once.
             let all: Vec<(&Target, &str)> = targets.iter().map(|t| (t, "7 A")).collect();
+            let layout = tree::Layout::of(text, &root);
             for edits in all.iter().map(|e| vec![*e]).chain([all.clone()]) {
                 let out = edit_text(text, &root, &edits);
                 let back = syntax::parse(SourceId(0), &out)
                     .unwrap_or_else(|e| panic!("{}:\n{out}", e.message));
+                // The tree built from the plan's and the changed entries is
+                // the tree of the whole variant, spans and all.
+                let mut changes = splices(text, &root, &edits);
+                changes.sort_by_key(|s| (s.start, s.end));
+                if let Some(layout) = &layout {
+                    match tree::variant_tree(layout, &root, &changes, &out) {
+                        Some(built) => assert_eq!(built, back, "{edits:?}:\n{out}"),
+                        None => assert!(edits.len() > 1, "{edits:?}:\n{out}"),
+                    }
+                }
                 for (target, value) in &edits {
                     assert_eq!(
                         lookup(&back, &target.path()).as_scalar(),

@@ -204,6 +204,11 @@ pub fn capacitance(text: &str) -> Result<uom::si::f64::Capacitance, UnitError> {
         .map(uom::si::f64::Capacitance::new::<uom::si::capacitance::farad>)
 }
 
+/// A mass: `250 g`, `1.2 kg`.
+pub fn mass(text: &str) -> Result<uom::si::f64::Mass, UnitError> {
+    single_value(text, Kind::Mass).map(uom::si::f64::Mass::new::<uom::si::mass::kilogram>)
+}
+
 /// A wire size: `18 AWG`, `4/0 AWG` (also `0000 AWG`), `0.75 mm2`, `0.75 mm²`.
 ///
 /// ```
@@ -380,11 +385,13 @@ pub enum Quantity {
     Duration,
     /// A capacitance `470 uF`.
     Capacitance,
+    /// A mass `250 g`.
+    Mass,
 }
 
 impl Quantity {
     /// Every kind, in the order the format reference lists them.
-    pub const ALL: [Quantity; 14] = [
+    pub const ALL: [Quantity; 15] = [
         Quantity::Voltage,
         Quantity::VoltageBand,
         Quantity::Current,
@@ -399,6 +406,7 @@ impl Quantity {
         Quantity::DischargeRate,
         Quantity::Duration,
         Quantity::Capacitance,
+        Quantity::Mass,
     ];
 
     /// What the format reference calls it.
@@ -418,6 +426,7 @@ impl Quantity {
             Quantity::DischargeRate => "discharge rate",
             Quantity::Duration => "duration",
             Quantity::Capacitance => "capacitance",
+            Quantity::Mass => "mass",
         }
     }
 
@@ -438,6 +447,7 @@ impl Quantity {
             Quantity::DischargeRate => discharge_rate(text).map(drop),
             Quantity::Duration => duration(text).map(drop),
             Quantity::Capacitance => capacitance(text).map(drop),
+            Quantity::Mass => mass(text).map(drop),
         }
     }
 
@@ -455,6 +465,7 @@ impl Quantity {
             Quantity::Length => of(Kind::Length),
             Quantity::Duration => of(Kind::Duration),
             Quantity::Capacitance => of(Kind::Capacitance),
+            Quantity::Mass => of(Kind::Mass),
             Quantity::WireSize => WIRE_UNITS.to_vec(),
             Quantity::Share => vec!["%"],
             Quantity::DischargeRate => {
@@ -539,6 +550,11 @@ pub fn show_duration(t: Time) -> String {
     show_scaled(t.get::<uom::si::time::second>(), SECONDS)
 }
 
+/// `250 g`, `1.2 kg`: masses in grams up to a kilogram.
+pub fn show_mass(m: uom::si::f64::Mass) -> String {
+    show_scaled(m.get::<uom::si::mass::kilogram>(), KILOGRAMS)
+}
+
 /// `80 %`, `4.24 %`.
 pub fn show_share(r: Ratio) -> String {
     show_scaled(r.get::<ratio>() * 100.0, PERCENT)
@@ -560,9 +576,10 @@ enum Kind {
     Length,
     Duration,
     Capacitance,
+    Mass,
 }
 
-const ALL_KINDS: [Kind; 10] = [
+const ALL_KINDS: [Kind; 11] = [
     Kind::Voltage,
     Kind::Current,
     Kind::Charge,
@@ -573,6 +590,7 @@ const ALL_KINDS: [Kind; 10] = [
     Kind::Length,
     Kind::Duration,
     Kind::Capacitance,
+    Kind::Mass,
 ];
 
 /// One accepted spelling of a unit. In the kind's base unit (V, A, C, W, Ω, K, K/W, m) a number
@@ -701,6 +719,9 @@ const CAPACITANCE_UNITS: &[Spelling] = &[
     scaled("nF", 1.0, 1e9),
 ];
 
+/// A gram is a thousandth of the kilogram, the base unit.
+const MASS_UNITS: &[Spelling] = &[scaled("kg", 1.0, 1.0), scaled("g", 1.0, 1e3)];
+
 const WIRE_UNITS: [&str; 3] = ["AWG", "mm2", "mm\u{b2}"];
 
 /// The thickest gauge: ASTM B258 runs from No. 0000 (4/0).
@@ -723,6 +744,7 @@ impl Kind {
             Kind::Length => LENGTH_UNITS,
             Kind::Duration => DURATION_UNITS,
             Kind::Capacitance => CAPACITANCE_UNITS,
+            Kind::Mass => MASS_UNITS,
         }
     }
 
@@ -738,6 +760,7 @@ impl Kind {
             Kind::Length => "length",
             Kind::Duration => "duration",
             Kind::Capacitance => "capacitance",
+            Kind::Mass => "mass",
         }
     }
 
@@ -753,6 +776,7 @@ impl Kind {
             Kind::Length => "a length",
             Kind::Duration => "a duration",
             Kind::Capacitance => "a capacitance",
+            Kind::Mass => "a mass",
         }
     }
 
@@ -769,6 +793,7 @@ impl Kind {
             Kind::Length => "m",
             Kind::Duration => "s",
             Kind::Capacitance => "uF",
+            Kind::Mass => "g",
         }
     }
 
@@ -787,6 +812,7 @@ impl Kind {
             Kind::Length => "`m`, `cm`, `mm`, `in` or `ft`",
             Kind::Duration => "`s`, `ms` or `min`",
             Kind::Capacitance => "`F`, `mF`, `uF`, `\u{b5}F` or `nF`",
+            Kind::Mass => "`g` or `kg`",
         }
     }
 
@@ -1720,6 +1746,7 @@ const FARADS: &[Prefix] = &[
     prefix(-6, -6, "\u{b5}F"),
     prefix(-9, -9, "nF"),
 ];
+const KILOGRAMS: &[Prefix] = &[prefix(0, 0, "kg"), prefix(-3, -3, "g")];
 const SECONDS: &[Prefix] = &[prefix(0, 0, "s"), prefix(-3, -3, "ms")];
 const PERCENT: &[Prefix] = &[prefix(i32::MIN, 0, "%")];
 const SQUARE_MILLIMETERS: &[Prefix] = &[prefix(i32::MIN, 0, "mm\u{b2}")];

@@ -249,6 +249,7 @@ pub fn wire_list(checked: &Checked) -> WireList {
         circuit: &checked.circuit,
         analysis: checked.analysis.as_ref(),
         scenarios: Some(&checked.scenarios),
+        margins: None,
     };
     let protecting = crate::rules::fuse::protecting_fuses(&cx);
     let settled = || checked.analysis.iter().flat_map(|a| a.settled());

@@ -5,7 +5,7 @@
 
 use assert_cmd::Command;
 use railcheck::model::Library;
-use railcheck::rules::Severity;
+use railcheck::rules::{RatingKind, Severity};
 use railcheck::sweep::{Outcome, Row, Sweep, SweepError};
 use std::path::Path;
 
@@ -111,6 +111,13 @@ fn every_row_is_what_check_says_of_that_variant_written_out() {
             "{:?}",
             row.values
         );
+        // The tightest margin is the first of the variant's own.
+        assert_eq!(
+            verdict.margin.as_ref(),
+            checked.margins.first(),
+            "{:?}",
+            row.values
+        );
         // The written variant is the hand-made one, byte for byte.
         assert_eq!(sweep.variant(row.index), text, "{:?}", row.values);
     }
@@ -150,7 +157,7 @@ fn the_verdicts_follow_the_physics_of_the_choices() {
         );
         // The 5 V rail peaks just over 3 A (the computer alone is 2.96 A at
         // peak), so a 3 A or 2 A buck is over its rating on every pack, and
-        // its headroom is negative: 1 − 3.01 A / 2 A ≈ −50 %.
+        // the tightest margin is negative.
         for pack in PACKS {
             for buck in ["2 A", "3 A"] {
                 let row = find(pack, buck, gauge);
@@ -158,16 +165,24 @@ fn the_verdicts_follow_the_physics_of_the_choices() {
                 let Outcome::Checked(v) = &row.outcome else {
                     panic!("reads")
                 };
-                let (at, headroom) = v.headroom.as_ref().expect("a rated buck");
-                assert_eq!(at, "buck.vout");
-                assert!(headroom.value < 0.0, "{:?}: {headroom:?}", row.values);
+                let margin = v.margin.as_ref().expect("rated parts");
+                assert!(margin.left() < 0.0, "{:?}: {margin:?}", row.values);
             }
         }
+        // On the 3S pack the 2 A buck is the tightest: 2 A − 3.01 A =
+        // −1.01 A, −50 % of its 2 A rating, at the computer's peak.
         let Outcome::Checked(v) = &find(PACKS[0], "2 A", gauge).outcome else {
             panic!("reads")
         };
-        let headroom = v.headroom.as_ref().unwrap().1.value;
-        assert!((headroom - (-0.503)).abs() < 0.005, "{headroom}");
+        let margin = v.margin.as_ref().unwrap();
+        assert_eq!(margin.kind, RatingKind::RegulatorCurrent);
+        assert_eq!(margin.at, "buck output");
+        assert!((margin.limit - 2.0).abs() < 1e-9);
+        assert!(
+            (margin.share().unwrap() - (-0.503)).abs() < 0.005,
+            "{margin:?}"
+        );
+        assert!((margin.left() - (-1.006)).abs() < 0.01, "{margin:?}");
     }
     // A thinner supply run to the motor driver has more resistance (18 AWG
     // 20.9 mΩ/m against 14 AWG 8.28 mΩ/m, ASTM B258), so the stalled motors

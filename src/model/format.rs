@@ -28,6 +28,8 @@ pub enum Value {
     Count,
     /// The format version: `1`.
     Version,
+    /// A plain number, 0 or more, with no unit (a cost).
+    Amount,
     /// Free text.
     Text,
     /// The name of another pin of the same part.
@@ -948,6 +950,23 @@ pub const CLASSES: &[ClassSpec] = &[
         fixed_pins: &[("vin", PinRole::SupplyIn), ("gnd", PinRole::Ground)],
         fields: &[],
     },
+];
+
+/// Fields every part takes, whatever its class: for an inline part in its
+/// own mapping, for a library part under `with:` (or in its part file).
+pub const PART_FIELDS: &[Field] = &[
+    field(
+        "mass",
+        Qty(Q::Mass),
+        "180 g",
+        "what the part weighs; `railcheck sweep` adds up the parts that give one",
+    ),
+    field(
+        "cost",
+        Value::Amount,
+        "24.50",
+        "what the part costs, a plain number in whatever currency the plan keeps to (none is assumed); `railcheck sweep` adds up the parts that give one",
+    ),
 ];
 
 /// The keys of a part that names a library part.

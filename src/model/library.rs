@@ -3,12 +3,14 @@
 //! Built-in parts are the YAML files under `parts/`, compiled into the binary so
 //! nothing is needed at run time. A user folder (`--parts DIR`) is read by the
 //! binary and handed in as texts; its ids shadow built-in ones. Files are parsed
-//! only when a plan uses them.
+//! only when a plan uses them, and once: the tree is kept for the next plan
+//! (a sweep reads the same parts for every variant).
 
 use super::{Part, Plan};
-use crate::syntax::{self, Node, Sources, Span};
+use crate::syntax::{self, Node, NodeKind, SourceId, Sources, Span};
 use include_dir::{Dir, include_dir};
 use std::collections::BTreeMap;
+use std::sync::OnceLock;
 
 static BUILTIN: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/parts");
 
@@ -19,6 +21,10 @@ struct Entry {
     /// The file's text, or why it could not be read: a file that is too
     /// large or not UTF-8 is reported only when a plan uses it.
     text: Result<String, String>,
+    /// The file's tree, parsed the first time a plan uses it (`None` when
+    /// it is not valid YAML): a sweep reads the same parts thousands of
+    /// times and parses each once.
+    parsed: OnceLock<Option<Node>>,
 }
 
 /// All known part ids and their YAML texts.
@@ -55,6 +61,7 @@ impl Library {
             Entry {
                 file_name,
                 text: Ok(text),
+                parsed: OnceLock::new(),
             },
         );
     }
@@ -67,6 +74,7 @@ impl Library {
             Entry {
                 file_name,
                 text: Err(reason),
+                parsed: OnceLock::new(),
             },
         );
     }
@@ -159,11 +167,39 @@ impl Library {
             }
         };
         let source = sources.add(entry.file_name.clone(), text.as_str());
+        let parsed = entry
+            .parsed
+            .get_or_init(|| syntax::parse(source, text).ok());
+        if let Some(tree) = parsed {
+            let mut tree = tree.clone();
+            move_to(&mut tree, source);
+            return Some(Ok(tree));
+        }
         Some(syntax::parse(source, text).map_err(|e| LibraryError {
             message: e.message,
             span: e.span,
             unreadable: false,
         }))
+    }
+}
+
+/// Points every span of a tree into `source` (a cached tree taken into
+/// another plan's sources).
+fn move_to(node: &mut Node, source: SourceId) {
+    node.span.source = source;
+    match &mut node.kind {
+        NodeKind::Map(entries) => {
+            for (key, value) in entries {
+                move_to(key, source);
+                move_to(value, source);
+            }
+        }
+        NodeKind::Seq(items) => {
+            for item in items {
+                move_to(item, source);
+            }
+        }
+        NodeKind::Scalar(_) | NodeKind::Null => {}
     }
 }
 

@@ -124,6 +124,11 @@ pub struct Part {
     /// It moves something (a motor, a servo, a `load` with `moves: true`):
     /// a stop switch must be able to cut its power.
     pub actuator: bool,
+    /// What it weighs, when the plan or its library part says.
+    pub mass: Option<uom::si::f64::Mass>,
+    /// What it costs, a plain number in the plan's own currency (none is
+    /// assumed), when the plan or its library part says.
+    pub cost: Option<f64>,
 }
 
 impl Part {

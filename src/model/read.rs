@@ -704,6 +704,7 @@ impl Reader<'_> {
         let spec = format::class(&class_name);
         let mut allowed: Vec<&str> = format::INLINE_PART_KEYS.to_vec();
         allowed.extend(spec.iter().flat_map(|c| c.fields.iter().map(|f| f.key)));
+        allowed.extend(format::keys(format::PART_FIELDS));
         self.check_keys(body, &allowed, &context);
 
         let fixed = spec.map_or(&[][..], |c| c.fixed_pins);
@@ -782,6 +783,8 @@ impl Reader<'_> {
             .and_then(|n| self.boolean(n))
             .unwrap_or(false);
         let actuator = moves || matches!(class, Class::Motor(_) | Class::Servo);
+        let mass = self.quantity(body, "mass", units::mass);
+        let cost = body.get("cost").and_then(|n| self.amount(n, "cost"));
         Some(Part {
             name,
             span: name_span,
@@ -790,7 +793,36 @@ impl Reader<'_> {
             pins,
             ports,
             actuator,
+            mass,
+            cost,
         })
+    }
+
+    /// A plain number, 0 or more (a cost: no unit, no currency sign).
+    fn amount(&mut self, node: &Node, key: &str) -> Option<f64> {
+        let text = node.as_scalar().unwrap_or_default();
+        match text.trim().parse::<f64>() {
+            Ok(n) if n.is_finite() && n >= 0.0 => Some(n),
+            _ => {
+                self.error(
+                    node.span,
+                    match node.as_scalar() {
+                        Some(text) => format!(
+                            "`{key}` takes a plain number, 0 or more, found `{}`",
+                            crate::syntax::visible(text)
+                        ),
+                        None => format!(
+                            "`{key}` takes a plain number, 0 or more, found {}",
+                            node.describe()
+                        ),
+                    },
+                    Some(format!(
+                        "write the number alone, in the plan's own currency: `{key}: 24.50`"
+                    )),
+                );
+                None
+            }
+        }
     }
 
     #[allow(clippy::too_many_arguments)]

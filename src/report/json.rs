@@ -55,6 +55,11 @@ impl<'a, Body: Serialize> Envelope<'a, Body> {
     pub(super) fn to_text(&self) -> String {
         pretty(self)
     }
+
+    /// On one line, no trailing newline (for JSON lines).
+    pub(super) fn to_line(&self) -> String {
+        serde_json::to_string(self).unwrap_or_default()
+    }
 }
 
 /// A number rounded to six significant figures, so output is reproducible

@@ -31,7 +31,10 @@ pub use reference::{describe, fill_generated_blocks, format_tables};
 pub use sarif::{findings_sarif, input_errors_sarif, unplaced_input_error_sarif};
 pub use scenarios::{scenarios_json, scenarios_table};
 pub use schema::{plan_schema, plan_schema_text};
-pub use sweep::{sweep_csv, sweep_json, sweep_table};
+pub use sweep::{
+    sweep_csv, sweep_csv_header, sweep_csv_record, sweep_json, sweep_jsonl_end, sweep_jsonl_row,
+    sweep_jsonl_start, sweep_table,
+};
 pub use wires::{wires_csv, wires_json, wires_table};
 
 use crate::rules::{Finding, Severity};

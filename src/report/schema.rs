@@ -143,6 +143,10 @@ fn property(field: &Field) -> Value {
 /// flags as JSON numbers and booleans, everything else as text.
 fn example(field: &Field) -> Value {
     match field.value {
+        Kind::Amount => field
+            .example
+            .parse::<f64>()
+            .map_or_else(|_| json!(field.example), |n| json!(n)),
         Kind::Version | Kind::Cells | Kind::Count => field
             .example
             .parse::<u64>()
@@ -159,6 +163,7 @@ fn value(kind: Kind) -> Value {
         Kind::Flag => json!({ "type": "boolean" }),
         Kind::Cells => json!({ "type": "integer", "minimum": 1, "maximum": 1000 }),
         Kind::Count => json!({ "type": "integer", "minimum": 0, "maximum": 1000 }),
+        Kind::Amount => json!({ "type": "number", "minimum": 0 }),
         Kind::Version => json!({ "const": 1 }),
         Kind::Text => json!({ "type": ["string", "number", "boolean"] }),
         Kind::PinOfPart => json!({ "$ref": "#/$defs/name" }),
@@ -198,7 +203,11 @@ fn value(kind: Kind) -> Value {
             // value's kind may differ (`voltage` is a band on a battery, a
             // rating on a fuse): any of them is taken.
             let mut properties = Map::new();
-            for field in CLASSES.iter().flat_map(|c| c.fields) {
+            for field in CLASSES
+                .iter()
+                .flat_map(|c| c.fields)
+                .chain(format::PART_FIELDS)
+            {
                 let schema = value(field.value);
                 match properties.get_mut(field.key) {
                     None => {
@@ -455,6 +464,11 @@ fn class_schema(class: &ClassSpec) -> Value {
         "additionalProperties": { "$ref": "#/$defs/pin" },
     });
     let mut object = closed_object(class.fields);
+    if let Some(Value::Object(properties)) = object.get_mut("properties") {
+        for field in format::PART_FIELDS {
+            properties.insert(field.key.into(), property(field));
+        }
+    }
     if let Some(Value::Object(properties)) = object.get_mut("properties") {
         properties.insert(
             "class".into(),

@@ -5,7 +5,8 @@
 //! (that is `budget`).
 
 use super::{
-    Context, Finding, Rule, RuleDoc, Severity, exceeds, mode_label, show_contributors, worst_point,
+    Context, Finding, Margin, RatingKind, Rule, RuleDoc, Severity, Unit, exceeds, mode_label,
+    show_contributors, worst_point,
 };
 use crate::model::Class;
 use crate::units::{DischargeRate, show_charge, show_current};
@@ -58,6 +59,16 @@ fn check_discharge(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
+        cx.margin(
+            Margin::below(
+                RatingKind::BatteryDischarge,
+                DISCHARGE.id,
+                peak,
+                limit.get::<ampere>(),
+                Unit::Ampere,
+            ),
+            |m| m.at(&part.name).at_point(plan, point),
+        );
         if !exceeds(peak, limit.get::<ampere>()) {
             continue;
         }

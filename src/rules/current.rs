@@ -4,8 +4,8 @@
 //! ratings and the derating limit (format reference §6).
 
 use super::{
-    Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, show_contributors,
-    worst_point,
+    Context, Finding, Margin, RatingKind, Rule, RuleDoc, Severity, Unit, continuous, exceeds,
+    mode_label, show_contributors, worst_point,
 };
 use crate::analysis::OperatingPoint;
 use crate::graph::through_pairs;
@@ -359,6 +359,18 @@ fn check_ratings(cx: &Context, out: &mut Vec<Finding>) {
             }
             f
         };
+        if let Some((point, current)) = over {
+            let kind = match (&cx.plan.parts[path.part].class, &path.carries) {
+                (_, Carries::Channel) => RatingKind::DriverChannel,
+                (Class::Regulator(_), _) => RatingKind::RegulatorCurrent,
+                (Class::Switch(_) | Class::Connector(_), _) => RatingKind::ContactCurrent,
+                _ => RatingKind::OutputCurrent,
+            };
+            cx.margin(
+                Margin::below(kind, OVER_RATING.id, current, rating, Unit::Ampere),
+                |m| m.at(&path.subject).at_point(cx.plan, point),
+            );
+        }
         if let Some((point, current)) = over
             && exceeds(current, rating)
         {

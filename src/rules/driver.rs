@@ -1,7 +1,10 @@
 //! Motor drivers against the motors they drive: stall current against the
 //! channel's peak rating.
 
-use super::{Context, Finding, Rule, RuleDoc, Severity, exceeds, mode_label, worst_point};
+use super::{
+    Context, Finding, Margin, RatingKind, Rule, RuleDoc, Severity, Unit, exceeds, mode_label,
+    worst_point,
+};
 use crate::model::{Class, MotorState};
 use crate::units::{show_current, show_voltage};
 use uom::si::electric_current::ampere;
@@ -54,6 +57,19 @@ fn check_stall(cx: &Context, out: &mut Vec<Finding>) {
             let Some((point, stall)) = worst_point(cx.points(), stalled) else {
                 continue;
             };
+            cx.margin(
+                Margin::below(
+                    RatingKind::DriverPeak,
+                    STALL.id,
+                    stall,
+                    peak.value.get::<ampere>(),
+                    Unit::Ampere,
+                ),
+                |m| {
+                    m.at(&format!("{} channel {number}", driver_part.name))
+                        .at_point(plan, point)
+                },
+            );
             if !exceeds(stall, peak.value.get::<ampere>()) {
                 continue;
             }

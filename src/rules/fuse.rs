@@ -26,7 +26,8 @@
 //! converter, not by this fuse.
 
 use super::{
-    Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
+    Context, Finding, Margin, RatingKind, Rule, RuleDoc, Severity, Unit, continuous, exceeds,
+    mode_label, worst_point,
 };
 use crate::analysis::{BatteryState, ModeId, OperatingPoint, battery_voltage};
 use crate::graph::{MotorFeed, through_pairs};
@@ -1061,6 +1062,16 @@ fn check_undersized(cx: &Context, out: &mut Vec<Finding>) {
             continue;
         };
         let minimum = minimum_rating(ElectricCurrent::new::<ampere>(current));
+        cx.margin(
+            Margin::below(
+                RatingKind::FuseRating,
+                UNDERSIZED.id,
+                amps(minimum),
+                amps(rating.value),
+                Unit::Ampere,
+            ),
+            |m| m.at(fuse.name).at_point(cx.plan, point),
+        );
         if !exceeds(amps(minimum), amps(rating.value)) {
             continue;
         }

@@ -18,8 +18,8 @@ mod unpowered;
 pub use unpowered::UNPOWERED_INPUT;
 
 use super::{
-    Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label,
-    show_voltages_apart,
+    Context, Finding, Margin, RatingKind, Rule, RuleDoc, Severity, Unit, exceeds, falls_below,
+    mode_label, show_voltages_apart,
 };
 use crate::analysis::{Corner, OperatingPoint};
 use crate::model::{Class, LogicFamily, LogicSpec, NetId, PartId, PinRef, PinRole};
@@ -1021,7 +1021,9 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<PairWorst<'p>>> {
                 .collect();
             for source in sources {
                 if let Some(driving) = driver_side(cx, source, &signal.pull_ups, receiver.part) {
-                    push_pair(&mut found, compare(cx, &driving, &receiving, net));
+                    let comparisons = compare(cx, &driving, &receiving, net);
+                    record_margins(cx, &comparisons);
+                    push_pair(&mut found, comparisons);
                 }
             }
         }
@@ -1044,11 +1046,43 @@ fn pairs<'p>(cx: &'p Context) -> Vec<Vec<PairWorst<'p>>> {
             ) else {
                 continue;
             };
-            push_pair(&mut found, compare(cx, &driving, &receiving, net_id));
+            let comparisons = compare(cx, &driving, &receiving, net_id);
+            record_margins(cx, &comparisons);
+            push_pair(&mut found, comparisons);
         }
         groups.push(found);
     }
     groups
+}
+
+/// Records each comparison's levels against the receiver's thresholds:
+/// VOH against VIH, VOL against VIL, the highest level against the ceiling.
+fn record_margins(cx: &Context, comparisons: &[Link]) {
+    if cx.margins.is_none() {
+        return;
+    }
+    for link in comparisons {
+        let record = |kind, rule: &Rule, value: &Level, limit: &Level, upper: bool| {
+            let margin = if upper {
+                Margin::below(kind, rule.id, v(value.value), v(limit.value), Unit::Volt)
+            } else {
+                Margin::above(kind, rule.id, v(value.value), v(limit.value), Unit::Volt)
+            };
+            cx.margin(margin, |m| {
+                m.at(&cx.pin_name(link.sense.pin))
+                    .at_some_point(cx.plan, value.point.or(limit.point))
+            });
+        };
+        if let (Some(voh), Some(vih)) = (&link.drive.voh, &link.sense.vih) {
+            record(RatingKind::LogicHigh, &HIGH_MARGIN, voh, vih, false);
+        }
+        if let (Some(vol), Some(vil)) = (&link.drive.vol, &link.sense.vil) {
+            record(RatingKind::LogicLow, &LOW_MARGIN, vol, vil, true);
+        }
+        if let (Some(high), Some(ceiling)) = (&link.drive.highest, &link.sense.ceiling) {
+            record(RatingKind::LogicCeiling, &OVERVOLTAGE, high, ceiling, true);
+        }
+    }
 }
 
 /// The comparison of a pair where `badness` is greatest, if it is anywhere

@@ -14,6 +14,7 @@ mod fault;
 pub(crate) mod fuse;
 mod ground;
 mod logic;
+mod margin;
 pub(crate) mod power;
 mod regulator;
 mod safety;
@@ -25,6 +26,7 @@ mod voltage;
 mod wire;
 
 pub use fuse::minimum_rating;
+pub use margin::{Margin, Margins, RatingKind};
 pub use unit::{Reading, Unit, declared_unit};
 
 use crate::analysis::{Analysis, BatteryState, ModeId, OperatingPoint};
@@ -168,9 +170,21 @@ pub struct Context<'a> {
     /// The power scenarios (switches open, batteries removed, supplies from
     /// outside connected) and what each leaves powered.
     pub scenarios: Option<&'a Scenarios>,
+    /// Where the rules record the comparisons they make against ratings
+    /// and limits; `None` skips recording.
+    pub margins: Option<&'a Margins>,
 }
 
 impl Context<'_> {
+    /// Records a comparison against a rating or limit; `place` names where
+    /// and when, and runs only when the margin is the tightest of its kind
+    /// so far (and a recorder is present).
+    pub fn margin(&self, margin: Margin, place: impl FnOnce(Margin) -> Margin) {
+        if let Some(margins) = self.margins {
+            margins.offer(margin, place);
+        }
+    }
+
     /// Settled operating points (none when the analysis was skipped).
     pub fn points(&self) -> impl Iterator<Item = &OperatingPoint> {
         self.analysis.into_iter().flat_map(|a| a.settled())

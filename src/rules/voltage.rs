@@ -2,8 +2,8 @@
 //! range, over every mode, battery state and regulator tolerance.
 
 use super::{
-    Context, Finding, Rule, RuleDoc, Severity, exceeds, falls_below, mode_label,
-    show_voltages_apart, worst_point,
+    Context, Finding, Margin, RatingKind, Rule, RuleDoc, Severity, Unit, exceeds, falls_below,
+    mode_label, show_voltages_apart, worst_point,
 };
 use crate::analysis::{BatteryState, OperatingPoint};
 use crate::model::{NetId, PinRef, PinRole};
@@ -160,6 +160,30 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
             limit,
             severity,
         };
+        if let Some(max) = pin.max {
+            cx.margin(
+                Margin::below(
+                    RatingKind::SupplyMax,
+                    OVER_MAX.id,
+                    highest,
+                    volts(max),
+                    Unit::Volt,
+                ),
+                |m| m.at(&cx.pin_name(pin_ref)).at_point(cx.plan, point),
+            );
+        }
+        if let Some(range) = pin.range {
+            cx.margin(
+                Margin::below(
+                    RatingKind::SupplyRangeMax,
+                    OVER_RANGE.id,
+                    highest,
+                    volts(range.max),
+                    Unit::Volt,
+                ),
+                |m| m.at(&cx.pin_name(pin_ref)).at_point(cx.plan, point),
+            );
+        }
         if let Some(max) = pin.max
             && exceeds(highest, volts(max))
         {
@@ -260,6 +284,22 @@ fn check_under(cx: &Context, out: &mut Vec<Finding>) {
     for pin_ref in supply_inputs(cx) {
         let pin = &cx.plan.parts[pin_ref.part].pins[pin_ref.pin];
         let Some(range) = pin.range else { continue };
+        if let Some((point, negated)) = worst_point(cx.points(), |p| {
+            p.pin_voltage
+                .get(pin_ref.part, pin_ref.pin)
+                .map(|v| -volts(v))
+        }) {
+            cx.margin(
+                Margin::above(
+                    RatingKind::SupplyRangeMin,
+                    UNDER_RANGE.id,
+                    -negated,
+                    volts(range.min),
+                    Unit::Volt,
+                ),
+                |m| m.at(&cx.pin_name(pin_ref)).at_point(cx.plan, point),
+            );
+        }
         let lowest_where = |keep: fn(BatteryState) -> bool| {
             worst_point(cx.points().filter(|p| keep(p.battery)), |p| {
                 p.pin_voltage

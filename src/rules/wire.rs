@@ -7,7 +7,8 @@
 //! its operating range (`voltage/under-range`).
 
 use super::{
-    Context, Finding, Rule, RuleDoc, Severity, continuous, exceeds, mode_label, worst_point,
+    Context, Finding, Margin, RatingKind, Rule, RuleDoc, Severity, Unit, continuous, exceeds,
+    mode_label, worst_point,
 };
 use crate::analysis::{OperatingPoint, net_resistance, usb_link_resistance};
 use crate::graph::MotorFeed;
@@ -175,6 +176,16 @@ fn check_ampacity(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
+        cx.margin(
+            Margin::below(
+                RatingKind::WireAmpacity,
+                AMPACITY.id,
+                current,
+                amps(rating),
+                Unit::Ampere,
+            ),
+            |m| m.at(&conductor.subject).at_point(cx.plan, point),
+        );
         if !exceeds(current, amps(rating)) {
             continue;
         }
@@ -437,12 +448,25 @@ fn check_drop(cx: &Context, out: &mut Vec<Finding>) {
         }) else {
             continue;
         };
-        if !exceeds(share, limit.get::<ratio>()) {
-            continue;
-        }
         let Some(drop) = wiring_drop(cx, &resistance, point, &load) else {
             continue;
         };
+        cx.margin(
+            Margin::below(
+                RatingKind::WireDrop,
+                DROP.id,
+                volts(drop.total()),
+                volts(drop.source) * limit.get::<ratio>(),
+                Unit::Volt,
+            ),
+            |m| {
+                m.at(&format!("to {}", cx.pin_name(load.pin)))
+                    .at_point(plan, point)
+            },
+        );
+        if !exceeds(share, limit.get::<ratio>()) {
+            continue;
+        }
         let mut sides = Vec::new();
         if !drop.supply_nets.is_empty() {
             sides.push(format!(

@@ -371,6 +371,25 @@ fn flag_slots(ats: &mut [f64]) -> Vec<f64> {
     slot
 }
 
+/// How far the flags beside a window's vertical cuts (lines crossing at
+/// `ats`) reach above its top `ya` and below its bottom `yb`, with a little
+/// clearance: the flags under or over it stack beyond that.
+fn overhang(mut ats: Vec<f64>, ya: f64, yb: f64) -> (f64, f64) {
+    let left_and_right = ats.len();
+    let slots = flag_slots(&mut ats);
+    if left_and_right == 0 {
+        return (0.0, 0.0);
+    }
+    // Each side spreads its own flags; both together reach no further than
+    // one list of them all.
+    let first = slots.first().copied().unwrap_or(ya);
+    let last = slots.last().copied().unwrap_or(yb);
+    (
+        (ya - (first - FLAG_HEIGHT / 2.0) + 2.0).max(0.0),
+        (last + FLAG_HEIGHT / 2.0 - yb + 2.0).max(0.0),
+    )
+}
+
 /// The room a window's off-page connectors take on each side: flags beside
 /// a vertical cut, stacked rows under or over a horizontal one, and what
 /// either pushes past the window's corners.
@@ -387,18 +406,16 @@ fn gutters(content: &Content, geometry: &Geometry, w: Rect) -> [f64; 4] {
             .map(|c| flag_length(content, c.1))
             .fold(0.0, f64::max);
         g[side] = 8.0 + LANE * MAX_LANES as f64 + longest + 4.0;
-        let mut ats: Vec<f64> = edges[side].iter().map(|c| c.0).collect();
-        let slots = flag_slots(&mut ats);
-        if let (Some(first), Some(last)) = (slots.first(), slots.last()) {
-            g[2] = g[2].max(ya - (first - FLAG_HEIGHT / 2.0) + 2.0);
-            g[3] = g[3].max(last + FLAG_HEIGHT / 2.0 - yb + 2.0);
-        }
     }
+    let beside: Vec<f64> = edges[0].iter().chain(&edges[1]).map(|c| c.0).collect();
+    let (over, under) = overhang(beside, ya, yb);
+    g[2] = over;
+    g[3] = under;
     for side in 2..4 {
         if edges[side].is_empty() {
             continue;
         }
-        g[side] = g[side].max(stack_gutter(edges[side].len()));
+        g[side] += stack_gutter(edges[side].len());
         // Each stacked flag reads rightwards from its line.
         let right = edges[side]
             .iter()
@@ -784,11 +801,20 @@ fn flags(crossings: &mut [Crossing], edge: f64, outward: f64, dx: f64, dy: f64) 
 /// going away from it (`outward` +1 down, −1 up): the rightmost line takes
 /// the nearest row and each flag reads rightwards from its line, so a line
 /// running on to a further row always passes left of the flags before it.
-fn stacked_flags(crossings: &mut [Crossing], edge: f64, outward: f64, dx: f64, dy: f64) -> Group {
+/// The rows start `push` further out, past the flags beside the vertical
+/// cuts that run on beyond this edge.
+fn stacked_flags(
+    crossings: &mut [Crossing],
+    edge: f64,
+    outward: f64,
+    push: f64,
+    (dx, dy): (f64, f64),
+) -> Group {
     crossings.sort_by(|a, b| b.at.total_cmp(&a.at).then(a.name.cmp(&b.name)));
     let mut group = Group::new().set("class", "off-page-connectors");
     for (row, c) in crossings.iter().enumerate() {
-        let mid = edge + outward * (6.0 + row as f64 * (FLAG_HEIGHT + 2.0) + FLAG_HEIGHT / 2.0);
+        let mid =
+            edge + outward * (push + 6.0 + row as f64 * (FLAG_HEIGHT + 2.0) + FLAG_HEIGHT / 2.0);
         let words = flag_words(c);
         let length = text::width(&words, FLAG_TEXT) + 6.0;
         let lead = [[c.at, edge, c.at, mid], [c.at, mid, c.at + 4.0, mid]];
@@ -1171,11 +1197,13 @@ fn connectors(
         }
     }
     let [mut left, mut right, mut up, mut down] = edges;
+    let beside: Vec<f64> = left.iter().chain(&right).map(|c| c.at).collect();
+    let (over, under) = overhang(beside, ya, yb);
     Group::new()
         .add(flags(&mut left, xa, -1.0, dx, dy))
         .add(flags(&mut right, xb, 1.0, dx, dy))
-        .add(stacked_flags(&mut up, ya, -1.0, dx, dy))
-        .add(stacked_flags(&mut down, yb, 1.0, dx, dy))
+        .add(stacked_flags(&mut up, ya, -1.0, over, (dx, dy)))
+        .add(stacked_flags(&mut down, yb, 1.0, under, (dx, dy)))
 }
 
 /// The page for a plan when none is asked for: the smallest (either way

@@ -1882,6 +1882,51 @@ mod command {
     }
 
     #[test]
+    fn no_sheet_is_written_when_one_would_go_over_the_plan() {
+        // The plan is named like the second sheet: nothing at all is
+        // written, not even the first sheet.
+        let dir = tempfile::tempdir().unwrap();
+        let rover = std::fs::read_to_string(
+            Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml"),
+        )
+        .unwrap();
+        let plan = dir.path().join("out-2.svg");
+        std::fs::write(&plan, &rover).unwrap();
+        let run = railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .args(["--page", "a4", "-o"])
+            .arg(dir.path().join("out.svg"))
+            .assert()
+            .code(2);
+        let said = String::from_utf8_lossy(&run.get_output().stderr).to_string();
+        assert!(
+            said.contains("refusing to write the diagram over the plan"),
+            "{said}"
+        );
+        assert_eq!(std::fs::read_to_string(&plan).unwrap(), rover);
+        assert!(!dir.path().join("out-1.svg").exists());
+    }
+
+    #[test]
+    fn one_sheet_keeps_the_name_given() {
+        let dir = tempfile::tempdir().unwrap();
+        let plan = plan_in(dir.path());
+        let out = dir.path().join("lamp.svg");
+        // Three parts with the legend and cautions fill one A3 sheet.
+        railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .args(["--page", "a3", "-o"])
+            .arg(&out)
+            .assert()
+            .code(0);
+        let text = std::fs::read_to_string(&out).unwrap();
+        assert!(text.contains(r#"width="297mm""#));
+        assert!(!dir.path().join("lamp-1.svg").exists());
+    }
+
+    #[test]
     fn draw_on_a_page_writes_sheets_and_a_pdf() {
         let dir = tempfile::tempdir().unwrap();
         let rover = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml");
@@ -1901,23 +1946,40 @@ mod command {
         // A PDF file starts with its header (ISO 32000-1 §7.5.2).
         let bytes = std::fs::read(&pdf).unwrap();
         assert!(bytes.starts_with(b"%PDF-"));
-        // The SVG holds every sheet, each 297 mm × 210 mm, one under another.
-        let text = std::fs::read_to_string(&svg).unwrap();
-        let doc = roxmltree::Document::parse(&text).unwrap();
-        let sheets = doc
-            .descendants()
-            .filter(|n| crate::has_class(n, "sheet"))
-            .count();
+        // One SVG per sheet beside the name given, each 297 mm × 210 mm, and
+        // the name given itself is not written.
+        assert!(!svg.exists(), "the sheets go to numbered files");
+        let mut sheets = 0;
+        while let Ok(text) =
+            std::fs::read_to_string(dir.path().join(format!("rover-{}.svg", sheets + 1)))
+        {
+            let doc = roxmltree::Document::parse(&text).unwrap();
+            assert_eq!(doc.root_element().attribute("width"), Some("297mm"));
+            assert_eq!(doc.root_element().attribute("height"), Some("210mm"));
+            let header = format!("sheet {} of", sheets + 1);
+            assert!(sheets == 0 || text.contains(&header), "{header} missing");
+            sheets += 1;
+        }
         assert!(sheets >= 2);
-        assert_eq!(
-            doc.root_element().attribute("height"),
-            Some(format!("{}mm", 210 * sheets).as_str())
+        assert!(
+            said.contains(&format!("{sheets} sheets on a4 landscape")),
+            "{said}"
         );
         // The same count of pages in the PDF.
         let pages = String::from_utf8_lossy(&bytes)
             .matches("/Type /Page ")
             .count();
         assert_eq!(pages, sheets);
+        // Several sheets cannot go to standard output as one document.
+        let refused = railcheck()
+            .arg("draw")
+            .arg(&rover)
+            .args(["--page", "a4", "-o", "-"])
+            .assert()
+            .code(2);
+        let said = String::from_utf8_lossy(&refused.get_output().stderr).to_string();
+        assert!(said.contains("OUT-1.svg"), "{said}");
+        assert!(refused.get_output().stdout.is_empty());
         // --landscape needs a page.
         railcheck()
             .arg("draw")

@@ -103,8 +103,6 @@ pub struct Sheets {
     pub page: Page,
     /// One SVG document per sheet, sized in millimetres.
     pub svgs: Vec<String>,
-    /// All sheets in one SVG document, one under the other.
-    pub combined: String,
 }
 
 /// Why the diagram cannot be printed on the page asked for.
@@ -926,7 +924,6 @@ pub(super) fn sheets(
         let svg = render::document(body.set("class", "sheet"), size.clone(), view);
         return Ok(Sheets {
             page,
-            combined: svg.clone(),
             svgs: vec![svg],
         });
     }
@@ -1032,7 +1029,6 @@ pub(super) fn sheets(
     }
     let count = plans.len();
     let mut svgs = Vec::with_capacity(count);
-    let mut bodies = Vec::with_capacity(count);
     for (sheet, plan) in plans.iter().enumerate() {
         let mut body = Group::new()
             .set("class", "sheet")
@@ -1079,48 +1075,12 @@ pub(super) fn sheets(
             }
         }
         svgs.push(render::document(
-            body.clone(),
+            body,
             size.clone(),
             (0.0, 0.0, sheet_w, sheet_h),
         ));
-        bodies.push(body);
     }
-    // One document: the sheets one under the other, each on its own paper.
-    let mut stack = Group::new().set("class", "sheets");
-    for (i, body) in bodies.into_iter().enumerate() {
-        let top = i as f64 * sheet_h;
-        stack = stack
-            .add(
-                Rectangle::new()
-                    .set("class", "sheet-edge")
-                    .set("x", 0)
-                    .set("y", num(top))
-                    .set("width", num(sheet_w))
-                    .set("height", num(sheet_h))
-                    .set("fill", super::style::PAPER)
-                    .set("stroke", super::style::RULE_LINE)
-                    .set("stroke-width", "1"),
-            )
-            .add(
-                Group::new()
-                    .set("transform", format!("translate(0 {})", num(top)))
-                    .add(body),
-            );
-    }
-    let (mw, mh) = page.millimetres();
-    let combined = render::document(
-        stack,
-        (
-            format!("{}mm", num(mw)),
-            format!("{}mm", num(mh * count as f64)),
-        ),
-        (0.0, 0.0, sheet_w, sheet_h * count as f64),
-    );
-    Ok(Sheets {
-        page,
-        svgs,
-        combined,
-    })
+    Ok(Sheets { page, svgs })
 }
 
 /// Space between pieces that share a sheet.

@@ -707,6 +707,14 @@ fn assert_clean_sheet(svg: &str, what: &str) {
     for (name, frame) in &frames {
         assert!(paper.contains(frame), "{what}: {name} is off the paper");
     }
+    for label in &pic.labels {
+        assert!(
+            paper.contains(&label.bounds),
+            "{what}: {:?} is off the paper at {:?}",
+            label.text,
+            label.bounds
+        );
+    }
     for (class, net, s) in &pic.segments {
         for end in [(s[0], s[1]), (s[2], s[3])] {
             assert!(

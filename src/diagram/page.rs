@@ -10,13 +10,17 @@
 //! both directions are tried and the division into fewer pieces kept.
 //! Beside a vertical cut the flags stand in a gutter as wide as the longest
 //! flag, spread apart with jogged leads; under or over a horizontal cut
-//! they stack one per row, so that gutter is only as deep as the lines the
-//! cut crosses. The pieces are then packed onto sheets in shelves (several
-//! to a sheet when they fit, never two that a line joins), sheet 1 under
-//! the title block, the others under a header line; the findings, legend
-//! and cautions follow, full width, where they fit. The scale is the same
-//! on every sheet. Not for what is drawn: `render` draws each piece, this
-//! module says where.
+//! they stack in rows, the rightmost and leftmost lines left sharing each
+//! row with flags reading away from each other, so that gutter is only as
+//! deep as half the lines the cut crosses. The pieces are then packed onto
+//! sheets in shelves (several to a sheet when they fit, never two that a
+//! line joins; in drawing order or tallest first, whichever takes fewer
+//! sheets, which near the top of the cutting also picks between
+//! divisions), sheet 1 under the title block, the others under a header
+//! line; the findings, legend and cautions follow in the first free space
+//! beside or under the pieces, as wide as that space, the findings split
+//! where a space ends. The scale is the same on every sheet. Not for what
+//! is drawn: `render` draws each piece, this module says where.
 
 use super::content::{Content, WireKind};
 use super::layout::{Align, GROUND_SYMBOL, Geometry, Label, PlacedTag, Rect, Tone};
@@ -393,7 +397,7 @@ fn overhang(mut ats: Vec<f64>, ya: f64, yb: f64) -> (f64, f64) {
 /// either pushes past the window's corners.
 fn gutters(content: &Content, geometry: &Geometry, w: Rect) -> [f64; 4] {
     let edges = edge_crossings(geometry, w);
-    let (xb, ya, yb) = (w.x + w.width, w.y, w.y + w.height);
+    let (xa, xb, ya, yb) = (w.x, w.x + w.width, w.y, w.y + w.height);
     let mut g = [0.0f64; 4];
     for side in 0..2 {
         if edges[side].is_empty() {
@@ -413,13 +417,17 @@ fn gutters(content: &Content, geometry: &Geometry, w: Rect) -> [f64; 4] {
         if edges[side].is_empty() {
             continue;
         }
-        g[side] += stack_gutter(edges[side].len());
-        // Each stacked flag reads rightwards from its line.
-        let right = edges[side]
-            .iter()
-            .map(|c| c.0 + 4.0 + flag_length(content, c.1) + 2.0)
-            .fold(0.0, f64::max);
-        g[1] = g[1].max(right - xb);
+        g[side] += stack_gutter(stack_row_count(edges[side].len()));
+        // Stacked flags read away from their lines, past the window's sides.
+        let ats: Vec<f64> = edges[side].iter().map(|c| c.0).collect();
+        for (c, (_, rightwards)) in edges[side].iter().zip(stack_rows(&ats)) {
+            let length = flag_length(content, c.1) + 4.0 + 2.0;
+            if rightwards {
+                g[1] = g[1].max(c.0 + length - xb);
+            } else {
+                g[0] = g[0].max(xa - (c.0 - length));
+            }
+        }
     }
     g
 }
@@ -472,6 +480,9 @@ struct Cutter<'a> {
     /// Divisions already worked out, by piece.
     memo: std::cell::RefCell<std::collections::HashMap<[u64; 4], Division>>,
     tried: std::cell::Cell<usize>,
+    /// Sheets a set of pieces packs onto: near the top, divisions are
+    /// compared by it (then by pieces).
+    sheets_for: &'a dyn Fn(&[Rect]) -> usize,
 }
 
 /// What cannot be cut small enough: its description and the width and
@@ -611,7 +622,7 @@ impl Cutter<'_> {
         // Each division tried counts against a budget: past it, the first
         // that works is kept, so a large plan cannot take long.
         self.tried.set(self.tried.get() + 1);
-        let explore = depth < 3 && self.tried.get() < SPLIT_BUDGET;
+        let explore = depth < 4 && self.tried.get() < SPLIT_BUDGET;
         // The direction the piece overflows first; the other after; pieces
         // of bare lines only when nothing else divides it.
         let order = if w > self.width {
@@ -639,7 +650,15 @@ impl Cutter<'_> {
             });
             match pieces {
                 Ok(pieces) => {
-                    if best.as_ref().is_none_or(|b| pieces.len() < b.len()) {
+                    let better = match &best {
+                        None => true,
+                        Some(b) if depth <= 1 => {
+                            ((self.sheets_for)(&pieces), pieces.len())
+                                < ((self.sheets_for)(b), b.len())
+                        }
+                        Some(b) => pieces.len() < b.len(),
+                    };
+                    if better {
                         best = Some(pieces);
                     }
                     if !explore || bare {
@@ -679,7 +698,7 @@ impl Cutter<'_> {
 
 /// Divisions explored for the fewest pieces before the cutter keeps the
 /// first that works.
-const SPLIT_BUDGET: usize = 400;
+const SPLIT_BUDGET: usize = 1000;
 
 /// Cuts the drawing into tiles that fit `width` × `height` each.
 fn tiles(
@@ -687,7 +706,23 @@ fn tiles(
     geometry: &Geometry,
     width: f64,
     height: f64,
+    first: f64,
 ) -> Result<Vec<Tile>, CutError> {
+    let as_tiles = |pieces: &[Rect]| -> Vec<Tile> {
+        pieces
+            .iter()
+            .map(|&window| Tile {
+                window,
+                gutter: gutters(content, geometry, window),
+            })
+            .collect()
+    };
+    let sheets_for = |pieces: &[Rect]| {
+        pack(geometry, &as_tiles(pieces), first, height, width)
+            .0
+            .len()
+    };
+    let sheets_for: &dyn Fn(&[Rect]) -> usize = &sheets_for;
     let cutter = Cutter {
         content,
         geometry,
@@ -701,6 +736,7 @@ fn tiles(
         height,
         memo: Default::default(),
         tried: Default::default(),
+        sheets_for,
     };
     // A box that cannot fit alone is named with its own size and room for
     // a column of connectors either side and a row above and below.
@@ -723,13 +759,7 @@ fn tiles(
         height: geometry.height,
     };
     let pieces = cutter.split(whole, 0)?;
-    Ok(pieces
-        .into_iter()
-        .map(|window| Tile {
-            window,
-            gutter: gutters(content, geometry, window),
-        })
-        .collect())
+    Ok(as_tiles(&pieces))
 }
 
 /// A line crossing a cut: where along the edge, which connection, and the
@@ -795,10 +825,38 @@ fn flags(crossings: &mut [Crossing], edge: f64, outward: f64, dx: f64, dy: f64) 
     group
 }
 
-/// Flags for the lines crossing a horizontal cut at `edge`, one per row
-/// going away from it (`outward` +1 down, −1 up): the rightmost line takes
-/// the nearest row and each flag reads rightwards from its line, so a line
-/// running on to a further row always passes left of the flags before it.
+/// Rows for the flags of lines crossing a horizontal cut at `ats` (in any
+/// order): per line, its row (0 nearest the cut) and whether its flag reads
+/// rightwards. Row by row the rightmost line left takes a flag reading
+/// right and the leftmost one a flag reading left, so every line running on
+/// to a further row lies between the two and passes clear of both: half as
+/// many rows as lines.
+fn stack_rows(ats: &[f64]) -> Vec<(usize, bool)> {
+    let mut order: Vec<usize> = (0..ats.len()).collect();
+    order.sort_by(|&a, &b| ats[a].total_cmp(&ats[b]).then(a.cmp(&b)));
+    let mut rows = vec![(0, true); ats.len()];
+    let (mut left, mut right) = (0, order.len());
+    let mut k = 0;
+    while left < right {
+        if k % 2 == 0 {
+            right -= 1;
+            rows[order[right]] = (k / 2, true);
+        } else {
+            rows[order[left]] = (k / 2, false);
+            left += 1;
+        }
+        k += 1;
+    }
+    rows
+}
+
+/// Rows of flags that `count` lines crossing a horizontal cut take.
+fn stack_row_count(count: usize) -> usize {
+    count.div_ceil(2)
+}
+
+/// Flags for the lines crossing a horizontal cut at `edge`, in rows going
+/// away from it (`outward` +1 down, −1 up), as [`stack_rows`] assigns them.
 /// The rows start `push` further out, past the flags beside the vertical
 /// cuts that run on beyond this edge.
 fn stacked_flags(
@@ -808,17 +866,21 @@ fn stacked_flags(
     push: f64,
     (dx, dy): (f64, f64),
 ) -> Group {
-    crossings.sort_by(|a, b| b.at.total_cmp(&a.at).then(a.name.cmp(&b.name)));
+    crossings.sort_by(|a, b| a.at.total_cmp(&b.at).then(a.name.cmp(&b.name)));
+    let ats: Vec<f64> = crossings.iter().map(|c| c.at).collect();
+    let rows = stack_rows(&ats);
     let mut group = Group::new().set("class", "off-page-connectors");
-    for (row, c) in crossings.iter().enumerate() {
+    for (c, &(row, rightwards)) in crossings.iter().zip(&rows) {
         let mid =
             edge + outward * (push + 6.0 + row as f64 * (FLAG_HEIGHT + 2.0) + FLAG_HEIGHT / 2.0);
         let words = flag_words(c);
         let length = text::width(&words, FLAG_TEXT) + 6.0;
-        let lead = [[c.at, edge, c.at, mid], [c.at, mid, c.at + 4.0, mid]];
+        let near = if rightwards { c.at + 4.0 } else { c.at - 4.0 };
+        let lead = [[c.at, edge, c.at, mid], [c.at, mid, near, mid]];
         let d = render::segments_path(&lead, dx, dy);
         group = group.add(render::connection(&d, c.kind, &c.name));
-        let (rx, ry) = (c.at + 4.0, mid - FLAG_HEIGHT / 2.0);
+        let rx = if rightwards { near } else { near - length };
+        let ry = mid - FLAG_HEIGHT / 2.0;
         group = group
             .add(flag_frame(c, rx + dx, ry + dy, length, FLAG_HEIGHT))
             .add(flag_text(words, rx + 3.0 + dx, mid + 3.0 + dy));
@@ -881,9 +943,10 @@ fn header(content: &Content, sheet: usize, count: usize, x: f64, y: f64) -> Grou
 /// One sheet's content, before it knows how many sheets there are.
 enum Piece {
     Tile(usize),
-    Findings(std::ops::Range<usize>),
-    Legend,
-    Cautions,
+    /// Findings panels, legend and cautions, each with its width.
+    Findings(std::ops::Range<usize>, f64),
+    Legend(f64),
+    Cautions(f64),
 }
 
 /// Height left for the drawing on sheet 1, under the title block.
@@ -930,7 +993,7 @@ pub(super) fn sheets(
 
     let first_height = first_room(content, area_w, area_h);
     let room = area_h - HEADER;
-    let tiles = tiles(content, geometry, area_w, room).map_err(|(what, w, h)| {
+    let tiles = tiles(content, geometry, area_w, room, first_height).map_err(|(what, w, h)| {
         // The piece with its connectors, under a sheet header.
         let needed = (
             (w * SCALE) / PT_PER_MM + 2.0 * MARGIN_MM,
@@ -952,79 +1015,66 @@ pub(super) fn sheets(
         }
     })?;
 
-    // Which tile holds a point, and the tiles each tile's lines go on to:
-    // those never share its sheet, so a connector always names another.
-    let tile_at = |x: f64, y: f64| {
-        tiles.iter().position(|t| {
-            let w = t.window;
-            x >= w.x && x <= w.x + w.width && y >= w.y && y <= w.y + w.height
-        })
-    };
-    let neighbours: Vec<Vec<usize>> = tiles
-        .iter()
-        .map(|t| {
-            edge_crossings(geometry, t.window)
-                .iter()
-                .flatten()
-                .filter_map(|c| tile_at(c.2.0, c.2.1))
-                .collect()
-        })
-        .collect();
-
-    // Pieces go onto sheets in shelves, each on the first sheet with room
-    // that holds none of its neighbours; the findings, legend and cautions
-    // follow in that order, full width.
-    let mut plans = vec![SheetPlan::new(first_height)];
-    let mut tile_sheet = vec![0usize; tiles.len()];
-    for (t, tile) in tiles.iter().enumerate() {
-        let (w, h) = tile.size();
-        let mut sheet = 0;
-        loop {
-            if sheet == plans.len() {
-                plans.push(SheetPlan::new(room));
-            }
-            let clash = neighbours[t]
-                .iter()
-                .any(|&n| n < t && tile_sheet[n] == sheet);
-            if !clash && plans[sheet].place(Piece::Tile(t), w, h, area_w) {
-                break;
-            }
-            sheet += 1;
-        }
-        tile_sheet[t] = sheet;
-    }
-    let mut notes: Vec<(Piece, f64)> = Vec::new();
+    let tile_at = |x: f64, y: f64| tile_at(&tiles, x, y);
+    let (mut plans, tile_sheet) = pack(geometry, &tiles, first_height, room, area_w);
+    // The findings, legend and cautions in that order, each in the first
+    // space after the one before that takes it: beside the last shelf of
+    // pieces or under it, as wide as that space (the findings as many as
+    // fit there, the rest carried on).
     let findings = &content.findings;
+    let mut sheet = 0;
     let mut start = 0;
-    loop {
-        let height = |end: usize| {
-            render::findings_panel(&findings[start..end], 0.0, 0.0, area_w, marker_w).1
-        };
-        let mut end = (start + 1).min(findings.len());
-        while end < findings.len() && height(end + 1) <= room {
-            end += 1;
+    let mut notes_done = 0; // 0: findings, 1: legend, 2: cautions, 3: done
+    while notes_done < 3 {
+        if sheet == plans.len() {
+            plans.push(SheetPlan::new(room));
         }
-        notes.push((Piece::Findings(start..end), height(end)));
-        if end >= findings.len() {
+        let mut placed = false;
+        // On an empty sheet a note goes in even when it is taller than the
+        // sheet (a cut would not help it); otherwise that would never end.
+        let empty = sheet > 0 && plans[sheet].items.is_empty();
+        for space in plans[sheet].spaces(area_w) {
+            let fits = |height: f64| height <= space.3 || empty;
+            let (piece, height) = match notes_done {
+                0 => {
+                    let height = |end: usize| {
+                        render::findings_panel(&findings[start..end], 0.0, 0.0, space.2, marker_w).1
+                    };
+                    let mut end = (start + 1).min(findings.len());
+                    if !fits(height(end)) {
+                        continue;
+                    }
+                    while end < findings.len() && height(end + 1) <= space.3 {
+                        end += 1;
+                    }
+                    (Piece::Findings(start..end, space.2), height(end))
+                }
+                1 => (
+                    Piece::Legend(space.2),
+                    render::legend(0.0, 0.0, space.2, marker_w, true).1,
+                ),
+                _ => (
+                    Piece::Cautions(space.2),
+                    render::cautions(&content.cautions, 0.0, 0.0, space.2).1,
+                ),
+            };
+            if !fits(height) {
+                continue;
+            }
+            if let Piece::Findings(range, _) = &piece {
+                start = range.end;
+                if start >= findings.len() {
+                    notes_done += 1;
+                }
+            } else {
+                notes_done += 1;
+            }
+            plans[sheet].take(space, piece, height);
+            placed = true;
             break;
         }
-        start = end;
-    }
-    let (_, legend_bottom) = render::legend(0.0, 0.0, area_w, marker_w, true);
-    notes.push((Piece::Legend, legend_bottom));
-    let (_, cautions_bottom) = render::cautions(&content.cautions, 0.0, 0.0, area_w);
-    notes.push((Piece::Cautions, cautions_bottom));
-    let mut sheet = 0;
-    for (piece, height) in notes {
-        let mut piece = Some(piece);
-        while let Some(p) = piece.take() {
-            if sheet == plans.len() {
-                plans.push(SheetPlan::new(room));
-            }
-            if let Err(back) = plans[sheet].try_place(p, area_w, height, area_w) {
-                piece = Some(back);
-                sheet += 1;
-            }
+        if !placed {
+            sheet += 1;
         }
     }
     let count = plans.len();
@@ -1056,21 +1106,21 @@ pub(super) fn sheets(
                         |px: f64, py: f64| tile_at(px, py).map(|other| tile_sheet[other]);
                     body = body.add(connectors(content, geometry, w, &sheet_at, dx, dy));
                 }
-                Piece::Findings(range) => {
+                Piece::Findings(range, width) => {
                     let (g, _) = render::findings_panel(
                         &content.findings[range.clone()],
                         x,
                         y,
-                        area_w,
+                        *width,
                         marker_w,
                     );
                     body = body.add(g);
                 }
-                Piece::Legend => {
-                    body = body.add(render::legend(x, y, area_w, marker_w, true).0);
+                Piece::Legend(width) => {
+                    body = body.add(render::legend(x, y, *width, marker_w, true).0);
                 }
-                Piece::Cautions => {
-                    body = body.add(render::cautions(&content.cautions, x, y, area_w).0);
+                Piece::Cautions(width) => {
+                    body = body.add(render::cautions(&content.cautions, x, y, *width).0);
                 }
             }
         }
@@ -1082,6 +1132,73 @@ pub(super) fn sheets(
     }
     Ok(Sheets { page, svgs })
 }
+
+/// Which tile holds a point.
+fn tile_at(tiles: &[Tile], x: f64, y: f64) -> Option<usize> {
+    tiles.iter().position(|t| {
+        let w = t.window;
+        x >= w.x && x <= w.x + w.width && y >= w.y && y <= w.y + w.height
+    })
+}
+
+/// Pieces onto sheets in shelves, each on the first sheet with room that
+/// holds none of the pieces its lines go on to (so a connector always names
+/// another sheet): in drawing order, and tallest first (which packs shelves
+/// tighter); the fewer sheets win, drawing order on a tie. Sheet 1 has
+/// `first` of height under the title block, the others `room`. Gives the
+/// sheets and each tile's sheet.
+fn pack(
+    geometry: &Geometry,
+    tiles: &[Tile],
+    first: f64,
+    room: f64,
+    width: f64,
+) -> (Vec<SheetPlan>, Vec<usize>) {
+    let neighbours: Vec<Vec<usize>> = tiles
+        .iter()
+        .map(|t| {
+            edge_crossings(geometry, t.window)
+                .iter()
+                .flatten()
+                .filter_map(|c| tile_at(tiles, c.2.0, c.2.1))
+                .collect()
+        })
+        .collect();
+    let pack = |order: &[usize]| {
+        let mut plans = vec![SheetPlan::new(first)];
+        let mut placed: Vec<Option<usize>> = vec![None; tiles.len()];
+        for &t in order {
+            let (w, h) = tiles[t].size();
+            let mut sheet = 0;
+            loop {
+                if sheet == plans.len() {
+                    plans.push(SheetPlan::new(room));
+                }
+                let clash = neighbours[t].iter().any(|&n| placed[n] == Some(sheet));
+                if !clash && plans[sheet].place(Piece::Tile(t), w, h, width) {
+                    break;
+                }
+                sheet += 1;
+            }
+            placed[t] = Some(sheet);
+        }
+        let sheets: Vec<usize> = placed.into_iter().map(Option::unwrap_or_default).collect();
+        (plans, sheets)
+    };
+    let in_order: Vec<usize> = (0..tiles.len()).collect();
+    let mut tallest: Vec<usize> = in_order.clone();
+    tallest.sort_by(|&a, &b| tiles[b].size().1.total_cmp(&tiles[a].size().1));
+    let (plans, sheets) = pack(&in_order);
+    let (other_plans, other_sheets) = pack(&tallest);
+    if other_plans.len() < plans.len() {
+        (other_plans, other_sheets)
+    } else {
+        (plans, sheets)
+    }
+}
+
+/// Narrowest space beside the drawing a note panel goes in.
+const NOTE_WIDTH: f64 = 360.0;
 
 /// Space between pieces that share a sheet.
 const GAP: f64 = 12.0;
@@ -1129,6 +1246,38 @@ impl SheetPlan {
 
     fn place(&mut self, piece: Piece, w: f64, h: f64, width: f64) -> bool {
         self.try_place(piece, w, h, width).is_ok()
+    }
+
+    /// Free spaces for a note (left, top, width, height): beside the last
+    /// shelf, down to the foot of the sheet, when at least [`NOTE_WIDTH`]
+    /// wide; and under it, full width.
+    fn spaces(&self, width: f64) -> Vec<(f64, f64, f64, f64)> {
+        let mut out = Vec::new();
+        if let Some(last) = self.shelves.last() {
+            let x = last.2 + GAP;
+            if width - x >= NOTE_WIDTH {
+                out.push((x, last.0, width - x, self.room - last.0));
+            }
+        }
+        let y = self.shelves.last().map_or(0.0, |s| s.0 + s.1 + GAP);
+        if self.room - y > 0.0 {
+            out.push((0.0, y, width, self.room - y));
+        }
+        out
+    }
+
+    /// Puts a note of height `h` at the top of `space`, which fills the
+    /// space's width: nothing more goes beside it.
+    fn take(&mut self, space: (f64, f64, f64, f64), piece: Piece, h: f64) {
+        let (x, y, w, _) = space;
+        match self.shelves.last_mut() {
+            Some(last) if last.0 == y => {
+                last.2 = x + w;
+                last.1 = last.1.max(h);
+            }
+            _ => self.shelves.push((y, h, x + w)),
+        }
+        self.items.push((piece, x, y));
     }
 }
 

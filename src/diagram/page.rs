@@ -1373,6 +1373,41 @@ mod tests {
     }
 
     #[test]
+    fn flags_under_a_cut_share_rows_without_crossing_a_line() {
+        // Five lines 10 apart: the outermost pair takes row 0 (40 reading
+        // right, 0 reading left), the next pair row 1, the middle one row 2.
+        let rows = stack_rows(&[20.0, 0.0, 40.0, 10.0, 30.0]);
+        assert_eq!(
+            rows,
+            vec![(2, true), (0, false), (0, true), (1, false), (1, true)]
+        );
+        assert_eq!(stack_row_count(5), 3);
+        // Any bundle: no flag spans the x of a line that runs on to a
+        // further row (each flag is 60 long, lines 6 apart).
+        for count in 1..=9 {
+            let ats: Vec<f64> = (0..count).map(|i| i as f64 * 6.0).collect();
+            let rows = stack_rows(&ats);
+            assert_eq!(
+                rows.iter().map(|r| r.0).max(),
+                Some(stack_row_count(count) - 1)
+            );
+            for (i, &(row, right)) in rows.iter().enumerate() {
+                let (a, b) = if right {
+                    (ats[i] + 4.0, ats[i] + 64.0)
+                } else {
+                    (ats[i] - 64.0, ats[i] - 4.0)
+                };
+                for (j, &(other, _)) in rows.iter().enumerate() {
+                    assert!(
+                        other <= row || ats[j] < a || ats[j] > b,
+                        "{count} lines: the flag of line {i} on row {row} covers line {j} going on to row {other}"
+                    );
+                }
+            }
+        }
+    }
+
+    #[test]
     fn a_cut_steps_back_out_of_what_it_would_split() {
         // A box from 90 to 120: a cut wanted at 100 moves to 90; one wanted at
         // 130 stays.

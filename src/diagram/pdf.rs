@@ -199,18 +199,22 @@ impl Fonts {
 
 /// Whether a face can be embedded as a CID font: `Some(true)` for CFF
 /// outlines, `Some(false)` for TrueType ones, `None` for anything else
-/// (CFF2, bitmaps only, unreadable).
+/// (CFF2, bitmaps only, unreadable, or not one the subsetter can cut down).
 fn embeddable(data: &[u8], index: u32) -> Option<bool> {
     use skrifa::Tag;
     let font = skrifa::FontRef::from_index(data, index).ok()?;
     let has = |tag: &[u8; 4]| font.table_data(Tag::new(tag)).is_some();
-    if has(b"glyf") && has(b"loca") {
-        Some(false)
+    let cff = if has(b"glyf") && has(b"loca") {
+        false
     } else if has(b"CFF ") {
-        Some(true)
+        true
     } else {
-        None
-    }
+        return None;
+    };
+    // A face the subsetter cannot read would be embedded empty: its text
+    // is drawn as outlines instead.
+    subsetter::subset(data, index, &subsetter::GlyphRemapper::new()).ok()?;
+    Some(cff)
 }
 
 /// A text node as PDF text objects in its embedded fonts, so the words can
@@ -560,6 +564,63 @@ mod tests {
         assert_eq!(n(-0.0001), "0");
         assert_eq!(n(f64::NAN), "0");
         assert_eq!(n(1.0 / 3.0), "0.333");
+    }
+
+    /// The inflated content of every FlateDecode stream in `pdf`.
+    fn streams(pdf: &[u8]) -> Vec<String> {
+        let mut out = Vec::new();
+        let mut rest = pdf;
+        while let Some(start) = rest.windows(7).position(|w| w == b"stream\n") {
+            let body = &rest[start + 7..];
+            let end = body.windows(10).position(|w| w == b"\nendstream").unwrap();
+            if let Ok(bytes) = miniz_oxide::inflate::decompress_to_vec_zlib(&body[..end]) {
+                out.push(String::from_utf8_lossy(&bytes).into_owned());
+            }
+            rest = &body[end + 10..];
+        }
+        out
+    }
+
+    #[test]
+    fn text_is_written_as_text_in_an_embedded_subset() {
+        let mut options = usvg::Options::default();
+        options.fontdb_mut().load_system_fonts();
+        // Any installed face that draws the text: the first one's family.
+        let Some(family) = options
+            .fontdb
+            .faces()
+            .find_map(|face| face.families.first().map(|(name, _)| name.clone()))
+        else {
+            eprintln!("no fonts installed: PDF text not checked");
+            return;
+        };
+        let svg = format!(
+            r##"<svg xmlns="http://www.w3.org/2000/svg" width="200" height="40"><text x="10" y="20" font-family="{family}" font-size="12" fill="#000000">BATT+ 5V</text></svg>"##
+        );
+        let tree = usvg::Tree::from_str(&svg, &options).unwrap();
+        let pdf = write(std::slice::from_ref(&tree));
+        let text = String::from_utf8_lossy(&pdf);
+        // ISO 32000-1 §9.7: a Type 0 font over a CID font, Identity-H
+        // encoded, with a ToUnicode map; the subset's name has a six-letter
+        // tag and a plus (§9.6.4).
+        assert!(text.contains("/Subtype /Type0"), "{text}");
+        assert!(text.contains("/Encoding /Identity-H"));
+        assert!(text.contains("/ToUnicode"));
+        assert!(text.contains("/FontFile2") || text.contains("/FontFile3"));
+        let streams = streams(&pdf);
+        // Glyphs are shown with Tj inside BT … ET.
+        assert!(
+            streams
+                .iter()
+                .any(|s| s.contains(" Tj") && s.contains("BT"))
+        );
+        // The map sends glyphs back to B (U+0042), + (U+002B) and 5 (U+0035).
+        let map = streams.iter().find(|s| s.contains("beginbfchar")).unwrap();
+        for code in ["<0042>", "<002B>", "<0035>"] {
+            assert!(map.contains(code), "{code} missing from {map}");
+        }
+        // The same tree gives the same bytes.
+        assert_eq!(pdf, write(std::slice::from_ref(&tree)));
     }
 
     #[test]

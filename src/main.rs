@@ -905,6 +905,7 @@ fn draw(run: &Run, args: &PlanArgs, targets: &DrawTargets) -> ExitCode {
                 return fail_as(args, &message);
             }
         }
+        left_over_sheets(path, svgs.len());
     }
     let mut options = resvg::usvg::Options::default();
     if targets.png.is_some() || targets.pdf.is_some() {
@@ -919,6 +920,7 @@ fn draw(run: &Run, args: &PlanArgs, targets: &DrawTargets) -> ExitCode {
                 return fail_as(args, &message);
             }
         }
+        left_over_sheets(path, svgs.len());
     }
     if let (Some(path), Some(sheets)) = (targets.pdf, &sheets) {
         let written = railcheck::diagram::pdf(&sheets.svgs, &options)
@@ -956,6 +958,28 @@ fn sheet_names(path: &Path, count: usize) -> Vec<PathBuf> {
     (1..=count)
         .map(|k| path.with_file_name(format!("{stem}-{k}{extension}")))
         .collect()
+}
+
+/// Says so when numbered sheets of an earlier, longer run are still beside
+/// the `count` just written (they are left alone: they may be wanted).
+fn left_over_sheets(path: &Path, count: usize) {
+    if is_stdin(path) {
+        return;
+    }
+    let numbered = sheet_names(path, count.max(2) + 8);
+    let first = if count == 1 { 0 } else { count };
+    let stale: Vec<String> = numbered[first..]
+        .iter()
+        .take_while(|name| name.is_file())
+        .map(|name| syntax::visible(&name.display().to_string()).into_owned())
+        .collect();
+    if !stale.is_empty() {
+        eprintln!(
+            "note: {} {} left from an earlier drawing with more sheets",
+            stale.join(", "),
+            if stale.len() == 1 { "is" } else { "are" }
+        );
+    }
 }
 
 /// Whether `path` may be written: standard output, or a regular file (or

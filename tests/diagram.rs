@@ -1917,6 +1917,42 @@ mod command {
     }
 
     #[test]
+    fn sheets_left_from_a_longer_drawing_are_named_not_deleted() {
+        let dir = tempfile::tempdir().unwrap();
+        let rover = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml");
+        let out = dir.path().join("rover.svg");
+        let sheets_on = |page: &str| {
+            let run = railcheck()
+                .arg("draw")
+                .arg(&rover)
+                .args(["--page", page, "-o"])
+                .arg(&out)
+                .assert()
+                .code(0);
+            String::from_utf8_lossy(&run.get_output().stderr).to_string()
+        };
+        // A4 takes more sheets than A3 (twice its area, ISO 216).
+        sheets_on("a4");
+        let count = |dir: &Path| {
+            std::fs::read_dir(dir)
+                .unwrap()
+                .filter(|e| {
+                    e.as_ref()
+                        .unwrap()
+                        .file_name()
+                        .to_string_lossy()
+                        .starts_with("rover-")
+                })
+                .count()
+        };
+        let on_a4 = count(dir.path());
+        let said = sheets_on("a3");
+        assert!(said.contains("left from an earlier drawing"), "{said}");
+        assert!(said.contains(&format!("rover-{on_a4}.svg")), "{said}");
+        assert_eq!(count(dir.path()), on_a4, "no sheet was deleted");
+    }
+
+    #[test]
     fn one_sheet_keeps_the_name_given() {
         let dir = tempfile::tempdir().unwrap();
         let plan = plan_in(dir.path());

@@ -82,18 +82,22 @@ enum Command {
     ///
     /// One of `-o/--output`, `--png` and `--pdf` is required. With `--page`
     /// (and always for `--pdf`) the diagram is fitted to that paper with no
-    /// text under 7 pt, over several sheets when it must be.
+    /// text under 7 pt, over several sheets when it must be: the PDF has a
+    /// page per sheet, and SVG and PNG a file per sheet (`-o rover.svg`
+    /// writes rover-1.svg, rover-2.svg, …; one sheet keeps the name given).
     #[command(group(
         clap::ArgGroup::new("target").args(["output", "png", "pdf"]).required(true).multiple(true)
     ))]
     Draw {
         #[command(flatten)]
         plan: PlanArgs,
-        /// The SVG file to write; `-` writes it to standard output.
-        /// One of -o/--output and --png is required.
+        /// The SVG file to write; `-` writes it to standard output. With
+        /// --page and more than one sheet, one file per sheet: OUT-1.svg,
+        /// OUT-2.svg, … (each written whole; never over the plan).
         #[arg(short = 'o', long = "output", value_name = "OUT.svg")]
         output: Option<PathBuf>,
-        /// Also (or instead) write the diagram as a PNG picture.
+        /// Also (or instead) write the diagram as a PNG picture (with --page
+        /// and several sheets, one per sheet: OUT-1.png, OUT-2.png, …).
         #[arg(long, value_name = "OUT.png")]
         png: Option<PathBuf>,
         /// Also (or instead) write the diagram as a vector PDF, one page per sheet.
@@ -1043,26 +1047,55 @@ fn draw(run: &Run, args: &PlanArgs, targets: &DrawTargets) -> ExitCode {
     } else {
         None
     };
-    let svg = match (&sheets, targets.page) {
-        (Some(sheets), Some(_)) => sheets.combined.clone(),
-        _ => railcheck::diagram::draw(&checked),
+    // One SVG (and PNG) per sheet: OUT.svg for one, OUT-1.svg, OUT-2.svg, …
+    // for several.
+    let svgs = match (&sheets, targets.page) {
+        (Some(sheets), Some(_)) => sheets.svgs.clone(),
+        _ => vec![railcheck::diagram::draw(&checked)],
     };
-    if let Some(path) = targets.output
-        && let Err(message) = deliver(path, &args.file, svg.as_bytes())
-    {
-        return fail_as(args, &message);
+    let mut names = Vec::new();
+    for path in [targets.output, targets.png].into_iter().flatten() {
+        if svgs.len() > 1 && is_stdin(path) {
+            return fail_as(
+                args,
+                &format!(
+                    "the diagram takes {} sheets on {}, one document each, and standard output takes one: name a file (the sheets go to OUT-1.svg, OUT-2.svg, …) or write `--pdf -`",
+                    svgs.len(),
+                    targets.page.map(|p| p.to_string()).unwrap_or_default()
+                ),
+            );
+        }
+        names.push(sheet_names(path, svgs.len()));
+    }
+    // Every name is checked before any file is written, so a set of sheets
+    // is never left half-written because one name is refused.
+    for name in names.iter().flatten() {
+        if let Err(message) = output_allowed(name, &args.file) {
+            return fail_as(args, &message);
+        }
+    }
+    if let Some(path) = targets.output {
+        for (name, svg) in sheet_names(path, svgs.len()).iter().zip(&svgs) {
+            if let Err(message) = deliver(name, &args.file, svg.as_bytes()) {
+                return fail_as(args, &message);
+            }
+        }
+        left_over_sheets(path, svgs.len());
     }
     let mut options = resvg::usvg::Options::default();
     if targets.png.is_some() || targets.pdf.is_some() {
         options.fontdb_mut().load_system_fonts();
     }
     if let Some(path) = targets.png {
-        let written = railcheck::diagram::png(&svg, &options)
-            .map_err(|e| e.to_string())
-            .and_then(|bytes| deliver(path, &args.file, &bytes));
-        if let Err(message) = written {
-            return fail_as(args, &message);
+        for (name, svg) in sheet_names(path, svgs.len()).iter().zip(&svgs) {
+            let written = railcheck::diagram::png(svg, &options)
+                .map_err(|e| e.to_string())
+                .and_then(|bytes| deliver(name, &args.file, &bytes));
+            if let Err(message) = written {
+                return fail_as(args, &message);
+            }
         }
+        left_over_sheets(path, svgs.len());
     }
     if let (Some(path), Some(sheets)) = (targets.pdf, &sheets) {
         let written = railcheck::diagram::pdf(&sheets.svgs, &options)
@@ -1071,6 +1104,8 @@ fn draw(run: &Run, args: &PlanArgs, targets: &DrawTargets) -> ExitCode {
         if let Err(message) = written {
             return fail_as(args, &message);
         }
+    }
+    if let Some(sheets) = &sheets {
         eprintln!(
             "{} sheet{} on {}",
             sheets.svgs.len(),
@@ -1079,6 +1114,63 @@ fn draw(run: &Run, args: &PlanArgs, targets: &DrawTargets) -> ExitCode {
         );
     }
     ExitCode::SUCCESS
+}
+
+/// The files `count` sheets go to: `path` itself for one, else `path` with
+/// `-1`, `-2`, … before its extension (`rover.svg` → `rover-1.svg`).
+fn sheet_names(path: &Path, count: usize) -> Vec<PathBuf> {
+    if count <= 1 {
+        return vec![path.to_path_buf()];
+    }
+    let stem = path
+        .file_stem()
+        .map(|s| s.to_string_lossy().into_owned())
+        .unwrap_or_default();
+    let extension = path
+        .extension()
+        .map(|e| format!(".{}", e.to_string_lossy()))
+        .unwrap_or_default();
+    (1..=count)
+        .map(|k| path.with_file_name(format!("{stem}-{k}{extension}")))
+        .collect()
+}
+
+/// Says so when numbered sheets of an earlier, longer run are still beside
+/// the `count` just written (they are left alone: they may be wanted).
+fn left_over_sheets(path: &Path, count: usize) {
+    if is_stdin(path) {
+        return;
+    }
+    let numbered = sheet_names(path, count.max(2) + 8);
+    let first = if count == 1 { 0 } else { count };
+    let stale: Vec<String> = numbered[first..]
+        .iter()
+        .take_while(|name| name.is_file())
+        .map(|name| syntax::visible(&name.display().to_string()).into_owned())
+        .collect();
+    if !stale.is_empty() {
+        eprintln!(
+            "note: {} {} left from an earlier drawing with more sheets",
+            stale.join(", "),
+            if stale.len() == 1 { "is" } else { "are" }
+        );
+    }
+}
+
+/// Whether `path` may be written: standard output, or a regular file (or
+/// new name) that is not the plan.
+fn output_allowed(path: &Path, plan: &Path) -> Result<(), String> {
+    if is_stdin(path) {
+        return Ok(());
+    }
+    let target = output_target(path)?;
+    if is_same_file(&target, plan) {
+        return Err(format!(
+            "refusing to write the diagram over the plan {}",
+            plan.display()
+        ));
+    }
+    Ok(())
 }
 
 /// Writes `bytes` to standard output for `-`, else to the file (saying so on

@@ -234,9 +234,16 @@ fn picture(svg: &str) -> Picture {
 
 /// Everything the issue asks of the picture's geometry.
 fn assert_clean_geometry(svg: &str, what: &str) {
+    assert!(!picture(svg).boxes.is_empty(), "{what}: no part boxes");
+    assert_nothing_overlaps(svg, what);
+}
+
+/// No line ends in open space, no two boxes overlap, no label overlaps a
+/// box it is not inside of or another label, no line runs through a box
+/// or a label.
+fn assert_nothing_overlaps(svg: &str, what: &str) {
     assert_line_ends_attached(svg, what);
     let pic = picture(svg);
-    assert!(!pic.boxes.is_empty(), "{what}: no part boxes");
     for (i, (a, ba)) in pic.boxes.iter().enumerate() {
         for (b, bb) in &pic.boxes[i + 1..] {
             assert!(!ba.overlaps(bb), "{what}: boxes `{a}` and `{b}` overlap");
@@ -622,6 +629,141 @@ fn a_box_taller_than_the_page_names_the_page_it_needs() {
     );
     // The page it names does take it.
     assert!(railcheck::diagram::draw_pages(&checked, Some(fits)).is_ok());
+}
+
+/// Frames of rail tags and off-page connectors, each with the texts inside.
+fn frames_of(svg: &str) -> Vec<(String, Bounds)> {
+    let doc = Document::parse(svg).unwrap();
+    doc.descendants()
+        .filter(|n| {
+            n.has_tag_name("rect") && (has_class(n, "tag-frame") || has_class(n, "off-page"))
+        })
+        .map(|n| {
+            let (x, y) = (number(&n, "x"), number(&n, "y"));
+            let name = n
+                .attribute("data-net")
+                .map(|net| format!("flag {net}"))
+                .unwrap_or_else(|| "tag".to_string());
+            (
+                name,
+                Bounds {
+                    x0: x,
+                    y0: y,
+                    x1: x + number(&n, "width"),
+                    y1: y + number(&n, "height"),
+                },
+            )
+        })
+        .collect()
+}
+
+/// Everything a printed sheet must keep: the checks of the unpaged drawing
+/// (no overlaps, no line through a box or label, no line end in open
+/// space), frames (rail tags, off-page connectors) clear of each other and
+/// of boxes, every text inside a frame or clear of them all, everything on
+/// the paper, and no text under 7 pt.
+fn assert_clean_sheet(svg: &str, what: &str) {
+    assert_nothing_overlaps(svg, what);
+    let pic = picture(svg);
+    let frames = frames_of(svg);
+    for (i, (a, fa)) in frames.iter().enumerate() {
+        for (b, fb) in &frames[i + 1..] {
+            assert!(
+                !fa.overlaps(fb),
+                "{what}: {a} and {b} overlap at {fa:?} / {fb:?}"
+            );
+        }
+        for (part, bounds) in &pic.boxes {
+            assert!(!fa.overlaps(bounds), "{what}: {a} overlaps box `{part}`");
+        }
+        for label in &pic.labels {
+            assert!(
+                !label.bounds.overlaps(fa) || fa.contains(&label.bounds),
+                "{what}: label {:?} straddles {a} at {fa:?}",
+                label.text
+            );
+        }
+    }
+    let doc = Document::parse(svg).unwrap();
+    let view: Vec<f64> = doc
+        .root_element()
+        .attribute("viewBox")
+        .unwrap()
+        .split(' ')
+        .map(|v| v.parse().unwrap())
+        .collect();
+    let paper = Bounds {
+        x0: view[0],
+        y0: view[1],
+        x1: view[0] + view[2],
+        y1: view[1] + view[3],
+    };
+    for (part, bounds) in &pic.boxes {
+        assert!(
+            paper.contains(bounds),
+            "{what}: box `{part}` is off the paper"
+        );
+    }
+    for (name, frame) in &frames {
+        assert!(paper.contains(frame), "{what}: {name} is off the paper");
+    }
+    for label in &pic.labels {
+        assert!(
+            paper.contains(&label.bounds),
+            "{what}: {:?} is off the paper at {:?}",
+            label.text,
+            label.bounds
+        );
+    }
+    for (class, net, s) in &pic.segments {
+        for end in [(s[0], s[1]), (s[2], s[3])] {
+            assert!(
+                paper.contains(&Bounds {
+                    x0: end.0,
+                    y0: end.1,
+                    x1: end.0,
+                    y1: end.1
+                }),
+                "{what}: {class} `{net}` runs off the paper at {end:?}"
+            );
+        }
+    }
+    for (text, size) in printed_text_sizes(svg) {
+        // The 7 pt floor, with rounding of the written numbers.
+        assert!(
+            size >= 7.0 - 1e-6,
+            "{what}: {text:?} prints at {size:.2} pt"
+        );
+    }
+}
+
+#[test]
+fn every_sheet_is_clean_on_every_page() {
+    use railcheck::diagram::{Page, Paper};
+    let mut plans: Vec<(String, railcheck::Checked)> = examples()
+        .iter()
+        .map(|path| {
+            let name = format!("examples/{}", path.file_name().unwrap().to_string_lossy());
+            let text = std::fs::read_to_string(path).unwrap();
+            (name.clone(), check(&name, &text))
+        })
+        .collect();
+    plans.push((
+        "50-part plan".to_string(),
+        check("generated.yaml", &generate::plan(50)),
+    ));
+    for (name, checked) in &plans {
+        for paper in Paper::ALL {
+            for landscape in [false, true] {
+                let page = Page { paper, landscape };
+                let sheets = railcheck::diagram::draw_pages(checked, Some(page))
+                    .unwrap_or_else(|e| panic!("{name} on {page}: {e}"));
+                for (i, svg) in sheets.svgs.iter().enumerate() {
+                    assert_clean_sheet(svg, &format!("{name} on {page}, sheet {}", i + 1));
+                }
+            }
+        }
+    }
 }
 
 #[test]
@@ -1748,6 +1890,87 @@ mod command {
     }
 
     #[test]
+    fn no_sheet_is_written_when_one_would_go_over_the_plan() {
+        // The plan is named like the second sheet: nothing at all is
+        // written, not even the first sheet.
+        let dir = tempfile::tempdir().unwrap();
+        let rover = std::fs::read_to_string(
+            Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml"),
+        )
+        .unwrap();
+        let plan = dir.path().join("out-2.svg");
+        std::fs::write(&plan, &rover).unwrap();
+        let run = railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .args(["--page", "a4", "-o"])
+            .arg(dir.path().join("out.svg"))
+            .assert()
+            .code(2);
+        let said = String::from_utf8_lossy(&run.get_output().stderr).to_string();
+        assert!(
+            said.contains("refusing to write the diagram over the plan"),
+            "{said}"
+        );
+        assert_eq!(std::fs::read_to_string(&plan).unwrap(), rover);
+        assert!(!dir.path().join("out-1.svg").exists());
+    }
+
+    #[test]
+    fn sheets_left_from_a_longer_drawing_are_named_not_deleted() {
+        let dir = tempfile::tempdir().unwrap();
+        let rover = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml");
+        let out = dir.path().join("rover.svg");
+        let sheets_on = |page: &str| {
+            let run = railcheck()
+                .arg("draw")
+                .arg(&rover)
+                .args(["--page", page, "-o"])
+                .arg(&out)
+                .assert()
+                .code(0);
+            String::from_utf8_lossy(&run.get_output().stderr).to_string()
+        };
+        // A4 takes more sheets than A3 (twice its area, ISO 216).
+        sheets_on("a4");
+        let count = |dir: &Path| {
+            std::fs::read_dir(dir)
+                .unwrap()
+                .filter(|e| {
+                    e.as_ref()
+                        .unwrap()
+                        .file_name()
+                        .to_string_lossy()
+                        .starts_with("rover-")
+                })
+                .count()
+        };
+        let on_a4 = count(dir.path());
+        let said = sheets_on("a3");
+        assert!(said.contains("left from an earlier drawing"), "{said}");
+        assert!(said.contains(&format!("rover-{on_a4}.svg")), "{said}");
+        assert_eq!(count(dir.path()), on_a4, "no sheet was deleted");
+    }
+
+    #[test]
+    fn one_sheet_keeps_the_name_given() {
+        let dir = tempfile::tempdir().unwrap();
+        let plan = plan_in(dir.path());
+        let out = dir.path().join("lamp.svg");
+        // Three parts with the legend and cautions fill one A3 sheet.
+        railcheck()
+            .arg("draw")
+            .arg(&plan)
+            .args(["--page", "a3", "-o"])
+            .arg(&out)
+            .assert()
+            .code(0);
+        let text = std::fs::read_to_string(&out).unwrap();
+        assert!(text.contains(r#"width="297mm""#));
+        assert!(!dir.path().join("lamp-1.svg").exists());
+    }
+
+    #[test]
     fn draw_on_a_page_writes_sheets_and_a_pdf() {
         let dir = tempfile::tempdir().unwrap();
         let rover = Path::new(env!("CARGO_MANIFEST_DIR")).join("examples/orchard-rover.yaml");
@@ -1767,23 +1990,40 @@ mod command {
         // A PDF file starts with its header (ISO 32000-1 §7.5.2).
         let bytes = std::fs::read(&pdf).unwrap();
         assert!(bytes.starts_with(b"%PDF-"));
-        // The SVG holds every sheet, each 297 mm × 210 mm, one under another.
-        let text = std::fs::read_to_string(&svg).unwrap();
-        let doc = roxmltree::Document::parse(&text).unwrap();
-        let sheets = doc
-            .descendants()
-            .filter(|n| crate::has_class(n, "sheet"))
-            .count();
+        // One SVG per sheet beside the name given, each 297 mm × 210 mm, and
+        // the name given itself is not written.
+        assert!(!svg.exists(), "the sheets go to numbered files");
+        let mut sheets = 0;
+        while let Ok(text) =
+            std::fs::read_to_string(dir.path().join(format!("rover-{}.svg", sheets + 1)))
+        {
+            let doc = roxmltree::Document::parse(&text).unwrap();
+            assert_eq!(doc.root_element().attribute("width"), Some("297mm"));
+            assert_eq!(doc.root_element().attribute("height"), Some("210mm"));
+            let header = format!("sheet {} of", sheets + 1);
+            assert!(sheets == 0 || text.contains(&header), "{header} missing");
+            sheets += 1;
+        }
         assert!(sheets >= 2);
-        assert_eq!(
-            doc.root_element().attribute("height"),
-            Some(format!("{}mm", 210 * sheets).as_str())
+        assert!(
+            said.contains(&format!("{sheets} sheets on a4 landscape")),
+            "{said}"
         );
         // The same count of pages in the PDF.
         let pages = String::from_utf8_lossy(&bytes)
             .matches("/Type /Page ")
             .count();
         assert_eq!(pages, sheets);
+        // Several sheets cannot go to standard output as one document.
+        let refused = railcheck()
+            .arg("draw")
+            .arg(&rover)
+            .args(["--page", "a4", "-o", "-"])
+            .assert()
+            .code(2);
+        let said = String::from_utf8_lossy(&refused.get_output().stderr).to_string();
+        assert!(said.contains("OUT-1.svg"), "{said}");
+        assert!(refused.get_output().stdout.is_empty());
         // --landscape needs a page.
         railcheck()
             .arg("draw")

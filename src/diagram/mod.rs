@@ -85,8 +85,10 @@ pub fn draw_pages(checked: &Checked, page: Option<Page>) -> Result<Sheets, PageE
 }
 
 /// A vector PDF of the sheets, one page each, drawn from the same SVG trees
-/// the PNG renderer draws (text as outlines, so the PDF needs no fonts).
-/// `options` carries the fonts, as for [`png`].
+/// the PNG renderer draws, with the text as text in the faces it was laid
+/// out with, embedded as subsets (so it can be searched and extracted).
+/// `options` carries the fonts, as for [`png`]. The same sheets and fonts
+/// give the same bytes: no dates or random identifiers.
 pub fn pdf(svgs: &[String], options: &resvg::usvg::Options) -> Result<Vec<u8>, PngError> {
     let trees = svgs
         .iter()

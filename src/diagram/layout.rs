@@ -22,7 +22,7 @@
 //! The output is plain coordinates; `render` writes them. Not for colours,
 //! fonts or SVG.
 
-use super::content::{Content, End, Marker, PinAt, Wire};
+use super::content::{Content, End, Marker, PinAt, Wire, WireKind};
 use super::shape::{BoxShape, TagShape, box_shape, tag_shape};
 use super::text;
 use std::collections::BTreeMap;
@@ -617,6 +617,7 @@ pub(crate) fn place(content: &Content, marker_w: f64) -> Geometry {
     let part_count = content.parts.len();
     let node_count = part_count + content.tags.len();
     let (mut column, discovery) = columns(node_count, &content.edges, &content.sources, part_count);
+    beside_signal_neighbours(content, part_count, &mut column);
     // A bundle's tag stands in the first column after the nearer of its two
     // parts (in the further one's column when they are neighbours), so the
     // bundle does not loop round behind both.
@@ -779,6 +780,59 @@ fn place_box(shape: BoxShape, item: &Item) -> PlacedBox {
                 ..*g
             })
             .collect(),
+    }
+}
+
+/// A part that nothing feeds and that gives no power (a series resistor in
+/// a signal line) stands in the column of the deepest part its signals join,
+/// rather than in the first column, so its lines do not cross the drawing.
+fn beside_signal_neighbours(content: &Content, part_count: usize, column: &mut [usize]) {
+    let mut fed = vec![false; part_count];
+    for &(a, b) in &content.edges {
+        if a != b && b < part_count {
+            fed[b] = true;
+        }
+    }
+    for &source in &content.sources {
+        if source < part_count {
+            fed[source] = true;
+        }
+    }
+    let is_signal = |wire: &&Wire| matches!(wire.kind, WireKind::Signal | WireKind::Bundle);
+    let mut deepest: Vec<Option<usize>> = vec![None; part_count];
+    for wire in content.wires.iter().filter(is_signal) {
+        let parts = || wire.ends.iter().map(|e| e.node).filter(|&n| n < part_count);
+        for lonely in parts().filter(|&n| !fed[n]) {
+            for other in parts().filter(|&o| fed[o]) {
+                let here = column[other];
+                deepest[lonely] = Some(deepest[lonely].map_or(here, |d: usize| d.max(here)));
+            }
+        }
+    }
+    let mut moved = false;
+    for (part, deepest) in deepest.into_iter().enumerate() {
+        if let Some(d) = deepest {
+            moved |= column[part] != d;
+            column[part] = d;
+        }
+    }
+    if !moved {
+        return;
+    }
+    // Their signals' tags follow, one column after the deepest end.
+    for wire in content.wires.iter().filter(is_signal) {
+        let Some(last) = wire
+            .ends
+            .iter()
+            .filter(|e| e.node < part_count)
+            .map(|e| column[e.node])
+            .max()
+        else {
+            continue;
+        };
+        for tag in wire.ends.iter().filter(|e| e.node >= part_count) {
+            column[tag.node] = column[tag.node].max(last + 1);
+        }
     }
 }
 

@@ -156,3 +156,66 @@ fn the_same_plan_gives_the_same_pdf() {
     let text = String::from_utf8_lossy(&runs[0]);
     assert!(!text.contains("/CreationDate") && !text.contains("/ID"));
 }
+
+/// The text of the PDF at `path`, one string per page.
+fn text_of(tool: &Path, path: &Path) -> Vec<String> {
+    let text = std::process::Command::new(tool)
+        .arg("-raw")
+        .arg(path)
+        .arg("-")
+        .output()
+        .unwrap();
+    assert!(text.status.success(), "{text:?}");
+    let text = String::from_utf8(text.stdout).expect("pdftotext writes UTF-8");
+    let mut pages: Vec<String> = text.split('\u{c}').map(str::to_string).collect();
+    pages.pop();
+    pages
+}
+
+#[test]
+fn the_committed_rover_pdf_is_current() {
+    // `examples/orchard-rover.pdf` is the rover's diagram on A4 sheets, as a
+    // builder prints it. The glyphs come from the machine's own fonts, so
+    // the bytes differ between machines; the sheets and every word on them
+    // must not. `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test diagram_pdf`
+    // rewrites it.
+    let Some(tool) = pdftotext() else {
+        return;
+    };
+    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
+    let committed = root.join("examples/orchard-rover.pdf");
+    let dir = tempfile::tempdir().unwrap();
+    let (bytes, fresh) = drawn(
+        &tool,
+        &root.join("examples/orchard-rover.yaml"),
+        &["--page", "a4"],
+        dir.path(),
+    );
+    if std::env::var_os("RAILCHECK_UPDATE_DIAGRAMS").is_some_and(|v| v == "1") {
+        std::fs::write(&committed, bytes).unwrap();
+        return;
+    }
+    assert!(
+        committed.exists(),
+        "{} is missing: run `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test diagram_pdf`",
+        committed.display()
+    );
+    let kept = text_of(&tool, &committed);
+    assert_eq!(
+        kept.len(),
+        fresh.len(),
+        "{} has {} sheets, a fresh drawing {}: run `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test diagram_pdf`",
+        committed.display(),
+        kept.len(),
+        fresh.len()
+    );
+    for (i, (kept, fresh)) in kept.iter().zip(&fresh).enumerate() {
+        assert_eq!(
+            squeezed(kept),
+            squeezed(fresh),
+            "sheet {} of {} is stale: run `RAILCHECK_UPDATE_DIAGRAMS=1 cargo test --test diagram_pdf`",
+            i + 1,
+            committed.display()
+        );
+    }
+}

@@ -184,6 +184,57 @@ fn a_sweep_document_is_valid() {
     assert_valid(&strict, &sweep, "sweep of the rover");
 }
 
+/// `--format json-lines` writes a header line, one row per combination as it
+/// finishes, in combination order, and an end line: each is valid against
+/// its own definition.
+#[test]
+fn sweep_json_lines_are_valid_line_by_line() {
+    let output = Command::cargo_bin("railcheck")
+        .expect("the railcheck binary is built")
+        .current_dir(manifest_dir())
+        .args([
+            "sweep",
+            "examples/orchard-rover.yaml",
+            "--format",
+            "json-lines",
+            "--vary",
+            "buck.current=2 A,5 A",
+            "--vary",
+            "pack=battery/lipo-3s,battery/lipo-4s",
+        ])
+        .output()
+        .expect("railcheck runs");
+    assert_eq!(output.status.code(), Some(0), "{output:?}");
+    let text = String::from_utf8(output.stdout).expect("UTF-8");
+    let lines: Vec<Value> = text
+        .lines()
+        .map(|line| serde_json::from_str(line).expect("each line is one JSON value"))
+        .collect();
+    // A header, four rows (2 × 2 combinations) and an end line.
+    assert_eq!(lines.len(), 6, "{text}");
+    let mut schema = published_schema();
+    closed(&mut schema, None);
+    let against = |definition: &str| {
+        let mut one = schema.clone();
+        let map = one.as_object_mut().expect("the schema is an object");
+        map.remove("oneOf");
+        map.insert(
+            "$ref".into(),
+            Value::String(format!("#/$defs/{definition}")),
+        );
+        validator(&one)
+    };
+    assert_valid(&against("sweepLinesHeader"), &lines[0], "json-lines header");
+    let row = against("sweepRow");
+    for (i, line) in lines[1..5].iter().enumerate() {
+        assert_valid(&row, line, &format!("json-lines row {}", i + 1));
+        // In combination order as they finish.
+        assert_eq!(line["combination"], i + 1);
+    }
+    assert_valid(&against("sweepLinesEnd"), &lines[5], "json-lines end");
+    assert_eq!(lines[5]["checked"], 4);
+}
+
 #[test]
 fn every_fixture_checks_into_a_valid_document() {
     let strict = strict_validator();

@@ -279,6 +279,8 @@ struct Solver<'a> {
     hosted: Vec<Vec<usize>>,
     /// Per part: the USB link plugged into each of its device ports.
     plugged: HashMap<(PartId, usize), usize>,
+    /// Per part: the USB links it is the device of.
+    feeding_links: Vec<Vec<usize>>,
 }
 
 impl<'a> Solver<'a> {
@@ -293,9 +295,11 @@ impl<'a> Solver<'a> {
             }
         }
         let mut hosted = vec![Vec::new(); plan.parts.len()];
+        let mut feeding_links = vec![Vec::new(); plan.parts.len()];
         let mut plugged = HashMap::new();
         for (i, link) in plan.links.iter().enumerate() {
             hosted[link.host.0].push(i);
+            feeding_links[link.device.0].push(i);
             plugged.insert(link.device, i);
         }
         Solver {
@@ -304,6 +308,7 @@ impl<'a> Solver<'a> {
             through,
             hosted,
             plugged,
+            feeding_links,
         }
     }
 
@@ -484,6 +489,34 @@ impl Local {
                         power_net(net, &mut group_on, &mut groups_to_visit);
                     }
                 }
+            }
+        }
+        // A part decided here may also have a supply input outside the
+        // region, or a cable from a host outside it: those keep their
+        // running power (a driver's logic supply on a rail the switch does
+        // not feed).
+        if let Some(running) = running {
+            let mut already_on: Vec<PartId> = Vec::new();
+            for (&part_id, _) in local_parts.iter() {
+                let part = &plan.parts[part_id];
+                let by_pin = part.pins_with_role(PinRole::SupplyIn).any(|(_, pin)| {
+                    pin.net
+                        .is_some_and(|n| !index.contains_key(&n) && running.running_nets[n])
+                });
+                let by_cable = solver.feeding_links[part_id].iter().any(|&link| {
+                    let host = plan.links[link].host.0;
+                    !local_parts.contains_key(&host)
+                        && running.running_parts[host]
+                        && !unplugged.contains(&link)
+                });
+                if by_pin || by_cable {
+                    already_on.push(part_id);
+                }
+            }
+            already_on.sort_unstable();
+            for part_id in already_on {
+                local_parts.insert(part_id, true);
+                parts_to_visit.push(part_id);
             }
         }
         for &s in connected {

@@ -257,3 +257,78 @@ fn the_listing_names_what_each_scenario_takes_away() {
     );
     assert!(!alone.contains("mcu"), "{alone}");
 }
+
+/// Two packs: one for the electronics, one behind the stop for the motors.
+/// Opening the stop takes the motor supply only; the driver keeps its logic
+/// supply from the other pack, which the stop's region does not reach, so it
+/// still has power and the controller driving its inputs is not feeding a
+/// dead part. The region solution must agree with the whole plan solved.
+#[test]
+fn a_part_fed_from_outside_the_switchs_region_keeps_its_power() {
+    let text = "\
+railcheck: 1
+name: two-pack tug
+parts:
+  logic_pack: { use: battery/lipo-2s, with: { cutoff: true } }
+  logic_fuse: { use: fuse/blade-5a }
+  buck: { use: regulator/buck-5v-3a }
+  brain: { use: board/mcu-3v3 }
+  motor_pack: { use: battery/lipo-3s, with: { cutoff: true } }
+  motor_fuse: { use: fuse/blade-15a }
+  stop: { use: switch/estop-20a }
+  drive: { use: driver/mosfet-dual-hbridge, with: { clamp: true } }
+  left: { use: motor/gearmotor-medium }
+nets:
+  LOGIC+: [logic_pack.pos, logic_fuse.a]
+  LOGIC_BAT: [logic_fuse.b, buck.vin]
+  5V: [buck.vout, brain.vin, drive.vlogic]
+  MOTOR+: [motor_pack.pos, motor_fuse.a]
+  MOTOR_BAT: [motor_fuse.b, stop.a]
+  VMOT: [stop.b, drive.vm]
+  GND: [logic_pack.neg, motor_pack.neg, buck.gnd, brain.gnd, drive.gnd]
+  LA: [drive.out1a, left.a]
+  LB: [drive.out1b, left.b]
+  IN1: [brain.gpio1, drive.in1]
+scenarios:
+  struck: { open: [stop] }
+";
+    let plan = checked(text);
+    let part = |name: &str| plan.plan.parts.iter().position(|p| p.name == name).unwrap();
+    let net = |name: &str| plan.plan.nets.iter().position(|n| n.name == name).unwrap();
+    let alone = plan
+        .scenarios
+        .iter()
+        .find(|p| matches!(p.scenario.origin, Origin::SwitchOpen(_)))
+        .unwrap();
+    let whole = plan
+        .scenarios
+        .iter()
+        .find(|p| p.scenario.origin == Origin::Declared(0))
+        .unwrap();
+    assert!(!alone.net_on(net("VMOT")));
+    assert!(alone.part_on(part("drive")), "vlogic keeps it on");
+    for p in 0..plan.plan.parts.len() {
+        assert_eq!(
+            alone.part_on(p),
+            whole.part_on(p),
+            "{}",
+            plan.plan.parts[p].name
+        );
+    }
+    for n in 0..plan.plan.nets.len() {
+        assert_eq!(
+            alone.net_on(n),
+            whole.net_on(n),
+            "{}",
+            plan.plan.nets[n].name
+        );
+    }
+    assert!(
+        !plan
+            .findings
+            .iter()
+            .any(|f| f.rule.starts_with("scenario/")),
+        "{:?}",
+        plan.findings.iter().map(|f| &f.message).collect::<Vec<_>>()
+    );
+}

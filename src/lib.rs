@@ -239,7 +239,7 @@ pub fn read(
             });
         }
     };
-    match model::read_plan(&root, library, &mut sources) {
+    match model::read_plan(root, library, &mut sources) {
         Ok(plan) => Ok((sources, plan_source, plan)),
         Err(errors) => Err(InputFailure {
             sources,

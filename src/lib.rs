@@ -30,6 +30,7 @@ use analysis::Analysis;
 use graph::Circuit;
 use model::{InputError, Library, Plan};
 use rules::{Context, Finding};
+use std::sync::Arc;
 use syntax::{SourceId, Sources};
 
 /// The largest plan (and part file) railcheck reads, in bytes: 64 MiB. A
@@ -216,9 +217,19 @@ pub fn read(
     text: &str,
     library: &Library,
 ) -> Result<(Sources, SourceId, Plan), InputFailure> {
+    read_shared(file_name, Arc::from(text), library)
+}
+
+/// [`read`] a text the caller hands over: the sources keep it as it is,
+/// without a copy of their own.
+pub fn read_shared(
+    file_name: &str,
+    text: Arc<str>,
+    library: &Library,
+) -> Result<(Sources, SourceId, Plan), InputFailure> {
     let mut sources = Sources::default();
-    let plan_source = sources.add(file_name, text);
-    let root = match syntax::parse(plan_source, text) {
+    let plan_source = sources.add(file_name, Arc::clone(&text));
+    let root = match syntax::parse(plan_source, &text) {
         Ok(root) => root,
         Err(e) => {
             let too_large = e.is_size_limit();
@@ -287,7 +298,17 @@ pub fn read(
 /// assert!(checked.findings.iter().any(|f| f.rule == "fuse/missing"));
 /// ```
 pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, InputFailure> {
-    let (sources, plan_source, plan) = read(file_name, text, library)?;
+    check_shared(file_name, Arc::from(text), library)
+}
+
+/// [`check`] a text the caller hands over: it is kept once, among the
+/// [`Checked::sources`], rather than copied while the caller holds its own.
+pub fn check_shared(
+    file_name: &str,
+    text: Arc<str>,
+    library: &Library,
+) -> Result<Checked, InputFailure> {
+    let (sources, plan_source, plan) = read_shared(file_name, text, library)?;
     let circuit = Circuit::build(&plan);
     // Shorts and loops are decided on the graph first; with either, there is
     // no meaningful operating point to solve.

@@ -247,6 +247,8 @@ impl Reader<'_> {
             Some(node) => self.nets(node, &mut parts, &part_index),
         };
         let mut nets = nets;
+        parts.shrink_to_fit();
+        nets.shrink_to_fit();
         let links = root
             .get("links")
             .map(|n| self.links(n, &parts, &part_index))
@@ -774,6 +776,9 @@ impl Reader<'_> {
             .and_then(|n| self.boolean(n))
             .unwrap_or(false);
         let actuator = moves || matches!(class, Class::Motor(_) | Class::Servo);
+        // A plan keeps every pin for the whole run: no room left over from
+        // growing the list as pins were read.
+        pins.shrink_to_fit();
         Some(Part {
             name,
             span: name_span,

@@ -597,31 +597,31 @@ impl Analysis {
             return Analysis { points };
         }
         // Each thread takes the next mode not yet taken; the modes' points
-        // are put back in mode order.
+        // are put back in mode order. The calling thread is one of the
+        // workers: its points take memory the plan's reading has freed,
+        // where a spawned thread's would take new memory of its own.
         let next = std::sync::atomic::AtomicUsize::new(0);
+        let work = || {
+            let mut mine = Vec::new();
+            loop {
+                let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                let Some(&mode) = modes.get(i) else {
+                    break;
+                };
+                mine.push((i, solve_mode(mode)));
+            }
+            mine
+        };
         let mut solved: Vec<(usize, Vec<OperatingPoint>)> = std::thread::scope(|scope| {
-            let workers: Vec<_> = (0..threads)
-                .map(|_| {
-                    scope.spawn(|| {
-                        let mut mine = Vec::new();
-                        loop {
-                            let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-                            let Some(&mode) = modes.get(i) else {
-                                break;
-                            };
-                            mine.push((i, solve_mode(mode)));
-                        }
-                        mine
-                    })
-                })
-                .collect();
-            workers
-                .into_iter()
-                .flat_map(|w| match w.join() {
-                    Ok(mine) => mine,
+            let workers: Vec<_> = (1..threads).map(|_| scope.spawn(work)).collect();
+            let mut solved = work();
+            for worker in workers {
+                match worker.join() {
+                    Ok(mine) => solved.extend(mine),
                     Err(panic) => std::panic::resume_unwind(panic),
-                })
-                .collect()
+                }
+            }
+            solved
         });
         solved.sort_by_key(|(i, _)| *i);
         Analysis {

@@ -597,31 +597,31 @@ impl Analysis {
             return Analysis { points };
         }
         // Each thread takes the next mode not yet taken; the modes' points
-        // are put back in mode order.
+        // are put back in mode order. The calling thread is one of the
+        // workers: its points take memory the plan's reading has freed,
+        // where a spawned thread's would take new memory of its own.
         let next = std::sync::atomic::AtomicUsize::new(0);
+        let work = || {
+            let mut mine = Vec::new();
+            loop {
+                let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
+                let Some(&mode) = modes.get(i) else {
+                    break;
+                };
+                mine.push((i, solve_mode(mode)));
+            }
+            mine
+        };
         let mut solved: Vec<(usize, Vec<OperatingPoint>)> = std::thread::scope(|scope| {
-            let workers: Vec<_> = (0..threads)
-                .map(|_| {
-                    scope.spawn(|| {
-                        let mut mine = Vec::new();
-                        loop {
-                            let i = next.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
-                            let Some(&mode) = modes.get(i) else {
-                                break;
-                            };
-                            mine.push((i, solve_mode(mode)));
-                        }
-                        mine
-                    })
-                })
-                .collect();
-            workers
-                .into_iter()
-                .flat_map(|w| match w.join() {
-                    Ok(mine) => mine,
+            let workers: Vec<_> = (1..threads).map(|_| scope.spawn(work)).collect();
+            let mut solved = work();
+            for worker in workers {
+                match worker.join() {
+                    Ok(mine) => solved.extend(mine),
                     Err(panic) => std::panic::resume_unwind(panic),
-                })
-                .collect()
+                }
+            }
+            solved
         });
         solved.sort_by_key(|(i, _)| *i);
         Analysis {
@@ -789,6 +789,8 @@ struct Lookup {
     unwired_outputs: Vec<PinRef>,
     /// Per part: its `vin`, `vout` and `vm` pins, where it has them.
     named_pins: Vec<[Option<usize>; 3]>,
+    /// Per link: its device port's draw, if it gives one.
+    device_draw: Vec<Option<crate::model::Draw>>,
 }
 
 impl Lookup {
@@ -862,6 +864,14 @@ impl Lookup {
             returns,
             unwired_outputs,
             named_pins,
+            device_draw: plan
+                .links
+                .iter()
+                .map(|l| match &plan.parts[l.device.0].ports[l.device.1].kind {
+                    PortKind::UsbDevice { draw, .. } => *draw,
+                    _ => None,
+                })
+                .collect(),
             resistance: (0..plan.nets.len())
                 .map(|n| net_resistance(plan, n))
                 .collect(),
@@ -1223,7 +1233,7 @@ impl Solver<'_> {
                 Some(terminal)
             }
             Class::Regulator(regulator) => {
-                let vin_pin = part.pin("vin")?;
+                let vin_pin = self.lookup.named_pins[part_id][0]?;
                 let input = point
                     .pin_voltage
                     .get(part_id, vin_pin)
@@ -1453,11 +1463,11 @@ impl Solver<'_> {
         net_current: &[ElectricCurrent],
     ) -> ElectricCurrent {
         let plan = self.plan;
-        let (device, port) = plan.links[link].device;
+        let device = plan.links[link].device.0;
         let state = self.load_state(device);
-        let mut current = match &plan.parts[device].ports[port].kind {
-            PortKind::UsbDevice { draw: Some(d), .. } => d.in_state(state),
-            _ => zero_current(),
+        let mut current = match self.lookup.device_draw[link] {
+            Some(d) => d.in_state(state),
+            None => zero_current(),
         };
         if self.fed_supply_in(point, device).is_none() {
             for pin in self.lookup.layout.supply_pins_of(device) {

@@ -31,6 +31,7 @@ use analysis::Analysis;
 use graph::Circuit;
 use model::{InputError, Library, Plan};
 use rules::{Context, Finding};
+use std::sync::Arc;
 use syntax::{SourceId, Sources};
 
 /// The largest plan (and part file) railcheck reads, in bytes: 64 MiB. A
@@ -222,6 +223,16 @@ pub fn read(
     text: &str,
     library: &Library,
 ) -> Result<(Sources, SourceId, Plan), InputFailure> {
+    read_tree(file_name, Arc::from(text), None, library)
+}
+
+/// [`read`] a text the caller hands over: the sources keep it as it is,
+/// without a copy of their own.
+pub fn read_shared(
+    file_name: &str,
+    text: Arc<str>,
+    library: &Library,
+) -> Result<(Sources, SourceId, Plan), InputFailure> {
     read_tree(file_name, text, None, library)
 }
 
@@ -229,15 +240,15 @@ pub fn read(
 /// source, the plan's); `None` parses `text`.
 fn read_tree(
     file_name: &str,
-    text: &str,
+    text: Arc<str>,
     tree: Option<syntax::Node>,
     library: &Library,
 ) -> Result<(Sources, SourceId, Plan), InputFailure> {
     let mut sources = Sources::default();
-    let plan_source = sources.add(file_name, text);
+    let plan_source = sources.add(file_name, Arc::clone(&text));
     let parsed = match tree {
         Some(tree) => Ok(tree),
-        None => syntax::parse(plan_source, text),
+        None => syntax::parse(plan_source, &text),
     };
     let root = match parsed {
         Ok(root) => root,
@@ -260,7 +271,7 @@ fn read_tree(
             });
         }
     };
-    match model::read_plan(&root, library, &mut sources) {
+    match model::read_plan(root, library, &mut sources) {
         Ok(plan) => Ok((sources, plan_source, plan)),
         Err(errors) => Err(InputFailure {
             sources,
@@ -308,6 +319,16 @@ fn read_tree(
 /// assert!(checked.findings.iter().any(|f| f.rule == "fuse/missing"));
 /// ```
 pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, InputFailure> {
+    check_shared(file_name, Arc::from(text), library)
+}
+
+/// [`check`] a text the caller hands over: it is kept once, among the
+/// [`Checked::sources`], rather than copied while the caller holds its own.
+pub fn check_shared(
+    file_name: &str,
+    text: Arc<str>,
+    library: &Library,
+) -> Result<Checked, InputFailure> {
     check_tree(file_name, text, None, library)
 }
 
@@ -316,7 +337,7 @@ pub fn check(file_name: &str, text: &str, library: &Library) -> Result<Checked, 
 /// base plan's tree and the few entries a variant changes).
 pub(crate) fn check_tree(
     file_name: &str,
-    text: &str,
+    text: Arc<str>,
     tree: Option<syntax::Node>,
     library: &Library,
 ) -> Result<Checked, InputFailure> {

@@ -658,7 +658,9 @@ fn load_with_library(
     let text = railcheck::decode(&name, bytes)
         .map_err(|failure| report_input(run, args, &failure, stream))?;
     let library = library(args.parts.as_deref()).map_err(|message| fail_as(args, &message))?;
-    let checked = railcheck::check(&name, &text, &library)
+    // Held once, by the sources, for the whole run.
+    let text: std::sync::Arc<str> = text.into();
+    let checked = railcheck::check_shared(&name, text, &library)
         .map_err(|failure| report_input(run, args, &failure, stream))?;
     Ok((checked, library))
 }

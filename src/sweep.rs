@@ -531,7 +531,12 @@ impl Sweep {
             .map(|(axis, i)| axis.values[i].clone())
             .collect();
         let (text, tree) = self.variant_and_tree(index);
-        let outcome = match crate::check_tree(&self.file_name, &text, tree, library) {
+        let outcome = match crate::check_tree(
+            &self.file_name,
+            std::sync::Arc::from(text.as_str()),
+            tree,
+            library,
+        ) {
             Ok(checked) => Outcome::Checked(Box::new(verdict(&checked))),
             Err(failure) => Outcome::Unreadable(first_problem(&failure)),
         };

@@ -6,8 +6,7 @@
 //! the text as written (a plain `y` stays `y`, not a YAML 1.1 boolean), so names
 //! and quantities reach the model exactly as the user typed them.
 
-use serde::de::{self, Deserialize, Deserializer, MapAccess, SeqAccess, Visitor};
-use serde_saphyr::Spanned;
+use serde::de::{self, DeserializeSeed, Deserializer, MapAccess, SeqAccess, Visitor};
 use std::borrow::Cow;
 use std::fmt;
 use std::sync::{Arc, OnceLock};
@@ -346,8 +345,16 @@ pub fn reader_options(text: &str) -> serde_saphyr::Options {
 /// Parses one YAML document into a spanned tree.
 pub fn parse(source: SourceId, text: &str) -> Result<Node, SyntaxError> {
     let options = reader_options(text);
-    match serde_saphyr::from_str_with_options::<Spanned<RawNode>>(text, options) {
-        Ok(raw) => Ok(convert(source, text, &OnceLock::new(), raw)),
+    let lines = OnceLock::new();
+    let seed = NodeSeed {
+        source,
+        text,
+        lines: &lines,
+    };
+    match serde_saphyr::with_deserializer_from_str_with_options(text, options, |d| {
+        seed.deserialize(d)
+    }) {
+        Ok(root) => Ok(root),
         Err(error) => {
             let full = error.to_string();
             if let Some(message) = size_limit_message(&full, text) {
@@ -486,43 +493,223 @@ fn offset_of(text: &str, lines: &OnceLock<LineIndex>, location: &serde_saphyr::L
     )
 }
 
-fn convert(
+/// serde-saphyr's protocol for a value read with its position, the one its
+/// `Spanned<T>` uses (serde-saphyr is pinned to one version in Cargo.toml):
+/// asked for a newtype struct of this name, the reader hands over a map of
+/// the marker, the value, where it is referenced and where it is defined.
+/// Reading it through a seed builds each [`Node`] as its value is read, with
+/// no intermediate tree; a reader that did not honour the name would hand
+/// over the plain value, which `PlacedVisitor` refuses.
+const SPANNED: &str = "__yaml_spanned";
+/// The first key of that map.
+const SPANNED_MARKER: &str = "__serde_saphyr_private_spanned";
+
+/// Builds one [`Node`] (and everything under it) from the reader.
+#[derive(Clone, Copy)]
+struct NodeSeed<'t> {
     source: SourceId,
-    text: &str,
-    lines: &OnceLock<LineIndex>,
-    raw: Spanned<RawNode>,
-) -> Node {
-    let start = offset_of(text, lines, &raw.referenced);
-    let declared_len = raw
-        .referenced
-        .span()
-        .byte_len()
-        .filter(|len| raw.referenced.span().byte_offset().is_some() && *len < u32::MAX as u64)
-        .map_or(0, |len| len as usize);
-    let end = floor_char_boundary(text, (start + declared_len).min(text.len()));
-    let span = Span::new(source, start, end);
-    let kind = match raw.value {
-        RawNode::Null => NodeKind::Null,
-        RawNode::Scalar(value) => NodeKind::Scalar(scalar_as_written(&text[start..end], value)),
-        RawNode::Seq(items) => NodeKind::Seq(
-            items
-                .into_iter()
-                .map(|i| convert(source, text, lines, i))
-                .collect(),
-        ),
-        RawNode::Map(entries) => NodeKind::Map(
-            entries
-                .into_iter()
-                .map(|(k, v)| {
-                    (
-                        convert(source, text, lines, k),
-                        convert(source, text, lines, v),
-                    )
-                })
-                .collect(),
-        ),
-    };
-    Node { kind, span }
+    text: &'t str,
+    lines: &'t OnceLock<LineIndex>,
+}
+
+impl NodeSeed<'_> {
+    /// A node from its value and where the reader says it is written.
+    fn node(self, value: Value, referenced: &serde_saphyr::Location) -> Node {
+        let text = self.text;
+        let start = offset_of(text, self.lines, referenced);
+        let declared_len = referenced
+            .span()
+            .byte_len()
+            .filter(|len| referenced.span().byte_offset().is_some() && *len < u32::MAX as u64)
+            .map_or(0, |len| len as usize);
+        let end = floor_char_boundary(text, (start + declared_len).min(text.len()));
+        let kind = match value {
+            Value::Null => NodeKind::Null,
+            Value::Scalar(value) => NodeKind::Scalar(scalar_as_written(&text[start..end], value)),
+            Value::Seq(items) => NodeKind::Seq(items),
+            Value::Map(entries) => NodeKind::Map(entries),
+        };
+        Node {
+            kind,
+            span: Span::new(self.source, start, end),
+        }
+    }
+}
+
+impl<'de> de::DeserializeSeed<'de> for NodeSeed<'_> {
+    type Value = Node;
+
+    fn deserialize<D: Deserializer<'de>>(self, d: D) -> Result<Node, D::Error> {
+        d.deserialize_newtype_struct(SPANNED, SpannedVisitor(self))
+    }
+}
+
+struct SpannedVisitor<'t>(NodeSeed<'t>);
+
+impl<'de> Visitor<'de> for SpannedVisitor<'_> {
+    type Value = Node;
+
+    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+        f.write_str("any YAML value")
+    }
+    fn visit_newtype_struct<D: Deserializer<'de>>(self, d: D) -> Result<Node, D::Error> {
+        d.deserialize_any(PlacedVisitor(self.0))
+    }
+}
+
+/// The keys of the reader's map for a value with its position.
+enum Field {
+    Marker,
+    Value,
+    Referenced,
+    Other,
+}
+
+struct FieldSeed;
+
+impl<'de> de::DeserializeSeed<'de> for FieldSeed {
+    type Value = Field;
+
+    fn deserialize<D: Deserializer<'de>>(self, d: D) -> Result<Field, D::Error> {
+        d.deserialize_identifier(self)
+    }
+}
+
+impl Visitor<'_> for FieldSeed {
+    type Value = Field;
+
+    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+        f.write_str("a field of a value with its position")
+    }
+    fn visit_str<E: de::Error>(self, v: &str) -> Result<Field, E> {
+        Ok(match v {
+            SPANNED_MARKER => Field::Marker,
+            "value" => Field::Value,
+            "referenced" => Field::Referenced,
+            _ => Field::Other,
+        })
+    }
+}
+
+struct PlacedVisitor<'t>(NodeSeed<'t>);
+
+impl<'de> Visitor<'de> for PlacedVisitor<'_> {
+    type Value = Node;
+
+    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+        f.write_str("any YAML value")
+    }
+    fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<Node, A::Error> {
+        let mut marked = false;
+        let mut value = None;
+        let mut referenced = None;
+        while let Some(field) = map.next_key_seed(FieldSeed)? {
+            match field {
+                Field::Marker => {
+                    marked = true;
+                    map.next_value::<de::IgnoredAny>()?;
+                }
+                Field::Value if marked => value = Some(map.next_value_seed(ValueSeed(self.0))?),
+                Field::Referenced if marked => {
+                    referenced = Some(map.next_value::<serde_saphyr::Location>()?);
+                }
+                _ if !marked => {
+                    return Err(de::Error::custom(
+                        "the YAML reader gave a value without its position",
+                    ));
+                }
+                // `defined`: where an alias's anchor is; the node's span is
+                // where it is used.
+                _ => {
+                    map.next_value::<serde_saphyr::Location>()?;
+                }
+            }
+        }
+        match (value, referenced) {
+            (Some(value), Some(referenced)) => Ok(self.0.node(value, &referenced)),
+            _ => Err(de::Error::custom(
+                "the YAML reader gave a value without its position",
+            )),
+        }
+    }
+}
+
+/// A node's value as the reader hands it over: its children already
+/// [`Node`]s, a scalar as the reader interpreted it (its written text is
+/// taken once its span is known).
+enum Value {
+    Null,
+    Scalar(String),
+    Seq(Vec<Node>),
+    Map(Vec<(Node, Node)>),
+}
+
+struct ValueSeed<'t>(NodeSeed<'t>);
+
+impl<'de> de::DeserializeSeed<'de> for ValueSeed<'_> {
+    type Value = Value;
+
+    fn deserialize<D: Deserializer<'de>>(self, d: D) -> Result<Value, D::Error> {
+        d.deserialize_any(self)
+    }
+}
+
+impl<'de> Visitor<'de> for ValueSeed<'_> {
+    type Value = Value;
+
+    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
+        f.write_str("any YAML value")
+    }
+    fn visit_str<E: de::Error>(self, v: &str) -> Result<Value, E> {
+        Ok(Value::Scalar(v.to_string()))
+    }
+    fn visit_string<E: de::Error>(self, v: String) -> Result<Value, E> {
+        Ok(Value::Scalar(v))
+    }
+    fn visit_i64<E: de::Error>(self, v: i64) -> Result<Value, E> {
+        Ok(Value::Scalar(v.to_string()))
+    }
+    fn visit_u64<E: de::Error>(self, v: u64) -> Result<Value, E> {
+        Ok(Value::Scalar(v.to_string()))
+    }
+    fn visit_i128<E: de::Error>(self, v: i128) -> Result<Value, E> {
+        Ok(Value::Scalar(v.to_string()))
+    }
+    fn visit_u128<E: de::Error>(self, v: u128) -> Result<Value, E> {
+        Ok(Value::Scalar(v.to_string()))
+    }
+    fn visit_f64<E: de::Error>(self, v: f64) -> Result<Value, E> {
+        Ok(Value::Scalar(v.to_string()))
+    }
+    fn visit_bool<E: de::Error>(self, v: bool) -> Result<Value, E> {
+        Ok(Value::Scalar(v.to_string()))
+    }
+    fn visit_char<E: de::Error>(self, v: char) -> Result<Value, E> {
+        Ok(Value::Scalar(v.to_string()))
+    }
+    fn visit_unit<E: de::Error>(self) -> Result<Value, E> {
+        Ok(Value::Null)
+    }
+    fn visit_none<E: de::Error>(self) -> Result<Value, E> {
+        Ok(Value::Null)
+    }
+    fn visit_some<D: Deserializer<'de>>(self, d: D) -> Result<Value, D::Error> {
+        d.deserialize_any(self)
+    }
+    fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<Value, A::Error> {
+        let mut items = Vec::new();
+        while let Some(item) = seq.next_element_seed(self.0)? {
+            items.push(item);
+        }
+        Ok(Value::Seq(items))
+    }
+    fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<Value, A::Error> {
+        let mut entries = Vec::new();
+        while let Some(entry) = map.next_entry_seed(self.0, self.0)? {
+            entries.push(entry);
+        }
+        Ok(Value::Map(entries))
+    }
 }
 
 /// Plain scalars are taken from the source text so that YAML's type guessing
@@ -530,84 +717,10 @@ fn convert(
 fn scalar_as_written(raw: &str, interpreted: String) -> String {
     let raw = raw.trim();
     let quoted_or_block = raw.starts_with(['\'', '"', '|', '>', '*', '&', '!']);
-    if raw.is_empty() || quoted_or_block {
+    if raw.is_empty() || quoted_or_block || raw == interpreted {
         interpreted
     } else {
         raw.to_string()
-    }
-}
-
-/// What serde-saphyr hands over before spans are turned into byte ranges.
-enum RawNode {
-    Null,
-    Scalar(String),
-    Seq(Vec<Spanned<RawNode>>),
-    Map(Vec<(Spanned<RawNode>, Spanned<RawNode>)>),
-}
-
-struct RawVisitor;
-
-impl<'de> Visitor<'de> for RawVisitor {
-    type Value = RawNode;
-
-    fn expecting(&self, f: &mut fmt::Formatter) -> fmt::Result {
-        f.write_str("any YAML value")
-    }
-    fn visit_str<E: de::Error>(self, v: &str) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v.to_string()))
-    }
-    fn visit_string<E: de::Error>(self, v: String) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v))
-    }
-    fn visit_i64<E: de::Error>(self, v: i64) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v.to_string()))
-    }
-    fn visit_u64<E: de::Error>(self, v: u64) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v.to_string()))
-    }
-    fn visit_i128<E: de::Error>(self, v: i128) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v.to_string()))
-    }
-    fn visit_u128<E: de::Error>(self, v: u128) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v.to_string()))
-    }
-    fn visit_f64<E: de::Error>(self, v: f64) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v.to_string()))
-    }
-    fn visit_bool<E: de::Error>(self, v: bool) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v.to_string()))
-    }
-    fn visit_char<E: de::Error>(self, v: char) -> Result<RawNode, E> {
-        Ok(RawNode::Scalar(v.to_string()))
-    }
-    fn visit_unit<E: de::Error>(self) -> Result<RawNode, E> {
-        Ok(RawNode::Null)
-    }
-    fn visit_none<E: de::Error>(self) -> Result<RawNode, E> {
-        Ok(RawNode::Null)
-    }
-    fn visit_some<D: Deserializer<'de>>(self, d: D) -> Result<RawNode, D::Error> {
-        d.deserialize_any(RawVisitor)
-    }
-    fn visit_seq<A: SeqAccess<'de>>(self, mut seq: A) -> Result<RawNode, A::Error> {
-        let mut items = Vec::new();
-        while let Some(item) = seq.next_element()? {
-            items.push(item);
-        }
-        Ok(RawNode::Seq(items))
-    }
-    fn visit_map<A: MapAccess<'de>>(self, mut map: A) -> Result<RawNode, A::Error> {
-        let mut entries = Vec::new();
-        while let Some(entry) = map.next_entry()? {
-            entries.push(entry);
-        }
-        Ok(RawNode::Map(entries))
-    }
-}
-
-impl<'de> Deserialize<'de> for RawNode {
-    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<RawNode, D::Error> {
-        d.deserialize_any(RawVisitor)
     }
 }
 

@@ -10,6 +10,7 @@ use super::*;
 use crate::syntax::{Node, NodeKind, SourceId, Sources, Span};
 use crate::units::{self, UnitError};
 use std::collections::{BTreeMap, HashMap, HashSet};
+use std::rc::Rc;
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
 use uom::si::electrical_resistance::ohm;
@@ -58,9 +59,11 @@ const MAX_CELLS: u32 = 1000;
 const MAX_STALL_AT_ONCE: u32 = 1000;
 
 /// Reads a whole plan. `root` is the parsed plan; library parts it uses are
-/// parsed into `sources` as they are met.
+/// parsed into `sources` as they are met. The tree is taken, not borrowed:
+/// each part's subtree is dropped once the part is read, so the tree and the
+/// typed plan are not both held whole.
 pub fn read_plan(
-    root: &Node,
+    root: Node,
     library: &Library,
     sources: &mut Sources,
 ) -> Result<Plan, Vec<InputError>> {
@@ -75,18 +78,13 @@ pub fn read_plan(
         loaded: HashMap::new(),
         speller: Speller::new(),
     };
+    let span = root.span;
     let plan = reader.plan(root);
     if reader.errors.is_empty() {
-        plan.ok_or_default_error(root.span)
+        plan.ok_or_default_error(span)
     } else {
         let mut errors = reader.errors;
-        errors.sort_by_key(|e| {
-            (
-                e.span.source != root.span.source,
-                e.span.source,
-                e.span.start,
-            )
-        });
+        errors.sort_by_key(|e| (e.span.source != span.source, e.span.source, e.span.start));
         errors.dedup();
         Err(errors)
     }
@@ -123,7 +121,8 @@ struct Reader<'a> {
     pin_names: HashMap<PartId, HashMap<String, PinIndex>>,
     /// Library parts parsed so far, by id: each file is parsed (and added
     /// to the sources) once however many parts use it.
-    loaded: HashMap<String, Option<Result<Node, LibraryError>>>,
+    /// Shared, not copied, by the parts that use them unchanged.
+    loaded: HashMap<String, Option<Result<Rc<Node>, LibraryError>>>,
     /// "Did you mean" for names the plan declares, within one budget of work
     /// for the whole plan.
     speller: Speller,
@@ -155,7 +154,8 @@ impl Reader<'_> {
         }
     }
 
-    fn plan(&mut self, root: &Node) -> Option<Plan> {
+    fn plan(&mut self, mut root: Node) -> Option<Plan> {
+        let root = &mut root;
         if root.as_map().is_none() {
             self.error(
                 root.span,
@@ -223,12 +223,13 @@ impl Reader<'_> {
                 Some("list the parts: `parts: { pack: { use: battery/lipo-3s } }`".into()),
             ),
             Some(node) => {
-                if let Some(entries) = self.mapping(node, "`parts:`") {
-                    for (key, body) in entries {
-                        let Some(name) = self.name(key, "part") else {
+                if self.mapping(node, "`parts:`").is_some() {
+                    // Each part's subtree is freed once the part is read.
+                    for (key, body) in take_entries(root, "parts") {
+                        let Some(name) = self.name(&key, "part") else {
                             continue;
                         };
-                        match self.part(name.clone(), key.span, body) {
+                        match self.part(name.clone(), key.span, &body) {
                             Some(part) => {
                                 part_index.insert(name, parts.len());
                                 parts.push(part);
@@ -254,6 +255,8 @@ impl Reader<'_> {
             Some(node) => self.nets(node, &mut parts, &part_index),
         };
         let mut nets = nets;
+        parts.shrink_to_fit();
+        nets.shrink_to_fit();
         let links = root
             .get("links")
             .map(|n| self.links(n, &parts, &part_index))
@@ -585,7 +588,10 @@ impl Reader<'_> {
             let loaded = match self.loaded.get(&id) {
                 Some(loaded) => loaded.clone(),
                 None => {
-                    let loaded = self.library.load(&id, self.sources);
+                    let loaded = self
+                        .library
+                        .load(&id, self.sources)
+                        .map(|read| read.map(Rc::new));
                     self.loaded.insert(id.clone(), loaded.clone());
                     loaded
                 }
@@ -625,7 +631,13 @@ impl Reader<'_> {
                 );
                 return None;
             }
-            let mut merged = library_root;
+            let overridden = ["with", "pins", "ports"]
+                .iter()
+                .any(|key| body.get(key).is_some());
+            if !overridden {
+                return self.inline_part(name, name_span, &library_root, Some(id));
+            }
+            let mut merged = Node::clone(&library_root);
             if let Some(with) = body.get("with")
                 && let Some(entries) = self.mapping(with, "`with:`")
             {
@@ -785,6 +797,9 @@ impl Reader<'_> {
         let actuator = moves || matches!(class, Class::Motor(_) | Class::Servo);
         let mass = self.quantity(body, "mass", units::mass);
         let cost = body.get("cost").and_then(|n| self.amount(n, "cost"));
+        // A plan keeps every pin for the whole run: no room left over from
+        // growing the list as pins were read.
+        pins.shrink_to_fit();
         Some(Part {
             name,
             span: name_span,
@@ -2441,6 +2456,24 @@ fn key_node(key: &str, span: Span) -> Node {
 
 /// Overlays `overrides` on a library part: fields are replaced, and `pins` and
 /// `ports` are merged entry by entry, field by field.
+/// Takes the entries of the mapping under `key` out of `root`, leaving an
+/// empty mapping in their place; none when there is no such mapping.
+fn take_entries(root: &mut Node, key: &str) -> Vec<(Node, Node)> {
+    let NodeKind::Map(entries) = &mut root.kind else {
+        return Vec::new();
+    };
+    match entries.iter_mut().find(|(k, _)| k.as_scalar() == Some(key)) {
+        Some((
+            _,
+            Node {
+                kind: NodeKind::Map(inner),
+                ..
+            },
+        )) => std::mem::take(inner),
+        _ => Vec::new(),
+    }
+}
+
 fn merge_part(base: &mut Node, overrides: &Node) {
     let (NodeKind::Map(base_entries), Some(over_entries)) = (&mut base.kind, overrides.as_map())
     else {

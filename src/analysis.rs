@@ -302,7 +302,7 @@ impl Layout {
                         pin: pin_id,
                         input: pin.role == PinRole::SupplyIn,
                         net: pin.net,
-                        draw: pin.draw,
+                        draw: pin.draw(),
                     });
                 } else {
                     layout.pin_slot.push(NO_SLOT);
@@ -1267,7 +1267,7 @@ impl Solver<'_> {
                 Some(output)
             }
             _ => {
-                let band = part.pins[pin].voltage?;
+                let band = part.pins[pin].voltage()?;
                 Some(match self.corner {
                     Corner::Low => band.min,
                     Corner::High => band.max,
@@ -1501,7 +1501,7 @@ impl Solver<'_> {
             Some(slot) => (layout.slot_pin[slot].net, layout.slot_pin[slot].draw),
             None => {
                 let pin = &plan.parts[part_id].pins[pin_id];
-                (pin.net, pin.draw)
+                (pin.net, pin.draw())
             }
         };
         let state = self.load_state(part_id);

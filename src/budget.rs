@@ -248,7 +248,7 @@ pub fn budget(checked: &Checked) -> Budget {
         let rating = match &plan.parts[part].class {
             Class::Regulator(r) => r.current.map(|c| c.value),
             Class::Battery(b) => b.max_discharge_current(),
-            _ => plan.parts[part].pins[pin].current,
+            _ => plan.parts[part].pins[pin].current(),
         };
         let conversion_loss = mean(&nominal_points, |p| {
             let r = p.regulators[part]?;

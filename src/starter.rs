@@ -144,7 +144,7 @@ fn choose(library: &Library, battery_id: &str) -> Result<Choice, StarterError> {
     };
     let vin = converter
         .pins_with_role(PinRole::SupplyIn)
-        .find_map(|(_, pin)| pin.range)
+        .find_map(|(_, pin)| pin.range())
         .map_or((empty, full), |band| (band.min, band.max));
     // Switching converter: P_in = P_out / η, so I_in = V_out · I_out / (η · V_in),
     // worst at the highest output and the lowest input.
@@ -226,7 +226,7 @@ fn choose_regulator(
         };
         let covers = part
             .pins_with_role(PinRole::SupplyIn)
-            .find_map(|(_, pin)| pin.range)
+            .find_map(|(_, pin)| pin.range())
             .is_some_and(|band| {
                 !falls_below(volts(empty), volts(band.min))
                     && !exceeds(volts(full), volts(band.max))

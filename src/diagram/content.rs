@@ -758,7 +758,7 @@ fn rating(plan: &Plan, part_id: PartId) -> Option<String> {
                 .pins
                 .iter()
                 .filter(|p| p.role == PinRole::SupplyIn)
-                .find_map(|p| p.draw);
+                .find_map(|p| p.draw());
             let port_draw = part.ports.iter().find_map(|p| match p.kind {
                 PortKind::UsbDevice { draw, .. } => draw,
                 PortKind::UsbHost { .. } => None,

@@ -260,16 +260,11 @@ pub struct Pin {
     /// Where the pin is written in the plan, or the part's span when it comes
     /// from the library or the class.
     pub span: Span,
-    /// Operating range of a supply-in pin.
-    pub range: Option<Band<ElectricPotential>>,
     /// Absolute maximum of a supply-in or logic input pin.
     pub max: Option<ElectricPotential>,
-    /// Current a supply-in pin takes from its rail, per load state.
-    pub draw: Option<Draw>,
-    /// Voltage of a board's supply-out pin.
-    pub voltage: Option<Band<ElectricPotential>>,
-    /// Current limit of a supply-out pin.
-    pub current: Option<ElectricCurrent>,
+    /// A supply pin's ratings (boxed: most pins are logic or contacts and
+    /// have none, and a plan holds every pin for the whole run).
+    supply: Option<Box<SupplyRatings>>,
     /// `or: diode`: the source cannot be back-fed.
     pub diode_or: bool,
     /// The logic levels of a logic pin, as written (boxed: most pins have none).
@@ -278,6 +273,69 @@ pub struct Pin {
     pub net: Option<NetId>,
     /// Where it is named in `nets:`.
     pub net_span: Option<Span>,
+}
+
+/// The ratings only a supply pin takes.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct SupplyRatings {
+    /// Operating range of a supply-in pin.
+    pub range: Option<Band<ElectricPotential>>,
+    /// Current a supply-in pin takes from its rail, per load state.
+    pub draw: Option<Draw>,
+    /// Voltage of a board's supply-out pin.
+    pub voltage: Option<Band<ElectricPotential>>,
+    /// Current limit of a supply-out pin.
+    pub current: Option<ElectricCurrent>,
+}
+
+impl Pin {
+    /// A pin of this name and role with nothing else known yet.
+    pub fn new(name: &str, role: PinRole, span: Span) -> Pin {
+        Pin {
+            name: name.to_string(),
+            role,
+            span,
+            max: None,
+            supply: None,
+            diode_or: false,
+            logic: None,
+            net: None,
+            net_span: None,
+        }
+    }
+
+    /// Operating range of a supply-in pin.
+    pub fn range(&self) -> Option<Band<ElectricPotential>> {
+        self.supply.as_ref().and_then(|s| s.range)
+    }
+
+    /// Current a supply-in pin takes from its rail, per load state.
+    pub fn draw(&self) -> Option<Draw> {
+        self.supply.as_ref().and_then(|s| s.draw)
+    }
+
+    /// Voltage of a board's supply-out pin.
+    pub fn voltage(&self) -> Option<Band<ElectricPotential>> {
+        self.supply.as_ref().and_then(|s| s.voltage)
+    }
+
+    /// Current limit of a supply-out pin.
+    pub fn current(&self) -> Option<ElectricCurrent> {
+        self.supply.as_ref().and_then(|s| s.current)
+    }
+
+    /// The supply ratings, to be written (made on first use).
+    pub fn supply_mut(&mut self) -> &mut SupplyRatings {
+        self.supply.get_or_insert_with(Box::default)
+    }
+
+    /// Drops an empty set of supply ratings, so a pin without any holds
+    /// no allocation.
+    pub fn settle(&mut self) {
+        if self.supply.as_deref() == Some(&SupplyRatings::default()) {
+            self.supply = None;
+        }
+    }
 }
 
 /// Current drawn by a supply-in pin in each load state.

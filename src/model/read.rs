@@ -886,12 +886,12 @@ impl Reader<'_> {
             &format!("{context} ({})", role.name()),
         );
         let mut pin = blank_pin(&name, role, span);
-        pin.range = self.quantity(body, "range", units::voltage_band);
+        pin.supply_mut().range = self.quantity(body, "range", units::voltage_band);
         pin.max = self.quantity(body, "max", units::voltage);
-        pin.voltage = self.quantity(body, "voltage", units::voltage_band);
-        pin.current = self.quantity(body, "current", units::current);
+        pin.supply_mut().voltage = self.quantity(body, "voltage", units::voltage_band);
+        pin.supply_mut().current = self.quantity(body, "current", units::current);
         if let Some(d) = body.get("draw") {
-            pin.draw = self.draw(d);
+            pin.supply_mut().draw = self.draw(d);
         }
         if let Some(or) = body.get("or") {
             pin.diode_or = self
@@ -945,6 +945,7 @@ impl Reader<'_> {
             }
             pin.logic = Some(Box::new(logic));
         }
+        pin.settle();
         Some(pin)
     }
 
@@ -1358,16 +1359,16 @@ impl Reader<'_> {
         for pin in pins.iter_mut() {
             match pin.name.as_str() {
                 "vin" => {
-                    if pin.range.is_none() {
-                        pin.range = input;
+                    if pin.range().is_none() {
+                        pin.supply_mut().range = input;
                     }
                     if pin.max.is_none() {
                         pin.max = input.map(|b| b.max);
                     }
                 }
                 "vout" => {
-                    pin.voltage = Some(output);
-                    pin.current = current.map(|c| c.value);
+                    pin.supply_mut().voltage = Some(output);
+                    pin.supply_mut().current = current.map(|c| c.value);
                 }
                 _ => {}
             }
@@ -1386,8 +1387,8 @@ impl Reader<'_> {
         let supply = self.quantity(body, "supply", units::voltage_band);
         match pins.iter_mut().find(|p| p.name == "vm") {
             Some(vm) if vm.role == PinRole::SupplyIn => {
-                if vm.range.is_none() {
-                    vm.range = supply;
+                if vm.range().is_none() {
+                    vm.supply_mut().range = supply;
                 }
                 if vm.max.is_none() {
                     vm.max = supply.map(|b| b.max);
@@ -2514,20 +2515,7 @@ fn merge_entries(base: &mut Node, overrides: &Node, depth: usize) {
 }
 
 fn blank_pin(name: &str, role: PinRole, span: Span) -> Pin {
-    Pin {
-        name: name.to_string(),
-        role,
-        span,
-        range: None,
-        max: None,
-        draw: None,
-        voltage: None,
-        current: None,
-        diode_or: false,
-        logic: None,
-        net: None,
-        net_span: None,
-    }
+    Pin::new(name, role, span)
 }
 
 /// `a3` ↔ `b3`: a connector's contact pairs.

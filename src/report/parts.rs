@@ -231,19 +231,19 @@ fn key_ratings(part: &Part) -> String {
                         let mut text = format!(
                             "{} {}",
                             pin.name,
-                            pin.range.map_or("in".into(), |r| band(&r))
+                            pin.range().map_or("in".into(), |r| band(&r))
                         );
-                        if let Some(draw) = pin.draw {
+                        if let Some(draw) = pin.draw() {
                             text.push_str(&format!(" {}", draw_summary(&draw)));
                         }
                         out.push(text);
                     }
                     PinRole::SupplyOut => {
                         let mut text = format!("{} out", pin.name);
-                        if let Some(v) = pin.voltage {
+                        if let Some(v) = pin.voltage() {
                             text.push_str(&format!(" {}", band(&v)));
                         }
-                        if let Some(i) = pin.current {
+                        if let Some(i) = pin.current() {
                             text.push_str(&format!(" {}", show_current(i)));
                         }
                         out.push(text);
@@ -333,19 +333,19 @@ fn class_fields(class: &Class) -> Vec<(&'static str, String)> {
 
 fn pin_values(part: &Part, pin: &Pin) -> Vec<String> {
     let mut out = Vec::new();
-    if let Some(range) = pin.range {
+    if let Some(range) = pin.range() {
         out.push(format!("range {}", band(&range)));
     }
     if let Some(max) = pin.max {
         out.push(format!("max {}", show_voltage(max)));
     }
-    if let Some(draw) = pin.draw {
+    if let Some(draw) = pin.draw() {
         out.push(format!("draw {}", draw_full(&draw)));
     }
-    if let Some(voltage) = pin.voltage {
+    if let Some(voltage) = pin.voltage() {
         out.push(format!("voltage {}", band(&voltage)));
     }
-    if let Some(current) = pin.current {
+    if let Some(current) = pin.current() {
         out.push(format!("current {}", show_current(current)));
     }
     if pin.diode_or {
@@ -432,7 +432,7 @@ fn band(b: &Band<ElectricPotential>) -> String {
 /// Inline supply-in ranges of a part, as `4.5 V–5.5 V`.
 fn supply_ranges(part: &Part) -> impl Iterator<Item = String> + '_ {
     part.pins_with_role(PinRole::SupplyIn)
-        .filter_map(|(_, pin)| pin.range.map(|r| band(&r)))
+        .filter_map(|(_, pin)| pin.range().map(|r| band(&r)))
 }
 
 fn discharge(b: &crate::model::Battery) -> Option<String> {

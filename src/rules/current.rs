@@ -174,7 +174,7 @@ fn rated_paths<'a>(cx: &'a Context) -> Vec<RatedPath<'a>> {
             Class::Battery(_) => {}
             _ => {
                 for (pin_id, pin) in part.pins_with_role(PinRole::SupplyOut) {
-                    if let Some(limit) = pin.current {
+                    if let Some(limit) = pin.current() {
                         paths.push(RatedPath {
                             subject: format!("`{}.{}` output", part.name, pin.name),
                             span: pin.net_span.unwrap_or(pin.span),

@@ -1187,7 +1187,7 @@ pub(super) fn circuit_voltage(cx: &Context, fuse: PartId) -> Option<(ElectricPot
                 format!("the highest output of `{}`", part.name),
             )),
             _ => part.pins[pin.pin]
-                .voltage
+                .voltage()
                 .filter(|_| part.pins[pin.pin].role == PinRole::SupplyOut)
                 .map(|band| {
                     (

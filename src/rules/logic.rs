@@ -462,7 +462,7 @@ pub(super) fn supply_voltage(
     }
     // An onboard output left unwired still powers its own part's pins.
     if spec.role == PinRole::SupplyOut && powered(cx, point, part) {
-        return spec.voltage.map(|band| match point.corner {
+        return spec.voltage().map(|band| match point.corner {
             Corner::Low => band.min,
             Corner::High => band.max,
         });
@@ -522,7 +522,7 @@ fn pin_rail<'p>(cx: &'p Context, pin: PinRef, spec: &LogicSpec) -> PinRail<'p> {
         // it are judged within that range, so the one fix (bring the rail into
         // range) settles both.
         let range = match cx.plan.parts[pin.part].pins[reference].role {
-            PinRole::SupplyIn => cx.plan.parts[pin.part].pins[reference].range,
+            PinRole::SupplyIn => cx.plan.parts[pin.part].pins[reference].range(),
             _ => None,
         };
         let samples = sampled(cx, |point| {

@@ -184,7 +184,7 @@ fn drive_voltage(cx: &Context, powered: &Powered, output: PinRef) -> Option<Elec
             let spec = &part.pins[i];
             match spec.net {
                 Some(net) => rail_voltage(cx, powered, net),
-                None => spec.voltage.map(|band| band.max),
+                None => spec.voltage().map(|band| band.max),
             }
         })
         .fold(None, |best: Option<ElectricPotential>, v| {

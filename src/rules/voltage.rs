@@ -172,7 +172,7 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
                 |m| m.at(&cx.pin_name(pin_ref)).at_point(cx.plan, point),
             );
         }
-        if let Some(range) = pin.range {
+        if let Some(range) = pin.range() {
             cx.margin(
                 Margin::below(
                     RatingKind::SupplyRangeMax,
@@ -188,7 +188,7 @@ fn check_over(cx: &Context, out: &mut Vec<Finding>) {
             && exceeds(highest, volts(max))
         {
             over_max.push(hit(max, OVER_MAX.severity));
-        } else if let Some(range) = pin.range
+        } else if let Some(range) = pin.range()
             && exceeds(highest, volts(range.max))
         {
             over_range.push(hit(range.max, OVER_RANGE.severity));
@@ -283,7 +283,7 @@ fn check_under(cx: &Context, out: &mut Vec<Finding>) {
     let mut hits = Vec::new();
     for pin_ref in supply_inputs(cx) {
         let pin = &cx.plan.parts[pin_ref.part].pins[pin_ref.pin];
-        let Some(range) = pin.range else { continue };
+        let Some(range) = pin.range() else { continue };
         if let Some((point, negated)) = worst_point(cx.points(), |p| {
             p.pin_voltage
                 .get(pin_ref.part, pin_ref.pin)

@@ -916,8 +916,8 @@ fn wires(run: &Run, args: &PlanArgs) -> ExitCode {
 
 fn scenarios(run: &Run, args: &PlanArgs) -> ExitCode {
     refuse_format(args, "scenarios", &[Format::Human, Format::Json]);
-    let stream = problems_beside(args, Format::Json);
-    let checked = match load(run, args, stream) {
+    // Under `--format json` the input errors are the document itself.
+    let checked = match load(run, args, Stream::Stdout) {
         Ok(c) => c,
         Err(code) => return code,
     };

@@ -293,6 +293,9 @@ fn input_errors_are_valid_documents_with_or_without_a_place() {
         (vec!["check", "--format", "json", &unknown_part], true),
         (vec!["check", "--format", "json", &unitless], true),
         (vec!["budget", "--format", "json", &unknown_part], true),
+        (vec!["wires", "--format", "json", &unknown_part], true),
+        (vec!["bringup", "--format", "json", &unknown_part], true),
+        (vec!["scenarios", "--format", "json", &unknown_part], true),
         (vec!["check", "--format", "json", &missing], false),
         (vec!["budget", "--format", "json", &missing], false),
         (

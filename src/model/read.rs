@@ -1543,21 +1543,13 @@ impl Reader<'_> {
             // Its own error is already reported.
             return None;
         }
-        let Some(&part) = index.get(part_name) else {
-            let hint = match self
-                .speller
-                .closest(part_name, parts.iter().map(|p| p.name.as_str()))
-            {
-                Some(s) => format!("did you mean `{s}`?"),
-                None => "declare it under `parts:`".into(),
-            };
-            self.error(
-                node.span.within(offset..offset + part_name.len()),
-                format!("unknown part `{part_name}`"),
-                Some(hint),
-            );
-            return None;
-        };
+        let part = self.part_named(
+            part_name,
+            node.span.within(offset..offset + part_name.len()),
+            parts,
+            index,
+            "declare it under `parts:`",
+        )?;
         let found = self
             .pin_names
             .entry(part)
@@ -1755,26 +1747,9 @@ impl Reader<'_> {
             let mut resolved = Vec::new();
             for end in &ends {
                 let text = end.as_scalar().unwrap_or("");
-                let Some((part_name, port_name)) = text.split_once('.') else {
-                    self.error(
-                        end.span,
-                        format!("`{text}` is not a port"),
-                        Some("write `part.port`".into()),
-                    );
-                    continue;
-                };
-                if self.refused_parts.contains(part_name) {
-                    continue;
-                }
-                let Some(&part) = index.get(part_name) else {
-                    let hint = match self
-                        .speller
-                        .closest(part_name, parts.iter().map(|p| p.name.as_str()))
-                    {
-                        Some(s) => format!("did you mean `{s}`?"),
-                        None => "declare it under `parts:`".into(),
-                    };
-                    self.error(end.span, format!("unknown part `{part_name}`"), Some(hint));
+                let Some((part, part_name, port_name)) =
+                    self.port_of_part(end, parts, index, "write `part.port`")
+                else {
                     continue;
                 };
                 let Some(port) = parts[part].ports.iter().position(|p| p.name == port_name) else {
@@ -1878,20 +1853,13 @@ impl Reader<'_> {
                     }
                     continue;
                 }
-                if self.refused_parts.contains(part_name) {
-                    continue;
-                }
-                let Some(&part) = index.get(part_name) else {
-                    let hint = self
-                        .speller
-                        .closest(part_name, parts.iter().map(|p| p.name.as_str()))
-                        .map(|s| format!("did you mean `{s}`?"))
-                        .unwrap_or_else(|| "name a part declared under `parts:`".into());
-                    self.error(
-                        part_node.span,
-                        format!("unknown part `{part_name}`"),
-                        Some(hint),
-                    );
+                let Some(part) = self.part_named(
+                    part_name,
+                    part_node.span,
+                    parts,
+                    index,
+                    "name a part declared under `parts:`",
+                ) else {
                     continue;
                 };
                 let state = if matches!(parts[part].class, Class::Motor(_)) {
@@ -1922,6 +1890,62 @@ impl Reader<'_> {
             modes.push(mode);
         }
         modes
+    }
+
+    /// The part of this name, or `None` after saying it is unknown (with a
+    /// "did you mean", else `otherwise`) at `at`; a part refused for an
+    /// error already reported is `None` with nothing more said.
+    fn part_named(
+        &mut self,
+        name: &str,
+        at: Span,
+        parts: &[Part],
+        index: &HashMap<String, PartId>,
+        otherwise: &str,
+    ) -> Option<PartId> {
+        if self.refused_parts.contains(name) {
+            return None;
+        }
+        let Some(&part) = index.get(name) else {
+            let hint = match self
+                .speller
+                .closest(name, parts.iter().map(|p| p.name.as_str()))
+            {
+                Some(s) => format!("did you mean `{s}`?"),
+                None => otherwise.to_string(),
+            };
+            self.error(at, format!("unknown part `{name}`"), Some(hint));
+            return None;
+        };
+        Some(part)
+    }
+
+    /// A `part.port` written at `node`: the part, and the two names as
+    /// written. Text with no dot is refused with `hint`.
+    fn port_of_part<'n>(
+        &mut self,
+        node: &'n Node,
+        parts: &[Part],
+        index: &HashMap<String, PartId>,
+        hint: &str,
+    ) -> Option<(PartId, &'n str, &'n str)> {
+        let text = node.as_scalar().unwrap_or("");
+        let Some((part_name, port_name)) = text.split_once('.') else {
+            self.error(
+                node.span,
+                format!("`{text}` is not a port"),
+                Some(hint.to_string()),
+            );
+            return None;
+        };
+        let part = self.part_named(
+            part_name,
+            node.span,
+            parts,
+            index,
+            "declare it under `parts:`",
+        )?;
+        Some((part, part_name, port_name))
     }
 
     /// A part named in a list of `supplies:` or `scenarios:`, which must be of
@@ -2165,28 +2189,12 @@ impl Reader<'_> {
         index: &HashMap<String, PartId>,
     ) -> Option<(PartId, usize)> {
         let text = node.as_scalar().unwrap_or("");
-        let Some((part_name, port_name)) = text.split_once('.') else {
-            self.error(
-                node.span,
-                format!("`{text}` is not a port"),
-                Some("write `part.port`, naming a `usb-device` port".into()),
-            );
-            return None;
-        };
-        if self.refused_parts.contains(part_name) {
-            return None;
-        }
-        let Some(&part) = index.get(part_name) else {
-            let hint = match self
-                .speller
-                .closest(part_name, parts.iter().map(|p| p.name.as_str()))
-            {
-                Some(s) => format!("did you mean `{s}`?"),
-                None => "declare it under `parts:`".into(),
-            };
-            self.error(node.span, format!("unknown part `{part_name}`"), Some(hint));
-            return None;
-        };
+        let (part, part_name, port_name) = self.port_of_part(
+            node,
+            parts,
+            index,
+            "write `part.port`, naming a `usb-device` port",
+        )?;
         let devices: Vec<&str> = parts[part]
             .ports
             .iter()

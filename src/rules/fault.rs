@@ -243,10 +243,7 @@ fn check_short_circuit(cx: &Context, out: &mut Vec<Finding>) {
         let Class::Fuse(fuse) = &part.class else {
             continue;
         };
-        let Some(&(a, b)) = crate::graph::through_pairs(cx.plan, part_id).first() else {
-            continue;
-        };
-        let Some(downstream) = cx.downstream_net(part_id, a, b) else {
+        let Some(downstream) = cx.load_side(part_id) else {
             continue;
         };
         let Some(upstream) = cx.circuit.parent[downstream].map(|p| p.net) else {
@@ -336,10 +333,7 @@ fn check_fuse_distance(cx: &Context, out: &mut Vec<Finding>) {
         if !matches!(part.class, Class::Fuse(_)) {
             continue;
         }
-        let Some(&(a, b)) = crate::graph::through_pairs(cx.plan, part_id).first() else {
-            continue;
-        };
-        let Some(downstream) = cx.downstream_net(part_id, a, b) else {
+        let Some(downstream) = cx.load_side(part_id) else {
             continue;
         };
         let Some(upstream) = cx.circuit.parent[downstream].map(|p| p.net) else {
@@ -445,10 +439,7 @@ fn check_inrush(cx: &Context, out: &mut Vec<Finding>) {
         let Class::Switch(switch) = &part.class else {
             continue;
         };
-        let Some(&(a, b)) = crate::graph::through_pairs(cx.plan, part_id).first() else {
-            continue;
-        };
-        let Some(downstream) = cx.downstream_net(part_id, a, b) else {
+        let Some(downstream) = cx.load_side(part_id) else {
             continue;
         };
         let capacitors = capacitors_below(cx, downstream);

@@ -694,7 +694,7 @@ fn fuses<'a>(cx: &'a Context) -> Vec<PlacedFuse<'a>> {
             part: part_id,
             name: &part.name,
             spec,
-            downstream: fuse_downstream(cx, part_id),
+            downstream: cx.load_side(part_id),
         });
     }
     found
@@ -912,13 +912,6 @@ fn quoted_parts(cx: &Context, parts: &[PartId]) -> String {
         .join(", ")
 }
 
-/// The load-side net of a fuse part, if it carries anything in the tree.
-fn fuse_downstream(cx: &Context, fuse: PartId) -> Option<NetId> {
-    through_pairs(cx.plan, fuse)
-        .first()
-        .and_then(|&(a, b)| cx.downstream_net(fuse, a, b))
-}
-
 fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
     let plan = cx.plan;
     for (part_id, part) in plan.parts.iter().enumerate() {
@@ -1014,7 +1007,7 @@ fn check_missing(cx: &Context, out: &mut Vec<Finding>) {
                     let ahead = format!("{} `{}`", element.class.name(), element.name);
                     match fuses.as_slice() {
                         [fuse] => {
-                            if let Some(below) = fuse_downstream(cx, *fuse) {
+                            if let Some(below) = cx.load_side(*fuse) {
                                 wires.extend(protected_wires(cx, below));
                             }
                             format!(

@@ -259,6 +259,14 @@ impl Context<'_> {
         }
     }
 
+    /// The load-side net of a fuse or switch (its first contact pair), if
+    /// that contact carries anything in the tree.
+    pub fn load_side(&self, part: PartId) -> Option<NetId> {
+        crate::graph::through_pairs(self.plan, part)
+            .first()
+            .and_then(|&(a, b)| self.downstream_net(part, a, b))
+    }
+
     /// The net on the far side (seen from the source) of a conducting pin
     /// pair `a`/`b` of a fuse, switch or connector: its current is the
     /// current through that pair. `None` when the pair carries no current

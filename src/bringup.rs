@@ -94,16 +94,6 @@ fn bench_plan(plan: &Plan) -> Plan {
     bench
 }
 
-/// The batteries of the plan, in file order.
-fn batteries(plan: &Plan) -> Vec<PartId> {
-    plan.parts
-        .iter()
-        .enumerate()
-        .filter(|(_, p)| matches!(p.class, Class::Battery(_)))
-        .map(|(i, _)| i)
-        .collect()
-}
-
 /// The first fuse on a battery's positive lead, with its rating.
 fn main_fuse(checked: &Checked, battery: PartId) -> Option<(PartId, ElectricCurrent)> {
     let plan = &checked.plan;
@@ -291,7 +281,7 @@ pub fn procedure(checked: &Checked) -> Procedure {
 
     // First power from a bench supply, per battery.
     let mut bench_steps = Vec::new();
-    for battery in batteries(plan) {
+    for battery in plan.batteries() {
         let Some(voltage) = battery_voltage(plan, battery, BatteryState::Nominal) else {
             continue;
         };
@@ -404,7 +394,7 @@ pub fn procedure(checked: &Checked) -> Procedure {
             Vec::new(),
         ));
     }
-    for battery in batteries(plan) {
+    for battery in plan.batteries() {
         let name = &plan.parts[battery].name;
         motor_steps.push(step(
             format!(
@@ -423,7 +413,7 @@ pub fn procedure(checked: &Checked) -> Procedure {
             ));
         }
     }
-    for battery in batteries(plan) {
+    for battery in plan.batteries() {
         let name = &plan.parts[battery].name;
         for mode in ModeId::all(plan) {
             // `worst` and modes that hold a motor stalled are not bench tests.

@@ -173,12 +173,7 @@ impl Circuit {
         let mut vbus_net: Vec<Option<NetId>> = vec![None; nodes.len()];
         for (link_id, link) in plan.links.iter().enumerate() {
             let (device, port) = link.device;
-            let part = &plan.parts[device];
-            if let PortKind::UsbDevice {
-                feeds: Some(pin), ..
-            } = part.ports[port].kind
-                && let Some(net) = part.pins[pin].net
-            {
+            if let Some(net) = plan.fed_net(device, port) {
                 let node = node_of_net[net];
                 vbus[node].push(link_id);
                 vbus_net[node].get_or_insert(net);
@@ -545,10 +540,7 @@ fn flow_graph(plan: &Plan, nodes: &[ElectricalNode], node_of_net: &[usize]) -> F
         }
         // VBUS fed into a rail: the host powers that rail.
         let (device, port) = link.device;
-        if let PortKind::UsbDevice {
-            feeds: Some(pin), ..
-        } = plan.parts[device].ports[port].kind
-            && let Some(net) = plan.parts[device].pins[pin].net
+        if let Some(net) = plan.fed_net(device, port)
             && let Some(rail) = rail_stage[node_of_net[net]]
         {
             flow.add_edge(host, rail, ());

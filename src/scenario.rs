@@ -21,7 +21,7 @@
 //! cost of all of them together grows with the plan, not with plan × switches.
 
 use crate::graph::{Circuit, Stage, through_pairs};
-use crate::model::{Class, NetId, PartId, PinRole, Plan, PortKind, SupplyAttach};
+use crate::model::{Class, NetId, PartId, PinRole, Plan, SupplyAttach};
 use petgraph::unionfind::UnionFind;
 use std::collections::{HashMap, HashSet};
 
@@ -149,13 +149,7 @@ impl Scenarios {
             running_parts: running.parts,
             list: Vec::new(),
         };
-        let batteries: Vec<PartId> = plan
-            .parts
-            .iter()
-            .enumerate()
-            .filter(|(_, p)| matches!(p.class, Class::Battery(_)))
-            .map(|(i, _)| i)
-            .collect();
+        let batteries = plan.batteries();
         for (i, declared) in plan.scenarios.iter().enumerate() {
             let scenario = Scenario {
                 origin: Origin::Declared(i),
@@ -375,6 +369,15 @@ impl<'a> Solver<'a> {
     }
 }
 
+/// Marks a part decided in this region as having power, once, and queues
+/// it for what it powers in turn.
+fn switch_on(parts: &mut HashMap<PartId, bool>, queue: &mut Vec<PartId>, part: PartId) {
+    if parts.get(&part) == Some(&false) {
+        parts.insert(part, true);
+        queue.push(part);
+    }
+}
+
 /// One scenario solved over a region of nets; parts and nets outside it
 /// keep their running state.
 struct Local {
@@ -481,11 +484,7 @@ impl Local {
                     && !unplugged.contains(&link)
                 {
                     let (device, port) = plan.links[link].device;
-                    if let PortKind::UsbDevice {
-                        feeds: Some(pin), ..
-                    } = plan.parts[device].ports[port].kind
-                        && plan.parts[device].pins[pin].net == Some(net)
-                    {
+                    if plan.fed_net(device, port) == Some(net) {
                         power_net(net, &mut group_on, &mut groups_to_visit);
                     }
                 }
@@ -515,23 +514,15 @@ impl Local {
             }
             already_on.sort_unstable();
             for part_id in already_on {
-                local_parts.insert(part_id, true);
-                parts_to_visit.push(part_id);
+                switch_on(&mut local_parts, &mut parts_to_visit, part_id);
             }
         }
         for &s in connected {
             match plan.supplies[s].attach {
                 SupplyAttach::Net(net) => power_net(net, &mut group_on, &mut groups_to_visit),
                 SupplyAttach::Port(part, port) => {
-                    if local_parts.get(&part) == Some(&false) {
-                        local_parts.insert(part, true);
-                        parts_to_visit.push(part);
-                    }
-                    if let PortKind::UsbDevice {
-                        feeds: Some(pin), ..
-                    } = plan.parts[part].ports[port].kind
-                        && let Some(net) = plan.parts[part].pins[pin].net
-                    {
+                    switch_on(&mut local_parts, &mut parts_to_visit, part);
+                    if let Some(net) = plan.fed_net(part, port) {
                         power_net(net, &mut group_on, &mut groups_to_visit);
                     }
                 }
@@ -543,11 +534,8 @@ impl Local {
             if let Some(g) = groups_to_visit.pop() {
                 for &i in &group_nets[&g] {
                     for pin in &plan.nets[region[i]].pins {
-                        if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn
-                            && local_parts.get(&pin.part) == Some(&false)
-                        {
-                            local_parts.insert(pin.part, true);
-                            parts_to_visit.push(pin.part);
+                        if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn {
+                            switch_on(&mut local_parts, &mut parts_to_visit, pin.part);
                         }
                     }
                 }
@@ -565,15 +553,8 @@ impl Local {
                         continue;
                     }
                     let (device, port) = plan.links[link].device;
-                    if local_parts.get(&device) == Some(&false) {
-                        local_parts.insert(device, true);
-                        parts_to_visit.push(device);
-                    }
-                    if let PortKind::UsbDevice {
-                        feeds: Some(pin), ..
-                    } = plan.parts[device].ports[port].kind
-                        && let Some(net) = plan.parts[device].pins[pin].net
-                    {
+                    switch_on(&mut local_parts, &mut parts_to_visit, device);
+                    if let Some(net) = plan.fed_net(device, port) {
                         power_net(net, &mut group_on, &mut groups_to_visit);
                     }
                 }

@@ -384,13 +384,7 @@ pub(crate) fn gather(checked: &Checked) -> Content {
     edges.sort_unstable();
     edges.dedup();
 
-    let sources = plan
-        .parts
-        .iter()
-        .enumerate()
-        .filter(|(_, p)| matches!(p.class, Class::Battery(_)))
-        .map(|(i, _)| i)
-        .collect();
+    let sources = plan.batteries();
     let file = clean(checked.sources.name(checked.plan_source));
     let name = plan
         .name

@@ -823,6 +823,27 @@ impl Class {
 }
 
 impl Plan {
+    /// The batteries, in file order.
+    pub fn batteries(&self) -> Vec<PartId> {
+        self.parts
+            .iter()
+            .enumerate()
+            .filter(|(_, p)| matches!(p.class, Class::Battery(_)))
+            .map(|(i, _)| i)
+            .collect()
+    }
+
+    /// The net a device port's VBUS joins: the net of the pin the port
+    /// `feeds`, if it names one and that pin is wired.
+    pub fn fed_net(&self, part: PartId, port: usize) -> Option<NetId> {
+        match self.parts[part].ports[port].kind {
+            PortKind::UsbDevice {
+                feeds: Some(pin), ..
+            } => self.parts[part].pins[pin].net,
+            _ => None,
+        }
+    }
+
     /// The temperature a net's copper is taken at: its own `ambient`, else
     /// the plan's when written; `None` means the 20 °C reference of the
     /// resistance and ampacity tables (format reference §4).

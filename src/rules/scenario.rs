@@ -128,12 +128,7 @@ fn rail_voltage(cx: &Context, powered: &Powered, net: NetId) -> Option<ElectricP
 fn attach_net(cx: &Context, attach: SupplyAttach) -> Option<NetId> {
     match attach {
         SupplyAttach::Net(net) => Some(net),
-        SupplyAttach::Port(part, port) => match cx.plan.parts[part].ports[port].kind {
-            PortKind::UsbDevice {
-                feeds: Some(pin), ..
-            } => cx.plan.parts[part].pins[pin].net,
-            _ => None,
-        },
+        SupplyAttach::Port(part, port) => cx.plan.fed_net(part, port),
     }
 }
 

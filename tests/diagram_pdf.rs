@@ -54,19 +54,7 @@ fn drawn(tool: &Path, plan: &Path, args: &[&str], dir: &Path) -> (Vec<u8>, Vec<S
         .unwrap();
     assert_eq!(output.status.code(), Some(0), "{output:?}");
     let bytes = std::fs::read(&pdf).unwrap();
-    // In content order (-raw): the default reading order would join a name
-    // that ends a line in a hyphen (BATT-) to the next line's word.
-    let text = std::process::Command::new(tool)
-        .arg("-raw")
-        .arg(&pdf)
-        .arg("-")
-        .output()
-        .unwrap();
-    assert!(text.status.success(), "{text:?}");
-    let text = String::from_utf8(text.stdout).expect("pdftotext writes UTF-8");
-    let mut pages: Vec<String> = text.split('\u{c}').map(str::to_string).collect();
-    pages.pop();
-    (bytes, pages)
+    (bytes, text_of(tool, &pdf))
 }
 
 #[test]
@@ -157,7 +145,10 @@ fn the_same_plan_gives_the_same_pdf() {
     assert!(!text.contains("/CreationDate") && !text.contains("/ID"));
 }
 
-/// The text of the PDF at `path`, one string per page.
+/// The text pdftotext reads from the PDF at `path`, one string per page
+/// (pdftotext ends each page with a form feed). In content order (-raw):
+/// the default reading order would join a name that ends a line in a hyphen
+/// (BATT-) to the next line's word.
 fn text_of(tool: &Path, path: &Path) -> Vec<String> {
     let text = std::process::Command::new(tool)
         .arg("-raw")

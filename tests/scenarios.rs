@@ -7,7 +7,7 @@
 //! needs a closed path from a source, and an open switch breaks it.
 
 use railcheck::model::Library;
-use railcheck::scenario::Origin;
+use railcheck::scenario::{Origin, Powered};
 use std::path::Path;
 
 fn example(name: &str) -> String {
@@ -21,6 +21,41 @@ fn example(name: &str) -> String {
 
 fn checked(text: &str) -> railcheck::Checked {
     railcheck::check("plan.yaml", text, &Library::builtin()).expect("the plan reads")
+}
+
+/// The net of this name.
+fn net(checked: &railcheck::Checked, name: &str) -> usize {
+    let nets = &checked.plan.nets;
+    nets.iter().position(|n| n.name == name).unwrap()
+}
+
+/// The part of this name.
+fn part(checked: &railcheck::Checked, name: &str) -> usize {
+    let parts = &checked.plan.parts;
+    parts.iter().position(|p| p.name == name).unwrap()
+}
+
+/// The first scenario that comes from `origin` (a switch-open scenario
+/// when `origin` is `None`).
+fn scenario(checked: &railcheck::Checked, origin: Option<Origin>) -> Powered<'_> {
+    checked
+        .scenarios
+        .iter()
+        .find(|p| match origin {
+            Some(origin) => p.scenario.origin == origin,
+            None => matches!(p.scenario.origin, Origin::SwitchOpen(_)),
+        })
+        .expect("the scenario is derived or declared")
+}
+
+/// Two scenarios leave the same nets and parts powered.
+fn assert_same_power(checked: &railcheck::Checked, a: Powered, b: Powered) {
+    for (n, spec) in checked.plan.nets.iter().enumerate() {
+        assert_eq!(a.net_on(n), b.net_on(n), "net {}", spec.name);
+    }
+    for (p, spec) in checked.plan.parts.iter().enumerate() {
+        assert_eq!(a.part_on(p), b.part_on(p), "part {}", spec.name);
+    }
 }
 
 #[test]
@@ -47,52 +82,38 @@ fn the_rover_gets_its_own_and_the_derived_scenarios() {
 #[test]
 fn the_stop_takes_the_motor_bus_and_nothing_else() {
     let rover = checked(&example("orchard-rover.yaml"));
-    let plan = &rover.plan;
-    let net = |name: &str| plan.nets.iter().position(|n| n.name == name).unwrap();
-    let part = |name: &str| plan.parts.iter().position(|p| p.name == name).unwrap();
-    let stop = rover
-        .scenarios
-        .iter()
-        .find(|p| matches!(p.scenario.origin, Origin::SwitchOpen(_)))
-        .expect("the stop's scenario");
+    let stop = scenario(&rover, None);
     // VMOT hangs on the stop's load side only; VBAT keeps the pack through
     // the fuse and the plug, and the buck (on VBAT) keeps 5 V up.
-    assert!(!stop.net_on(net("VMOT")));
-    assert!(stop.net_on(net("VBAT")));
-    assert!(stop.net_on(net("5V")));
-    assert!(stop.net_on(net("3V3")));
+    assert!(!stop.net_on(net(&rover, "VMOT")));
+    assert!(stop.net_on(net(&rover, "VBAT")));
+    assert!(stop.net_on(net(&rover, "5V")));
+    assert!(stop.net_on(net(&rover, "3V3")));
     // The driver keeps its logic supply (`vlogic` on 5 V): it has power.
-    assert!(stop.part_on(part("drive")));
-    assert!(stop.part_on(part("sbc")));
+    assert!(stop.part_on(part(&rover, "drive")));
+    assert!(stop.part_on(part(&rover, "sbc")));
     // What changed from normal running: only the motor bus.
-    assert_eq!(stop.nets_turned_off(), vec![net("VMOT")]);
+    assert_eq!(stop.nets_turned_off(), vec![net(&rover, "VMOT")]);
 }
 
 #[test]
 fn flashing_from_the_laptop_powers_the_controller_side_only() {
     let rover = checked(&example("orchard-rover.yaml"));
-    let plan = &rover.plan;
-    let net = |name: &str| plan.nets.iter().position(|n| n.name == name).unwrap();
-    let part = |name: &str| plan.parts.iter().position(|p| p.name == name).unwrap();
-    let flashing = rover
-        .scenarios
-        .iter()
-        .find(|p| p.scenario.origin == Origin::Declared(0))
-        .unwrap();
+    let flashing = scenario(&rover, Some(Origin::Declared(0)));
     // Pack out: nothing on the battery side has a source.
     for off in ["BATT+", "VBAT", "VMOT", "5V"] {
-        assert!(!flashing.net_on(net(off)), "{off} has no source");
+        assert!(!flashing.net_on(net(&rover, off)), "{off} has no source");
     }
     for off in ["sbc", "buck", "drive", "ranger", "left_enc", "camera"] {
-        assert!(!flashing.part_on(part(off)), "{off} is off");
+        assert!(!flashing.part_on(part(&rover, off)), "{off} is off");
     }
     // The laptop's VBUS powers the controller through its socket (the
     // computer's cable is unplugged there); its onboard 3.3 V regulator
     // feeds 3V3, the inertial sensor and the shifters' low sides.
-    assert!(flashing.part_on(part("mcu")));
-    assert!(flashing.net_on(net("3V3")));
-    assert!(flashing.part_on(part("imu")));
-    assert!(flashing.part_on(part("enc_shifter")));
+    assert!(flashing.part_on(part(&rover, "mcu")));
+    assert!(flashing.net_on(net(&rover, "3V3")));
+    assert!(flashing.part_on(part(&rover, "imu")));
+    assert!(flashing.part_on(part(&rover, "enc_shifter")));
 }
 
 /// A switch-open scenario is solved over what the switch can reach only;
@@ -104,38 +125,14 @@ fn a_switch_opened_alone_agrees_with_the_whole_plan_solved() {
     let mut text = picker.clone();
     text.push_str("\nscenarios:\n  stop_struck: { open: [estop] }\n");
     let plan = checked(&text);
-    let whole = plan
-        .scenarios
-        .iter()
-        .find(|p| p.scenario.origin == Origin::Declared(0))
-        .unwrap();
-    let alone = plan
-        .scenarios
-        .iter()
-        .find(|p| matches!(p.scenario.origin, Origin::SwitchOpen(_)))
-        .unwrap();
-    for net in 0..plan.plan.nets.len() {
-        assert_eq!(
-            whole.net_on(net),
-            alone.net_on(net),
-            "net {}",
-            plan.plan.nets[net].name
-        );
-    }
-    for part in 0..plan.plan.parts.len() {
-        assert_eq!(
-            whole.part_on(part),
-            alone.part_on(part),
-            "part {}",
-            plan.plan.parts[part].name
-        );
-    }
+    let whole = scenario(&plan, Some(Origin::Declared(0)));
+    let alone = scenario(&plan, None);
+    assert_same_power(&plan, whole, alone);
     // And the stop does take the wheels and both servo rails.
-    let net = |name: &str| plan.plan.nets.iter().position(|n| n.name == name).unwrap();
     for off in ["VSTOP", "VMOT", "7V4", "SERVO_5V"] {
-        assert!(!alone.net_on(net(off)), "{off}");
+        assert!(!alone.net_on(net(&plan, off)), "{off}");
     }
-    assert!(alone.net_on(net("5V")));
+    assert!(alone.net_on(net(&plan, "5V")));
 }
 
 /// (3.3 V × 1.03 − 0.3 V) / 1 kΩ = 3.099 mA: the controller's 3.3 V ± 3 %
@@ -293,36 +290,11 @@ scenarios:
   struck: { open: [stop] }
 ";
     let plan = checked(text);
-    let part = |name: &str| plan.plan.parts.iter().position(|p| p.name == name).unwrap();
-    let net = |name: &str| plan.plan.nets.iter().position(|n| n.name == name).unwrap();
-    let alone = plan
-        .scenarios
-        .iter()
-        .find(|p| matches!(p.scenario.origin, Origin::SwitchOpen(_)))
-        .unwrap();
-    let whole = plan
-        .scenarios
-        .iter()
-        .find(|p| p.scenario.origin == Origin::Declared(0))
-        .unwrap();
-    assert!(!alone.net_on(net("VMOT")));
-    assert!(alone.part_on(part("drive")), "vlogic keeps it on");
-    for p in 0..plan.plan.parts.len() {
-        assert_eq!(
-            alone.part_on(p),
-            whole.part_on(p),
-            "{}",
-            plan.plan.parts[p].name
-        );
-    }
-    for n in 0..plan.plan.nets.len() {
-        assert_eq!(
-            alone.net_on(n),
-            whole.net_on(n),
-            "{}",
-            plan.plan.nets[n].name
-        );
-    }
+    let alone = scenario(&plan, None);
+    let whole = scenario(&plan, Some(Origin::Declared(0)));
+    assert!(!alone.net_on(net(&plan, "VMOT")));
+    assert!(alone.part_on(part(&plan, "drive")), "vlogic keeps it on");
+    assert_same_power(&plan, alone, whole);
     assert!(
         !plan
             .findings

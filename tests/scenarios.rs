@@ -157,7 +157,7 @@ fn the_clamp_current_through_a_series_resistor_is_ohms_law() {
 }
 
 #[test]
-fn a_supply_from_outside_is_read_with_its_place_and_defaults() {
+fn a_usb_host_supply_gives_the_usb_window_unless_told() {
     let rover = checked(&example("orchard-rover.yaml"));
     let laptop = &rover.plan.supplies[0];
     assert_eq!(laptop.name, "laptop");

@@ -37,13 +37,16 @@ fn squeezed(text: &str) -> String {
     text.chars().filter(|c| !c.is_whitespace()).collect()
 }
 
-/// The PDF `draw` writes for `plan` with `args`, and the text pdftotext
-/// reads from it, one string per page (pdftotext ends each page with a
-/// form feed).
-fn drawn(tool: &Path, plan: &Path, args: &[&str], dir: &Path) -> (Vec<u8>, Vec<String>) {
+/// The PDF `draw` writes for `plan` (a path inside the project) with
+/// `args`, and the text pdftotext reads from it, one string per page
+/// (pdftotext ends each page with a form feed). The plan is named relative
+/// to the project's root, as the title block prints it, so the sheets read
+/// the same wherever the project is checked out.
+fn drawn(tool: &Path, plan: &str, args: &[&str], dir: &Path) -> (Vec<u8>, Vec<String>) {
     let pdf = dir.join("out.pdf");
     let output = Command::cargo_bin("railcheck")
         .unwrap()
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
         .arg("draw")
         .arg(plan)
         .args(args)
@@ -69,7 +72,7 @@ fn pdf_text_holds_every_part_net_finding_and_caution() {
         let checked =
             railcheck::check(example, &source, &railcheck::model::Library::builtin()).unwrap();
         for args in [&[][..], &["--page", "a4"][..]] {
-            let (bytes, pages) = drawn(&tool, &root.join(example), args, dir.path());
+            let (bytes, pages) = drawn(&tool, example, args, dir.path());
             let page_objects = String::from_utf8_lossy(&bytes)
                 .matches("/Type /Page ")
                 .count();
@@ -178,7 +181,7 @@ fn the_committed_rover_pdf_is_current() {
     let dir = tempfile::tempdir().unwrap();
     let (bytes, fresh) = drawn(
         &tool,
-        &root.join("examples/orchard-rover.yaml"),
+        "examples/orchard-rover.yaml",
         &["--page", "a4"],
         dir.path(),
     );

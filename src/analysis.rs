@@ -17,6 +17,7 @@ use crate::model::{
 };
 use crate::units::{WireSize, show_power};
 use crate::wire;
+use petgraph::unionfind::UnionFind;
 use std::sync::Arc;
 use uom::si::electric_current::ampere;
 use uom::si::electric_potential::volt;
@@ -403,11 +404,6 @@ impl<T: Copy> PinTable<T> {
         }
     }
 
-    /// Every pin back to the blank value.
-    fn clear(&mut self) {
-        self.values.fill(self.blank);
-    }
-
     /// The value at a pin of a part (the blank value for a pin that is not
     /// a supply pin).
     pub fn get(&self, part: PartId, pin: usize) -> T {
@@ -510,13 +506,6 @@ impl ChannelTable {
         ChannelTable {
             layout: Arc::new(Layout::default()),
             values: Vec::new(),
-        }
-    }
-
-    /// Every channel's current back to zero.
-    fn clear(&mut self) {
-        for (_, current) in &mut self.values {
-            *current = zero_current();
         }
     }
 
@@ -649,11 +638,11 @@ fn solve_mode(
         (ModeId::WORST, Some(groups)) => groups.iter().map(|g| Some(g.as_slice())).collect(),
         _ => vec![None],
     };
-    let mut points = Vec::new();
+    let mut solvers = Vec::new();
     for stalled in stall_sets {
         for battery in BatteryState::ALL {
             for corner in [Corner::Low, Corner::High] {
-                let solver = Solver {
+                solvers.push(Solver {
                     plan,
                     circuit,
                     mode,
@@ -662,8 +651,25 @@ fn solve_mode(
                     stalled,
                     states: &states,
                     lookup,
-                };
-                points.push(solver.run());
+                });
+            }
+        }
+    }
+    let mut points: Vec<OperatingPoint> = solvers.iter().map(Solver::blank).collect();
+    let mut scratch = Scratch {
+        before_potential: Vec::new(),
+        before_current: Vec::new(),
+        direct_motor: vec![zero_current(); plan.nets.len()],
+    };
+    // Domain by domain, every point of the mode, while the domain's parts
+    // and nets are in the cache; the first domain that does not settle
+    // leaves its point unsettled, and the point's later domains unsolved.
+    for domain in &lookup.domains {
+        for (solver, point) in solvers.iter().zip(&mut points) {
+            if point.unsettled.is_none()
+                && let Err(failure) = solver.settle(point, domain, &mut scratch)
+            {
+                point.unsettled = Some(failure);
             }
         }
     }
@@ -775,18 +781,12 @@ struct Lookup {
     layout: Arc<Layout>,
     /// Per part: whether it is a battery (its ground is the reference).
     is_battery: Vec<bool>,
-    /// Ground nets in the order of the net trees (each after its parent).
-    ground_nets: Vec<NetId>,
     /// Per net, and one past the last: where its supply-in pins start in
     /// `net_inputs` (in the net's pin order).
     net_inputs_start: Vec<usize>,
     net_inputs: Vec<PinRef>,
-    /// Parts other than batteries with a ground net, in part order: their
-    /// return current flows there.
-    returns: Vec<(PartId, NetId)>,
-    /// Onboard supply outputs left unwired on parts other than batteries and
-    /// regulators, in part and pin order.
-    unwired_outputs: Vec<PinRef>,
+    /// The plan cut into its power domains, each solved on its own.
+    domains: Vec<Domain>,
     /// Per part: its `vin`, `vout` and `vm` pins, where it has them.
     named_pins: Vec<[Option<usize>; 3]>,
     /// Per link: its device port's draw, if it gives one.
@@ -815,12 +815,6 @@ impl Lookup {
             .iter()
             .map(|p| matches!(p.class, Class::Battery(_)))
             .collect();
-        let ground_nets = circuit
-            .net_order
-            .iter()
-            .copied()
-            .filter(|&net| circuit.nodes[circuit.node_of_net[net]].is_ground())
-            .collect();
         let mut net_inputs_start = Vec::with_capacity(plan.nets.len() + 1);
         let mut net_inputs = Vec::new();
         for net in &plan.nets {
@@ -833,24 +827,8 @@ impl Lookup {
             );
         }
         net_inputs_start.push(net_inputs.len());
-        let returns = (0..plan.parts.len())
-            .filter(|&p| !is_battery[p])
-            .filter_map(|p| Some((p, circuit.ground_net[p]?)))
-            .collect();
-        let mut unwired_outputs = Vec::new();
-        for (part_id, part) in plan.parts.iter().enumerate() {
-            if matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
-                continue;
-            }
-            for (pin_id, pin) in part.pins.iter().enumerate() {
-                if pin.role == PinRole::SupplyOut && pin.net.is_none() {
-                    unwired_outputs.push(PinRef {
-                        part: part_id,
-                        pin: pin_id,
-                    });
-                }
-            }
-        }
+        let layout = Arc::new(Layout::new(plan));
+        let domains = Domain::split(plan, circuit, &layout, &is_battery, &vbus_roots);
         let named_pins = plan
             .parts
             .iter()
@@ -858,11 +836,9 @@ impl Lookup {
             .collect();
         Lookup {
             is_battery,
-            ground_nets,
             net_inputs_start,
             net_inputs,
-            returns,
-            unwired_outputs,
+            domains,
             named_pins,
             device_draw: plan
                 .links
@@ -878,8 +854,187 @@ impl Lookup {
             host_links,
             is_device,
             vbus_roots,
-            layout: Arc::new(Layout::new(plan)),
+            layout,
         }
+    }
+}
+
+/// One power domain: the parts and nets joined by a conductor, a part or a
+/// USB cable. Nothing flows between two domains, so each settles on its
+/// own, with only its own numbers in the cache; at a hundred thousand parts
+/// a pass over the whole plan would not fit there. Every list keeps the
+/// plan-wide order it is taken from, so a domain's sums are added in the
+/// same order as in a pass over the whole plan.
+#[derive(Debug, Default)]
+struct Domain {
+    /// Its nets, in net order.
+    nets: Vec<NetId>,
+    /// Its ground nets in the order of the net trees (each after its parent).
+    ground_nets: Vec<NetId>,
+    /// Its supply nodes in the order power flows.
+    rail_order: Vec<usize>,
+    /// Its motors, drivers, regulators and batteries, in part order.
+    motors: Vec<PartId>,
+    drivers: Vec<PartId>,
+    regulators: Vec<PartId>,
+    batteries: Vec<PartId>,
+    /// The slots of its parts' supply pins.
+    slots: Vec<usize>,
+    /// Its supply-in pins on no supply node (open, or on a ground), in slot
+    /// order: they carry nothing, but a regulator there still gets its
+    /// point recorded.
+    off_rail_inputs: Vec<PinRef>,
+    /// Its parts other than batteries with a ground net, in part order:
+    /// their return current flows there.
+    returns: Vec<(PartId, NetId)>,
+    /// Onboard supply outputs left unwired on its parts other than batteries
+    /// and regulators, in part and pin order.
+    unwired_outputs: Vec<PinRef>,
+    /// Its USB links, in file order.
+    links: Vec<usize>,
+    /// Its nets that motors are wired straight across as their supply.
+    direct_motor_nets: Vec<NetId>,
+}
+
+impl Domain {
+    /// The plan's power domains, in the order of their first part (then of
+    /// their first net, for nets no part touches).
+    fn split(
+        plan: &Plan,
+        circuit: &Circuit,
+        layout: &Layout,
+        is_battery: &[bool],
+        vbus_roots: &[Vec<NetId>],
+    ) -> Vec<Domain> {
+        let parts = plan.parts.len();
+        let net = |n: NetId| parts + n;
+        let mut joined = UnionFind::<usize>::new(parts + plan.nets.len());
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            for pin in &part.pins {
+                if let Some(n) = pin.net {
+                    joined.union(part_id, net(n));
+                }
+            }
+            if let Some(n) = circuit.ground_net[part_id] {
+                joined.union(part_id, net(n));
+            }
+            match circuit.motor_feed[part_id] {
+                Some(MotorFeed::Driver { driver, .. }) => {
+                    joined.union(part_id, driver);
+                }
+                Some(MotorFeed::Direct { supply, ground }) => {
+                    joined.union(part_id, net(supply));
+                    joined.union(part_id, net(ground));
+                }
+                None => {}
+            }
+        }
+        for (n, parent) in circuit.parent.iter().enumerate() {
+            if let Some(parent) = parent {
+                joined.union(net(n), net(parent.net));
+            }
+        }
+        for (node_id, nets) in circuit.node_nets.iter().enumerate() {
+            for pair in nets.windows(2) {
+                joined.union(net(pair[0]), net(pair[1]));
+            }
+            let first = nets.first().copied();
+            if let (Some(source), Some(n)) = (circuit.source[node_id], first) {
+                joined.union(source.part, net(n));
+            }
+            for &link in &circuit.vbus[node_id] {
+                if let Some(n) = first {
+                    joined.union(plan.links[link].host.0, net(n));
+                }
+            }
+        }
+        for (link, l) in plan.links.iter().enumerate() {
+            joined.union(l.host.0, l.device.0);
+            for &root in &vbus_roots[link] {
+                joined.union(l.host.0, net(root));
+            }
+        }
+
+        // Domains numbered in order of first appearance.
+        let mut number = vec![usize::MAX; parts + plan.nets.len()];
+        let mut domains: Vec<Domain> = Vec::new();
+        let mut domain_of = |element: usize| {
+            let root = joined.find(element);
+            if number[root] == usize::MAX {
+                number[root] = domains.len();
+                domains.push(Domain::default());
+            }
+            number[root]
+        };
+        let part_domain: Vec<usize> = (0..parts).map(&mut domain_of).collect();
+        let net_domain: Vec<usize> = (0..plan.nets.len()).map(|n| domain_of(net(n))).collect();
+
+        for (n, &d) in net_domain.iter().enumerate() {
+            domains[d].nets.push(n);
+        }
+        for &n in &circuit.net_order {
+            if circuit.nodes[circuit.node_of_net[n]].is_ground() {
+                domains[net_domain[n]].ground_nets.push(n);
+            }
+        }
+        let mut node_domain = vec![usize::MAX; circuit.nodes.len()];
+        for (n, &node) in circuit.node_of_net.iter().enumerate() {
+            node_domain[node] = net_domain[n];
+        }
+        let mut on_rail = vec![false; layout.supply_pins];
+        for &node_id in &circuit.rail_order {
+            if let Some(domain) = domains.get_mut(node_domain[node_id]) {
+                domain.rail_order.push(node_id);
+            }
+            for pin in &circuit.nodes[node_id].supply_ins {
+                if let Some(slot) = layout.pin_slot(pin.part, pin.pin) {
+                    on_rail[slot] = true;
+                }
+            }
+        }
+        for (part_id, part) in plan.parts.iter().enumerate() {
+            let domain = &mut domains[part_domain[part_id]];
+            match &part.class {
+                Class::Motor(_) => domain.motors.push(part_id),
+                Class::Driver(_) => domain.drivers.push(part_id),
+                Class::Regulator(_) => domain.regulators.push(part_id),
+                Class::Battery(_) => domain.batteries.push(part_id),
+                _ => {}
+            }
+            if let Some(MotorFeed::Direct { supply, .. }) = circuit.motor_feed[part_id] {
+                domain.direct_motor_nets.push(supply);
+            }
+            for slot in layout.slot_start[part_id]..layout.slot_start[part_id + 1] {
+                let slot = slot as usize;
+                let pin = layout.slot_pin[slot];
+                domain.slots.push(slot);
+                if pin.input && !on_rail[slot] {
+                    domain.off_rail_inputs.push(PinRef {
+                        part: pin.part,
+                        pin: pin.pin,
+                    });
+                }
+            }
+            if !is_battery[part_id]
+                && let Some(ground) = circuit.ground_net[part_id]
+            {
+                domain.returns.push((part_id, ground));
+            }
+            if !matches!(part.class, Class::Battery(_) | Class::Regulator(_)) {
+                for (pin_id, pin) in part.pins.iter().enumerate() {
+                    if pin.role == PinRole::SupplyOut && pin.net.is_none() {
+                        domain.unwired_outputs.push(PinRef {
+                            part: part_id,
+                            pin: pin_id,
+                        });
+                    }
+                }
+            }
+        }
+        for (link, l) in plan.links.iter().enumerate() {
+            domains[part_domain[l.host.0]].links.push(link);
+        }
+        domains
     }
 }
 
@@ -919,6 +1074,15 @@ fn link_resistance(
     length: Option<uom::si::f64::Length>,
 ) -> Option<ElectricalResistance> {
     Some(wire::resistance_at(wire?, length?, plan.cable_ambient()))
+}
+
+/// Buffers a point's solution reuses from domain to domain and pass to pass.
+struct Scratch {
+    /// A domain's potentials and currents at the last pass, in its net order.
+    before_potential: Vec<Option<ElectricPotential>>,
+    before_current: Vec<ElectricCurrent>,
+    /// Per net: the current of the motors wired straight across it.
+    direct_motor: Vec<ElectricCurrent>,
 }
 
 struct Solver<'a> {
@@ -968,65 +1132,73 @@ impl Solver<'_> {
         }
     }
 
-    fn run(&self) -> OperatingPoint {
-        let mut point = self.blank();
-        // The last pass's numbers, kept in buffers reused from pass to pass.
-        let mut before_potential = Vec::new();
-        let mut before_current = Vec::new();
+    /// Repeats the two passes over one domain until none of its numbers
+    /// moves.
+    fn settle(
+        &self,
+        point: &mut OperatingPoint,
+        domain: &Domain,
+        scratch: &mut Scratch,
+    ) -> Result<(), Unsettled> {
         for iteration in 1..=MAX_ITERATIONS {
-            before_potential.clone_from(&point.net_potential);
-            before_current.clone_from(&point.net_current);
-            self.voltages(&mut point);
-            if let Some(mut failure) = self.collapsed(&point) {
+            scratch.before_potential.clear();
+            scratch
+                .before_potential
+                .extend(domain.nets.iter().map(|&n| point.net_potential[n]));
+            scratch.before_current.clear();
+            scratch
+                .before_current
+                .extend(domain.nets.iter().map(|&n| point.net_current[n]));
+            self.voltages(point, domain);
+            if let Some(mut failure) = self.collapsed(point, domain) {
                 failure.iterations = iteration;
-                point.unsettled = Some(failure);
-                return point;
+                return Err(failure);
             }
-            self.currents(&mut point);
-            if let Some(mut failure) = self.out_of_range(&point) {
+            self.currents(point, domain, &mut scratch.direct_motor);
+            if let Some(mut failure) = self.out_of_range(point, domain) {
                 failure.iterations = iteration;
-                point.unsettled = Some(failure);
-                return point;
+                return Err(failure);
             }
-            let moved_v = before_potential
+            let moved_v = scratch
+                .before_potential
                 .iter()
-                .zip(&point.net_potential)
-                .map(|(a, b)| match (a, b) {
-                    (Some(a), Some(b)) => (*a - *b).get::<volt>().abs(),
+                .zip(&domain.nets)
+                .map(|(a, &n)| match (a, point.net_potential[n]) {
+                    (Some(a), Some(b)) => (*a - b).get::<volt>().abs(),
                     (None, None) => 0.0,
                     _ => f64::INFINITY,
                 })
                 .fold(0.0, f64::max);
-            let moved_i = before_current
+            let moved_i = scratch
+                .before_current
                 .iter()
-                .zip(&point.net_current)
-                .map(|(a, b)| (*a - *b).get::<ampere>().abs())
+                .zip(&domain.nets)
+                .map(|(a, &n)| (*a - point.net_current[n]).get::<ampere>().abs())
                 .fold(0.0, f64::max);
             if iteration > 1
                 && moved_v < voltage_tolerance().get::<volt>()
                 && moved_i < current_tolerance().get::<ampere>()
             {
-                self.voltages(&mut point);
-                return point;
+                self.voltages(point, domain);
+                return Ok(());
             }
         }
-        point.unsettled = Some(Unsettled {
+        Err(Unsettled {
             part: None,
             reason: format!("voltages and currents still moving after {MAX_ITERATIONS} passes"),
             iterations: MAX_ITERATIONS,
-        });
-        point
+        })
     }
 
     /// A point that has no physical solution: a source pulled to or below zero.
     /// The blame goes to the constant-power converter that pulls hardest, if
     /// any: with constant-current loads alone a collapse is the source's.
-    fn collapsed(&self, point: &OperatingPoint) -> Option<Unsettled> {
-        let hungriest_converter = point
+    fn collapsed(&self, point: &OperatingPoint, domain: &Domain) -> Option<Unsettled> {
+        let hungriest_converter = domain
             .regulators
             .iter()
-            .filter_map(|(part, r)| {
-                let r = r.as_ref()?;
+            .filter_map(|&part| {
+                let r = point.regulators[part].as_ref()?;
                 let Class::Regulator(spec) = &self.plan.parts[part].class else {
                     return None;
                 };
@@ -1035,12 +1207,12 @@ impl Solver<'_> {
                     .then(|| (part, (spec.output.nominal * r.output_current).get::<watt>()))
             })
             .max_by(|a, b| a.1.total_cmp(&b.1));
-        let collapsed_battery = point
-            .batteries
-            .iter()
-            .find_map(|(part, b)| b.filter(|b| b.terminal.get::<volt>() <= 0.0).map(|_| part));
-        let collapsed_converter = point.regulators.iter().find_map(|(part, r)| {
-            let r = r.as_ref()?;
+        let collapsed_battery =
+            domain.batteries.iter().copied().find(|&part| {
+                point.batteries[part].is_some_and(|b| b.terminal.get::<volt>() <= 0.0)
+            });
+        let collapsed_converter = domain.regulators.iter().copied().find_map(|part| {
+            let r = point.regulators[part].as_ref()?;
             let Class::Regulator(spec) = &self.plan.parts[part].class else {
                 return None;
             };
@@ -1074,16 +1246,16 @@ impl Solver<'_> {
 
     /// Numbers no plan can mean (a wire of 1e300 m, a dropout of 1e300 V)
     /// overflow to infinity or NaN: stop rather than report them.
-    fn out_of_range(&self, point: &OperatingPoint) -> Option<Unsettled> {
-        let finite_v = point
-            .net_potential
+    fn out_of_range(&self, point: &OperatingPoint, domain: &Domain) -> Option<Unsettled> {
+        let finite_v = domain
+            .nets
             .iter()
-            .flatten()
+            .filter_map(|&n| point.net_potential[n])
             .all(|v| v.get::<volt>().is_finite());
-        let finite_i = point
-            .net_current
+        let finite_i = domain
+            .nets
             .iter()
-            .all(|i| i.get::<ampere>().is_finite());
+            .all(|&n| point.net_current[n].get::<ampere>().is_finite());
         (!finite_v || !finite_i).then(|| Unsettled {
             part: None,
             reason: "the voltages and currents run out of any physical range: check the plan for a value far too large or too small".into(),
@@ -1100,14 +1272,15 @@ impl Solver<'_> {
 
     // ----- voltages, top down ---------------------------------------------
 
-    fn voltages(&self, point: &mut OperatingPoint) {
+    fn voltages(&self, point: &mut OperatingPoint, domain: &Domain) {
         let plan = self.plan;
         let circuit = self.circuit;
         // Ground nets first, from the last pass's currents: the battery
         // negative's net is 0 V at its root; return current raises the far end.
-        point.net_potential.clear();
-        point.net_potential.resize(plan.nets.len(), None);
-        for &net in &self.lookup.ground_nets {
+        for &net in &domain.nets {
+            point.net_potential[net] = None;
+        }
+        for &net in &domain.ground_nets {
             let upstream = match circuit.parent[net] {
                 Some(parent) => point.net_potential[parent.net],
                 None => Some(zero_voltage()),
@@ -1117,7 +1290,7 @@ impl Solver<'_> {
 
         // Then the rails in the order power flows, so a converter's input is
         // known before its output is worked out in the same pass.
-        for &node_id in &circuit.rail_order {
+        for &node_id in &domain.rail_order {
             let source = match circuit.source[node_id] {
                 Some(pin) => {
                     let ground = self.ground_of(point, pin.part);
@@ -1153,7 +1326,7 @@ impl Solver<'_> {
         // Onboard outputs left unwired still set the levels of their part's
         // logic pins: give them their voltage whenever the part is powered.
         let mut powered_part: Option<(PartId, bool)> = None;
-        for &PinRef { part, pin } in &self.lookup.unwired_outputs {
+        for &PinRef { part, pin } in &domain.unwired_outputs {
             let powered = match powered_part {
                 Some((p, powered)) if p == part => powered,
                 _ => {
@@ -1278,12 +1451,18 @@ impl Solver<'_> {
 
     // ----- currents, bottom up --------------------------------------------
 
-    fn currents(&self, point: &mut OperatingPoint) {
+    /// `direct_motor` is zero on every net on entry, and is left so.
+    fn currents(
+        &self,
+        point: &mut OperatingPoint,
+        domain: &Domain,
+        direct_motor: &mut [ElectricCurrent],
+    ) {
         let plan = self.plan;
         let circuit = self.circuit;
 
         // Motors first: drivers add them up.
-        for &part_id in &self.lookup.layout.motors {
+        for &part_id in &domain.motors {
             let feed = &circuit.motor_feed[part_id];
             let Class::Motor(motor) = &plan.parts[part_id].class else {
                 continue;
@@ -1349,8 +1528,12 @@ impl Solver<'_> {
         // The last pass's tables are refilled rather than allocated anew;
         // nothing below reads their old values.
         let mut channels = std::mem::replace(&mut point.channels, ChannelTable::empty());
-        channels.clear();
-        for &motor in &self.lookup.layout.motors {
+        for &driver in &domain.drivers {
+            for slot in &mut channels[driver] {
+                slot.1 = zero_current();
+            }
+        }
+        for &motor in &domain.motors {
             if let (Some(MotorFeed::Driver { driver, channel }), Some(m)) =
                 (&circuit.motor_feed[motor], point.motors[motor])
                 && let Some(slot) = channels[*driver].iter_mut().find(|(n, _)| n == channel)
@@ -1362,27 +1545,27 @@ impl Solver<'_> {
         // Rails downstream first: what a converter draws depends on what its
         // outputs deliver, so those are known before its input is worked out.
         let mut pin_current = std::mem::replace(&mut point.pin_current, PinTable::empty());
-        pin_current.clear();
+        for &slot in &domain.slots {
+            pin_current.values[slot] = pin_current.blank;
+        }
         let mut net_current = std::mem::take(&mut point.net_current);
-        net_current.clear();
-        net_current.resize(plan.nets.len(), zero_current());
+        for &net in &domain.nets {
+            net_current[net] = zero_current();
+        }
         // Motors wired straight across a rail load its supply net.
-        let mut direct_motor = vec![zero_current(); plan.nets.len()];
-        for &motor in &self.lookup.layout.motors {
+        for &motor in &domain.motors {
             if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) =
                 (&circuit.motor_feed[motor], point.motors[motor])
             {
                 direct_motor[*supply] += m.current;
             }
         }
-        let mut done = PinTable::new(&self.lookup.layout, false);
-        for &node_id in circuit.rail_order.iter().rev() {
+        for &node_id in domain.rail_order.iter().rev() {
             let node = &circuit.nodes[node_id];
             for pin in &node.supply_ins {
                 let current =
                     self.supply_in_current(point, *pin, &pin_current, &net_current, &channels);
                 pin_current.set(pin.part, pin.pin, current);
-                done.set(pin.part, pin.pin, true);
             }
             // Each net carries what hangs on it and below it.
             for &net in circuit.node_nets[node_id].iter().rev() {
@@ -1404,22 +1587,18 @@ impl Solver<'_> {
                 pin_current.set(source.part, source.pin, net_current[root]);
             }
         }
+        for &net in &domain.direct_motor_nets {
+            direct_motor[net] = zero_current();
+        }
         // Inputs on no rail carry nothing, but a regulator there still gets
         // its operating point recorded.
-        for (slot, pin) in self.lookup.layout.slot_pin.iter().enumerate() {
-            if pin.input && !done.values[slot] {
-                let pin_ref = PinRef {
-                    part: pin.part,
-                    pin: pin.pin,
-                };
-                let _ =
-                    self.supply_in_current(point, pin_ref, &pin_current, &net_current, &channels);
-            }
+        for &pin in &domain.off_rail_inputs {
+            let _ = self.supply_in_current(point, pin, &pin_current, &net_current, &channels);
         }
 
         // Return current: what a part takes in minus what it gives out, on
         // its ground net, summed toward the battery negative.
-        for &(part_id, ground) in &self.lookup.returns {
+        for &(part_id, ground) in &domain.returns {
             let mut returned = zero_current();
             for pin in self.lookup.layout.supply_pins_of(part_id) {
                 if pin.input {
@@ -1430,23 +1609,23 @@ impl Solver<'_> {
             }
             net_current[ground] += returned;
         }
-        for &motor in &self.lookup.layout.motors {
+        for &motor in &domain.motors {
             if let (Some(MotorFeed::Direct { ground, .. }), Some(m)) =
                 (&circuit.motor_feed[motor], point.motors[motor])
             {
                 net_current[*ground] += m.current;
             }
         }
-        for &net in self.lookup.ground_nets.iter().rev() {
+        for &net in domain.ground_nets.iter().rev() {
             if let Some(parent) = circuit.parent[net] {
                 let below = net_current[net];
                 net_current[parent.net] += below;
             }
         }
 
-        point.link_current = (0..plan.links.len())
-            .map(|link| self.link_current(point, link, &pin_current, &net_current))
-            .collect();
+        for &link in &domain.links {
+            point.link_current[link] = self.link_current(point, link, &pin_current, &net_current);
+        }
         point.pin_current = pin_current;
         point.net_current = net_current;
         point.channels = channels;

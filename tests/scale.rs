@@ -106,3 +106,67 @@ fn points_solved_on_several_threads_match_points_solved_on_one() {
         }
     }
 }
+
+/// Parts that share no conductor, part or cable are separate circuits: by
+/// Kirchhoff's laws nothing one draws reaches the other, so a module's
+/// voltages and currents are the same, to the last bit, whatever else the
+/// plan holds — here beside a module whose pack has twenty times the
+/// library's internal resistance (0.3 Ω, a value chosen only to make it sag
+/// deeper), which takes more passes to settle.
+#[test]
+fn a_module_solves_the_same_alone_and_beside_others() {
+    use railcheck::analysis::Analysis;
+    use railcheck::graph::Circuit;
+    let library = Library::builtin();
+    let solved = |text: &str| {
+        let (_, _, plan) = match railcheck::read("plan.yaml", text, &library) {
+            Ok(read) => read,
+            Err(f) => panic!("plan has input errors: {:?}", f.errors),
+        };
+        let circuit = Circuit::build(&plan);
+        let analysis = Analysis::solve_on(&plan, &circuit, 1);
+        (plan, analysis)
+    };
+    let alone = generate::plan(generate::DOMAIN_PARTS);
+    let fresh_pack = "pack_1: { use: battery/lipo-3s, with: { cutoff: true } }";
+    let three = generate::plan(3 * generate::DOMAIN_PARTS);
+    assert!(three.contains(fresh_pack));
+    let three = three.replace(
+        fresh_pack,
+        "pack_1: { use: battery/lipo-3s, with: { cutoff: true, internal_resistance: 0.3 ohm } }",
+    );
+    let (plan_alone, alone) = solved(&alone);
+    let (plan_three, three) = solved(&three);
+    assert_eq!(alone.points.len(), three.points.len());
+    let net_named = |plan: &railcheck::model::Plan, name: &str| {
+        plan.nets
+            .iter()
+            .position(|n| n.name == name)
+            .unwrap_or_else(|| panic!("no net {name}"))
+    };
+    let mut worn_differs = false;
+    for (single, joint) in alone.points.iter().zip(&three.points) {
+        assert!(single.unsettled.is_none() && joint.unsettled.is_none());
+        for (net, n) in plan_alone.nets.iter().enumerate() {
+            let base = n
+                .name
+                .strip_suffix("_0")
+                .expect("module 0's nets end in _0");
+            for module in ["0", "2"] {
+                let other = net_named(&plan_three, &format!("{base}_{module}"));
+                assert_eq!(
+                    (single.net_potential[net], single.net_current[net]),
+                    (joint.net_potential[other], joint.net_current[other]),
+                    "net {base}_{module} at {:?} {:?} {:?}",
+                    single.mode,
+                    single.battery,
+                    single.corner
+                );
+            }
+            let worn = net_named(&plan_three, &format!("{base}_1"));
+            worn_differs |= single.net_potential[net] != joint.net_potential[worn];
+        }
+    }
+    // The worn pack really does sag its own module.
+    assert!(worn_differs);
+}

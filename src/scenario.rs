@@ -308,8 +308,7 @@ impl<'a> Solver<'a> {
 
     /// Every net and part, from the scenario's sources alone.
     fn solve_full(&self, connected: &[usize], removed: &[PartId], open: &[PartId]) -> FullState {
-        let nets: Vec<NetId> = (0..self.plan.nets.len()).collect();
-        let local = Local::solve(self, &nets, None, connected, removed, open);
+        let local = Local::solve(self, &Region::Whole, None, connected, removed, open);
         let mut state = FullState {
             nets: vec![false; self.plan.nets.len()],
             parts: vec![false; self.plan.parts.len()],
@@ -317,7 +316,7 @@ impl<'a> Solver<'a> {
         for (net, on) in local.nets {
             state.nets[net] = on;
         }
-        for (part, on) in local.parts {
+        for (part, on) in local.parts.iter() {
             state.parts[part] = on;
         }
         state
@@ -353,14 +352,16 @@ impl<'a> Solver<'a> {
             .iter()
             .flat_map(|&n| self.circuit.nodes[n].nets.iter().copied())
             .collect();
-        let local = Local::solve(self, &nets, Some(running), &[], &[], &[switch]);
+        let index = nets.iter().enumerate().map(|(i, &n)| (n, i)).collect();
+        let region = Region::Some { nets, index };
+        let local = Local::solve(self, &region, Some(running), &[], &[], &[switch]);
         let mut difference = Difference::default();
         for (net, on) in local.nets {
             if on != running.running_nets[net] {
                 difference.nets.insert(net, on);
             }
         }
-        for (part, on) in local.parts {
+        for (part, on) in local.parts.iter() {
             if on != running.running_parts[part] {
                 difference.parts.insert(part, on);
             }
@@ -371,73 +372,153 @@ impl<'a> Solver<'a> {
 
 /// Marks a part decided in this region as having power, once, and queues
 /// it for what it powers in turn.
-fn switch_on(parts: &mut HashMap<PartId, bool>, queue: &mut Vec<PartId>, part: PartId) {
-    if parts.get(&part) == Some(&false) {
+fn switch_on(parts: &mut Decided, queue: &mut Vec<PartId>, part: PartId) {
+    if parts.get(part) == Some(false) {
         parts.insert(part, true);
         queue.push(part);
+    }
+}
+
+/// The nets a scenario is solved over.
+enum Region {
+    /// Every net of the plan, each at its own number.
+    Whole,
+    /// Some nets: the region's own numbering of them, and back.
+    Some {
+        nets: Vec<NetId>,
+        index: HashMap<NetId, usize>,
+    },
+}
+
+impl Region {
+    fn len(&self, plan: &Plan) -> usize {
+        match self {
+            Region::Whole => plan.nets.len(),
+            Region::Some { nets, .. } => nets.len(),
+        }
+    }
+
+    /// The net at a place in the region.
+    fn net(&self, i: usize) -> NetId {
+        match self {
+            Region::Whole => i,
+            Region::Some { nets, .. } => nets[i],
+        }
+    }
+
+    /// The place of a net in the region, if it is in it.
+    fn place(&self, net: NetId) -> Option<usize> {
+        match self {
+            Region::Whole => Some(net),
+            Region::Some { index, .. } => index.get(&net).copied(),
+        }
+    }
+}
+
+/// The parts a scenario decides, each with whether it has power: every
+/// part for a whole plan (one flag per part), a few for a region.
+enum Decided {
+    Every(Vec<Option<bool>>),
+    Some(HashMap<PartId, bool>),
+}
+
+impl Decided {
+    fn get(&self, part: PartId) -> Option<bool> {
+        match self {
+            Decided::Every(parts) => parts[part],
+            Decided::Some(parts) => parts.get(&part).copied(),
+        }
+    }
+
+    fn contains(&self, part: PartId) -> bool {
+        self.get(part).is_some()
+    }
+
+    fn insert(&mut self, part: PartId, on: bool) {
+        match self {
+            Decided::Every(parts) => parts[part] = Some(on),
+            Decided::Some(parts) => {
+                parts.insert(part, on);
+            }
+        }
+    }
+
+    /// Each part decided, with its power, in no particular order.
+    fn iter(&self) -> Box<dyn Iterator<Item = (PartId, bool)> + '_> {
+        match self {
+            Decided::Every(parts) => Box::new(
+                parts
+                    .iter()
+                    .enumerate()
+                    .filter_map(|(p, on)| Some((p, (*on)?))),
+            ),
+            Decided::Some(parts) => Box::new(parts.iter().map(|(&p, &on)| (p, on))),
+        }
     }
 }
 
 /// One scenario solved over a region of nets; parts and nets outside it
 /// keep their running state.
 struct Local {
-    nets: HashMap<NetId, bool>,
-    parts: HashMap<PartId, bool>,
+    nets: Vec<(NetId, bool)>,
+    parts: Decided,
 }
 
 impl Local {
     fn solve(
         solver: &Solver,
-        region: &[NetId],
+        region: &Region,
         running: Option<&Scenarios>,
         connected: &[usize],
         removed: &[PartId],
         open: &[PartId],
     ) -> Local {
         let plan = solver.plan;
-        let index: HashMap<NetId, usize> =
-            region.iter().enumerate().map(|(i, &n)| (n, i)).collect();
-        let mut joined = UnionFind::<usize>::new(region.len());
-        for (i, &net) in region.iter().enumerate() {
-            for &(part, other) in &solver.through[net] {
+        let size = region.len(plan);
+        let mut joined = UnionFind::<usize>::new(size);
+        for i in 0..size {
+            for &(part, other) in &solver.through[region.net(i)] {
                 if open.contains(&part) {
                     continue;
                 }
-                if let Some(&j) = index.get(&other) {
+                if let Some(j) = region.place(other) {
                     joined.union(i, j);
                 }
             }
         }
-        let group: Vec<usize> = (0..region.len()).map(|i| joined.find(i)).collect();
-        let mut group_nets: HashMap<usize, Vec<usize>> = HashMap::new();
+        let group: Vec<usize> = (0..size).map(|i| joined.find(i)).collect();
+        // Per group (numbered by its representative's place): its places.
+        let mut group_nets: Vec<Vec<usize>> = vec![Vec::new(); size];
         for (i, &g) in group.iter().enumerate() {
-            group_nets.entry(g).or_default().push(i);
+            group_nets[g].push(i);
         }
         // Parts decided here: those with a supply input in the region, and
-        // the devices of cables they host. Others keep their running state.
-        let mut local_parts: HashMap<PartId, bool> = HashMap::new();
-        for &net in region {
-            for pin in &plan.nets[net].pins {
-                if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn {
-                    local_parts.insert(pin.part, false);
+        // the devices of cables they host; with no running state to keep,
+        // every part. Others keep their running state.
+        let mut local_parts = match running {
+            None => Decided::Every(vec![Some(false); plan.parts.len()]),
+            Some(_) => {
+                let mut parts = HashMap::new();
+                for i in 0..size {
+                    for pin in &plan.nets[region.net(i)].pins {
+                        if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn {
+                            parts.insert(pin.part, false);
+                        }
+                    }
                 }
-            }
-        }
-        if running.is_none() {
-            for part in 0..plan.parts.len() {
-                local_parts.insert(part, false);
-            }
-        }
-        let mut hosts: Vec<PartId> = local_parts.keys().copied().collect();
-        while let Some(host) = hosts.pop() {
-            for &link in &solver.hosted[host] {
-                let device = plan.links[link].device.0;
-                if let std::collections::hash_map::Entry::Vacant(e) = local_parts.entry(device) {
-                    e.insert(false);
-                    hosts.push(device);
+                let mut hosts: Vec<PartId> = parts.keys().copied().collect();
+                while let Some(host) = hosts.pop() {
+                    for &link in &solver.hosted[host] {
+                        let device = plan.links[link].device.0;
+                        if let std::collections::hash_map::Entry::Vacant(e) = parts.entry(device) {
+                            e.insert(false);
+                            hosts.push(device);
+                        }
+                    }
                 }
+                Decided::Some(parts)
             }
-        }
+        };
         let outside_on = |part: PartId| running.is_some_and(|r| r.running_parts[part]);
         // Cables unplugged because a supply from outside takes their port.
         let unplugged: Vec<usize> = connected
@@ -448,22 +529,22 @@ impl Local {
             })
             .collect();
 
-        let mut group_on: HashMap<usize, bool> = HashMap::new();
+        let mut group_on: Vec<bool> = vec![false; size];
         let mut groups_to_visit: Vec<usize> = Vec::new();
         let mut parts_to_visit: Vec<PartId> = Vec::new();
-        let power_net =
-            |net: NetId, group_on: &mut HashMap<usize, bool>, queue: &mut Vec<usize>| {
-                if let Some(&i) = index.get(&net) {
-                    let g = group[i];
-                    if !group_on.get(&g).copied().unwrap_or(false) {
-                        group_on.insert(g, true);
-                        queue.push(g);
-                    }
+        let power_net = |net: NetId, group_on: &mut Vec<bool>, queue: &mut Vec<usize>| {
+            if let Some(i) = region.place(net) {
+                let g = group[i];
+                if !group_on[g] {
+                    group_on[g] = true;
+                    queue.push(g);
                 }
-            };
+            }
+        };
         // Sources: present batteries, supplies from outside, and parts
         // outside the region that keep their power.
-        for &net in region {
+        for i in 0..size {
+            let net = region.net(i);
             for pin in &plan.nets[net].pins {
                 let part = &plan.parts[pin.part];
                 if part.pins[pin.pin].role != PinRole::SupplyOut {
@@ -471,7 +552,7 @@ impl Local {
                 }
                 let on = match part.class {
                     Class::Battery(_) => !removed.contains(&pin.part),
-                    _ => !local_parts.contains_key(&pin.part) && outside_on(pin.part),
+                    _ => !local_parts.contains(pin.part) && outside_on(pin.part),
                 };
                 if on {
                     power_net(net, &mut group_on, &mut groups_to_visit);
@@ -479,10 +560,7 @@ impl Local {
             }
             for &link in &solver.circuit.vbus[solver.circuit.node_of_net[net]] {
                 let host = plan.links[link].host.0;
-                if !local_parts.contains_key(&host)
-                    && outside_on(host)
-                    && !unplugged.contains(&link)
-                {
+                if !local_parts.contains(host) && outside_on(host) && !unplugged.contains(&link) {
                     let (device, port) = plan.links[link].device;
                     if plan.fed_net(device, port) == Some(net) {
                         power_net(net, &mut group_on, &mut groups_to_visit);
@@ -496,15 +574,15 @@ impl Local {
         // not feed).
         if let Some(running) = running {
             let mut already_on: Vec<PartId> = Vec::new();
-            for (&part_id, _) in local_parts.iter() {
+            for (part_id, _) in local_parts.iter() {
                 let part = &plan.parts[part_id];
                 let by_pin = part.pins_with_role(PinRole::SupplyIn).any(|(_, pin)| {
                     pin.net
-                        .is_some_and(|n| !index.contains_key(&n) && running.running_nets[n])
+                        .is_some_and(|n| region.place(n).is_none() && running.running_nets[n])
                 });
                 let by_cable = solver.feeding_links[part_id].iter().any(|&link| {
                     let host = plan.links[link].host.0;
-                    !local_parts.contains_key(&host)
+                    !local_parts.contains(host)
                         && running.running_parts[host]
                         && !unplugged.contains(&link)
                 });
@@ -532,8 +610,8 @@ impl Local {
         // that is on powers its outputs and the cables it hosts.
         loop {
             if let Some(g) = groups_to_visit.pop() {
-                for &i in &group_nets[&g] {
-                    for pin in &plan.nets[region[i]].pins {
+                for &i in &group_nets[g] {
+                    for pin in &plan.nets[region.net(i)].pins {
                         if plan.parts[pin.part].pins[pin.pin].role == PinRole::SupplyIn {
                             switch_on(&mut local_parts, &mut parts_to_visit, pin.part);
                         }
@@ -562,15 +640,16 @@ impl Local {
                 break;
             }
         }
-        for &battery in local_parts.clone().keys() {
-            if matches!(plan.parts[battery].class, Class::Battery(_)) {
-                local_parts.insert(battery, !removed.contains(&battery));
-            }
-        }
-        let nets = region
+        let batteries: Vec<PartId> = local_parts
             .iter()
-            .enumerate()
-            .map(|(i, &net)| (net, group_on.get(&group[i]).copied().unwrap_or(false)))
+            .map(|(part, _)| part)
+            .filter(|&part| matches!(plan.parts[part].class, Class::Battery(_)))
+            .collect();
+        for battery in batteries {
+            local_parts.insert(battery, !removed.contains(&battery));
+        }
+        let nets = (0..size)
+            .map(|i| (region.net(i), group_on[group[i]]))
             .collect();
         Local {
             nets,

@@ -926,6 +926,26 @@ fn minimise_crossings(
         }
     };
     set_positions(&order, &mut position);
+    // Per item: the items its connections on each side reach in the
+    // neighbouring column, worked out once for all the sweeps.
+    let left = Reach::build(
+        items,
+        item_anchors,
+        |item| {
+            let column = items[item].column;
+            let neighbour = column.checked_sub(1)?;
+            Some((Side::Left, neighbour))
+        },
+        anchors,
+        groups,
+    );
+    let right = Reach::build(
+        items,
+        item_anchors,
+        |item| Some((Side::Right, items[item].column + 1)),
+        anchors,
+        groups,
+    );
     let mut best = order.clone();
     let mut best_crossings = crossings(&order, items, anchors, groups);
     for sweep in 0..SWEEPS {
@@ -935,30 +955,17 @@ fn minimise_crossings(
         } else {
             (0..columns.saturating_sub(1)).rev().collect()
         };
+        let reach = if rightwards { &left } else { &right };
         for c in sequence {
-            let neighbour = if rightwards { c - 1 } else { c + 1 };
-            let side = if rightwards { Side::Left } else { Side::Right };
             let mut keyed: Vec<(f64, f64, usize)> = order[c]
                 .iter()
                 .map(|&item| {
-                    let mut sum = 0.0;
-                    let mut count = 0usize;
-                    for &a in &item_anchors[item] {
-                        if anchors[a].side != side {
-                            continue;
-                        }
-                        for &o in &groups[anchors[a].group] {
-                            let other = anchors[o].item;
-                            if items[other].column == neighbour {
-                                sum += position[other];
-                                count += 1;
-                            }
-                        }
-                    }
-                    let value = if count == 0 {
+                    let others = reach.of(item);
+                    let sum = others.iter().fold(0.0, |sum, &other| sum + position[other]);
+                    let value = if others.is_empty() {
                         position[item]
                     } else {
-                        sum / count as f64
+                        sum / others.len() as f64
                     };
                     (value, position[item], item)
                 })
@@ -977,6 +984,55 @@ fn minimise_crossings(
         }
     }
     best
+}
+
+/// Per item, the items at the other ends of its connections on one side
+/// that sit in one other column, in anchor then member order (an item
+/// reached twice is listed twice).
+struct Reach {
+    start: Vec<usize>,
+    others: Vec<usize>,
+}
+
+impl Reach {
+    /// `towards` gives, per item, the side and the column to look in
+    /// (`None`: nothing to reach).
+    fn build(
+        items: &[Item],
+        item_anchors: &[Vec<usize>],
+        towards: impl Fn(usize) -> Option<(Side, usize)>,
+        anchors: &[Anchor],
+        groups: &[Vec<usize>],
+    ) -> Reach {
+        let mut reach = Reach {
+            start: Vec::with_capacity(items.len() + 1),
+            others: Vec::new(),
+        };
+
+        for item in 0..items.len() {
+            reach.start.push(reach.others.len());
+            let Some((side, column)) = towards(item) else {
+                continue;
+            };
+            for &a in item_anchors.get(item).map_or(&[][..], Vec::as_slice) {
+                if anchors[a].side != side {
+                    continue;
+                }
+                for &o in &groups[anchors[a].group] {
+                    let other = anchors[o].item;
+                    if items[other].column == column {
+                        reach.others.push(other);
+                    }
+                }
+            }
+        }
+        reach.start.push(reach.others.len());
+        reach
+    }
+
+    fn of(&self, item: usize) -> &[usize] {
+        &self.others[self.start[item]..self.start[item + 1]]
+    }
 }
 
 /// Crossings between the connections of neighbouring columns, counted on
@@ -1079,6 +1135,7 @@ fn assign_heights(
             top += items[item].height + next.map_or(0.0, |n| gap(&items[item], n));
         }
     }
+    let pulls = Pulls::build(order, items, anchors, groups, item_anchors);
     let sequence: Vec<usize> = (0..order.len()).chain((0..order.len()).rev()).collect();
     for _ in 0..ROUNDS {
         for &c in &sequence {
@@ -1091,20 +1148,14 @@ fn assign_heights(
             for &item in column_items {
                 let mut sum = 0.0;
                 let mut count = 0.0;
-                for &a in &item_anchors[item] {
-                    let members = &groups[anchors[a].group];
+                for &(dy, ref ends) in pulls.of(item) {
                     let (mut other_sum, mut other_count) = (0.0, 0.0);
-                    for &o in members {
-                        let other = &anchors[o];
-                        if items[other.item].column != c {
-                            other_sum += items[other.item].top + other.dy;
-                            other_count += 1.0;
-                        }
+                    for &(other, other_dy) in &pulls.ends[ends.clone()] {
+                        other_sum += items[other].top + other_dy;
+                        other_count += 1.0;
                     }
-                    if other_count > 0.0 {
-                        sum += other_sum / other_count - anchors[a].dy;
-                        count += 1.0;
-                    }
+                    sum += other_sum / other_count - dy;
+                    count += 1.0;
                 }
                 if count > 0.0 {
                     targets.push(sum / count);
@@ -1143,6 +1194,61 @@ fn assign_heights(
         for item in items.iter_mut() {
             item.top -= lowest;
         }
+    }
+}
+
+/// Per item: each of its anchors that connects to items in other columns,
+/// with the anchor's height on the item and the far ends (item, height),
+/// in anchor then member order: what pulls the item up or down, worked out
+/// once for all the rounds.
+struct Pulls {
+    start: Vec<usize>,
+    anchors: Vec<(f64, std::ops::Range<usize>)>,
+    ends: Vec<(usize, f64)>,
+}
+
+impl Pulls {
+    fn build(
+        order: &[Vec<usize>],
+        items: &[Item],
+        anchors: &[Anchor],
+        groups: &[Vec<usize>],
+        item_anchors: &[Vec<usize>],
+    ) -> Pulls {
+        let item_count = items.len();
+        // The column an item is placed in (its own, once ordered).
+        let mut column_of = vec![usize::MAX; item_count];
+        for (c, column_items) in order.iter().enumerate() {
+            for &item in column_items {
+                column_of[item] = c;
+            }
+        }
+        let mut pulls = Pulls {
+            start: Vec::with_capacity(item_count + 1),
+            anchors: Vec::new(),
+            ends: Vec::new(),
+        };
+        for item in 0..item_count {
+            pulls.start.push(pulls.anchors.len());
+            for &a in &item_anchors[item] {
+                let from = pulls.ends.len();
+                for &o in &groups[anchors[a].group] {
+                    let other = &anchors[o];
+                    if items[other.item].column != column_of[item] {
+                        pulls.ends.push((other.item, other.dy));
+                    }
+                }
+                if pulls.ends.len() > from {
+                    pulls.anchors.push((anchors[a].dy, from..pulls.ends.len()));
+                }
+            }
+        }
+        pulls.start.push(pulls.anchors.len());
+        pulls
+    }
+
+    fn of(&self, item: usize) -> &[(f64, std::ops::Range<usize>)] {
+        &self.anchors[self.start[item]..self.start[item + 1]]
     }
 }
 

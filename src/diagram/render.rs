@@ -426,7 +426,7 @@ pub(super) fn drawing(
             cx >= w.x && cx <= w.x + w.width && cy >= w.y && cy <= w.y + w.height
         })
     };
-    let mut wires = Group::new().set("class", "wires");
+    let mut wires = Layer::new("wires");
     // Signals under power, cables on top: draw by kind.
     let mut by_kind: Vec<usize> = (0..content.wires.len()).collect();
     by_kind.sort_by_key(|&w| (std::cmp::Reverse(content.wires[w].kind), w));
@@ -475,10 +475,10 @@ pub(super) fn drawing(
                     .set("fill", line.colour),
             );
         }
-        wires = wires.add(group);
+        wires.push(&group);
     }
 
-    let mut boxes = Group::new().set("class", "parts");
+    let mut boxes = Layer::new("parts");
     for (part, placed) in content.parts.iter().zip(&geometry.parts) {
         let r = placed.rect;
         if !inside(r) {
@@ -519,10 +519,10 @@ pub(super) fn drawing(
         for g in &placed.grounds {
             group = group.add(ground_symbol(g.x + dx, g.y + dy, g.reaches_battery));
         }
-        boxes = boxes.add(group);
+        boxes.push(&group);
     }
 
-    let mut tags = Group::new().set("class", "tags");
+    let mut tags = Layer::new("tags");
     for (tag, placed) in content.tags.iter().zip(&geometry.tags) {
         if !inside(super::page::tag_bounds(placed)) {
             continue;
@@ -553,13 +553,53 @@ pub(super) fn drawing(
         if let Some((x, y)) = placed.ground_icon {
             group = group.add(ground_symbol(x + dx, y + dy, true));
         }
-        tags = tags.add(group);
+        tags.push(&group);
     }
     Group::new()
         .set("class", "drawing")
-        .add(wires)
-        .add(boxes)
-        .add(tags)
+        .add(wires.group())
+        .add(boxes.group())
+        .add(tags.group())
+}
+
+/// One layer of the drawing (wires, boxes or tags), its elements written
+/// out as text as each is made: a large plan's drawing holds hundreds of
+/// thousands of elements, and kept as a tree each would hold its own map
+/// of attributes until the document is written. The text is what the tree
+/// would print: each child on a line of its own.
+struct Layer {
+    class: &'static str,
+    text: String,
+    empty: bool,
+}
+
+impl Layer {
+    fn new(class: &'static str) -> Layer {
+        Layer {
+            class,
+            text: String::new(),
+            empty: true,
+        }
+    }
+
+    fn push(&mut self, element: &Group) {
+        use std::fmt::Write;
+        if !self.empty {
+            self.text.push('\n');
+        }
+        self.empty = false;
+        // Writing to a String cannot fail.
+        let _ = write!(self.text, "{element}");
+    }
+
+    fn group(self) -> Group {
+        let group = Group::new().set("class", self.class);
+        if self.empty {
+            group
+        } else {
+            group.add(svg::node::Blob::new(self.text))
+        }
+    }
 }
 
 pub(super) fn findings_panel(

@@ -149,7 +149,8 @@ pub(crate) fn wholly_unwired(cx: &Context, part_id: PartId) -> bool {
     let has_supply = supply_ins.peek().is_some();
     has_supply
         && supply_ins.all(|(_, pin)| pin.net.is_none())
-        && !cx.plan.links.iter().any(|l| {
+        && !cx.circuit.part_links[part_id].iter().any(|&link| {
+            let l = &cx.plan.links[link];
             l.device.0 == part_id
                 && matches!(part.ports[l.device.1].kind, PortKind::UsbDevice { .. })
         })

@@ -67,6 +67,14 @@ fn level_at<'p>(
     super::drive(cx, side, ends).highest
 }
 
+/// Each unpowered part's [`Back`], in the order they are found, and where
+/// each part's sits.
+#[derive(Default)]
+struct Backs<'p> {
+    list: Vec<Back<'p>>,
+    index: std::collections::HashMap<PartId, usize>,
+}
+
 /// What drives one unpowered part's inputs, gathered over its pins.
 struct Back<'p> {
     part: PartId,
@@ -97,7 +105,7 @@ fn unpowered_ceiling(cx: &Context, pin: PinRef) -> ElectricPotential {
 /// while the receiver's supply is dead.
 fn note<'p>(
     cx: &'p Context,
-    backs: &mut Vec<Back<'p>>,
+    backs: &mut Backs<'p>,
     receiver: PinRef,
     source: Source,
     side: &DriverSide<'p>,
@@ -113,19 +121,17 @@ fn note<'p>(
         if !exceeds(v(level.value), v(limit)) {
             continue;
         }
-        let index = match backs.iter().position(|b| b.part == receiver.part) {
-            Some(i) => i,
-            None => {
-                backs.push(Back {
-                    part: receiver.part,
-                    inputs: Vec::new(),
-                    drivers: Vec::new(),
-                    worst: None,
-                });
-                backs.len() - 1
-            }
-        };
-        let back = &mut backs[index];
+        let list = &mut backs.list;
+        let index = *backs.index.entry(receiver.part).or_insert_with(|| {
+            list.push(Back {
+                part: receiver.part,
+                inputs: Vec::new(),
+                drivers: Vec::new(),
+                worst: None,
+            });
+            list.len() - 1
+        });
+        let back = &mut list[index];
         if !back.inputs.contains(&receiver) {
             back.inputs.push(receiver);
         }
@@ -144,9 +150,9 @@ fn note<'p>(
 }
 
 fn check_unpowered_input(cx: &Context, out: &mut Vec<Finding>) {
-    let mut backs: Vec<Back> = Vec::new();
+    let mut backs = Backs::default();
     let is_input = |pin: PinRef| role_of(cx, pin).is_input();
-    for signal in signals(cx) {
+    for signal in signals(cx).iter() {
         if !shares_ground(cx, &signal.pins) {
             continue;
         }
@@ -195,7 +201,7 @@ fn check_unpowered_input(cx: &Context, out: &mut Vec<Finding>) {
             }
         }
     }
-    out.extend(backs.iter().filter_map(|back| finding(cx, back)));
+    out.extend(backs.list.iter().filter_map(|back| finding(cx, back)));
 }
 
 fn finding(cx: &Context, back: &Back) -> Option<Finding> {

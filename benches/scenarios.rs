@@ -51,6 +51,7 @@ fn scenarios(c: &mut Criterion) {
                         analysis: checked.analysis.as_ref(),
                         scenarios: Some(&scenarios),
                         margins: None,
+                        worked: Default::default(),
                     };
                     let mut findings = Vec::new();
                     for id in SCENARIO_RULES {

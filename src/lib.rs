@@ -352,6 +352,7 @@ pub(crate) fn check_tree(
         analysis: None,
         scenarios: Some(&scenarios),
         margins: None,
+        worked: Default::default(),
     };
     // Only the two rules that decide it run here; every rule runs below.
     let mut topology_findings = Vec::new();
@@ -371,6 +372,7 @@ pub(crate) fn check_tree(
         analysis: analysis.as_ref(),
         scenarios: Some(&scenarios),
         margins: Some(&margins),
+        worked: Default::default(),
     });
     Ok(Checked {
         sources,

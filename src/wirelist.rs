@@ -250,6 +250,7 @@ pub fn wire_list(checked: &Checked) -> WireList {
         analysis: checked.analysis.as_ref(),
         scenarios: Some(&checked.scenarios),
         margins: None,
+        worked: Default::default(),
     };
     let protecting = crate::rules::fuse::protecting_fuses(&cx);
     let settled = || checked.analysis.iter().flat_map(|a| a.settled());

@@ -572,7 +572,7 @@ enum Source {
 /// Electrical nodes that carry no supply and no ground, joined through
 /// series resistors, with what hangs on them.
 #[derive(Default)]
-struct Signal {
+pub(super) struct Signal {
     nets: Vec<NetId>,
     /// Logic pins, in net order.
     pins: Vec<PinRef>,
@@ -609,7 +609,7 @@ fn resistors(cx: &Context) -> Vec<(PartId, NetId, NetId)> {
 /// resistors too), if any. `ground/offset` reads open-drain highs from it.
 pub(super) fn pull_up_rails(cx: &Context) -> Vec<Option<NetId>> {
     let mut rails = vec![None; cx.plan.nets.len()];
-    for signal in signals(cx) {
+    for signal in signals(cx).iter() {
         if let Some(&(_, rail)) = signal.pull_ups.first() {
             for &net in &signal.nets {
                 rails[net] = Some(rail);
@@ -619,7 +619,12 @@ pub(super) fn pull_up_rails(cx: &Context) -> Vec<Option<NetId>> {
     rails
 }
 
-fn signals(cx: &Context) -> Vec<Signal> {
+/// The plan's signals, worked out once per run.
+fn signals<'c>(cx: &'c Context) -> &'c [Signal] {
+    cx.worked.signals.get_or_init(|| find_signals(cx))
+}
+
+fn find_signals(cx: &Context) -> Vec<Signal> {
     let circuit = cx.circuit;
     let node_count = circuit.nodes.len();
     let mut joined = UnionFind::<usize>::new(node_count);
@@ -994,7 +999,7 @@ fn shares_ground(cx: &Context, pins: &[PinRef]) -> bool {
 /// reports each group once, however many pairs in it fail.
 fn pairs<'p>(cx: &'p Context) -> Vec<Vec<PairWorst<'p>>> {
     let mut groups = Vec::new();
-    for signal in signals(cx) {
+    for signal in signals(cx).iter() {
         if !shares_ground(cx, &signal.pins) {
             continue;
         }
@@ -1477,7 +1482,7 @@ fn check_contention(cx: &Context, out: &mut Vec<Finding>) {
 }
 
 fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
-    for signal in signals(cx) {
+    for signal in signals(cx).iter() {
         let inputs: Vec<PinRef> = signal
             .pins
             .iter()

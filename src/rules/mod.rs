@@ -173,6 +173,15 @@ pub struct Context<'a> {
     /// Where the rules record the comparisons they make against ratings
     /// and limits; `None` skips recording.
     pub margins: Option<&'a Margins>,
+    /// What several rules work out from the plan alike, worked out once,
+    /// on first use (start with `Default::default()`).
+    pub worked: Worked,
+}
+
+/// What several rules work out from the plan alike, kept for the run.
+#[derive(Default)]
+pub struct Worked {
+    signals: std::sync::OnceLock<Vec<logic::Signal>>,
 }
 
 impl Context<'_> {

@@ -1159,25 +1159,24 @@ impl Solver<'_> {
                 failure.iterations = iteration;
                 return Err(failure);
             }
-            let moved_v = scratch
-                .before_potential
-                .iter()
-                .zip(&domain.nets)
-                .map(|(a, &n)| match (a, point.net_potential[n]) {
-                    (Some(a), Some(b)) => (*a - b).get::<volt>().abs(),
-                    (None, None) => 0.0,
-                    _ => f64::INFINITY,
-                })
-                .fold(0.0, f64::max);
-            let moved_i = scratch
-                .before_current
-                .iter()
-                .zip(&domain.nets)
-                .map(|(a, &n)| (*a - point.net_current[n]).get::<ampere>().abs())
-                .fold(0.0, f64::max);
+            // Settled when no potential and no current moved by the
+            // tolerance (every number is finite here: `out_of_range`).
+            let still =
+                |n: NetId, before_v: &Option<ElectricPotential>, before_i: ElectricCurrent| {
+                    let moved_v = match (before_v, point.net_potential[n]) {
+                        (Some(a), Some(b)) => (*a - b).abs() >= voltage_tolerance(),
+                        (None, None) => false,
+                        _ => true,
+                    };
+                    moved_v || (before_i - point.net_current[n]).abs() >= current_tolerance()
+                };
             if iteration > 1
-                && moved_v < voltage_tolerance().get::<volt>()
-                && moved_i < current_tolerance().get::<ampere>()
+                && !domain
+                    .nets
+                    .iter()
+                    .zip(&scratch.before_potential)
+                    .zip(&scratch.before_current)
+                    .any(|((&n, before_v), &before_i)| still(n, before_v, before_i))
             {
                 self.voltages(point, domain);
                 return Ok(());

@@ -12,11 +12,15 @@ use std::fmt;
 use std::sync::{Arc, OnceLock};
 
 /// Which loaded text a span points into (the plan, or a library part file).
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[derive(
+    Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize,
+)]
 pub struct SourceId(pub u32);
 
 /// A byte range in one source text.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
+#[derive(
+    Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, serde::Serialize, serde::Deserialize,
+)]
 pub struct Span {
     /// The text it points into.
     pub source: SourceId,
@@ -224,7 +228,7 @@ pub fn floor_char_boundary(text: &str, mut offset: usize) -> usize {
 }
 
 /// A YAML node with its span.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub struct Node {
     /// What value it holds.
     pub kind: NodeKind,
@@ -233,7 +237,7 @@ pub struct Node {
 }
 
 /// The kinds of YAML value.
-#[derive(Clone, Debug, PartialEq)]
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize)]
 pub enum NodeKind {
     /// An empty value (`key:` with nothing after it).
     Null,

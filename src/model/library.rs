@@ -2,9 +2,11 @@
 //!
 //! Built-in parts are the YAML files under `parts/`, compiled into the binary so
 //! nothing is needed at run time. A user folder (`--parts DIR`) is read by the
-//! binary and handed in as texts; its ids shadow built-in ones. Files are parsed
-//! only when a plan uses them, and once: the tree is kept for the next plan
-//! (a sweep reads the same parts for every variant).
+//! binary and handed in as texts; its ids shadow built-in ones. A built-in
+//! part's tree is parsed when railcheck is built (`build.rs`, with the same
+//! reader) and decoded the first time a plan uses it; a user file is parsed
+//! then. Either is done once: the tree is kept for the next plan (a sweep
+//! reads the same parts for every variant).
 
 use super::{Part, Plan};
 use crate::syntax::{self, Node, NodeKind, SourceId, Sources, Span};
@@ -13,6 +15,10 @@ use std::collections::BTreeMap;
 use std::sync::OnceLock;
 
 static BUILTIN: Dir<'static> = include_dir!("$CARGO_MANIFEST_DIR/parts");
+
+/// The built-in parts' trees, parsed when railcheck was built (`build.rs`):
+/// each part's id with its tree in `postcard`'s encoding.
+static PREBUILT: &[u8] = include_bytes!(concat!(env!("OUT_DIR"), "/parts.trees"));
 
 #[derive(Clone, Debug)]
 struct Entry {
@@ -25,6 +31,9 @@ struct Entry {
     /// it is not valid YAML): a sweep reads the same parts thousands of
     /// times and parses each once.
     parsed: OnceLock<Option<Node>>,
+    /// A built-in part's tree as parsed when railcheck was built, decoded
+    /// instead of parsing the text.
+    prebuilt: Option<&'static [u8]>,
 }
 
 /// All known part ids and their YAML texts.
@@ -50,6 +59,14 @@ impl Library {
     pub fn builtin() -> Library {
         let mut library = Library::default();
         collect_builtin(&BUILTIN, &mut library);
+        // An index that does not decode (it always does: it is written by
+        // the same build) only means every part is parsed from its text.
+        let prebuilt: Vec<(&str, &[u8])> = postcard::from_bytes(PREBUILT).unwrap_or_default();
+        for (id, tree) in prebuilt {
+            if let Some(entry) = library.entries.get_mut(id) {
+                entry.prebuilt = Some(tree);
+            }
+        }
         library
     }
 
@@ -62,6 +79,7 @@ impl Library {
                 file_name,
                 text: Ok(text),
                 parsed: OnceLock::new(),
+                prebuilt: None,
             },
         );
     }
@@ -75,6 +93,7 @@ impl Library {
                 file_name,
                 text: Err(reason),
                 parsed: OnceLock::new(),
+                prebuilt: None,
             },
         );
     }
@@ -167,9 +186,12 @@ impl Library {
             }
         };
         let source = sources.add(entry.file_name.clone(), text.as_str());
-        let parsed = entry
-            .parsed
-            .get_or_init(|| syntax::parse(source, text).ok());
+        let parsed = entry.parsed.get_or_init(|| {
+            entry
+                .prebuilt
+                .and_then(|tree| postcard::from_bytes::<Node>(tree).ok())
+                .or_else(|| syntax::parse(source, text).ok())
+        });
         if let Some(tree) = parsed {
             let mut tree = tree.clone();
             move_to(&mut tree, source);
@@ -221,5 +243,28 @@ fn collect_builtin(dir: &Dir<'static>, library: &mut Library) {
     }
     for sub in dir.dirs() {
         collect_builtin(sub, library);
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    /// Every built-in part carries the tree `build.rs` parsed, and it is the
+    /// tree this build's reader gives for the part's text: a part added,
+    /// renamed or edited without the build picking it up would differ.
+    #[test]
+    fn every_builtin_part_decodes_to_the_tree_of_its_text() {
+        let library = Library::builtin();
+        assert!(library.entries.len() > 20);
+        for (id, entry) in &library.entries {
+            let text = entry.text.as_ref().expect("built-in parts are readable");
+            let parsed = syntax::parse(SourceId(0), text).expect("built-in parts parse");
+            let tree = entry
+                .prebuilt
+                .unwrap_or_else(|| panic!("`{id}` has no tree from the build"));
+            let decoded: Node = postcard::from_bytes(tree).expect("the tree decodes");
+            assert_eq!(decoded, parsed, "`{id}`");
+        }
     }
 }

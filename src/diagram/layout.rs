@@ -1050,12 +1050,14 @@ fn crossings(
         }
     }
     let mut per_channel: BTreeMap<usize, Vec<(usize, usize)>> = BTreeMap::new();
+    let (mut left, mut right) = (Vec::new(), Vec::new());
     for members in groups {
         let Some(&first) = members.first() else {
             continue;
         };
         let channel = anchors[first].channel(items);
-        let (mut left, mut right) = (Vec::new(), Vec::new());
+        left.clear();
+        right.clear();
         for &a in members {
             let item = anchors[a].item;
             if items[item].column + 1 == channel {
@@ -1086,29 +1088,39 @@ fn crossings(
         .sum()
 }
 
-/// Number of pairs i < j with v[i] > v[j] (merge sort).
+/// Number of pairs i < j with v[i] > v[j] (merge sort, sorting `values`).
 fn inversions(values: &mut [usize]) -> u64 {
+    let mut merged = vec![0; values.len()];
+    merge_count(values, &mut merged)
+}
+
+/// [`inversions`], merging through `merged` (as long as `values`) instead of
+/// a buffer of its own at every level.
+fn merge_count(values: &mut [usize], merged: &mut [usize]) -> u64 {
     let n = values.len();
     if n < 2 {
         return 0;
     }
     let mid = n / 2;
-    let mut count = inversions(&mut values[..mid]) + inversions(&mut values[mid..]);
-    let mut merged = Vec::with_capacity(n);
-    let (mut i, mut j) = (0, mid);
+    let mut count = merge_count(&mut values[..mid], &mut merged[..mid])
+        + merge_count(&mut values[mid..], &mut merged[mid..]);
+    let (mut i, mut j, mut k) = (0, mid, 0);
     while i < mid && j < n {
         if values[j] < values[i] {
             count += (mid - i) as u64;
-            merged.push(values[j]);
+            merged[k] = values[j];
             j += 1;
         } else {
-            merged.push(values[i]);
+            merged[k] = values[i];
             i += 1;
         }
+        k += 1;
     }
-    merged.extend_from_slice(&values[i..mid]);
-    merged.extend_from_slice(&values[j..n]);
-    values.copy_from_slice(&merged);
+    let rest_left = mid - i;
+    merged[k..k + rest_left].copy_from_slice(&values[i..mid]);
+    k += rest_left;
+    merged[k..n].copy_from_slice(&values[j..n]);
+    values.copy_from_slice(&merged[..n]);
     count
 }
 
@@ -1136,6 +1148,23 @@ fn assign_heights(
         }
     }
     let pulls = Pulls::build(order, items, anchors, groups, item_anchors);
+    // Each item's top, in a list of their own (the rounds read the tops of
+    // far ends all over the drawing), and each column's offsets, which the
+    // rounds do not change.
+    let mut tops: Vec<f64> = items.iter().map(|item| item.top).collect();
+    let offsets_of: Vec<Vec<f64>> = order
+        .iter()
+        .map(|column_items| {
+            let mut offsets = Vec::with_capacity(column_items.len());
+            let mut offset = 0.0;
+            for (i, &item) in column_items.iter().enumerate() {
+                offsets.push(offset);
+                let next = column_items.get(i + 1).map(|&n| &items[n]);
+                offset += items[item].height + next.map_or(0.0, |n| gap(&items[item], n));
+            }
+            offsets
+        })
+        .collect();
     let sequence: Vec<usize> = (0..order.len()).chain((0..order.len()).rev()).collect();
     for _ in 0..ROUNDS {
         for &c in &sequence {
@@ -1151,7 +1180,7 @@ fn assign_heights(
                 for &(dy, ref ends) in pulls.of(item) {
                     let (mut other_sum, mut other_count) = (0.0, 0.0);
                     for &(other, other_dy) in &pulls.ends[ends.clone()] {
-                        other_sum += items[other].top + other_dy;
+                        other_sum += tops[other] + other_dy;
                         other_count += 1.0;
                     }
                     sum += other_sum / other_count - dy;
@@ -1161,20 +1190,14 @@ fn assign_heights(
                     targets.push(sum / count);
                     weights.push(count);
                 } else {
-                    targets.push(items[item].top);
+                    targets.push(tops[item]);
                     weights.push(1e-3);
                 }
             }
-            let mut offsets = Vec::with_capacity(column_items.len());
-            let mut offset = 0.0;
-            for (i, &item) in column_items.iter().enumerate() {
-                offsets.push(offset);
-                let next = column_items.get(i + 1).map(|&n| &items[n]);
-                offset += items[item].height + next.map_or(0.0, |n| gap(&items[item], n));
-            }
-            let tops = pool_adjacent(&targets, &weights, &offsets);
-            for (&item, top) in column_items.iter().zip(tops) {
+            let placed = pool_adjacent(&targets, &weights, &offsets_of[c]);
+            for (&item, top) in column_items.iter().zip(placed) {
                 items[item].top = top;
+                tops[item] = top;
             }
         }
     }
@@ -1306,6 +1329,19 @@ mod tests {
         assert_eq!(inversions(&mut [3, 1, 2]), 2);
         assert_eq!(inversions(&mut [1, 2, 3]), 0);
         assert_eq!(inversions(&mut [3, 2, 1]), 3);
+        // A reversed run of n values has n(n-1)/2 inversions: 1000 → 499,500.
+        let mut reversed: Vec<usize> = (0..1000).rev().collect();
+        assert_eq!(inversions(&mut reversed), 499_500);
+        // Against counting every pair, on a scrambled run with repeats
+        // (a linear congruential sequence, so the test is fixed).
+        let scrambled: Vec<usize> = (0..257usize).map(|i| (i * 7919 + 13) % 101).collect();
+        let pairs = (0..scrambled.len())
+            .flat_map(|i| (i + 1..scrambled.len()).map(move |j| (i, j)))
+            .filter(|&(i, j)| scrambled[i] > scrambled[j])
+            .count() as u64;
+        let mut sorted = scrambled.clone();
+        assert_eq!(inversions(&mut sorted), pairs);
+        assert!(sorted.windows(2).all(|w| w[0] <= w[1]));
     }
 
     #[test]

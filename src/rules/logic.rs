@@ -609,7 +609,7 @@ fn resistors(cx: &Context) -> Vec<(PartId, NetId, NetId)> {
 /// resistors too), if any. `ground/offset` reads open-drain highs from it.
 pub(super) fn pull_up_rails(cx: &Context) -> Vec<Option<NetId>> {
     let mut rails = vec![None; cx.plan.nets.len()];
-    for signal in signals(cx).iter() {
+    for signal in signals(cx) {
         if let Some(&(_, rail)) = signal.pull_ups.first() {
             for &net in &signal.nets {
                 rails[net] = Some(rail);
@@ -999,7 +999,7 @@ fn shares_ground(cx: &Context, pins: &[PinRef]) -> bool {
 /// reports each group once, however many pairs in it fail.
 fn pairs<'p>(cx: &'p Context) -> Vec<Vec<PairWorst<'p>>> {
     let mut groups = Vec::new();
-    for signal in signals(cx).iter() {
+    for signal in signals(cx) {
         if !shares_ground(cx, &signal.pins) {
             continue;
         }
@@ -1482,7 +1482,7 @@ fn check_contention(cx: &Context, out: &mut Vec<Finding>) {
 }
 
 fn check_undriven(cx: &Context, out: &mut Vec<Finding>) {
-    for signal in signals(cx).iter() {
+    for signal in signals(cx) {
         let inputs: Vec<PinRef> = signal
             .pins
             .iter()

@@ -152,7 +152,7 @@ fn note<'p>(
 fn check_unpowered_input(cx: &Context, out: &mut Vec<Finding>) {
     let mut backs = Backs::default();
     let is_input = |pin: PinRef| role_of(cx, pin).is_input();
-    for signal in signals(cx).iter() {
+    for signal in signals(cx) {
         if !shares_ground(cx, &signal.pins) {
             continue;
         }

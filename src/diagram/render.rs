@@ -30,8 +30,22 @@ pub(super) const LINE_STEP: f64 = 14.0;
 
 /// A number as the file writes it: at most two decimals, no trailing zeros.
 pub(super) fn num(v: f64) -> String {
-    let rounded = (v * 100.0).round() / 100.0;
-    let rounded = if rounded == 0.0 { 0.0 } else { rounded };
+    let hundredths = (v * 100.0).round();
+    // Below 10^12 hundredths the nearest double to h/100 prints with two
+    // decimals as h/100 exactly, so the digits are the integer's: written
+    // straight from it, without the float formatter's exact mode (slow on
+    // some values, and a drawing writes millions of numbers).
+    if hundredths.abs() < 1e12 {
+        let h = hundredths as i64;
+        let sign = if h < 0 { "-" } else { "" };
+        let (whole, cents) = (h.unsigned_abs() / 100, h.unsigned_abs() % 100);
+        return match cents {
+            0 => format!("{sign}{whole}"),
+            c if c % 10 == 0 => format!("{sign}{whole}.{}", c / 10),
+            c => format!("{sign}{whole}.{c:02}"),
+        };
+    }
+    let rounded = hundredths / 100.0;
     let text = format!("{rounded:.2}");
     let text = text.trim_end_matches('0').trim_end_matches('.');
     text.to_string()
@@ -926,6 +940,44 @@ pub(super) fn cautions(cautions: &[String], x: f64, top: f64, width: f64) -> (Gr
 #[cfg(test)]
 mod tests {
     use super::num;
+
+    /// `num` writes what the standard formatter writes for the value
+    /// rounded to hundredths (`{:.2}`, trailing zeros and point dropped),
+    /// across signs, magnitudes and values that round at the half.
+    #[test]
+    fn numbers_are_written_as_the_standard_formatter_rounds_them() {
+        let reference = |v: f64| {
+            let rounded = (v * 100.0).round() / 100.0;
+            let rounded = if rounded == 0.0 { 0.0 } else { rounded };
+            let text = format!("{rounded:.2}");
+            text.trim_end_matches('0').trim_end_matches('.').to_string()
+        };
+        let mut values = vec![0.0, -0.0, 0.004, -0.004, 0.005, -0.005, 0.125, 1.005, 2.675];
+        values.extend([
+            10.0,
+            100.5,
+            1234.5678,
+            -99.999,
+            1e9 + 0.01,
+            9.99e9,
+            1e13,
+            -1e15,
+        ]);
+        // A fixed walk over many magnitudes (a linear congruential sequence).
+        let mut x: u64 = 12345;
+        for _ in 0..20_000 {
+            x = x
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            let unit = (x >> 11) as f64 / (1u64 << 53) as f64;
+            let scale = 10f64.powi(((x >> 3) % 12) as i32 - 3);
+            let sign = if x & 1 == 0 { 1.0 } else { -1.0 };
+            values.push(sign * unit * scale);
+        }
+        for v in values {
+            assert_eq!(num(v), reference(v), "{v:?}");
+        }
+    }
 
     #[test]
     fn numbers_are_short_and_stable() {

@@ -1008,7 +1008,6 @@ impl Reach {
             start: Vec::with_capacity(items.len() + 1),
             others: Vec::new(),
         };
-
         for item in 0..items.len() {
             reach.start.push(reach.others.len());
             let Some((side, column)) = towards(item) else {

@@ -274,8 +274,9 @@ pub const LOOP: Rule = Rule {
 
 fn check_loop(cx: &Context, out: &mut Vec<Finding>) {
     let flow = &cx.circuit.flow;
-    // A graph with a topological order has no loop (a self-loop has none
-    // either); most plans stop here, without one component list per stage.
+    // A graph with a topological order has no loop (a graph with a
+    // self-loop has no such order); most plans stop here, without one
+    // component list per stage.
     // Both walk the graph iteratively: a long converter chain cannot exhaust
     // the stack.
     if petgraph::algo::toposort(flow, None).is_ok() {

@@ -659,7 +659,6 @@ fn solve_mode(
     let mut scratch = Scratch {
         before_potential: Vec::new(),
         before_current: Vec::new(),
-        direct_motor: vec![zero_current(); plan.nets.len()],
     };
     // Domain by domain, every point of the mode, while the domain's parts
     // and nets are in the cache; the first domain that does not settle
@@ -892,8 +891,6 @@ struct Domain {
     unwired_outputs: Vec<PinRef>,
     /// Its USB links, in file order.
     links: Vec<usize>,
-    /// Its nets that motors are wired straight across as their supply.
-    direct_motor_nets: Vec<NetId>,
 }
 
 impl Domain {
@@ -1001,9 +998,6 @@ impl Domain {
                 Class::Battery(_) => domain.batteries.push(part_id),
                 _ => {}
             }
-            if let Some(MotorFeed::Direct { supply, .. }) = circuit.motor_feed[part_id] {
-                domain.direct_motor_nets.push(supply);
-            }
             for slot in layout.slot_start[part_id]..layout.slot_start[part_id + 1] {
                 let slot = slot as usize;
                 let pin = layout.slot_pin[slot];
@@ -1081,8 +1075,6 @@ struct Scratch {
     /// A domain's potentials and currents at the last pass, in its net order.
     before_potential: Vec<Option<ElectricPotential>>,
     before_current: Vec<ElectricCurrent>,
-    /// Per net: the current of the motors wired straight across it.
-    direct_motor: Vec<ElectricCurrent>,
 }
 
 struct Solver<'a> {
@@ -1154,7 +1146,7 @@ impl Solver<'_> {
                 failure.iterations = iteration;
                 return Err(failure);
             }
-            self.currents(point, domain, &mut scratch.direct_motor);
+            self.currents(point, domain);
             if let Some(mut failure) = self.out_of_range(point, domain) {
                 failure.iterations = iteration;
                 return Err(failure);
@@ -1450,13 +1442,7 @@ impl Solver<'_> {
 
     // ----- currents, bottom up --------------------------------------------
 
-    /// `direct_motor` is zero on every net on entry, and is left so.
-    fn currents(
-        &self,
-        point: &mut OperatingPoint,
-        domain: &Domain,
-        direct_motor: &mut [ElectricCurrent],
-    ) {
+    fn currents(&self, point: &mut OperatingPoint, domain: &Domain) {
         let plan = self.plan;
         let circuit = self.circuit;
 
@@ -1551,14 +1537,6 @@ impl Solver<'_> {
         for &net in &domain.nets {
             net_current[net] = zero_current();
         }
-        // Motors wired straight across a rail load its supply net.
-        for &motor in &domain.motors {
-            if let (Some(MotorFeed::Direct { supply, .. }), Some(m)) =
-                (&circuit.motor_feed[motor], point.motors[motor])
-            {
-                direct_motor[*supply] += m.current;
-            }
-        }
         for &node_id in domain.rail_order.iter().rev() {
             let node = &circuit.nodes[node_id];
             for pin in &node.supply_ins {
@@ -1573,7 +1551,11 @@ impl Solver<'_> {
                 for pin in &self.lookup.net_inputs[inputs] {
                     net_current[net] += pin_current.get(pin.part, pin.pin);
                 }
-                net_current[net] += direct_motor[net];
+                // Motors wired straight across a rail load its supply net.
+                net_current[net] += circuit.direct_motors[net]
+                    .iter()
+                    .filter_map(|&motor| point.motors[motor])
+                    .fold(zero_current(), |sum, m| sum + m.current);
                 if let Some(parent) = circuit.parent[net] {
                     let below = net_current[net];
                     net_current[parent.net] += below;
@@ -1585,9 +1567,6 @@ impl Solver<'_> {
             if let (Some(source), Some(root)) = (circuit.source[node_id], circuit.root[node_id]) {
                 pin_current.set(source.part, source.pin, net_current[root]);
             }
-        }
-        for &net in &domain.direct_motor_nets {
-            direct_motor[net] = zero_current();
         }
         // Inputs on no rail carry nothing, but a regulator there still gets
         // its operating point recorded.

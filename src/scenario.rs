@@ -101,24 +101,22 @@ impl Powered<'_> {
 
     /// The nets that have power in normal running and none here, in net order.
     pub fn nets_turned_off(&self) -> Vec<NetId> {
-        let mut nets: Vec<NetId> = self
-            .difference
-            .nets
-            .iter()
-            .filter(|&(&n, &on)| !on && self.all.running_nets[n])
-            .map(|(&n, _)| n)
-            .collect();
-        nets.sort_unstable();
-        nets
+        self.nets_now(false)
     }
 
     /// The nets that have no power in normal running and have it here.
     pub fn nets_turned_on(&self) -> Vec<NetId> {
+        self.nets_now(true)
+    }
+
+    /// The nets whose power differs from normal running and is `on` here,
+    /// in net order (the difference holds only nets that differ).
+    fn nets_now(&self, on: bool) -> Vec<NetId> {
         let mut nets: Vec<NetId> = self
             .difference
             .nets
             .iter()
-            .filter(|&(&n, &on)| on && !self.all.running_nets[n])
+            .filter(|&(_, &now)| now == on)
             .map(|(&n, _)| n)
             .collect();
         nets.sort_unstable();

@@ -62,6 +62,27 @@ struct Difference {
     parts: HashMap<PartId, bool>,
 }
 
+impl Difference {
+    /// The nets and parts, of those given with their power, whose power
+    /// differs from normal running.
+    fn from_running(
+        running: &Scenarios,
+        nets: impl IntoIterator<Item = (NetId, bool)>,
+        parts: impl IntoIterator<Item = (PartId, bool)>,
+    ) -> Difference {
+        Difference {
+            nets: nets
+                .into_iter()
+                .filter(|&(net, on)| on != running.running_nets[net])
+                .collect(),
+            parts: parts
+                .into_iter()
+                .filter(|&(part, on)| on != running.running_parts[part])
+                .collect(),
+        }
+    }
+}
+
 /// Every scenario of a plan with what it leaves powered.
 #[derive(Clone, Debug)]
 pub struct Scenarios {
@@ -207,17 +228,11 @@ impl Scenarios {
 
     fn push_full(&mut self, solver: &Solver, scenario: Scenario) {
         let state = solver.solve_full(&scenario.connected, &scenario.removed, &scenario.open);
-        let mut difference = Difference::default();
-        for (net, &on) in state.nets.iter().enumerate() {
-            if on != self.running_nets[net] {
-                difference.nets.insert(net, on);
-            }
-        }
-        for (part, &on) in state.parts.iter().enumerate() {
-            if on != self.running_parts[part] {
-                difference.parts.insert(part, on);
-            }
-        }
+        let difference = Difference::from_running(
+            self,
+            state.nets.iter().copied().enumerate(),
+            state.parts.iter().copied().enumerate(),
+        );
         self.list.push((scenario, difference));
     }
 
@@ -353,18 +368,7 @@ impl<'a> Solver<'a> {
         let index = nets.iter().enumerate().map(|(i, &n)| (n, i)).collect();
         let region = Region::Some { nets, index };
         let local = Local::solve(self, &region, Some(running), &[], &[], &[switch]);
-        let mut difference = Difference::default();
-        for (net, on) in local.nets {
-            if on != running.running_nets[net] {
-                difference.nets.insert(net, on);
-            }
-        }
-        for (part, on) in local.parts.iter() {
-            if on != running.running_parts[part] {
-                difference.parts.insert(part, on);
-            }
-        }
-        difference
+        Difference::from_running(running, local.nets, local.parts.iter())
     }
 }
 

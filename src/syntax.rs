@@ -250,6 +250,26 @@ pub enum NodeKind {
 }
 
 impl Node {
+    /// Calls `f` on the span of this node and of every node below it (a
+    /// tree taken into other sources, or to other offsets).
+    pub fn for_each_span_mut(&mut self, f: &mut impl FnMut(&mut Span)) {
+        f(&mut self.span);
+        match &mut self.kind {
+            NodeKind::Map(entries) => {
+                for (key, value) in entries {
+                    key.for_each_span_mut(f);
+                    value.for_each_span_mut(f);
+                }
+            }
+            NodeKind::Seq(items) => {
+                for item in items {
+                    item.for_each_span_mut(f);
+                }
+            }
+            NodeKind::Scalar(_) | NodeKind::Null => {}
+        }
+    }
+
     /// The text of a scalar; `None` for any other kind.
     pub fn as_scalar(&self) -> Option<&str> {
         match &self.kind {

@@ -9,7 +9,7 @@
 //! reads the same parts for every variant).
 
 use super::{Part, Plan};
-use crate::syntax::{self, Node, NodeKind, SourceId, Sources, Span};
+use crate::syntax::{self, Node, Sources, Span};
 use include_dir::{Dir, include_dir};
 use std::collections::BTreeMap;
 use std::sync::OnceLock;
@@ -194,7 +194,9 @@ impl Library {
         });
         if let Some(tree) = parsed {
             let mut tree = tree.clone();
-            move_to(&mut tree, source);
+            // The kept tree (from the build, or parsed for another plan)
+            // is pointed into this plan's sources.
+            tree.for_each_span_mut(&mut |span| span.source = source);
             return Some(Ok(tree));
         }
         Some(syntax::parse(source, text).map_err(|e| LibraryError {
@@ -202,26 +204,6 @@ impl Library {
             span: e.span,
             unreadable: false,
         }))
-    }
-}
-
-/// Points every span of a tree into `source` (a cached tree taken into
-/// another plan's sources).
-fn move_to(node: &mut Node, source: SourceId) {
-    node.span.source = source;
-    match &mut node.kind {
-        NodeKind::Map(entries) => {
-            for (key, value) in entries {
-                move_to(key, source);
-                move_to(value, source);
-            }
-        }
-        NodeKind::Seq(items) => {
-            for item in items {
-                move_to(item, source);
-            }
-        }
-        NodeKind::Scalar(_) | NodeKind::Null => {}
     }
 }
 
@@ -249,6 +231,7 @@ fn collect_builtin(dir: &Dir<'static>, library: &mut Library) {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::syntax::SourceId;
 
     /// Every built-in part carries the tree `build.rs` parsed, and it is the
     /// tree this build's reader gives for the part's text: a part added,

@@ -232,7 +232,10 @@ pub(super) fn variant_tree(
     let parsed = parsed.as_map()?;
 
     let mut tree = base.clone();
-    move_spans(&mut tree, &shift);
+    tree.for_each_span_mut(&mut |span| {
+        span.start = shift(span.start);
+        span.end = shift(span.end);
+    });
     let NodeKind::Map(top) = &mut tree.kind else {
         return None;
     };
@@ -288,23 +291,4 @@ pub(super) fn variant_tree(
     }
     *top = whole;
     Some(tree)
-}
-
-fn move_spans(node: &mut Node, shift: &impl Fn(usize) -> usize) {
-    node.span.start = shift(node.span.start);
-    node.span.end = shift(node.span.end);
-    match &mut node.kind {
-        NodeKind::Map(entries) => {
-            for (key, value) in entries {
-                move_spans(key, shift);
-                move_spans(value, shift);
-            }
-        }
-        NodeKind::Seq(items) => {
-            for item in items {
-                move_spans(item, shift);
-            }
-        }
-        NodeKind::Scalar(_) | NodeKind::Null => {}
-    }
 }

@@ -100,41 +100,32 @@ pub(crate) fn sweep(run: &Run, args: &PlanArgs, options: SweepOptions) -> ExitCo
     let name = checked.sources.name(checked.plan_source).to_string();
     let streamed = matches!(args.format, Format::Csv | Format::JsonLines);
     let mut rows = Vec::new();
+    // Streamed, each row is written as soon as the rows before it are:
+    // nothing but the summary is kept. Otherwise the rows are kept to be
+    // ordered.
     if streamed {
-        // Each row is written as soon as the rows before it are: nothing but
-        // the summary is kept.
         emit(&match args.format {
             Format::Csv => report::sweep_csv_header(&sweep.axes),
             _ => report::sweep_jsonl_start(&name, &sweep.axes, total, options.strict),
         });
-        sweep.run_streaming(
-            &library,
-            threads,
-            stop,
-            |row| {
-                summary.add(&row);
-                if options.only_passing && !row.passes(options.strict) {
-                    return;
-                }
+    }
+    sweep.run_streaming(
+        &library,
+        threads,
+        stop,
+        |row| {
+            summary.add(&row);
+            if !streamed {
+                rows.push(row);
+            } else if !options.only_passing || row.passes(options.strict) {
                 emit(&match args.format {
                     Format::Csv => report::sweep_csv_record(&row, options.strict),
                     _ => report::sweep_jsonl_row(&row, options.strict),
                 });
-            },
-            |done| progress.tick(done),
-        );
-    } else {
-        sweep.run_streaming(
-            &library,
-            threads,
-            stop,
-            |row| {
-                summary.add(&row);
-                rows.push(row);
-            },
-            |done| progress.tick(done),
-        );
-    }
+            }
+        },
+        |done| progress.tick(done),
+    );
     progress.finish();
     let interrupted = summary.checked < total;
     let best = summary.best_passing().map(|r| r.index);

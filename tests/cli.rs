@@ -6,7 +6,10 @@
 //! Here every expectation comes from the format reference or from a value worked out
 //! by hand from published figures, named beside the check.
 
-use assert_cmd::Command;
+#[path = "common/command.rs"]
+mod command;
+
+use command::railcheck;
 use predicates::prelude::*;
 use serde_json::Value;
 use std::collections::BTreeSet;
@@ -94,12 +97,6 @@ const OPERATING_POINT_RULES: &[&str] = &[
 
 fn manifest_dir() -> &'static Path {
     Path::new(env!("CARGO_MANIFEST_DIR"))
-}
-
-fn railcheck() -> Command {
-    let mut command = Command::cargo_bin("railcheck").expect("the railcheck binary is built");
-    command.current_dir(manifest_dir()).env("NO_COLOR", "1");
-    command
 }
 
 /// Runs `railcheck check --format json FILE`, returning the parsed document

@@ -3,7 +3,10 @@
 //! out by hand, the same on any number of threads, and the physics of the
 //! choices (pack voltage, regulator rating) must show in the verdicts.
 
-use assert_cmd::Command;
+#[path = "common/command.rs"]
+mod command;
+
+use command::railcheck;
 use railcheck::model::Library;
 use railcheck::rules::{RatingKind, Severity};
 use railcheck::sweep::{Outcome, Row, Sweep, SweepError};
@@ -62,14 +65,6 @@ fn by_hand(pack: &str, buck: &str, gauge: &str) -> String {
         text = text.replacen(from, &to, 1);
     }
     text
-}
-
-fn railcheck() -> Command {
-    let mut command = Command::cargo_bin("railcheck").unwrap();
-    command
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .env("NO_COLOR", "1");
-    command
 }
 
 #[test]

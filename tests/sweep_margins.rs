@@ -3,7 +3,10 @@
 //! stream, stop and refuse values. Margins are worked out by hand from
 //! Ohm's law, the wire tables the checks cite and the 125 % fuse rule.
 
-use assert_cmd::Command;
+#[path = "common/command.rs"]
+mod command;
+
+use command::railcheck;
 use railcheck::model::Library;
 use railcheck::rules::{Margin, RatingKind};
 use railcheck::sweep::{Outcome, Rank, Row, Summary, Sweep, order};
@@ -238,14 +241,6 @@ fn a_key_of_several_nets_gives_each_net_the_value() {
             .variant(0)
             .contains("PACK+: { pins: [pack.pos, fuse.a], wire: 14 AWG }")
     );
-}
-
-fn railcheck() -> Command {
-    let mut command = Command::cargo_bin("railcheck").unwrap();
-    command
-        .current_dir(env!("CARGO_MANIFEST_DIR"))
-        .env("NO_COLOR", "1");
-    command
 }
 
 #[test]

@@ -243,11 +243,17 @@ fn a_key_of_several_nets_gives_each_net_the_value() {
     );
 }
 
-#[test]
-fn a_library_id_of_another_class_is_refused_up_front() {
+/// The heater plan written to a folder of its own (kept while the folder is).
+fn heater_on_disk() -> (tempfile::TempDir, std::path::PathBuf) {
     let dir = tempfile::tempdir().unwrap();
     let plan = dir.path().join("heater.yaml");
     std::fs::write(&plan, HEATER).unwrap();
+    (dir, plan)
+}
+
+#[test]
+fn a_library_id_of_another_class_is_refused_up_front() {
+    let (_dir, plan) = heater_on_disk();
     let out = railcheck()
         .args([
             "sweep",
@@ -316,9 +322,7 @@ fn a_stopped_sweep_hands_over_what_it_finished_in_order() {
 
 #[test]
 fn json_lines_stream_a_header_every_row_and_an_end() {
-    let dir = tempfile::tempdir().unwrap();
-    let plan = dir.path().join("heater.yaml");
-    std::fs::write(&plan, HEATER).unwrap();
+    let (_dir, plan) = heater_on_disk();
     let out = railcheck()
         .args([
             "sweep",
@@ -357,9 +361,7 @@ fn json_lines_stream_a_header_every_row_and_an_end() {
 #[cfg(unix)]
 #[test]
 fn ctrl_c_writes_the_rows_checked_so_far_and_exits_130() {
-    let dir = tempfile::tempdir().unwrap();
-    let plan = dir.path().join("heater.yaml");
-    std::fs::write(&plan, HEATER).unwrap();
+    let (_dir, plan) = heater_on_disk();
     // 10,000 combinations on one thread take far longer than the second
     // before the interrupt.
     let lengths: Vec<String> = (1..=100).map(|i| format!("{i} cm")).collect();
@@ -399,9 +401,7 @@ fn ctrl_c_writes_the_rows_checked_so_far_and_exits_130() {
 
 #[test]
 fn piped_output_has_no_progress_bar_and_quiet_says_nothing() {
-    let dir = tempfile::tempdir().unwrap();
-    let plan = dir.path().join("heater.yaml");
-    std::fs::write(&plan, HEATER).unwrap();
+    let (_dir, plan) = heater_on_disk();
     let lengths: Vec<String> = (1..=40).map(|i| format!("{i} cm")).collect();
     let run = |quiet: bool| {
         let mut command = railcheck();
